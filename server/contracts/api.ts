@@ -1,0 +1,144 @@
+/**
+ * HTTP API contracts: request bodies, params, queries and response shapes.
+ * Imported by the server (parsing) and by the app (typing and form errors).
+ * Only zod may be imported here.
+ */
+import { z } from 'zod';
+import { capabilities, projectRoleSchema, siteRoleSchema } from './roles';
+import { designSchema } from './design';
+
+// ---------- errors ----------
+export const errorCodeSchema = z.enum([
+  'bad_request',
+  'validation_failed',
+  'unauthenticated',
+  'forbidden',
+  'not_found',
+  'conflict',
+  'stale_write',
+  'rate_limited',
+  'csrf_failed',
+  'unprocessable',
+  'internal',
+]);
+export type ErrorCode = z.infer<typeof errorCodeSchema>;
+
+export const fieldIssueSchema = z.object({ path: z.array(z.union([z.string(), z.number()])), message: z.string() });
+export const errorBodySchema = z.object({
+  error: z.object({
+    code: errorCodeSchema,
+    message: z.string(),
+    details: z.array(fieldIssueSchema).optional(),
+  }),
+});
+export type ErrorBody = z.infer<typeof errorBodySchema>;
+
+// ---------- shared ----------
+export const idSchema = z.coerce.number().int().positive();
+export const emailSchema = z.string().trim().toLowerCase().email().max(254);
+export const passwordSchema = z.string().min(10, 'Use at least 10 characters.').max(200);
+export const displayNameSchema = z.string().trim().min(1).max(80);
+export const versionSchema = z.number().int().min(1);
+
+export const userSchema = z.object({
+  id: z.number().int(),
+  email: z.string(),
+  displayName: z.string(),
+  siteRole: siteRoleSchema,
+  version: z.number().int(),
+});
+export type User = z.infer<typeof userSchema>;
+
+// ---------- health ----------
+export const healthSchema = z.object({ ok: z.boolean(), database: z.enum(['up', 'down']) });
+
+// ---------- auth ----------
+export const csrfResponseSchema = z.object({ csrfToken: z.string() });
+export const signUpBodySchema = z.object({ email: emailSchema, password: passwordSchema, displayName: displayNameSchema });
+export const signInBodySchema = z.object({ email: emailSchema, password: z.string().min(1).max(200) });
+export const meResponseSchema = z.object({ user: userSchema });
+export const resetRequestBodySchema = z.object({ email: emailSchema });
+export const resetConfirmBodySchema = z.object({ token: z.string().min(16).max(200), password: passwordSchema });
+
+// ---------- account ----------
+export const accountUpdateBodySchema = z.object({ displayName: displayNameSchema, version: versionSchema });
+export const passwordChangeBodySchema = z.object({ currentPassword: z.string().min(1).max(200), newPassword: passwordSchema });
+
+// ---------- projects ----------
+export const projectParamsSchema = z.object({ projectId: idSchema });
+export const projectSchema = z.object({
+  id: z.number().int(),
+  name: z.string(),
+  description: z.string(),
+  role: projectRoleSchema,
+  capabilities: z.array(z.enum(capabilities)),
+  version: z.number().int(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+});
+export type Project = z.infer<typeof projectSchema>;
+export const projectListSchema = z.object({ projects: z.array(projectSchema) });
+export const projectCreateBodySchema = z.object({
+  name: z.string().trim().min(1).max(120),
+  description: z.string().trim().max(2000).default(''),
+});
+export const projectUpdateBodySchema = z.object({
+  name: z.string().trim().min(1).max(120).optional(),
+  description: z.string().trim().max(2000).optional(),
+  version: versionSchema,
+});
+
+// ---------- members ----------
+export const memberParamsSchema = z.object({ projectId: idSchema, userId: idSchema });
+export const memberSchema = z.object({
+  userId: z.number().int(),
+  email: z.string(),
+  displayName: z.string(),
+  role: projectRoleSchema,
+  version: z.number().int(),
+});
+export type Member = z.infer<typeof memberSchema>;
+export const memberListSchema = z.object({ members: z.array(memberSchema) });
+export const memberUpdateBodySchema = z.object({ role: projectRoleSchema, version: versionSchema });
+
+// ---------- invitations ----------
+export const invitationParamsSchema = z.object({ projectId: idSchema, invitationId: idSchema });
+export const invitationTokenParamsSchema = z.object({ token: z.string().min(16).max(200) });
+export const invitationCreateBodySchema = z.object({ email: emailSchema, role: projectRoleSchema });
+export const invitationSchema = z.object({
+  id: z.number().int(),
+  email: z.string(),
+  role: projectRoleSchema,
+  invitedBy: z.string(),
+  createdAt: z.string(),
+  expiresAt: z.string(),
+});
+export type Invitation = z.infer<typeof invitationSchema>;
+export const invitationListSchema = z.object({ invitations: z.array(invitationSchema) });
+export const invitationPreviewSchema = z.object({ projectName: z.string(), role: projectRoleSchema, email: z.string(), invitedBy: z.string() });
+
+// ---------- design of a project ----------
+export const projectDesignSchema = z.object({ design: designSchema, version: z.number().int(), updatedAt: z.string() });
+export const projectDesignUpdateBodySchema = z.object({ design: designSchema, version: versionSchema });
+
+// ---------- audit ----------
+export const auditEntrySchema = z.object({
+  id: z.number().int(),
+  at: z.string(),
+  actor: z.string().nullable(),
+  action: z.string(),
+  detail: z.record(z.string(), z.unknown()),
+});
+export const auditListSchema = z.object({ entries: z.array(auditEntrySchema) });
+
+// ---------- admin: captured mail ----------
+export const capturedMailSchema = z.object({
+  id: z.number().int(),
+  receivedAt: z.string(),
+  from: z.string(),
+  to: z.array(z.string()),
+  subject: z.string(),
+  text: z.string(),
+});
+export type CapturedMail = z.infer<typeof capturedMailSchema>;
+export const capturedMailListSchema = z.object({ messages: z.array(capturedMailSchema) });
