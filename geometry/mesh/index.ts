@@ -1,0 +1,17 @@
+/**
+ * Public API of the mesher (geometry/mesh):
+ *
+ *   kuhnBox(opts)            → BisectionMesh   initial Kuhn mesh of a box, tagged for bisection
+ *   refine(mesh, marked)     → BisectionMesh   bisect marked tets once, then close (in place)
+ *   refineUniform(mesh, n)   → BisectionMesh   n rounds of bisecting every tet
+ *   toTetMesh(mesh)          → TetMesh         exact-length, positively oriented copy for FEM/export
+ *
+ * A BisectionMesh keeps the Maubach vertex order and tags, so refine() can be called again on the
+ * result (the adaptive FEM loop calls it with Dörfler marks).
+ */
+export { kuhnBox, refine, refineWithStats, refineUniform, refineToSize, toTetMesh } from './bisection';
+export type { BisectionMesh, KuhnBoxOptions, RefineOptions, RefineStats, TooLarge } from './bisection';
+export { MeshError } from './errors';
+export type { MeshErrorCode } from './errors';
+export type { TetMesh } from './types';
+export { NO_PARENT } from './types';
