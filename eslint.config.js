@@ -1,0 +1,54 @@
+// ESLint flat config: JavaScript and TypeScript recommended rules (not type-checked, for speed: `tsc
+// --noEmit` does the type checking), the rules of hooks for the React client, and the right globals for
+// browser, Node and test code.
+import js from '@eslint/js';
+import reactHooks from 'eslint-plugin-react-hooks';
+import { defineConfig, globalIgnores } from 'eslint/config';
+import globals from 'globals';
+import tseslint from 'typescript-eslint';
+
+export default defineConfig([
+  globalIgnores([
+    'dist/**',
+    'node_modules/**',
+    '.data/**',
+    'tests/artifacts/**',
+    'test-results/**',
+    'playwright-report/**',
+    'out/**',
+    'coverage/**',
+  ]),
+  js.configs.recommended,
+  tseslint.configs.recommended,
+  {
+    languageOptions: { ecmaVersion: 2023, sourceType: 'module', globals: { ...globals.node } },
+    linterOptions: { reportUnusedDisableDirectives: 'error' },
+    rules: {
+      // `_name` marks an argument or binding kept on purpose (an Express error handler's `next`, a tuple slot).
+      '@typescript-eslint/no-unused-vars': [
+        'error',
+        { argsIgnorePattern: '^_', varsIgnorePattern: '^_', caughtErrorsIgnorePattern: '^_', ignoreRestSiblings: true },
+      ],
+    },
+  },
+  {
+    // The client runs in the browser.
+    files: ['app/**/*.{ts,tsx,js,jsx}'],
+    languageOptions: { globals: { ...globals.browser } },
+    plugins: { 'react-hooks': reactHooks },
+    rules: {
+      'react-hooks/rules-of-hooks': 'error',
+      'react-hooks/exhaustive-deps': 'warn',
+    },
+  },
+  {
+    // The numerical core is shared by browser and Node: only what both have.
+    files: ['geometry/**/*.ts'],
+    languageOptions: { globals: { ...globals['shared-node-browser'] } },
+  },
+  {
+    // Playwright specs touch the page's `window` and `document` inside page.evaluate callbacks.
+    files: ['tests/e2e/**/*.ts', 'tests/app/**/*.{ts,tsx}'],
+    languageOptions: { globals: { ...globals.node, ...globals.browser } },
+  },
+]);
