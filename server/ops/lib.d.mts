@@ -36,6 +36,7 @@ export interface StageResult {
   passed?: number;
   failed?: number;
   skipped?: number;
+  notRun?: boolean;
 }
 export function formatSummary(stages: StageResult[]): { text: string; passed: number; failed: number; skipped: number };
 export function demoLogins(result: unknown): { email: string; password: string; role: string | null }[];

@@ -167,9 +167,9 @@ export function countTscErrors(output) {
 /**
  * Formats the closing summary of `npm test`.
  *
- * Each stage is { name, ok, detail, passed, failed, skipped }. Stages that run tests (vitest, Playwright)
+ * Each stage is { name, ok, detail, passed, failed, skipped, notRun }. Stages that run tests (vitest, Playwright)
  * contribute their test counts; the others (set-up, type check, lint) count as one check each, passed or
- * failed. The last line is the plain `N passed, N failed` that CI reads.
+ * failed; stages left out on request (notRun) count as neither. The last line is the plain `N passed, N failed` that CI reads.
  */
 export function formatSummary(stages) {
   let passed = 0;
@@ -178,9 +178,11 @@ export function formatSummary(stages) {
   const width = Math.max(...stages.map((s) => s.name.length), 5);
   const lines = ['', '── Tetrawell test summary ' + '─'.repeat(40)];
   for (const s of stages) {
-    const mark = s.ok ? 'ok  ' : 'FAIL';
+    const mark = s.notRun ? 'skip' : s.ok ? 'ok  ' : 'FAIL';
     lines.push(`${mark}  ${s.name.padEnd(width)}  ${s.detail ?? ''}`.trimEnd());
-    if (typeof s.passed === 'number' || typeof s.failed === 'number') {
+    if (s.notRun) {
+      // Left out on request (--only/--skip): neither passed nor failed.
+    } else if (typeof s.passed === 'number' || typeof s.failed === 'number') {
       passed += s.passed ?? 0;
       failed += s.failed ?? 0;
       skipped += s.skipped ?? 0;

@@ -226,6 +226,15 @@ describe('the closing summary', () => {
     expect(formatSummary([{ name: 'x', ok: true }]).text.split('\n').at(-1)).toMatch(/^\d+ passed, \d+ failed$/);
   });
 
+  it('counts stages left out on request as neither passed nor failed', () => {
+    const s = formatSummary([
+      { name: 'vitest', ok: true, passed: 5, failed: 0 },
+      { name: 'e2e', ok: true, notRun: true, detail: 'not run' },
+    ]);
+    expect([s.passed, s.failed]).toEqual([5, 0]);
+    expect(s.text).toMatch(/^skip\s+e2e/m);
+  });
+
   it('never reports a crashed runner as clean', () => {
     const s = formatSummary([{ name: 'vitest', ok: false, passed: 0, failed: 0 }]);
     expect(s.failed).toBe(1);

@@ -1,0 +1,138 @@
+/**
+ * meshDesign: from a design document to a graded, conforming tetrahedral mesh.
+ *
+ *   1. check the enclosure (degenerate → MeshError 'degenerate-box')
+ *   2. size field from the sites and refinement.targetRelError (sizefield.ts)
+ *   3. initial Kuhn cells: near-cubic, `initialCells` across the smallest axis
+ *   4. estimate the tet count (estimate.ts); refuse above maxElements or the server cap
+ *   5. bisect to the size field with closure (bisection.ts), arrays pre-sized from the estimate
+ *   6. toTetMesh (positively oriented copy)
+ */
+import type { Design } from '../design/types';
+import { kuhnBox, refineToSize, toTetMesh, type BisectionMesh } from './bisection';
+import { MeshError } from './errors';
+import { estimateTetCount } from './estimate';
+import { SizeField, sizeFieldFromDesign, type SizeFieldOptions, type SizeFieldParams } from './sizefield';
+import type { TetMesh } from './types';
+
+/** Server-wide cap on tetrahedra (memory: ~60–100 bytes per tet while meshing). Common practice. */
+export const DEFAULT_HARD_CAP = 5_000_000;
+
+export interface MeshDesignOptions extends SizeFieldOptions {
+  /** initial Kuhn cells across the smallest enclosure axis (default 2) */
+  initialCells?: number;
+  /** server-wide cap (default DEFAULT_HARD_CAP) */
+  hardCap?: number;
+  /** overrides design.refinement.maxElements */
+  maxElements?: number;
+  /** keep the tagged bisection mesh in the result (for further adaptive refinement) */
+  keepBisectionMesh?: boolean;
+}
+
+export interface MeshDesignStats {
+  vertices: number;
+  tets: number;
+  initialCells: [number, number, number];
+  initialTets: number;
+  bisections: number;
+  closurePasses: number;
+  /** largest tet generation */
+  maxLevel: number;
+  estimateLeaves: number;
+  secondsEstimate: number;
+  secondsRefine: number;
+  secondsConvert: number;
+}
+
+export interface MeshDesignResult {
+  mesh: TetMesh;
+  sizeField: SizeFieldParams;
+  /** estimated tet count, computed before meshing */
+  estimate: number;
+  stats: MeshDesignStats;
+  /** the tagged mesh, when options.keepBisectionMesh */
+  bisectionMesh?: BisectionMesh;
+}
+
+/** cells per axis: about n across the smallest axis, others rounded so cells stay near-cubic */
+export function chooseInitialCells(halfExtents: readonly number[], nMin: number): [number, number, number] {
+  if (!Number.isInteger(nMin) || nMin < 1) throw new MeshError('bad-size-field', `initialCells must be a positive integer, got ${nMin}`);
+  const s = (2 * Math.min(halfExtents[0], halfExtents[1], halfExtents[2])) / nMin;
+  return [0, 1, 2].map((a) => Math.max(1, Math.round((2 * halfExtents[a]) / s))) as [number, number, number];
+}
+
+function checkEnclosure(design: Design): void {
+  const { center, halfExtentsNm } = design.enclosure;
+  for (let a = 0; a < 3; a++) {
+    const h = halfExtentsNm[a];
+    const c = center[a];
+    if (!Number.isFinite(h) || !(h > 0) || !Number.isFinite(c) || !(c + h > c - h)) {
+      throw new MeshError(
+        'degenerate-box',
+        `the enclosure is degenerate along ${'xyz'[a]}: half-extent ${h} nm, centre ${c} nm (both must be finite numbers and the half-extent positive)`,
+      );
+    }
+  }
+}
+
+export function meshDesign(design: Design, options: MeshDesignOptions = {}): MeshDesignResult {
+  checkEnclosure(design);
+  const { center, halfExtentsNm } = design.enclosure;
+  const hardCap = options.hardCap ?? DEFAULT_HARD_CAP;
+  const maxElements = options.maxElements ?? design.refinement.maxElements;
+  const limit = Math.min(hardCap, maxElements);
+  const { spec, params } = sizeFieldFromDesign(design, options);
+  const field = new SizeField(spec);
+  const cells = chooseInitialCells(halfExtentsNm, options.initialCells ?? 2);
+  const boxMin = [0, 1, 2].map((a) => center[a] - halfExtentsNm[a]);
+  const boxMax = [0, 1, 2].map((a) => center[a] + halfExtentsNm[a]);
+  const initialTets = 6 * cells[0] * cells[1] * cells[2];
+
+  const t0 = performance.now();
+  const est = estimateTetCount({ field, boxMin, boxMax, cells, stopAbove: 1.5 * limit });
+  const estimate = Math.max(initialTets, est.tets);
+  const t1 = performance.now();
+  if (estimate > limit) {
+    const which = maxElements <= hardCap ? `the design's maxElements (${maxElements})` : `the server cap (${hardCap})`;
+    throw new MeshError(
+      'too-many-elements',
+      `the size field needs about ${est.aborted ? 'more than ' : ''}${Math.round(estimate)} tetrahedra, more than ${which}; ` +
+        'raise targetRelError, shrink the enclosure or raise maxElements',
+      { estimate, limit, maxElements, hardCap },
+    );
+  }
+
+  // Pre-size from the estimate (tests hold it within ±30 %): 1.4× leaves room for the error, and
+  // graded Kuhn meshes have about 5–6 tets per vertex, so vertices ≤ tets/4 is generous.
+  // Arrays still double if a run needs more.
+  const tetCap = Math.ceil(1.4 * estimate) + initialTets;
+  const mesh = kuhnBox({ center, halfExtents: halfExtentsNm, cells, capacity: { tets: tetCap, vertices: Math.ceil(tetCap / 4) } });
+  // The running guard: the estimate may be low by its error margin; past twice the limit (or the
+  // hard cap) the run stops rather than exhaust memory.
+  const refineStats = refineToSize(mesh, field.tooLarge, { maxTets: Math.min(hardCap, Math.max(2 * maxElements, initialTets)) });
+  const t2 = performance.now();
+  const tetMesh = toTetMesh(mesh);
+  const t3 = performance.now();
+  let maxLevel = 0;
+  for (let t = 0; t < tetMesh.tetLevel.length; t++) if (tetMesh.tetLevel[t] > maxLevel) maxLevel = tetMesh.tetLevel[t];
+
+  return {
+    mesh: tetMesh,
+    sizeField: params,
+    estimate,
+    stats: {
+      vertices: mesh.nVertices,
+      tets: mesh.nTets,
+      initialCells: cells,
+      initialTets,
+      bisections: refineStats.bisections,
+      closurePasses: refineStats.passes,
+      maxLevel,
+      estimateLeaves: est.leaves,
+      secondsEstimate: (t1 - t0) / 1000,
+      secondsRefine: (t2 - t1) / 1000,
+      secondsConvert: (t3 - t2) / 1000,
+    },
+    bisectionMesh: options.keepBisectionMesh ? mesh : undefined,
+  };
+}

@@ -1,0 +1,364 @@
+/**
+ * The size field: the longest tetrahedron edge wanted at each point of the enclosure.
+ *
+ *     h(x) = min( hmax, min over sites s of  h0_s · max(1, |x − p_s| / a_s)^β )
+ *
+ *   a_s   orbital length of site s (hydrogenic / anisotropic 1s: the (smaller) radius a;
+ *         Gaussian: 2σ, because exp(−r²/2σ²) falls off on the scale σ like exp(−2r/a) does on a/2)
+ *   h0_s  size inside the core r ≤ a_s, where the charge density lives
+ *   β     grading exponent, 2(p+2)/(2p+3): 6/5 for P1, 8/7 for P2
+ *
+ *   h ▲                                     hmax ─────────
+ *     │                              ....·´
+ *     │                       ...·´´          h0 (r/a)^β
+ *     │               ...·´´
+ *  h0 ├───────────·´
+ *     └───────────┼──────────────────────────────────────▶ r
+ *                 a
+ *
+ * Why β: with p the element order the energy-norm interpolation error on a tet of size h is
+ * ‖∇(u − Iu)‖²_T ≈ h^{2p} |D^{p+1}u|² h³ (Ciarlet, The FEM for Elliptic Problems, Thm 3.1.6), and
+ * outside the charge u ≈ q/r, so |D^{p+1}u| ≈ r^{−(p+2)}. Equal error per element,
+ * h^{2p+3} r^{−2(p+2)} = const, gives h ∝ r^{2(p+2)/(2p+3)}. Inside the core the derivatives of u
+ * scale like a^{−(p+2)} instead, hence the flat part h = h0 for r ≤ a.
+ *
+ * Why h0 (automatic rule): the relative energy error of a Coulomb energy computed with order-p
+ * elements of size h in the core behaves like C_p (h/a)^{2p} (the energy error is the square of the
+ * energy-norm error, O(h^p)). Solving C_p (h0/a)^{2p} = tol / S gives
+ *
+ *     h0 = a · (tol / (S · C_p))^{1/(2p)},   capped at a,
+ *
+ * with C_p from the uniform-mesh measurement recorded in issue 4 (one 1s density of radius a in a
+ * box of half-width 10a; P1: 0.9 % at longest edge ≈ 0.53a → C_1 ≈ 0.03; P2: 0.08 % at longest
+ * edge ≈ 1.07a → C_2 ≈ 6e-4; our own reading of those numbers, to be re-calibrated by the FEM
+ * convergence study) and a safety factor S = 4 because the graded far field and the closure share
+ * the error budget with the core. Every parameter can be overridden.
+ */
+import type { Design, Orbital } from '../design/types';
+import { resolveOrbital } from '../design/presets';
+import { MeshError } from './errors';
+import type { TooLarge } from './bisection';
+
+/** C_p of the rule above, index p − 1 (see header: from the measurements in issue 4). */
+export const CORE_ERROR_CONSTANT: readonly [number, number] = [0.03, 6e-4];
+/** safety factor S of the rule above (common practice: leave most of the budget to the rest). */
+export const CORE_SAFETY_FACTOR = 4;
+
+export function gradingExponent(order: 1 | 2): number {
+  return (2 * (order + 2)) / (2 * order + 3);
+}
+
+/** The orbital length a used by the size field (see header). */
+export function orbitalLength(orbital: Orbital): number {
+  switch (orbital.model) {
+    case 'hydrogenic-1s':
+      return orbital.radiusNm;
+    case 'anisotropic-1s':
+      return Math.min(orbital.radiusNm, orbital.radiusZNm);
+    case 'gaussian':
+      return 2 * orbital.sigmaNm;
+  }
+}
+
+/** h0 = a · (tol / (S C_p))^{1/(2p)}, capped at a. */
+export function autoCoreSize(a: number, tol: number, order: 1 | 2): number {
+  const ratio = Math.pow(tol / (CORE_SAFETY_FACTOR * CORE_ERROR_CONSTANT[order - 1]), 1 / (2 * order));
+  return a * Math.min(1, ratio);
+}
+
+/** Sites sharing one (h0, a) pair: one class per distinct pair, in order of first appearance. */
+export interface SizeClassSpec {
+  h0Nm: number;
+  coreRadiusNm: number;
+  /** site positions, 3 per site */
+  positions: Float64Array;
+}
+
+export interface SizeFieldSpec {
+  exponent: number;
+  hmaxNm: number;
+  classes: SizeClassSpec[];
+}
+
+/** The parameters as plain data (what meshDesign reports). */
+export interface SizeFieldParams {
+  order: 1 | 2;
+  targetRelError: number;
+  exponent: number;
+  hmaxNm: number;
+  /** smallest h0 over the classes */
+  h0MinNm: number;
+  classes: { h0Nm: number; coreRadiusNm: number; sites: number }[];
+  rule: string;
+}
+
+export interface SizeFieldOptions {
+  /** one h0 for every site, overriding the automatic rule */
+  h0Nm?: number;
+  /** multiplies the automatic h0 (e.g. 0.5 for a finer core) */
+  h0Factor?: number;
+  /** cap on the size; default: a quarter of the smallest enclosure extent */
+  hmaxNm?: number;
+  /** grading exponent; default 2(p+2)/(2p+3) */
+  exponent?: number;
+  /** order to grade for; default design.refinement.order */
+  order?: 1 | 2;
+  /** tolerance; default design.refinement.targetRelError */
+  targetRelError?: number;
+}
+
+function positive(name: string, v: number): number {
+  if (!Number.isFinite(v) || !(v > 0)) throw new MeshError('bad-size-field', `size-field parameter ${name} must be a positive number, got ${v}`);
+  return v;
+}
+
+export function sizeFieldFromDesign(design: Design, options: SizeFieldOptions = {}): { spec: SizeFieldSpec; params: SizeFieldParams } {
+  const order = options.order ?? design.refinement.order;
+  const tol = positive('targetRelError', options.targetRelError ?? design.refinement.targetRelError);
+  const exponent = positive('exponent', options.exponent ?? gradingExponent(order));
+  const ext = design.enclosure.halfExtentsNm;
+  const hmaxNm = positive('hmaxNm', options.hmaxNm ?? (2 * Math.min(ext[0], ext[1], ext[2])) / 4);
+  const factor = positive('h0Factor', options.h0Factor ?? 1);
+  if (options.h0Nm !== undefined) positive('h0Nm', options.h0Nm);
+
+  // group sites by (h0, a) so the per-tet test costs one pow per class, not per site
+  const keyOf = new Map<string, number>(); // only used for lookup; classes keep first-appearance order
+  const groups: { h0: number; a: number; pos: number[] }[] = [];
+  for (const site of design.sites) {
+    const a = positive('orbital radius', orbitalLength(resolveOrbital(site)));
+    const h0 = options.h0Nm ?? factor * autoCoreSize(a, tol, order);
+    const key = `${h0}|${a}`;
+    let g = keyOf.get(key);
+    if (g === undefined) {
+      g = groups.length;
+      keyOf.set(key, g);
+      groups.push({ h0, a, pos: [] });
+    }
+    groups[g].pos.push(site.position[0], site.position[1], site.position[2]);
+  }
+  const classes = groups.map((g) => ({ h0Nm: g.h0, coreRadiusNm: g.a, positions: Float64Array.from(g.pos) }));
+  const spec: SizeFieldSpec = { exponent, hmaxNm, classes };
+  const params: SizeFieldParams = {
+    order,
+    targetRelError: tol,
+    exponent,
+    hmaxNm,
+    h0MinNm: classes.length ? Math.min(...classes.map((c) => c.h0Nm)) : hmaxNm,
+    classes: classes.map((c) => ({ h0Nm: c.h0Nm, coreRadiusNm: c.coreRadiusNm, sites: c.positions.length / 3 })),
+    rule:
+      options.h0Nm !== undefined
+        ? `h = min(hmax, h0·max(1, r/a)^β), h0 = ${options.h0Nm} nm (given)`
+        : `h = min(hmax, h0·max(1, r/a)^β), h0 = ${factor === 1 ? '' : `${factor}·`}a·(tol/(${CORE_SAFETY_FACTOR}·C_p))^(1/2p) capped at a, C_1 = ${CORE_ERROR_CONSTANT[0]}, C_2 = ${CORE_ERROR_CONSTANT[1]}, β = 2(p+2)/(2p+3)`,
+  };
+  return { spec, params };
+}
+
+/* ------------------------------------------------------------------------------------------ */
+
+/** squared distance from point p to the box [lo, hi] (0 inside) */
+function boxDist2(px: number, py: number, pz: number, l0: number, l1: number, l2: number, u0: number, u1: number, u2: number): number {
+  const dx = px < l0 ? l0 - px : px > u0 ? px - u0 : 0;
+  const dy = py < l1 ? l1 - py : py > u1 ? py - u1 : 0;
+  const dz = pz < l2 ? l2 - pz : pz > u2 ? pz - u2 : 0;
+  return dx * dx + dy * dy + dz * dz;
+}
+
+/**
+ * Uniform grid of site positions (CSR: cellStart, cellSites), so that "sites within reach R of a
+ * box" visits only the grid cells overlapping the box grown by R. Few sites: a plain scan.
+ */
+class SiteGrid {
+  readonly n: number;
+  private readonly pos: Float64Array;
+  private readonly useGrid: boolean;
+  private readonly origin: number[] = [0, 0, 0];
+  private readonly inv: number = 1;
+  private readonly dims: number[] = [1, 1, 1];
+  private readonly start: Uint32Array = new Uint32Array(0);
+  private readonly ids: Uint32Array = new Uint32Array(0);
+
+  constructor(pos: Float64Array) {
+    this.pos = pos;
+    this.n = pos.length / 3;
+    this.useGrid = this.n > 32;
+    if (!this.useGrid) return;
+    const lo = [Infinity, Infinity, Infinity];
+    const hi = [-Infinity, -Infinity, -Infinity];
+    for (let i = 0; i < this.n; i++) {
+      for (let a = 0; a < 3; a++) {
+        lo[a] = Math.min(lo[a], pos[3 * i + a]);
+        hi[a] = Math.max(hi[a], pos[3 * i + a]);
+      }
+    }
+    const span = Math.max(hi[0] - lo[0], hi[1] - lo[1], hi[2] - lo[2], 1e-9);
+    // about one site per cell for a volume-filling array; at most ~n cells in total
+    let cell = span / Math.cbrt(this.n);
+    const dimsOf = (c: number) => [0, 1, 2].map((a) => Math.floor((hi[a] - lo[a]) / c) + 1);
+    let d = dimsOf(cell);
+    while (d[0] * d[1] * d[2] > 2 * this.n + 8) {
+      cell *= 1.25;
+      d = dimsOf(cell);
+    }
+    this.origin = lo;
+    this.inv = 1 / cell;
+    this.dims = d;
+    const nc = d[0] * d[1] * d[2];
+    const start = new Uint32Array(nc + 1);
+    const cellOf = new Uint32Array(this.n);
+    for (let i = 0; i < this.n; i++) {
+      const c = this.cellIndex(pos[3 * i], pos[3 * i + 1], pos[3 * i + 2]);
+      cellOf[i] = c;
+      start[c + 1]++;
+    }
+    for (let c = 0; c < nc; c++) start[c + 1] += start[c];
+    const fill = start.slice(0, nc);
+    const ids = new Uint32Array(this.n);
+    for (let i = 0; i < this.n; i++) ids[fill[cellOf[i]]++] = i; // increasing site index within a cell
+    this.start = start;
+    this.ids = ids;
+  }
+
+  private clampCell(a: number, x: number): number {
+    const c = Math.floor((x - this.origin[a]) * this.inv);
+    return c < 0 ? 0 : c >= this.dims[a] ? this.dims[a] - 1 : c;
+  }
+
+  private cellIndex(x: number, y: number, z: number): number {
+    return this.clampCell(0, x) + this.dims[0] * (this.clampCell(1, y) + this.dims[1] * this.clampCell(2, z));
+  }
+
+  /**
+   * Smallest squared distance from the box to a site closer than R (Infinity when none).
+   * With `any`, returns as soon as one site closer than R is found.
+   */
+  minDist2(l0: number, l1: number, l2: number, u0: number, u1: number, u2: number, R: number, any: boolean): number {
+    const R2 = R * R;
+    let best = Infinity;
+    const pos = this.pos;
+    if (this.useGrid) {
+      const i0 = this.clampCell(0, l0 - R), i1 = this.clampCell(0, u0 + R);
+      const j0 = this.clampCell(1, l1 - R), j1 = this.clampCell(1, u1 + R);
+      const k0 = this.clampCell(2, l2 - R), k1 = this.clampCell(2, u2 + R);
+      const cellsInRange = (i1 - i0 + 1) * (j1 - j0 + 1) * (k1 - k0 + 1);
+      if (cellsInRange < this.n) {
+        const dx = this.dims[0];
+        const dy = this.dims[1];
+        for (let k = k0; k <= k1; k++) {
+          for (let j = j0; j <= j1; j++) {
+            const row = dx * (j + dy * k);
+            for (let i = i0; i <= i1; i++) {
+              const c = row + i;
+              for (let s = this.start[c]; s < this.start[c + 1]; s++) {
+                const q = 3 * this.ids[s];
+                const d2 = boxDist2(pos[q], pos[q + 1], pos[q + 2], l0, l1, l2, u0, u1, u2);
+                if (d2 < R2 && d2 < best) {
+                  best = d2;
+                  if (any) return best;
+                }
+              }
+            }
+          }
+        }
+        return best;
+      }
+    }
+    for (let q = 0; q < pos.length; q += 3) {
+      const d2 = boxDist2(pos[q], pos[q + 1], pos[q + 2], l0, l1, l2, u0, u1, u2);
+      if (d2 < R2 && d2 < best) {
+        best = d2;
+        if (any) return best;
+      }
+    }
+    return best;
+  }
+}
+
+interface RuntimeClass {
+  h0: number;
+  a: number;
+  grid: SiteGrid;
+  /** distance beyond which this class's h exceeds hmax: a (hmax/h0)^{1/β} */
+  reachMax: number;
+}
+
+/**
+ * Evaluator of a size field. All queries are conservative in the sense the mesher needs: over a
+ * box they return the minimum of h over that box (distances are measured to the box, not to a
+ * point in it), so a tet that passes the test passes it everywhere inside.
+ */
+export class SizeField {
+  readonly exponent: number;
+  readonly hmax: number;
+  private readonly invExponent: number;
+  private readonly classes: RuntimeClass[];
+
+  constructor(spec: SizeFieldSpec) {
+    this.exponent = positive('exponent', spec.exponent);
+    this.hmax = positive('hmaxNm', spec.hmaxNm);
+    this.invExponent = 1 / this.exponent;
+    this.classes = spec.classes
+      .filter((c) => c.positions.length > 0)
+      .map((c) => {
+        const h0 = positive('h0Nm', c.h0Nm);
+        const a = positive('coreRadiusNm', c.coreRadiusNm);
+        return { h0, a, grid: new SiteGrid(c.positions), reachMax: h0 < this.hmax ? a * Math.pow(this.hmax / h0, this.invExponent) : 0 };
+      });
+  }
+
+  /** min of h over the box [l, u] */
+  minOverBox(l0: number, l1: number, l2: number, u0: number, u1: number, u2: number): number {
+    let h = this.hmax;
+    for (const c of this.classes) {
+      if (c.reachMax <= 0) continue;
+      const d2 = c.grid.minDist2(l0, l1, l2, u0, u1, u2, c.reachMax, false);
+      if (d2 === Infinity) continue;
+      const r = Math.sqrt(d2);
+      const hc = r <= c.a ? c.h0 : c.h0 * Math.pow(r / c.a, this.exponent);
+      if (hc < h) h = hc;
+    }
+    return h;
+  }
+
+  valueAt(x: number, y: number, z: number): number {
+    return this.minOverBox(x, y, z, x, y, z);
+  }
+
+  /**
+   * Marking rule: bisect while the longest edge L exceeds min of h over the tet's bounding box.
+   * For one class, h0·max(1, d/a)^β < L  ⇔  L > h0 and d < a·(L/h0)^{1/β}: one pow per class,
+   * then a "any site closer than R" query.
+   */
+  readonly tooLarge: TooLarge = (coords, tets, t) => {
+    const b = 4 * t;
+    const p0 = 3 * tets[b];
+    const p1 = 3 * tets[b + 1];
+    const p2 = 3 * tets[b + 2];
+    const p3 = 3 * tets[b + 3];
+    const x0 = coords[p0], y0 = coords[p0 + 1], z0 = coords[p0 + 2];
+    const x1 = coords[p1], y1 = coords[p1 + 1], z1 = coords[p1 + 2];
+    const x2 = coords[p2], y2 = coords[p2 + 1], z2 = coords[p2 + 2];
+    const x3 = coords[p3], y3 = coords[p3 + 1], z3 = coords[p3 + 2];
+    let dx = x1 - x0, dy = y1 - y0, dz = z1 - z0;
+    let L2 = dx * dx + dy * dy + dz * dz;
+    let e;
+    dx = x2 - x0; dy = y2 - y0; dz = z2 - z0; e = dx * dx + dy * dy + dz * dz; if (e > L2) L2 = e;
+    dx = x3 - x0; dy = y3 - y0; dz = z3 - z0; e = dx * dx + dy * dy + dz * dz; if (e > L2) L2 = e;
+    dx = x2 - x1; dy = y2 - y1; dz = z2 - z1; e = dx * dx + dy * dy + dz * dz; if (e > L2) L2 = e;
+    dx = x3 - x1; dy = y3 - y1; dz = z3 - z1; e = dx * dx + dy * dy + dz * dz; if (e > L2) L2 = e;
+    dx = x3 - x2; dy = y3 - y2; dz = z3 - z2; e = dx * dx + dy * dy + dz * dz; if (e > L2) L2 = e;
+    const hmax = this.hmax;
+    if (L2 > hmax * hmax) return true;
+    const L = Math.sqrt(L2);
+    const classes = this.classes;
+    for (let i = 0; i < classes.length; i++) {
+      const c = classes[i];
+      if (L <= c.h0) continue;
+      const R = c.a * Math.pow(L / c.h0, this.invExponent);
+      const l0 = Math.min(x0, x1, x2, x3), u0 = Math.max(x0, x1, x2, x3);
+      const l1 = Math.min(y0, y1, y2, y3), u1 = Math.max(y0, y1, y2, y3);
+      const l2 = Math.min(z0, z1, z2, z3), u2 = Math.max(z0, z1, z2, z3);
+      if (c.grid.minDist2(l0, l1, l2, u0, u1, u2, R, true) !== Infinity) return true;
+    }
+    return false;
+  };
+}
