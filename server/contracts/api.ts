@@ -19,6 +19,7 @@ export const errorCodeSchema = z.enum([
   'rate_limited',
   'csrf_failed',
   'unprocessable',
+  'payload_too_large',
   'internal',
 ]);
 export type ErrorCode = z.infer<typeof errorCodeSchema>;
@@ -48,6 +49,9 @@ export const userSchema = z.object({
   version: z.number().int(),
 });
 export type User = z.infer<typeof userSchema>;
+
+/** Answer of requests that only need to say "done" (e.g. a password-reset request, which never says whether the account exists). */
+export const okResponseSchema = z.object({ ok: z.literal(true) });
 
 // ---------- health ----------
 export const healthSchema = z.object({ ok: z.boolean(), database: z.enum(['up', 'down']) });
@@ -112,10 +116,14 @@ export const invitationSchema = z.object({
   invitedBy: z.string(),
   createdAt: z.string(),
   expiresAt: z.string(),
+  /** present on the answer to a create: false when the e-mail could not be handed to the SMTP server */
+  mailDelivered: z.boolean().optional(),
 });
 export type Invitation = z.infer<typeof invitationSchema>;
 export const invitationListSchema = z.object({ invitations: z.array(invitationSchema) });
 export const invitationPreviewSchema = z.object({ projectName: z.string(), role: projectRoleSchema, email: z.string(), invitedBy: z.string() });
+/** Answer to accepting an invitation: the project as the new member now sees it. */
+export const invitationAcceptResponseSchema = z.object({ project: projectSchema });
 
 // ---------- design of a project ----------
 export const projectDesignSchema = z.object({ design: designSchema, version: z.number().int(), updatedAt: z.string() });
@@ -130,6 +138,11 @@ export const auditEntrySchema = z.object({
   detail: z.record(z.string(), z.unknown()),
 });
 export const auditListSchema = z.object({ entries: z.array(auditEntrySchema) });
+/** Newest first; `before` pages backwards by entry id. */
+export const auditQuerySchema = z.object({
+  limit: z.coerce.number().int().min(1).max(500).default(100),
+  before: z.coerce.number().int().positive().optional(),
+});
 
 // ---------- admin: captured mail ----------
 export const capturedMailSchema = z.object({

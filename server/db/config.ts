@@ -1,0 +1,27 @@
+/**
+ * Knex configuration: one place that knows how the server talks to PostgreSQL.
+ */
+import knexFactory, { type Knex } from 'knex';
+import { fileURLToPath } from 'node:url';
+import path from 'node:path';
+
+/** Absolute path of the repository's `migrations/` folder. */
+export const MIGRATIONS_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..', 'migrations');
+
+export interface DbOptions {
+  /** connections kept by the pool; small by default: the app is I/O bound and PostgreSQL has a connection cap */
+  poolMax?: number;
+}
+
+export function knexConfig(databaseUrl: string, options: DbOptions = {}): Knex.Config {
+  return {
+    client: 'pg',
+    connection: databaseUrl,
+    pool: { min: 0, max: options.poolMax ?? 10 },
+    migrations: { tableName: 'knex_migrations' },
+  };
+}
+
+export function createKnex(databaseUrl: string, options: DbOptions = {}): Knex {
+  return knexFactory(knexConfig(databaseUrl, options));
+}

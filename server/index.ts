@@ -1,0 +1,113 @@
+/**
+ * Start the real server: database pool, session store, mailer, services, Express app, HTTP
+ * listener. Tests call `start({ port: 0, databaseUrl, ... })` and get the URL back.
+ */
+import http from 'node:http';
+import { randomBytes } from 'node:crypto';
+import type { AddressInfo } from 'node:net';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import session from 'express-session';
+import connectPgSimple from 'connect-pg-simple';
+import pg from 'pg';
+import type { Express } from 'express';
+import type { Knex } from 'knex';
+import { createKnex } from './db/config';
+import { createMailer } from './mail/mailer';
+import { createServices, type Services } from './services';
+import { createApp } from './app';
+import { consoleLogger, DEFAULT_RATE_LIMITS, type ServerOptions } from './config';
+
+export type { ServerOptions } from './config';
+
+export interface RunningServer {
+  url: string;
+  port: number;
+  app: Express;
+  knex: Knex;
+  services: Services;
+  stop(): Promise<void>;
+}
+
+const REPO_ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+export const DEFAULT_STATIC_DIR = path.join(REPO_ROOT, 'dist', 'app');
+
+export async function start(opts: ServerOptions): Promise<RunningServer> {
+  const logger = opts.logger ?? consoleLogger;
+  const host = opts.host ?? '127.0.0.1';
+  const knex = createKnex(opts.databaseUrl);
+  const sessionPool = new pg.Pool({ connectionString: opts.databaseUrl, max: 5 });
+  const PgStore = connectPgSimple(session);
+  const sessionStore = new PgStore({
+    pool: sessionPool,
+    tableName: 'sessions',
+    createTableIfMissing: false,
+    pruneSessionInterval: 15 * 60,
+    errorLog: (...args: unknown[]) => logger.error('session store:', ...args),
+  });
+
+  let sessionSecret = opts.sessionSecret;
+  if (!sessionSecret) {
+    sessionSecret = randomBytes(32).toString('hex');
+    logger.warn('SESSION_SECRET is not set: using a random one, so sign-ins end when the server restarts.');
+  }
+
+  // the config object is shared by reference: publicUrl is filled in once the port is known
+  const config = {
+    publicUrl: opts.publicUrl?.replace(/\/+$/, '') ?? '',
+    mailFrom: opts.mailFrom ?? 'Tetrawell <no-reply@tetrawell.invalid>',
+    bcryptRounds: opts.bcryptRounds ?? 12,
+    invitationTtlMs: (opts.invitationTtlHours ?? 7 * 24) * 3_600_000,
+    passwordResetTtlMs: (opts.passwordResetTtlMinutes ?? 60) * 60_000,
+  };
+  const mailer = createMailer(opts.smtp, config.mailFrom, logger);
+  const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() });
+
+  const app = createApp({
+    services,
+    sessionStore,
+    sessionSecret,
+    sessionMaxAgeMs: opts.sessionMaxAgeMs ?? 7 * 24 * 3_600_000,
+    cookieSecure: opts.cookieSecure ?? 'auto',
+    trustProxy: opts.trustProxy ?? false,
+    rateLimits: { ...DEFAULT_RATE_LIMITS, ...opts.rateLimits },
+    staticDir: opts.staticDir === undefined ? DEFAULT_STATIC_DIR : opts.staticDir,
+    bodyLimit: opts.bodyLimit ?? '5mb',
+    logger,
+  });
+
+  const server = http.createServer(app);
+  try {
+    await new Promise<void>((resolve, reject) => {
+      server.once('error', reject);
+      server.listen(opts.port ?? 8080, host, () => {
+        server.off('error', reject);
+        resolve();
+      });
+    });
+  } catch (err) {
+    sessionStore.close();
+    await Promise.allSettled([knex.destroy(), sessionPool.end()]);
+    mailer.close();
+    throw err;
+  }
+  const port = (server.address() as AddressInfo).port;
+  const url = `http://${host.includes(':') ? `[${host}]` : host}:${port}`;
+  if (!config.publicUrl) config.publicUrl = url;
+
+  let stopping: Promise<void> | null = null;
+  const stop = () =>
+    (stopping ??= (async () => {
+      await new Promise<void>((resolve) => {
+        server.close(() => resolve());
+        // keep-alive sockets would hold close() open
+        server.closeIdleConnections();
+        setTimeout(() => server.closeAllConnections(), 2_000).unref();
+      });
+      sessionStore.close();
+      mailer.close();
+      await Promise.allSettled([knex.destroy(), sessionPool.end()]);
+    })());
+
+  return { url, port, app, knex, services, stop };
+}

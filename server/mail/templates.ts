@@ -1,0 +1,41 @@
+/**
+ * The words of the e-mails the server sends. Plain text only: it reads well in every client
+ * and the links stay visible.
+ */
+import type { ProjectRole } from '@contracts/roles';
+
+const ROLE_WORDS: Record<ProjectRole, string> = {
+  owner: 'an owner (full control, including members)',
+  editor: 'an editor (can change designs)',
+  viewer: 'a viewer (can read and export)',
+};
+
+export function invitationMail(p: { link: string; projectName: string; inviterName: string; role: ProjectRole; expiresAt: Date }) {
+  return {
+    subject: `Invitation to "${p.projectName}" on Tetrawell`,
+    text: [
+      `${p.inviterName} invited you to join the project "${p.projectName}" on Tetrawell as ${ROLE_WORDS[p.role]}.`,
+      '',
+      'Open this link to accept (sign in or create an account with this e-mail address first):',
+      p.link,
+      '',
+      `The link works once and expires on ${p.expiresAt.toUTCString()}.`,
+      'If you did not expect this invitation, ignore this message.',
+    ].join('\n'),
+  };
+}
+
+export function passwordResetMail(p: { link: string; displayName: string; expiresAt: Date }) {
+  return {
+    subject: 'Reset your Tetrawell password',
+    text: [
+      `Hello ${p.displayName},`,
+      '',
+      'Someone (hopefully you) asked to reset the password of your Tetrawell account. Open this link to choose a new one:',
+      p.link,
+      '',
+      `The link works once and expires on ${p.expiresAt.toUTCString()}.`,
+      'If you did not ask for this, ignore this message: your password stays as it is.',
+    ].join('\n'),
+  };
+}

@@ -1,0 +1,23 @@
+/** Every API route module, in mounting order. */
+import type { RouteModule } from './context';
+import { healthRoutes } from './health';
+import { authRoutes } from './auth';
+import { accountRoutes } from './account';
+import { projectRoutes } from './projects';
+import { memberRoutes } from './members';
+import { invitationRoutes } from './invitations';
+import { designRoutes } from './design';
+import { auditRoutes } from './audit';
+import { adminRoutes } from './admin';
+
+export const routeModules: RouteModule[] = [
+  healthRoutes,
+  authRoutes,
+  accountRoutes,
+  projectRoutes,
+  memberRoutes,
+  invitationRoutes,
+  designRoutes,
+  auditRoutes,
+  adminRoutes,
+];

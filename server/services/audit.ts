@@ -1,0 +1,36 @@
+/**
+ * The audit trail: who did what to which project. Services write entries in the same
+ * transaction as the change they describe, so an entry exists exactly when the change does.
+ */
+import type { Db } from '../repositories/db';
+import { auditRepo, type AuditInput, type AuditRecord } from '../repositories/audit';
+
+export const AUDIT_ACTIONS = [
+  'auth.sign_up',
+  'auth.sign_in',
+  'account.password_change',
+  'account.password_reset',
+  'project.create',
+  'project.update',
+  'project.delete',
+  'invitation.create',
+  'invitation.revoke',
+  'invitation.accept',
+  'member.role_change',
+  'member.remove',
+  'member.leave',
+  'design.update',
+] as const;
+export type AuditAction = (typeof AUDIT_ACTIONS)[number];
+
+export function recordAudit(db: Db, entry: AuditInput & { action: AuditAction }): Promise<void> {
+  return auditRepo(db).insert(entry);
+}
+
+export function auditService(deps: { db: Db }) {
+  return {
+    list(projectId: number, limit: number, before?: number): Promise<AuditRecord[]> {
+      return auditRepo(deps.db).listForProject(projectId, limit, before);
+    },
+  };
+}

@@ -1,0 +1,25 @@
+/** All services, wired once per app. */
+import { ping } from '../repositories/db';
+import type { ServiceDeps } from './context';
+import { authService } from './auth';
+import { projectService } from './projects';
+import { memberService } from './members';
+import { invitationService } from './invitations';
+import { designService } from './designs';
+import { auditService } from './audit';
+import { adminService } from './admin';
+
+export function createServices(deps: ServiceDeps) {
+  const designs = designService(deps);
+  return {
+    health: { databaseUp: () => ping(deps.db) },
+    auth: authService(deps),
+    projects: projectService(deps, designs),
+    members: memberService(deps),
+    invitations: invitationService(deps),
+    designs,
+    audit: auditService(deps),
+    admin: adminService(deps),
+  };
+}
+export type Services = ReturnType<typeof createServices>;
