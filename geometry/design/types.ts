@@ -27,6 +27,11 @@ export interface Site {
   electrons: number;
   /** when omitted the species preset applies */
   orbital?: Orbital;
+  /**
+   * optional cluster label: donors sharing it form one array site (one node of the bond
+   * graph); close pairs inside a cluster are expected and not flagged as overlapping
+   */
+  cluster?: string;
 }
 
 export interface Host {

@@ -1,0 +1,138 @@
+/**
+ * The bond graph of an array in the (001) plane.
+ *
+ * 1. Nodes: sites sharing a `group` label (a donor cluster) form one node at their centroid;
+ *    every other site is its own node.
+ * 2. Candidate edges: the Delaunay triangulation (delaunator) of the node projections onto the
+ *    (001) plane. Nodes whose projections coincide exactly (stacked along z) are joined to the
+ *    first of them (by index) and left out of the triangulation, which cannot hold duplicates.
+ *    Collinear nodes (a chain) give delaunator no triangles; it then returns the points sorted
+ *    along the line as its hull, and consecutive hull points are the edges.
+ * 3. Lengths: 3D distances between node centroids (projections fix the topology only).
+ * 4. Pruning, the distance rule: with nn(p) the shortest candidate edge at node p, keep edge
+ *    (p, q) when  length ≤ shellFactor · min(nn(p), nn(q)).  shellFactor = 1.2 (default) keeps
+ *    the nearest-neighbour shell of square, triangular and honeycomb arrays and drops square
+ *    diagonals (√2) and honeycomb cross-hexagon edges (√3); raise it above sy/sx to keep the
+ *    long bonds of a rectangular array, or above √2 to add square diagonals. The rule is
+ *    local, so mild placement disorder does not break it.
+ *
+ *     o---o---o        Delaunay adds one diagonal per square (|, — kept; / dropped at 1.2)
+ *     | / | / |
+ *     o---o---o
+ *
+ * Output is deterministic: edges (p < q) sorted by p then q.
+ */
+import Delaunator from 'delaunator';
+
+export interface BondGraph {
+  /** site indices of each node */
+  members: number[][];
+  /** node centroids, 3 per node (nm) */
+  centroids: Float64Array;
+  /** node index pairs, 2 per edge, p < q, sorted */
+  edges: Uint32Array;
+  /** 3D length of each edge (nm) */
+  lengths: Float64Array;
+}
+
+export interface BondGraphOptions {
+  /** cluster label per site; sites with the same label form one node */
+  groups?: readonly (string | undefined)[];
+  /** pruning factor of the distance rule (see above); default 1.2 */
+  shellFactor?: number;
+}
+
+export const DEFAULT_SHELL_FACTOR = 1.2;
+
+export function bondGraph(positions: Float64Array, options: BondGraphOptions = {}): BondGraph {
+  const n = positions.length / 3;
+  const factor = options.shellFactor ?? DEFAULT_SHELL_FACTOR;
+  // --- nodes
+  const members: number[][] = [];
+  const byLabel = new Map<string, number>();
+  for (let i = 0; i < n; i++) {
+    const label = options.groups?.[i];
+    if (label !== undefined) {
+      const at = byLabel.get(label);
+      if (at !== undefined) {
+        members[at].push(i);
+        continue;
+      }
+      byLabel.set(label, members.length);
+    }
+    members.push([i]);
+  }
+  const m = members.length;
+  const centroids = new Float64Array(3 * m);
+  for (let p = 0; p < m; p++) {
+    for (const i of members[p]) for (let k = 0; k < 3; k++) centroids[3 * p + k] += positions[3 * i + k];
+    for (let k = 0; k < 3; k++) centroids[3 * p + k] /= members[p].length;
+  }
+  // --- candidate edges (as p*m+q keys, p < q)
+  const cand = new Set<number>();
+  const add = (p: number, q: number) => {
+    if (p === q) return;
+    cand.add(p < q ? p * m + q : q * m + p);
+  };
+  const rep = new Map<string, number>();
+  const reps: number[] = [];
+  for (let p = 0; p < m; p++) {
+    const key = `${centroids[3 * p]},${centroids[3 * p + 1]}`;
+    const r = rep.get(key);
+    if (r === undefined) {
+      rep.set(key, p);
+      reps.push(p);
+    } else add(r, p);
+  }
+  if (reps.length === 2) add(reps[0], reps[1]);
+  if (reps.length >= 3) {
+    const xy = new Float64Array(2 * reps.length);
+    reps.forEach((p, t) => {
+      xy[2 * t] = centroids[3 * p];
+      xy[2 * t + 1] = centroids[3 * p + 1];
+    });
+    const d = new Delaunator(xy);
+    if (d.triangles.length === 0) {
+      for (let t = 0; t + 1 < d.hull.length; t++) add(reps[d.hull[t]], reps[d.hull[t + 1]]);
+    } else {
+      const tri = d.triangles;
+      for (let e = 0; e < tri.length; e++) {
+        const next = e % 3 === 2 ? e - 2 : e + 1;
+        add(reps[tri[e]], reps[tri[next]]);
+      }
+    }
+  }
+  // --- lengths and the distance rule
+  const keys = [...cand].sort((u, v) => u - v);
+  const len = (p: number, q: number) =>
+    Math.hypot(centroids[3 * p] - centroids[3 * q], centroids[3 * p + 1] - centroids[3 * q + 1], centroids[3 * p + 2] - centroids[3 * q + 2]);
+  const nn = new Float64Array(m).fill(Infinity);
+  const L = new Float64Array(keys.length);
+  keys.forEach((key, t) => {
+    const p = Math.floor(key / m), q = key - p * m;
+    L[t] = len(p, q);
+    if (L[t] < nn[p]) nn[p] = L[t];
+    if (L[t] < nn[q]) nn[q] = L[t];
+  });
+  let kept = 0;
+  const keep = new Uint8Array(keys.length);
+  keys.forEach((key, t) => {
+    const p = Math.floor(key / m), q = key - p * m;
+    if (L[t] <= factor * Math.min(nn[p], nn[q]) * (1 + 1e-12)) {
+      keep[t] = 1;
+      kept++;
+    }
+  });
+  const edges = new Uint32Array(2 * kept);
+  const lengths = new Float64Array(kept);
+  let e = 0;
+  keys.forEach((key, t) => {
+    if (!keep[t]) return;
+    const p = Math.floor(key / m);
+    edges[2 * e] = p;
+    edges[2 * e + 1] = key - p * m;
+    lengths[e] = L[t];
+    e++;
+  });
+  return { members, centroids, edges, lengths };
+}

@@ -1,0 +1,11 @@
+/**
+ * Far-field check: multipole moments (real solid harmonics, Racah normalisation, order ≤ 4),
+ * the neglected-far-field envelope per orbital, and the maximum-principle bounds on U_i and
+ * V_ij with a recommended enclosure.
+ */
+export { farFieldCheck, ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS } from './check';
+export type { FarFieldOptions, FarFieldReport, FarFieldWarning, PairBound, SiteBound, WarningCode } from './check';
+export { clearanceFor, keptOrder, neglectedEnvelope } from './envelope';
+export type { Envelope } from './envelope';
+export { harmonicCount, irregularHarmonics, MAX_ORDER, multipolePotential, regularHarmonics } from './harmonics';
+export { combinedMoments, orbitalMoments } from './moments';
