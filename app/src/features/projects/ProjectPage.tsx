@@ -1,0 +1,66 @@
+import { Link, useParams } from 'react-router';
+import { PageHeader } from '../../components/PageHeader';
+import { Loading, QueryError } from '../../components/QueryState';
+import { ROLE_LABELS } from '../../components/RoleBadge';
+import { ApiError } from '../../lib/api';
+import { formatDateTime } from '../../lib/format';
+import { DesignSummary } from '../design/DesignSummary';
+import { InvitationsSection } from '../invitations/InvitationsSection';
+import { MembersSection } from '../members/MembersSection';
+import { AuditSection } from './AuditSection';
+import { ProjectSettings } from './ProjectSettings';
+import { useProject } from './getProject';
+
+export function ProjectPage() {
+  const { projectId: raw } = useParams();
+  const projectId = Number(raw);
+  const valid = Number.isInteger(projectId) && projectId > 0;
+  const project = useProject(valid ? projectId : 0);
+
+  if (!valid || (project.error instanceof ApiError && (project.error.status === 404 || project.error.status === 403))) {
+    return (
+      <div className="max-w-xl">
+        <PageHeader title="Project not found" lead="It does not exist, was deleted, or you are not a member of it. Ask one of its owners for an invitation." />
+        <Link to="/projects" className="font-semibold text-phosphor-700 underline-offset-2 hover:underline">
+          Back to your projects
+        </Link>
+      </div>
+    );
+  }
+  if (project.isPending) return <Loading label="Loading the project…" />;
+  if (project.isError) return <QueryError error={project.error} what="the project" onRetry={() => void project.refetch()} />;
+
+  const p = project.data;
+  return (
+    <>
+      <nav aria-label="Breadcrumb" className="mb-3 text-note">
+        <Link to="/projects" className="font-semibold text-phosphor-700 underline-offset-2 hover:underline">
+          Projects
+        </Link>
+        <span aria-hidden="true" className="mx-2 text-wafer-400">/</span>
+        <span aria-current="page" className="text-wafer-600">{p.name}</span>
+      </nav>
+      <PageHeader title={p.name} lead={p.description || undefined}>
+        <div className="text-right text-note text-wafer-600">
+          <p>
+            Your role: <span className="font-semibold text-wafer-900">{ROLE_LABELS[p.role].label}</span> ({ROLE_LABELS[p.role].summary})
+          </p>
+          <p className="text-fine text-wafer-400">
+            Created <time dateTime={p.createdAt}>{formatDateTime(p.createdAt)}</time> · updated <time dateTime={p.updatedAt}>{formatDateTime(p.updatedAt)}</time>
+          </p>
+        </div>
+      </PageHeader>
+      <div className="grid gap-6 lg:grid-cols-3">
+        <div className="space-y-6 lg:col-span-2">
+          <DesignSummary projectId={p.id} />
+          <AuditSection project={p} />
+        </div>
+        <div className="space-y-6">
+          <MembersSection project={p} />
+          <InvitationsSection project={p} />
+          <ProjectSettings project={p} />
+        </div>
+      </div>
+    </>
+  );
+}

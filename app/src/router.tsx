@@ -1,0 +1,42 @@
+import { createBrowserRouter, Navigate } from 'react-router';
+import { AppShell } from './components/AppShell';
+import { NotFoundPage } from './components/NotFoundPage';
+import { AccountPage } from './features/account/AccountPage';
+import { MailRoomPage } from './features/admin/MailRoomPage';
+import { RequireSession } from './features/auth/RequireSession';
+import { ResetConfirmPage } from './features/auth/ResetConfirmPage';
+import { ResetRequestPage } from './features/auth/ResetRequestPage';
+import { SignInPage } from './features/auth/SignInPage';
+import { SignUpPage } from './features/auth/SignUpPage';
+import { AcceptInvitationPage } from './features/invitations/AcceptInvitationPage';
+import { ProjectListPage } from './features/projects/ProjectListPage';
+import { ProjectPage } from './features/projects/ProjectPage';
+
+/**
+ * Routes. The paths /invite/:token and /reset/:token are also written into e-mails by the
+ * server, so they must not change without changing the mail templates.
+ */
+export const router = createBrowserRouter([
+  { path: '/sign-in', element: <SignInPage /> },
+  { path: '/sign-up', element: <SignUpPage /> },
+  { path: '/reset', element: <ResetRequestPage /> },
+  { path: '/reset/:token', element: <ResetConfirmPage /> },
+  // Readable signed out: the page itself offers sign-in or sign-up and comes back.
+  { path: '/invite/:token', element: <AcceptInvitationPage /> },
+  {
+    element: <RequireSession />,
+    children: [
+      {
+        element: <AppShell />,
+        children: [
+          { index: true, element: <Navigate to="/projects" replace /> },
+          { path: '/projects', element: <ProjectListPage /> },
+          { path: '/projects/:projectId', element: <ProjectPage /> },
+          { path: '/account', element: <AccountPage /> },
+          { path: '/admin/mail', element: <MailRoomPage /> },
+        ],
+      },
+    ],
+  },
+  { path: '*', element: <NotFoundPage /> },
+]);
