@@ -1,0 +1,29 @@
+/**
+ * Public API of the finite-element core (geometry/fem).
+ *
+ *   const space = buildSpace(mesh, 2);                       // P1 or P2 dofs on a TetMesh
+ *   const { A, b } = assembleSystem(space, eps, { load });   // ∫ε∇φi·∇φj and ∫f φi, one pass
+ *   const sys = applyDirichlet(A, b, space.boundaryDof, g);  // symmetric lifting
+ *   const M = multigridPreconditioner(space, sys.A, { epsByRegion: eps });  // or jacobi(sys.A)
+ *   const { x, iterations } = pcg(sys.A, sys.b, null, { preconditioner: M, tol: 1e-10, onProgress, signal });
+ *
+ * Units are those of geometry/units.ts. Everything is deterministic and uses flat typed arrays.
+ * Other modules of this folder append their exports below the solver core's.
+ */
+export type { FeSpace } from './space';
+export { buildSpace } from './space';
+export type { Csr } from './csr';
+export { spmv } from './csr';
+export type { PointFunction, SystemOptions } from './assemble';
+export {
+  assembleStiffness, assembleSystem, assembleLoad, assembleMass, applyDirichlet, integrate, feIntegrate, interpolate,
+} from './assemble';
+export type { Preconditioner, PcgOptions, PcgResult } from './pcg';
+export { pcg, jacobi, SolveAbortedError } from './pcg';
+export type { MultigridOptions, MultigridStats } from './multigrid';
+export { multigridPreconditioner, HierarchyError } from './multigrid';
+export type { TetRule } from './reference';
+export {
+  tetQuadrature, conicalRule, grundmannMollerRule, p1Basis, p2Basis, p2BasisBary, p2GradientsBary, p1RefGradients,
+  p2RefGradients, tetGeometry, mapBary, GEOM_SIZE, P2_REF_NODES,
+} from './reference';
