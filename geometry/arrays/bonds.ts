@@ -91,11 +91,15 @@ export function bondGraph(positions: Float64Array, options: BondGraphOptions = {
       xy[2 * t] = centroids[3 * p];
       xy[2 * t + 1] = centroids[3 * p + 1];
     });
-    const d = new Delaunator(xy);
-    if (d.triangles.length === 0) {
-      for (let t = 0; t + 1 < d.hull.length; t++) add(reps[d.hull[t]], reps[d.hull[t + 1]]);
+    const line = collinearOrder(xy);
+    const d = line ? null : new Delaunator(xy);
+    if (line) {
+      for (let t = 0; t + 1 < line.length; t++) add(reps[line[t]], reps[line[t + 1]]);
+    } else if (d!.triangles.length === 0) {
+      for (let t = 0; t + 1 < d!.hull.length; t++) add(reps[d!.hull[t]], reps[d!.hull[t + 1]]);
     } else {
-      const tri = d.triangles;
+      const d2 = d!;
+      const tri = d2.triangles;
       for (let e = 0; e < tri.length; e++) {
         const next = e % 3 === 2 ? e - 2 : e + 1;
         add(reps[tri[e]], reps[tri[next]]);
@@ -135,4 +139,35 @@ export function bondGraph(positions: Float64Array, options: BondGraphOptions = {
     e++;
   });
   return { members, centroids, edges, lengths };
+}
+
+/**
+ * When the points lie on one line to within 1e-9 of their extent, their order along it
+ * (ties by index); otherwise null. Delaunator's own collinear test is exact, so a chain
+ * rotated by an angle whose coordinates are rounded gives it sliver triangles that can miss
+ * a consecutive pair; we catch that case first.
+ */
+function collinearOrder(xy: Float64Array): number[] | null {
+  const n = xy.length / 2;
+  let far = 0;
+  let farD = -1;
+  for (let i = 1; i < n; i++) {
+    const d = (xy[2 * i] - xy[0]) ** 2 + (xy[2 * i + 1] - xy[1]) ** 2;
+    if (d > farD) {
+      farD = d;
+      far = i;
+    }
+  }
+  const len = Math.sqrt(farD);
+  if (!(len > 0)) return null;
+  const ux = (xy[2 * far] - xy[0]) / len;
+  const uy = (xy[2 * far + 1] - xy[1]) / len;
+  const along = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const dx = xy[2 * i] - xy[0];
+    const dy = xy[2 * i + 1] - xy[1];
+    if (Math.abs(dx * uy - dy * ux) > 1e-9 * len) return null;
+    along[i] = dx * ux + dy * uy;
+  }
+  return Array.from({ length: n }, (_, i) => i).sort((p, q) => along[p] - along[q] || p - q);
 }

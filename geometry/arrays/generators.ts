@@ -4,7 +4,8 @@
  * An array is a set of target points in the plane z = center[2]: built around the origin,
  * centred on its own centroid, rotated by `angleDeg` about [001] (0° puts the first lattice
  * vector along [100]) and moved to `center`. Each target point then carries a cluster of
- * 1–4 donors on the lattice sites nearest to it (nearest first, ties by lattice index):
+ * 1–4 donors: the lattice site nearest to it and, for larger clusters, those of its bonded
+ * neighbours nearest to the target (ties by lattice index):
  *
  *   snapped (default): the donors sit on those lattice sites;
  *   free:              the target point itself takes the first donor, and further donors keep
@@ -18,7 +19,7 @@
  *                                              o--o      o     bond length = spacing)
  */
 import type { Orbital, Site, Species, Vec3 } from '../design/types';
-import { nearestSites, sitesInSphere, siteToNm, snapToLattice } from '../lattice';
+import { NEAREST_A, sitesInSphere, siteToNm, snapToLattice, type LatticeIndex } from '../lattice';
 import { mulberry32 } from './prng';
 
 export type ArrayKind = 'chain' | 'rectangular' | 'square' | 'triangular' | 'honeycomb';
@@ -96,6 +97,20 @@ function countOk(v: number, name: string): number {
   return v;
 }
 
+/**
+ * The lattice sites of a cluster of `size` donors for a target point: the site nearest to the
+ * target, then those of its 4 bonded neighbours nearest to the target (ties by (k, j, i)).
+ */
+export function clusterSites(target: Vec3, size: number, a: number): LatticeIndex[] {
+  const s0 = snapToLattice(target, a);
+  const sign = (s0[0] & 1) === 0 ? 1 : -1; // bond vectors of B sites are the negatives of A's
+  const nb: LatticeIndex[] = NEAREST_A.map((v) => [s0[0] + sign * v[0], s0[1] + sign * v[1], s0[2] + sign * v[2]]);
+  const q = a / 4;
+  const dist = (s: LatticeIndex) => (s[0] * q - target[0]) ** 2 + (s[1] * q - target[1]) ** 2 + (s[2] * q - target[2]) ** 2;
+  nb.sort((u, v) => dist(u) - dist(v) || u[2] - v[2] || u[1] - v[1] || u[0] - v[0]);
+  return [s0, ...nb.slice(0, size - 1)];
+}
+
 /** Generate the donors of an array as design sites (ids prefix1, prefix2, … in row order). */
 export function generateArray(spec: ArraySpec): Site[] {
   const a = spacingOk(spec.latticeConstantNm, 'latticeConstantNm');
@@ -118,7 +133,7 @@ export function generateArray(spec: ArraySpec): Site[] {
   pts.forEach((p, t) => {
     const x = p[0] - cx, y = p[1] - cy;
     const target: Vec3 = [center[0] + c * x - sn * y, center[1] + sn * x + c * y, center[2]];
-    const lattice = nearestSites(target, cluster, a).map((ix) => siteToNm(ix, a));
+    const lattice = clusterSites(target, cluster, a).map((ix) => siteToNm(ix, a));
     const positions: Vec3[] =
       spec.placement === 'free'
         ? lattice.map((q) => [target[0] + q[0] - lattice[0][0], target[1] + q[1] - lattice[0][1], target[2] + q[2] - lattice[0][2]] as Vec3)

@@ -1,5 +1,5 @@
 /** Arrays of donor sites: generators, placement disorder, bond graph, seeded generator. */
-export { arrayPoints, disorderEnsemble, generateArray, MAX_ENSEMBLE_DONORS, MAX_GENERATED_SITES } from './generators';
+export { arrayPoints, clusterSites, disorderEnsemble, generateArray, MAX_ENSEMBLE_DONORS, MAX_GENERATED_SITES } from './generators';
 export type { ArrayKind, ArraySpec, DisorderOptions } from './generators';
 export { bondGraph, DEFAULT_SHELL_FACTOR } from './bonds';
 export type { BondGraph, BondGraphOptions } from './bonds';
