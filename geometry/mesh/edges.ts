@@ -199,9 +199,21 @@ export function buildFaces(tets: Uint32Array, nVertices: number): FaceTable {
       let c = tets[o + F2[f]];
       let s: number;
       // sort the triple a < b < c (three compare-swaps)
-      if (a > b) (s = a), (a = b), (b = s);
-      if (b > c) (s = b), (b = c), (c = s);
-      if (a > b) (s = a), (a = b), (b = s);
+      if (a > b) {
+        s = a;
+        a = b;
+        b = s;
+      }
+      if (b > c) {
+        s = b;
+        b = c;
+        c = s;
+      }
+      if (a > b) {
+        s = a;
+        a = b;
+        b = s;
+      }
       keys[fill[a]++] = b * n + c;
     }
   }
@@ -239,9 +251,21 @@ export function buildFaces(tets: Uint32Array, nVertices: number): FaceTable {
       let b = q;
       let c = r;
       let s: number;
-      if (a > b) (s = a), (a = b), (b = s);
-      if (b > c) (s = b), (b = c), (c = s);
-      if (a > b) (s = a), (a = b), (b = s);
+      if (a > b) {
+        s = a;
+        a = b;
+        b = s;
+      }
+      if (b > c) {
+        s = b;
+        b = c;
+        c = s;
+      }
+      if (a > b) {
+        s = a;
+        a = b;
+        b = s;
+      }
       const rowStart = start[a];
       const i = findInRow(keys, rowStart, uniqEnd[a], b * n + c);
       const face = uniqStart[a] + (i - rowStart);

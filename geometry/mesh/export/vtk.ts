@@ -33,7 +33,7 @@ export interface VtkLegacyOptions {
 }
 
 function checkName(name: string): string {
-  if (!/^[A-Za-z0-9_.\-]+$/.test(name)) throw new Error(`legacy VTK array name "${name}" must be letters, digits, _ . - only`);
+  if (!/^[A-Za-z0-9_.-]+$/.test(name)) throw new Error(`legacy VTK array name "${name}" must be letters, digits, _ . - only`);
   return name;
 }
 
