@@ -43,22 +43,24 @@ interface ReadBack {
 }
 
 let dir = '';
+let readerMissing: string | null = null;
 beforeAll(() => {
   dir = mkdtempSync(join(tmpdir(), 'tetrawell-export-'));
   try {
     execFileSync(PYTHON, ['-c', 'import meshio, numpy'], { stdio: 'pipe' });
   } catch {
-    throw new Error(
-      'The outside reader is missing: /usr/bin/python3 cannot import meshio. Install it with ' +
-        '`apt-get install -y python3-meshio` (Debian package) and run the tests again.',
-    );
+    readerMissing =
+      `The outside reader is missing: ${PYTHON} cannot import meshio. Install it with ` +
+      '`apt-get install -y python3-meshio` (Debian package) and run the tests again.';
   }
 });
 afterAll(() => {
   if (dir) rmSync(dir, { recursive: true, force: true });
 });
 
+/** Write the files and read them with meshio; without meshio every caller FAILS (never skips). */
 function readBack(files: Record<string, Uint8Array>): ReadBack[] {
+  if (readerMissing) throw new Error(readerMissing);
   const paths = Object.entries(files).map(([name, bytes]) => {
     const p = join(dir, name);
     writeFileSync(p, bytes);
