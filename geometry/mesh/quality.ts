@@ -133,6 +133,36 @@ export function computeTetQuality(mesh: Pick<TetMesh, 'coords' | 'tets'>): TetQu
   return { meanRatio, radiusRatio, minDihedralDeg, maxDihedralDeg, longestEdge };
 }
 
+/**
+ * Mean ratio only (the CellData quality of the exporters): the same formula and operation order as
+ * computeTetQuality, hence identical values, without the angle and radius work.
+ */
+export function computeMeanRatio(mesh: Pick<TetMesh, 'coords' | 'tets'>): Float64Array {
+  const { coords, tets } = mesh;
+  const m = tets.length >> 2;
+  const out = new Float64Array(m);
+  const p = new Float64Array(12);
+  const e0 = Int8Array.from(TET_EDGES.map((e) => e[0]));
+  const e1 = Int8Array.from(TET_EDGES.map((e) => e[1]));
+  for (let t = 0; t < m; t++) {
+    for (let i = 0; i < 4; i++) {
+      const v = 3 * tets[4 * t + i];
+      p[3 * i] = coords[v];
+      p[3 * i + 1] = coords[v + 1];
+      p[3 * i + 2] = coords[v + 2];
+    }
+    let sumL2 = 0;
+    for (let e = 0; e < 6; e++) {
+      const a = 3 * e0[e];
+      const b = 3 * e1[e];
+      sumL2 += (p[a] - p[b]) ** 2 + (p[a + 1] - p[b + 1]) ** 2 + (p[a + 2] - p[b + 2]) ** 2;
+    }
+    const V = tetDet(coords, tets, t) / 6;
+    out[t] = V > 0 ? (12 * Math.cbrt(3 * V) ** 2) / sumL2 : 0;
+  }
+  return out;
+}
+
 /** A charge site for the report: position in nm and optionally its orbital radius. */
 export interface ReportSite {
   id?: string;

@@ -18,7 +18,7 @@
 import type { TetMesh } from '../types';
 import { buildEdges } from '../edges';
 import { p2Connectivity, p2Coords, p2ExtendVertexField } from '../p2';
-import { computeTetQuality } from '../quality';
+import { computeMeanRatio } from '../quality';
 import { utf8 } from './bytes';
 import { VTK_QUADRATIC_TETRA, VTK_TETRA, type NamedArray } from './vtu';
 
@@ -80,7 +80,7 @@ export function writeVtkLegacy(mesh: TetMesh, options: VtkLegacyOptions = {}): U
   lines.push(`CELL_DATA ${m}`);
   if (mesh.tetRegion) scalars('RegionId', mesh.tetRegion, 1);
   if (mesh.tetLevel) scalars('RefinementLevel', mesh.tetLevel, 1);
-  scalars('MeanRatio', options.meanRatio ?? computeTetQuality(mesh).meanRatio, 1);
+  scalars('MeanRatio', options.meanRatio ?? computeMeanRatio(mesh), 1);
   for (const a of options.cellData ?? []) {
     const comps = a.components ?? 1;
     if (a.values.length !== comps * m) throw new Error(`CellData array "${a.name}" has ${a.values.length} values, expected ${comps} × ${m}`);

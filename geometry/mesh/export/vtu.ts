@@ -31,7 +31,7 @@ import { zlibSync } from 'fflate';
 import type { TetMesh } from '../types';
 import { buildEdges, type EdgeTable } from '../edges';
 import { p2Connectivity, p2Coords, p2ExtendVertexField } from '../p2';
-import { computeTetQuality } from '../quality';
+import { computeMeanRatio } from '../quality';
 import { base64Into, base64Length, concatBytes, leBytes, utf8 } from './bytes';
 
 export type VtuEncoding = 'zlib' | 'base64' | 'ascii';
@@ -219,7 +219,7 @@ export function writeVtu(mesh: TetMesh, options: VtuOptions = {}): Uint8Array {
   const cellParts: Part[] = [];
   if (mesh.tetRegion) cellParts.push(toTyped({ name: 'RegionId', values: mesh.tetRegion }, m, 'CellData'));
   if (mesh.tetLevel) cellParts.push(toTyped({ name: 'RefinementLevel', values: mesh.tetLevel }, m, 'CellData'));
-  const meanRatio = options.meanRatio ?? computeTetQuality(mesh).meanRatio;
+  const meanRatio = options.meanRatio ?? computeMeanRatio(mesh);
   cellParts.push(toTyped({ name: 'MeanRatio', values: meanRatio }, m, 'CellData'));
   for (const arr of options.cellData ?? []) cellParts.push(toTyped(arr, m, 'CellData'));
 

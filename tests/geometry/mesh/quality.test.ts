@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { computeTetQuality, qualityReport } from '../../../geometry/mesh/quality';
+import { computeMeanRatio, computeTetQuality, qualityReport } from '../../../geometry/mesh/quality';
 import { makeMesh, kuhnGrid, lcg, regularTet } from './check.fixtures';
 import { kuhnBox, refine, refineUniform, toTetMesh } from '../../../geometry/mesh/index';
 import type { TetMesh } from '../../../geometry/mesh/types';
@@ -123,6 +123,11 @@ describe('tet quality measures', () => {
       expect(q.radiusRatio[t]).toBeGreaterThan(0);
       expect(q.radiusRatio[t]).toBeLessThanOrEqual(1 + 1e-12);
     }
+  });
+
+  it('the mean-ratio-only path gives identical values', () => {
+    const mesh = toTetMesh(refineUniform(kuhnBox({ center: [0, 0, 0], halfExtents: [1, 2, 1], cells: [1, 2, 1] }), 3));
+    expect(Array.from(computeMeanRatio(mesh))).toEqual(Array.from(computeTetQuality(mesh).meanRatio));
   });
 
   it('a nearly flat tetrahedron scores near 0', () => {
