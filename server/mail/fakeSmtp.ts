@@ -35,6 +35,8 @@ export async function startFakeSmtp(opts: FakeSmtpOptions): Promise<FakeSmtp> {
     // no TLS and no AUTH: a loopback sink; nodemailer then sends in plain text
     disabledCommands: ['STARTTLS', 'AUTH'],
     authOptional: true,
+    // no reverse DNS for the client address: it only slows every connection down
+    disableReverseLookup: true,
     logger: false,
     size: opts.maxBytes ?? 5 * 1024 * 1024,
     banner: 'Tetrawell development mail sink',
