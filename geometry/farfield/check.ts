@@ -18,7 +18,8 @@
  * discretisation error, a non-homogeneous medium.
  *
  * Recommended box: each site needs a clearance D_i with envelope_i(D_i) ≤ tol·min(U_i, V_ij
- * over its pairs) (bisection, envelope non-increasing); the smallest half-extents about the
+ * over its pairs) (bisection, envelope non-increasing) and with at most tol/10 of its density
+ * beyond D_i (the density-cut warning threshold); the smallest half-extents about the
  * current centre are then h_k = max_i(|p_ik − c_k| + D_i) — exact for this bound, per axis.
  * (For grounded pairs we ask both ends to meet the target, slightly more than min() needs.)
  *
@@ -28,7 +29,7 @@
 import type { Design, Orbital, Vec3 } from '../design/types';
 import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
-import { chargeOutsideBox, pairEnergy, selfEnergy } from '../density';
+import { chargeOutsideBox, orbitalScale, pairEnergy, radialTail, selfEnergy } from '../density';
 import { bondGraph, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
 import { snapToLattice, siteToNm } from '../lattice';
 import { clearanceFor, neglectedEnvelope, type Envelope } from './envelope';
@@ -235,7 +236,11 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
   for (let i = 0; i < n; i++) {
     const s = sites[i];
     const inside = clear[i] > 0;
-    const req = clearanceFor(envs[i], target[i]);
+    // the bound's clearance, and enough room that at most tol/10 of the density is cut off
+    // (rigorous: the box holds the stretched ball of radius clearance / largest radius)
+    const o = orbitals[i];
+    const scale = orbitalScale(o);
+    const req = Math.max(clearanceFor(envs[i], target[i]), scale * clearanceFor((u) => radialTail(o.model, u), tol / 10));
     for (let k = 0; k < 3; k++) rec[k] = Math.max(rec[k], Math.abs(s.position[k] - center[k]) + req);
     const co = chargeOutsideBox(orbitals[i], s.position, center, half);
     out.push({

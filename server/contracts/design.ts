@@ -1,20 +1,39 @@
 /**
  * Runtime schema of the design document (format version 1).
  * Dependency-free apart from zod: imported by the server, the CLI and the app.
- * The matching plain types live in geometry/design/types.ts.
+ * The matching plain types live in geometry/design/types.ts (a type-level test keeps them in step).
+ *
+ * Units: lengths in nm, energies in eV.
+ * Limits (documented caps, each with a plain message):
+ *   sites ≤ MAX_SITES = 100,000 — a 100k-site document is ~10 MB of JSON, the most an API body
+ *   should carry, and far beyond what one finite-element solve resolves; the far-field check is
+ *   linear in the number of sites (~1 ms per 1,000).
+ *   lengths ≤ 10⁶ nm, radii ≤ 10³ nm, 1 ≤ εr ≤ 10³, 0 < a ≤ 10 nm.
+ * Sites outside the enclosure are valid documents (a design may be mid-edit); the far-field
+ * check reports them as an error-level warning.
+ *
+ * The JSON Schema in design.schema.json is generated from `designSchema` by
+ *   npx tsx -e "import('./server/contracts/design.ts').then((m) => process.stdout.write(m.designJsonSchemaText()))" > server/contracts/design.schema.json
+ * and a test checks that the committed file equals the generated one.
  */
 import { z } from 'zod';
 
-const finite = z.number().finite();
-const positive = z.number().finite().positive();
-export const vec3Schema = z.tuple([finite, finite, finite]);
+export const DESIGN_FORMAT = 'tetrawell-design';
+export const CURRENT_DESIGN_VERSION = 1;
+export const MAX_SITES = 100_000;
+export const MAX_LENGTH_NM = 1e6;
+export const MAX_RADIUS_NM = 1e3;
+
+const coordinate = z.number().min(-MAX_LENGTH_NM).max(MAX_LENGTH_NM);
+const radius = z.number().positive().max(MAX_RADIUS_NM);
+export const vec3Schema = z.tuple([coordinate, coordinate, coordinate]);
 
 export const speciesSchema = z.enum(['P', 'As', 'Sb', 'Bi', 'B']);
 
 export const orbitalSchema = z.discriminatedUnion('model', [
-  z.object({ model: z.literal('hydrogenic-1s'), radiusNm: positive }),
-  z.object({ model: z.literal('anisotropic-1s'), radiusNm: positive, radiusZNm: positive }),
-  z.object({ model: z.literal('gaussian'), sigmaNm: positive }),
+  z.object({ model: z.literal('hydrogenic-1s'), radiusNm: radius }),
+  z.object({ model: z.literal('anisotropic-1s'), radiusNm: radius, radiusZNm: radius }),
+  z.object({ model: z.literal('gaussian'), sigmaNm: radius }),
 ]);
 
 export const siteSchema = z.object({
@@ -23,6 +42,8 @@ export const siteSchema = z.object({
   position: vec3Schema,
   electrons: z.number().int().min(0).max(2),
   orbital: orbitalSchema.optional(),
+  /** donors sharing a cluster label form one array site */
+  cluster: z.string().min(1).max(64).optional(),
 });
 
 export const boundarySchema = z.discriminatedUnion('kind', [
@@ -30,26 +51,187 @@ export const boundarySchema = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('multipole'), order: z.number().int().min(0).max(4) }),
 ]);
 
-export const designSchema = z.object({
-  format: z.literal('tetrawell-design'),
-  version: z.literal(1),
-  name: z.string().min(1).max(200),
-  host: z.object({
-    material: z.literal('Si'),
-    epsilonR: positive,
-    latticeConstantNm: positive,
-  }),
-  sites: z.array(siteSchema).max(100_000),
-  enclosure: z.object({
-    center: vec3Schema,
-    halfExtentsNm: z.tuple([positive, positive, positive]),
-    boundary: boundarySchema,
-  }),
-  refinement: z.object({
-    order: z.union([z.literal(1), z.literal(2)]),
-    targetRelError: z.number().finite().gt(0).lt(1),
-    maxElements: z.number().int().positive(),
-  }),
-});
+const halfExtent = z.number().positive().max(MAX_LENGTH_NM);
+
+export const designSchema = z
+  .object({
+    format: z.literal(DESIGN_FORMAT),
+    version: z.literal(1),
+    name: z.string().min(1).max(200),
+    host: z.object({
+      material: z.literal('Si'),
+      epsilonR: z.number().min(1).max(1000),
+      latticeConstantNm: z.number().positive().max(10),
+    }),
+    sites: z.array(siteSchema).max(MAX_SITES, { error: (iss) => tooManySites(Array.isArray(iss.input) ? iss.input.length : undefined) }),
+    enclosure: z.object({
+      center: vec3Schema,
+      halfExtentsNm: z.tuple([halfExtent, halfExtent, halfExtent]),
+      boundary: boundarySchema,
+    }),
+    refinement: z.object({
+      order: z.union([z.literal(1), z.literal(2)]),
+      targetRelError: z.number().gt(0).lt(1),
+      maxElements: z.number().int().positive().max(1e9),
+    }),
+  })
+  .superRefine((doc, ctx) => {
+    const first = new Map<string, number>();
+    doc.sites.forEach((s, i) => {
+      const at = first.get(s.id);
+      if (at === undefined) first.set(s.id, i);
+      else ctx.addIssue({ code: 'custom', path: ['sites', i, 'id'], message: `repeats the id "${s.id}" of site ${at}; every site needs its own id` });
+    });
+  });
 
 export type DesignDocument = z.infer<typeof designSchema>;
+
+function tooManySites(n: number | undefined): string {
+  return `holds ${n === undefined ? 'too many' : n.toLocaleString('en-US')} sites; a design may hold at most ${MAX_SITES.toLocaleString('en-US')}. Split the array into parts or use fewer cells.`;
+}
+
+// ---------------------------------------------------------------- plain-words issues
+
+export interface DesignIssue {
+  /** field path, e.g. ["sites", 3, "position", 1] */
+  path: (string | number)[];
+  /** what is wrong, in plain words (without the path) */
+  message: string;
+}
+
+/** "sites[3].position[1]" for display. */
+export function formatPath(path: readonly (string | number | symbol)[]): string {
+  let s = '';
+  for (const p of path) s += typeof p === 'number' ? `[${p}]` : s === '' ? String(p) : `.${String(p)}`;
+  return s === '' ? '(document)' : s;
+}
+
+function describe(input: unknown): string {
+  if (input === null) return 'null';
+  if (input === undefined) return 'nothing';
+  if (typeof input === 'number') return Number.isNaN(input) ? 'NaN' : String(input);
+  if (typeof input === 'string') return input.length > 40 ? `the text "${input.slice(0, 40)}…"` : `the text "${input}"`;
+  if (Array.isArray(input)) return `a list of ${input.length}`;
+  if (typeof input === 'object') return 'an object';
+  return typeof input;
+}
+
+const ARTICLE: Record<string, string> = {
+  number: 'a number',
+  int: 'a whole number',
+  string: 'text',
+  object: 'an object',
+  array: 'a list',
+  tuple: 'a list',
+  boolean: 'true or false',
+};
+
+/**
+ * A zod error map giving plain-words messages ("must be a number, not null"). Use as
+ * `schema.safeParse(x, { error: plainIssueMessage })`; returns undefined for issues it leaves
+ * to zod (custom messages set in the schema win anyway).
+ */
+export function plainIssueMessage(iss: z.core.$ZodRawIssue): string | undefined {
+  const input = (iss as { input?: unknown }).input;
+  switch (iss.code) {
+    case 'invalid_type': {
+      if (input === undefined) return 'is missing';
+      const want = ARTICLE[iss.expected as string] ?? String(iss.expected);
+      if (typeof input === 'number' && !Number.isFinite(input)) return `must be a finite number, not ${describe(input)}`;
+      return `must be ${want}, not ${describe(input)}`;
+    }
+    case 'too_small': {
+      const origin = (iss as { origin?: string }).origin;
+      if (origin === 'string') return iss.minimum === 1 ? 'must not be empty' : `must have at least ${iss.minimum} characters`;
+      if (origin === 'array') return `must hold at least ${iss.minimum} items`;
+      return iss.inclusive ? `must be at least ${iss.minimum}, not ${describe(input)}` : `must be greater than ${iss.minimum}, not ${describe(input)}`;
+    }
+    case 'too_big': {
+      const origin = (iss as { origin?: string }).origin;
+      if (origin === 'string') return `must have at most ${iss.maximum} characters`;
+      if (origin === 'array') return `holds ${Array.isArray(input) ? input.length : 'too many'} items; at most ${iss.maximum} are allowed`;
+      return iss.inclusive ? `must be at most ${iss.maximum}, not ${describe(input)}` : `must be less than ${iss.maximum}, not ${describe(input)}`;
+    }
+    case 'invalid_value': {
+      const vals = iss.values.map((v) => JSON.stringify(v));
+      return vals.length === 1 ? `must be ${vals[0]}, not ${describe(input)}` : `must be one of ${vals.join(', ')}, not ${describe(input)}`;
+    }
+    case 'invalid_union': {
+      const u = iss as { discriminator?: string; options?: unknown[] };
+      if (u.options) return `must be one of ${u.options.map((v) => JSON.stringify(v)).join(', ')}, not ${describe(input)}`;
+      return 'does not match any allowed form';
+    }
+    default:
+      return undefined;
+  }
+}
+
+// ---------------------------------------------------------------- migration and parsing
+
+type Migration = (doc: Record<string, unknown>) => Record<string, unknown>;
+
+/**
+ * MIGRATIONS[v] turns a version-v document into version v+1. Version 1 is current, so the table
+ * is empty; a version 2 adds `1: (doc) => ({ ...doc, version: 2, … })` here.
+ */
+export const MIGRATIONS: Record<number, Migration> = {};
+
+export type MigrationResult = { ok: true; doc: Record<string, unknown> } | { ok: false; issues: DesignIssue[] };
+
+/** Bring a stored document of any known version to the current one (identity for version 1). */
+export function migrateDesign(doc: unknown): MigrationResult {
+  if (typeof doc !== 'object' || doc === null || Array.isArray(doc)) return { ok: false, issues: [{ path: [], message: `must be a JSON object, not ${describe(doc)}` }] };
+  const d = doc as Record<string, unknown>;
+  if (d.format !== DESIGN_FORMAT)
+    return { ok: false, issues: [{ path: ['format'], message: d.format === undefined ? `is missing; a design document has "format": "${DESIGN_FORMAT}"` : `must be "${DESIGN_FORMAT}", not ${describe(d.format)}` }] };
+  let v = d.version;
+  if (typeof v !== 'number' || !Number.isInteger(v) || v < 1)
+    return { ok: false, issues: [{ path: ['version'], message: v === undefined ? 'is missing' : `must be a whole number ≥ 1, not ${describe(v)}` }] };
+  if (v > CURRENT_DESIGN_VERSION)
+    return { ok: false, issues: [{ path: ['version'], message: `is ${v}, newer than this build understands (it reads versions 1 to ${CURRENT_DESIGN_VERSION}); update Tetrawell` }] };
+  let cur: Record<string, unknown> = d;
+  while ((v as number) < CURRENT_DESIGN_VERSION) {
+    const step = MIGRATIONS[v as number];
+    if (!step) return { ok: false, issues: [{ path: ['version'], message: `version ${v} has no migration to version ${(v as number) + 1}` }] };
+    cur = step(cur);
+    v = cur.version;
+  }
+  return { ok: true, doc: cur };
+}
+
+export type ParseDesignResult = { ok: true; design: DesignDocument } | { ok: false; issues: DesignIssue[] };
+
+/**
+ * Validate any value as a design document: migrate, cap the site count early (so a 10⁶-site
+ * document is refused without parsing every site), then parse with plain-words messages.
+ */
+export function parseDesign(input: unknown): ParseDesignResult {
+  const m = migrateDesign(input);
+  if (!m.ok) return m;
+  const sites = m.doc.sites;
+  if (Array.isArray(sites) && sites.length > MAX_SITES) return { ok: false, issues: [{ path: ['sites'], message: tooManySites(sites.length) }] };
+  const r = designSchema.safeParse(m.doc, { error: plainIssueMessage });
+  if (r.success) return { ok: true, design: r.data };
+  return { ok: false, issues: r.error.issues.map((i) => ({ path: i.path.map((p) => (typeof p === 'symbol' ? String(p) : p)), message: i.message })) };
+}
+
+/** "sites[3].position[1]: must be a number, not null" lines for people. */
+export function describeIssues(issues: readonly DesignIssue[]): string[] {
+  return issues.map((i) => `${formatPath(i.path)}: ${i.message}`);
+}
+
+/** The JSON Schema of the design document (input side), as committed in design.schema.json. */
+export function designJsonSchema(): Record<string, unknown> {
+  const schema = z.toJSONSchema(designSchema, { io: 'input' }) as Record<string, unknown>;
+  return {
+    $schema: schema.$schema,
+    $id: 'https://tetrawell.invalid/schema/design-v1.json',
+    title: 'Tetrawell design document, format version 1',
+    description: 'Lengths in nm, energies in eV. Generated from server/contracts/design.ts with zod z.toJSONSchema; do not edit by hand.',
+    ...Object.fromEntries(Object.entries(schema).filter(([k]) => k !== '$schema')),
+  };
+}
+
+export function designJsonSchemaText(): string {
+  return `${JSON.stringify(designJsonSchema(), null, 2)}\n`;
+}

@@ -11,7 +11,7 @@ import {
   regularHarmonics,
 } from '../../../geometry/farfield';
 import { anisotropicNeglected } from '../../../geometry/farfield/envelope';
-import { axialMoment, densityAt, gaussLegendre, legendreP, potentialAt, radialPotential, selfEnergy } from '../../../geometry/density';
+import { axialMoment, densityAt, orbitalScale, radialTail, gaussLegendre, legendreP, potentialAt, radialPotential, selfEnergy } from '../../../geometry/density';
 import { mulberry32 } from '../../../geometry/arrays';
 import { COULOMB_EV_NM, SI_LATTICE_CONSTANT_NM } from '../../../geometry/units';
 
@@ -174,7 +174,7 @@ describe('far-field check', () => {
       expect(r.warnings.map((w) => w.code)).toContain('boundary-too-close');
     }
   });
-  it('the recommended half-extents meet the tolerance and 1% less does not (monotone search)', () => {
+  it('the recommended half-extents meet the tolerance (bound and density cut) and 1% less does not (monotone search)', () => {
     const sites: Design['sites'] = [
       { id: 'a', species: 'P', position: [-3.258612, 0, 0], electrons: 1 },
       { id: 'b', species: 'P', position: [3.258612, 0, 0], electrons: 1, orbital: A },
@@ -186,8 +186,14 @@ describe('far-field check', () => {
       const ok = farFieldCheck(design(sites, rec, boundary, 1e-3));
       expect(ok.worstRelBound as number).toBeLessThanOrEqual(1e-3 * (1 + 1e-6));
       expect(ok.warnings.map((w) => w.code)).not.toContain('boundary-too-close');
+      expect(ok.warnings.map((w) => w.code)).not.toContain('density-cut');
       const smaller = farFieldCheck(design(sites, rec.map((h) => h * 0.99) as Vec3, boundary, 1e-3));
-      expect(smaller.worstRelBound as number).toBeGreaterThan(1e-3);
+      // the density criterion is the rigorous ball bound: tail beyond the clearance ≤ tol/10
+      const orb = [H, A, G];
+      const failed =
+        (smaller.worstRelBound as number) > 1e-3 ||
+        smaller.sites.some((s, i) => radialTail(orb[i].model, s.clearanceNm / orbitalScale(orb[i])) > 1e-4);
+      expect(failed).toBe(true);
     }
   });
   it('pair bounds: grounded uses min(δi, δj), multipole max(δi, δj); relative to the closed-form V', () => {
