@@ -17,7 +17,7 @@ function HealthBadge() {
   const up = health.data?.ok === true && health.data.database === 'up';
   const label = health.isPending ? 'checking server…' : up ? 'server and database reachable' : 'database unreachable';
   return (
-    <span className="inline-flex items-center gap-1.5 text-fine text-wafer-400">
+    <span role="status" className="inline-flex shrink-0 items-center gap-1.5 whitespace-nowrap text-fine text-wafer-400">
       <span aria-hidden="true" className={`h-2 w-2 rounded-full ${health.isPending ? 'bg-wafer-500' : up ? 'bg-phosphor-400' : 'bg-ember-400'}`} />
       {label}
     </span>

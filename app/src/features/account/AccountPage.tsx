@@ -42,7 +42,7 @@ function DisplayNameForm({ user, onSaved, onLoadLatest }: { user: User; onSaved:
   }
 
   return (
-    <form ref={formRef} noValidate onSubmit={onSubmit} className="space-y-3" aria-label="Display name">
+    <form ref={formRef} noValidate onSubmit={onSubmit} className="space-y-3" aria-label="Change display name">
       <FormAlert message={errors.form} />
       <TextField label="Display name" name="displayName" required maxLength={80} defaultValue={user.displayName} autoComplete="name" hint="Shown to your teammates in every project." error={errors.fields.displayName} />
       <div className="flex flex-wrap gap-2">

@@ -62,7 +62,7 @@ function DesignBody({ design }: { design: DesignDocument }) {
         <p className="text-body text-wafer-600">This design has no sites yet.</p>
       ) : (
         <div className="overflow-x-auto rounded-md border border-wafer-200">
-          <table className="num w-full min-w-[44rem] text-left text-note">
+          <table className="num w-full text-left text-note [&_td]:whitespace-nowrap [&_th]:whitespace-nowrap">
             <caption className="sr-only">Sites of the design, positions in nanometres</caption>
             <thead className="bg-wafer-50 text-fine uppercase tracking-wide text-wafer-500">
               <tr>

@@ -121,7 +121,7 @@ export function MembersSection({ project }: { project: Project }) {
         </ul>
       )}
       <p className="mt-3 text-fine text-wafer-500">
-        {(Object.keys(ROLE_LABELS) as ProjectRole[]).map((r) => `${ROLE_LABELS[r].label}s ${ROLE_LABELS[r].summary}`).join('; ')}. A project always keeps at least one owner.
+        {(Object.keys(ROLE_LABELS) as ProjectRole[]).map((r) => `${ROLE_LABELS[r].label}: ${ROLE_LABELS[r].summary}`).join('. ')}. A project always keeps at least one owner.
       </p>
     </Panel>
   );
