@@ -104,10 +104,11 @@ function escapeXml(s: string): string {
   return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
 }
 
-/** Encoded body of one DataArray (the bytes between the tags). */
 type Deflate = (raw: Uint8Array, level: number) => Uint8Array;
+/** The portable default compressor: fflate's zlib (RFC 1950) stream, deterministic for a given level. */
 const fflateDeflate: Deflate = (raw, level) => zlibSync(raw, { level: level as 0 | 1 | 2 | 3 | 4 | 5 | 6 | 7 | 8 | 9 });
 
+/** Encoded body of one DataArray (the bytes between the tags). */
 function encodeBody(a: NumericArray, encoding: VtuEncoding, level: number, blockSize: number, perLine: number, deflate: Deflate): Uint8Array {
   if (encoding === 'ascii') return asciiBody(a, perLine);
   const raw = leBytes(a);
@@ -142,6 +143,7 @@ function encodeBody(a: NumericArray, encoding: VtuEncoding, level: number, block
 function asciiBody(a: NumericArray, perLine: number): Uint8Array {
   const lines: string[] = new Array(Math.ceil(a.length / perLine));
   const row: string[] = new Array(perLine);
+  if (a.length % perLine !== 0) throw new Error(`array length ${a.length} is not a multiple of ${perLine}`);
   for (let i = 0, l = 0; i < a.length; i += perLine, l++) {
     for (let k = 0; k < perLine; k++) row[k] = String(a[i + k]);
     lines[l] = row.join(' ');
