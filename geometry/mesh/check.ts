@@ -130,6 +130,36 @@ export function checkMesh(mesh: TetMesh, options: CheckOptions = {}): CheckResul
   const tol = (options.relTol ?? 1e-9) * diag;
   const boxVolume = (box.max[0] - box.min[0]) * (box.max[1] - box.min[1]) * (box.max[2] - box.min[2]);
 
+  // malformed arrays: report and stop (the tables below need valid indices)
+  let badIndex = -1;
+  for (let i = 0; i < tets.length && badIndex < 0; i++) if (tets[i] >= nV) badIndex = i;
+  if (coords.length % 3 !== 0 || tets.length % 4 !== 0 || badIndex >= 0) {
+    if (coords.length % 3 !== 0) problems.push(`coords length ${coords.length} is not a multiple of 3`);
+    if (tets.length % 4 !== 0) problems.push(`tets length ${tets.length} is not a multiple of 4`);
+    if (badIndex >= 0) problems.push(`tet ${badIndex >> 2} refers to vertex ${tets[badIndex]}, but there are ${Math.floor(nV)} vertices`);
+    return {
+      ok: false,
+      problems,
+      vertices: Math.floor(nV),
+      edges: 0,
+      faces: 0,
+      tets: m,
+      interiorFaces: 0,
+      boundaryFaces: 0,
+      boundaryFacesOffEnclosure: 0,
+      overSharedFaces: 0,
+      orientationMismatches: 0,
+      nonPositiveTets: 0,
+      minScaledDet: NaN,
+      volume: NaN,
+      boxVolume,
+      volumeRelError: NaN,
+      euler: NaN,
+      unusedVertices: 0,
+      boundaryFlagMismatches: 0,
+    };
+  }
+
   // orientation and volume
   const vol = new NeumaierSum();
   let nonPositiveTets = 0;

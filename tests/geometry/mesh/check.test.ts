@@ -89,6 +89,14 @@ describe('checkMesh', () => {
     expect(r.problems.join(' ')).toMatch(/not on the enclosure|Euler/); // … conformity does
   });
 
+  it('reports a vertex index out of range instead of throwing', () => {
+    const mesh = kuhnGrid(1, 1, 1);
+    mesh.tets[5] = 99;
+    const r = checkMesh(mesh);
+    expect(r.ok).toBe(false);
+    expect(r.problems.join(' ')).toMatch(/refers to vertex 99/);
+  });
+
   it('flags a duplicated tetrahedron', () => {
     const mesh = kuhnGrid(1, 1, 1);
     const tets = [...mesh.tets, ...mesh.tets.subarray(0, 4)];
