@@ -1,0 +1,75 @@
+import { describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { COULOMB_EV_NM } from '../../../geometry/units';
+
+const root = fileURLToPath(new URL('../../..', import.meta.url));
+const fixture = join(root, 'tests/fixtures/designs/plaquette.json');
+const dir = mkdtempSync(join(tmpdir(), 'tetrawell-check-'));
+
+function cli(...args: string[]) {
+  const r = spawnSync(process.execPath, ['--import', 'tsx', 'server/cli/index.ts', 'check', ...args], { cwd: root, encoding: 'utf8' });
+  return { code: r.status, out: r.stdout, err: r.stderr };
+}
+
+describe('npm run cli -- check', () => {
+  it('--json prints exactly the issue\'s object for the README example', () => {
+    const r = cli(fixture, '--json');
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(Object.keys(j)).toEqual(['boundary', 'tolerance', 'sites', 'pairs', 'worstRelBound', 'recommendedHalfExtentsNm', 'warnings']);
+    expect(Object.keys(j.sites[0])).toEqual(['id', 'chargeOutside', 'uBoundEv', 'uRelBound']);
+    expect(Object.keys(j.pairs[0])).toEqual(['a', 'b', 'vBoundEv', 'vRelBound']);
+    expect(j.sites).toHaveLength(4);
+    expect(j.pairs).toHaveLength(6);
+    expect(j.boundary).toBe('multipole(order 2)');
+    expect(j.worstRelBound).toBeLessThan(j.tolerance);
+    expect(j.recommendedHalfExtentsNm).toHaveLength(3);
+  });
+  it('grounded: the bound for each site is e²/(4πε0 εr d) up to the exponential tail (Newton; CODATA e²/4πε0)', () => {
+    const doc = JSON.parse(readFileSync(fixture, 'utf8'));
+    doc.enclosure.boundary = { kind: 'grounded' };
+    const f = join(dir, 'grounded.json');
+    writeFileSync(f, JSON.stringify(doc));
+    const j = JSON.parse(cli(f, '--json').out);
+    const d = 40 - 2.172408204;
+    expect(Math.abs(j.sites[0].uBoundEv / (COULOMB_EV_NM / (11.7 * d)) - 1)).toBeLessThan(1e-5);
+    expect(j.warnings.map((w: { code: string }) => w.code)).toContain('boundary-too-close');
+  });
+  it('the readable table states the assumptions and that figures are estimates', () => {
+    const r = cli(fixture);
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/worst relative bound/);
+    expect(r.out).toMatch(/estimates to be confirmed by your group's own validated methods/);
+  });
+  it('invalid documents exit non-zero with field paths in plain words and no stack trace', () => {
+    const doc = JSON.parse(readFileSync(fixture, 'utf8'));
+    doc.sites[0].position[1] = null;
+    doc.sites[1].species = 'Xe';
+    const f = join(dir, 'bad.json');
+    writeFileSync(f, JSON.stringify(doc));
+    const r = cli(f);
+    expect(r.code).toBe(1);
+    expect(r.err).toContain('sites[0].position[1]: must be a number, not null');
+    expect(r.err).toContain('sites[1].species: must be one of');
+    expect(r.err).not.toMatch(/\n\s+at /);
+    const j = cli(f, '--json');
+    expect(j.code).toBe(1);
+    expect(JSON.parse(j.out).valid).toBe(false);
+  });
+  it('unreadable input and bad usage get one plain line', () => {
+    const missing = cli(join(dir, 'nope.json'));
+    expect(missing.code).toBe(1);
+    expect(missing.err).toMatch(/cannot read .*no such file/);
+    const f = join(dir, 'broken.json');
+    writeFileSync(f, '{ "format": ');
+    const broken = cli(f);
+    expect(broken.code).toBe(1);
+    expect(broken.err).toMatch(/is not valid JSON/);
+    expect(cli().code).toBe(2);
+    expect(cli(fixture, '--frobnicate').code).toBe(2);
+  });
+});
