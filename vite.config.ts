@@ -13,6 +13,18 @@ export default defineConfig({
   build: {
     outDir: fileURLToPath(new URL('./dist/app', import.meta.url)),
     emptyOutDir: true,
+    // Libraries change less often than our code: separate chunks keep browser caches useful
+    // after an update, and keep each chunk under the size warning.
+    rolldownOptions: {
+      output: {
+        codeSplitting: {
+          groups: [
+            { name: 'react', test: /node_modules[\\/](react|react-dom|scheduler|react-router)[\\/]/ },
+            { name: 'vendor', test: /node_modules[\\/]/ },
+          ],
+        },
+      },
+    },
   },
   server: {
     host: '127.0.0.1',

@@ -50,15 +50,18 @@ export function ProjectPage() {
           </p>
         </div>
       </PageHeader>
-      <div className="grid gap-6 lg:grid-cols-3">
-        <div className="space-y-6 lg:col-span-2">
-          <DesignSummary projectId={p.id} />
-          <AuditSection project={p} />
-        </div>
-        <div className="space-y-6">
-          <MembersSection project={p} />
-          <InvitationsSection project={p} />
-          <ProjectSettings project={p} />
+      {/* The site table gets the full width; team and history sit side by side below it. */}
+      <div className="space-y-6">
+        <DesignSummary projectId={p.id} />
+        <div className="grid items-start gap-6 lg:grid-cols-2">
+          <div className="space-y-6">
+            <MembersSection project={p} />
+            <InvitationsSection project={p} />
+          </div>
+          <div className="space-y-6">
+            <AuditSection project={p} />
+            <ProjectSettings project={p} />
+          </div>
         </div>
       </div>
     </>
