@@ -200,7 +200,7 @@ export function formatSummary(stages) {
   return { text: lines.join('\n'), passed, failed, skipped };
 }
 
-/** Reads the demo sign-in from whatever `seedDemoIfEmpty` returned (an array, {users}, {credentials} or one object). */
+/** Reads the demo sign-in from whatever `seedDemoIfEmpty` returned (an array, {accounts}, {users}, {credentials} or one object). */
 export function demoLogins(result) {
   if (!result || typeof result !== 'object') return [];
   const list = Array.isArray(result)
@@ -214,5 +214,14 @@ export function demoLogins(result) {
           : [result];
   return list
     .filter((u) => u && typeof u === 'object' && typeof u.email === 'string' && typeof u.password === 'string')
-    .map((u) => ({ email: u.email, password: u.password, role: u.role ?? u.siteRole ?? u.projectRole ?? null }));
+    .map((u) => ({ email: u.email, password: u.password, role: roleLabel(u) }));
+}
+
+/** "site admin, project owner" from whichever role fields an account record carries. */
+function roleLabel(u) {
+  const parts = [];
+  if (typeof u.role === 'string') parts.push(u.role);
+  if (u.siteRole === 'admin') parts.push('site admin');
+  if (typeof u.projectRole === 'string') parts.push(`project ${u.projectRole}`);
+  return parts.length ? parts.join(', ') : null;
 }

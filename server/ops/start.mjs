@@ -18,7 +18,7 @@ import path from 'node:path';
 import { demoLogins, portFromEnv } from './lib.mjs';
 import { startCluster } from './postgres.mjs';
 import { buildClient, ensureDeps, prepareDatabase } from './setup.mjs';
-import { DATA, OpsError, ROOT, acquireLock, bold, dim, ensureDir, portInUse, say, tsxArgs, warn } from './sys.mjs';
+import { DATA, OpsError, ROOT, acquireLock, bold, dim, ensureDir, portInUse, say, stopOrphanServer, tsxArgs, warn } from './sys.mjs';
 
 const HELP = `npm start: run Tetrawell locally.
 
@@ -111,6 +111,7 @@ async function main() {
   ensureDir(DATA);
   const lock = acquireLock(path.join(DATA, 'start.lock'), 'Tetrawell (npm start)');
   cleanups.push(() => lock.release());
+  if (lock.stale?.serverPid) await stopOrphanServer(lock.stale.serverPid);
 
   const port = portFromEnv(process.env.PORT, 8080);
   const pgPort = portFromEnv(process.env.TETRAWELL_PG_PORT, 54329);
@@ -174,7 +175,8 @@ async function main() {
     '',
   ];
   if (logins.length) {
-    lines.push('  Demo sign-in:');
+    const project = typeof info?.seeded?.projectName === 'string' ? ` (demo project "${info.seeded.projectName}")` : '';
+    lines.push(`  Demo sign-in${project}:`);
     for (const l of logins) lines.push(`    ${l.email}  /  ${l.password}${l.role ? dim(`   (${l.role})`) : ''}`);
   } else {
     lines.push('  Demo sign-in: the demo was seeded on an earlier run; its accounts are listed in README.md.');

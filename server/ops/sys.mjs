@@ -158,19 +158,26 @@ export function pidAlive(pid) {
   if (!Number.isInteger(pid) || pid <= 0) return false;
   try {
     process.kill(pid, 0);
-    return true;
   } catch (e) {
     return e.code === 'EPERM';
+  }
+  // A killed process whose parent has not reaped it yet still answers kill(0): a zombie is not alive.
+  try {
+    const stat = fs.readFileSync(`/proc/${pid}/stat`, 'utf8');
+    return stat.slice(stat.lastIndexOf(')') + 2, stat.lastIndexOf(')') + 3) !== 'Z';
+  } catch {
+    return true;
   }
 }
 
 /**
  * A pid lock file in .data with a liveness check: `wx` creation is atomic, and a file whose pid is dead
- * (a run killed with SIGKILL, a reboot) is taken over. Returns { release, update } or throws OpsError
+ * (a run killed with SIGKILL, a reboot) is taken over. Returns { release, update, stale } or throws OpsError
  * naming the live holder.
  */
 export function acquireLock(file, what) {
   ensureDir(path.dirname(file));
+  let stale = null;
   for (let attempt = 0; attempt < 3; attempt++) {
     try {
       const fd = fs.openSync(file, 'wx', 0o644);
@@ -179,6 +186,8 @@ export function acquireLock(file, what) {
       fs.closeSync(fd);
       let released = false;
       return {
+        /** What the lock file said when a dead holder's lock was taken over (null otherwise). */
+        stale,
         update(extra) {
           fs.writeFileSync(file, JSON.stringify({ ...info, ...extra }));
         },
@@ -209,6 +218,7 @@ export function acquireLock(file, what) {
         );
       }
       warn(`removing a stale lock ${path.relative(ROOT, file)} (pid ${holder?.pid ?? '?'} is gone)`);
+      stale = holder;
       fs.rmSync(file, { force: true });
     }
   }
@@ -227,4 +237,26 @@ export function pythonHasModule(mod) {
   // Run from a neutral folder so a same-named folder in the project cannot shadow the real module.
   const r = spawnSync(py, ['-c', `import ${mod}`], { cwd: os.tmpdir(), stdio: 'ignore' });
   return r.status === 0;
+}
+
+/**
+ * Stops a server process left behind by a start script that was killed hard (its pid is in the stale lock).
+ * Only a live process whose command line runs this project's server/main.ts from this folder is touched.
+ */
+export async function stopOrphanServer(pid) {
+  if (!pidAlive(pid)) return false;
+  const ours = () => {
+    try {
+      const cmdline = fs.readFileSync(`/proc/${pid}/cmdline`, 'utf8').split('\0').join(' ');
+      return cmdline.includes('server/main.ts') && fs.realpathSync(`/proc/${pid}/cwd`) === fs.realpathSync(ROOT);
+    } catch {
+      return false;
+    }
+  };
+  if (!ours()) return false;
+  warn(`stopping the server left running by an earlier start (pid ${pid})`);
+  process.kill(pid, 'SIGTERM');
+  for (let i = 0; i < 100 && pidAlive(pid); i++) await new Promise((r) => setTimeout(r, 100));
+  if (pidAlive(pid)) process.kill(pid, 'SIGKILL');
+  return true;
 }

@@ -250,6 +250,11 @@ describe('demo sign-in', () => {
       { email: b.email, password: b.password, role: null },
     ]);
     expect(demoLogins([a])).toHaveLength(1);
+    // the shape server/db/seed.ts returns
+    expect(demoLogins({ seeded: true, accounts: [{ ...b, siteRole: 'admin', projectRole: 'owner' }, { ...a, role: undefined, siteRole: 'user', projectRole: 'viewer' }] })).toEqual([
+      { email: b.email, password: b.password, role: 'site admin, project owner' },
+      { email: a.email, password: a.password, role: 'project viewer' },
+    ]);
     expect(demoLogins({ users: [{ email: 'x@example.org' }] })).toEqual([]);
     expect(demoLogins(null)).toEqual([]);
     expect(demoLogins(a)).toHaveLength(1);
