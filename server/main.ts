@@ -65,7 +65,18 @@ async function main(): Promise<void> {
     smtp = { host: env.SMTP_HOST, port: env.SMTP_PORT, secure: env.SMTP_SECURE, user: env.SMTP_USER, pass: env.SMTP_PASS };
   } else if (env.TETRAWELL_FAKE_SMTP_PORT !== undefined) {
     fakeKnex = createKnex(env.DATABASE_URL, { poolMax: 2 });
-    fake = await startFakeSmtp({ port: env.TETRAWELL_FAKE_SMTP_PORT, knex: fakeKnex });
+    try {
+      fake = await startFakeSmtp({ port: env.TETRAWELL_FAKE_SMTP_PORT, knex: fakeKnex });
+    } catch (err) {
+      const busy = (err as { code?: string }).code === 'EADDRINUSE';
+      console.error(
+        busy
+          ? `Port ${env.TETRAWELL_FAKE_SMTP_PORT} for the development mail sink is taken: set TETRAWELL_FAKE_SMTP_PORT to a free port.`
+          : `Could not start the development mail sink: ${err instanceof Error ? err.message : String(err)}`,
+      );
+      await fakeKnex.destroy();
+      process.exit(1);
+    }
     smtp = { host: fake.host, port: fake.port, secure: false };
     console.log(`Development mail sink on smtp://${fake.host}:${fake.port} (messages appear in the app's mail room for site admins).`);
   }
@@ -84,7 +95,8 @@ async function main(): Promise<void> {
       cookieSecure: env.COOKIE_SECURE === 'auto' ? 'auto' : env.COOKIE_SECURE === 'true',
     });
   } catch (err) {
-    console.error(`Could not start the server: ${err instanceof Error ? err.message : String(err)}`);
+    const busy = (err as { code?: string }).code === 'EADDRINUSE';
+    console.error(busy ? `Port ${env.PORT} on ${env.HOST} is taken: stop whatever uses it or set PORT.` : `Could not start the server: ${err instanceof Error ? err.message : String(err)}`);
     await fake?.stop();
     await fakeKnex?.destroy();
     process.exit(1);
