@@ -25,5 +25,5 @@ export { meshDesign, chooseInitialCells, DEFAULT_HARD_CAP } from './mesh-design'
 export type { MeshDesignOptions, MeshDesignResult, MeshDesignStats } from './mesh-design';
 export { SizeField, sizeFieldFromDesign, gradingExponent, autoCoreSize, orbitalLength } from './sizefield';
 export type { SizeFieldSpec, SizeFieldParams, SizeFieldOptions, SizeClassSpec } from './sizefield';
-export { estimateTetCount, LADDER_MEAN_CONSTANT } from './estimate';
+export { estimateTetCount, LADDER_MEAN_CONSTANT, CLOSURE_ALLOWANCE } from './estimate';
 export type { EstimateResult } from './estimate';

@@ -1,0 +1,151 @@
+/**
+ * Element-count estimate before meshing, and the refusals.
+ * Theory: the Kuhn bisection ladder (three shapes per halving of the cell side; Maubach 1995 for
+ * the Kuhn simplex), checked here against real uniform refinements; the cubature is checked on a
+ * closed-form integral; the estimate is checked against real meshes (issue 4: within ±30 %).
+ */
+import { describe, expect, it } from 'vitest';
+import { meshDesign, kuhnBox, refineUniform, toTetMesh, MeshError, LADDER_MEAN_CONSTANT } from '../../../geometry/mesh/index';
+import { adaptiveCubature, cellLadderEdges, ladderDensity, ladderEdge, ladderVolume } from '../../../geometry/mesh/estimate';
+import { computeTetQuality } from '../../../geometry/mesh/quality';
+import type { Design, Site } from '../../../geometry/design/types';
+
+function design(sites: Partial<Site>[], half: [number, number, number], order: 1 | 2, tol: number, maxElements = 5_000_000): Design {
+  return {
+    format: 'tetrawell-design',
+    version: 1,
+    name: 'estimate test (invented)',
+    host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: 0.5431 },
+    sites: sites.map((s, i) => ({ id: `s${i}`, species: 'P', position: [0, 0, 0], electrons: 1, ...s })),
+    enclosure: { center: [0, 0, 0], halfExtentsNm: half, boundary: { kind: 'grounded' } },
+    refinement: { order, targetRelError: tol, maxElements },
+  };
+}
+
+describe('Kuhn bisection ladder', () => {
+  it('longest edge and volume per generation match real uniform refinements of a cube', () => {
+    const s = 2;
+    const m = kuhnBox({ center: [0, 0, 0], halfExtents: [1, 1, 1], cells: [1, 1, 1] });
+    for (let g = 0; g <= 7; g++) {
+      const tm = toTetMesh(m);
+      const q = computeTetQuality(tm);
+      const L = Math.max(...q.longestEdge);
+      expect(L).toBeCloseTo(ladderEdge(s, g), 12);
+      expect(Math.min(...q.longestEdge)).toBeCloseTo(ladderEdge(s, g), 12);
+      // all tets of a uniform generation have the same volume: the cube's 8 / (6·2^g)
+      expect(tm.tets.length / 4).toBe(6 * 2 ** g);
+      expect((s ** 3) / (tm.tets.length / 4)).toBeCloseTo(ladderVolume(s, g), 12);
+      refineUniform(m, 1);
+    }
+  });
+
+  it('per-cell ladder edges: √3 s, √2 s, s for a cube; a stretched cell has longer ones', () => {
+    const s = 1.7;
+    const L = cellLadderEdges([s, s, s]);
+    expect(L[0]).toBeCloseTo(Math.sqrt(3) * s, 12);
+    expect(L[1]).toBeCloseTo(Math.SQRT2 * s, 12);
+    expect(L[2]).toBeCloseTo(s, 12);
+    // generation 0 of any box cell: every Kuhn tet contains the main diagonal, the longest edge
+    const d: [number, number, number] = [1.2, 1, 0.9];
+    expect(cellLadderEdges(d)[0]).toBeCloseTo(Math.hypot(...d), 12);
+  });
+
+  it('the log-average of h³ × ladder density is the closed-form constant c ≈ 42.87', () => {
+    // midpoint rule in log h over many ladder cycles (the step function is exact per interval)
+    const s = 1;
+    const lo = Math.log(0.01), hi = Math.log(0.01 * 2 ** 6); // six whole cycles (factor 2 each)
+    const n = 600_000;
+    let acc = 0;
+    for (let i = 0; i < n; i++) {
+      const h = Math.exp(lo + ((i + 0.5) * (hi - lo)) / n);
+      acc += ladderDensity(s, h) * h ** 3;
+    }
+    expect(acc / n).toBeCloseTo(LADDER_MEAN_CONSTANT, 3);
+    expect(LADDER_MEAN_CONSTANT).toBeGreaterThan(42.8);
+    expect(LADDER_MEAN_CONSTANT).toBeLessThan(42.95);
+  });
+});
+
+describe('adaptive cubature', () => {
+  it('integrates a cusped, separable density to its closed form, ∏ 2a(1 − e^{−L/a}) (elementary calculus)', () => {
+    const a = 0.7, L = 10;
+    const f = (x: number, y: number, z: number) => Math.exp(-(Math.abs(x) + Math.abs(y) + Math.abs(z)) / a);
+    const exact = (2 * a * (1 - Math.exp(-L / a))) ** 3;
+    // the start cells meet at the cusp planes, so the integrand is smooth inside each cell;
+    // split cells that are large against a or against their distance to the peak at the origin
+    const split = (l: readonly number[], u: readonly number[]) => {
+      const size = u[0] - l[0];
+      const dist = Math.hypot(...([0, 1, 2].map((k) => (l[k] <= 0 && u[k] >= 0 ? 0 : Math.min(Math.abs(l[k]), Math.abs(u[k])))) as [number, number, number]));
+      return size > 0.25 * a && size > 0.25 * dist;
+    };
+    const r = adaptiveCubature(f, [-L, -L, -L], [L, L, L], { cells: [2, 2, 2], split });
+    expect(Math.abs(r.value - exact) / exact).toBeLessThan(2e-4);
+    expect(r.aborted).toBe(false);
+    // early stop: the running sum of a positive integrand only grows
+    const s = adaptiveCubature(f, [-L, -L, -L], [L, L, L], { cells: [2, 2, 2], split, stopAbove: exact / 10 });
+    expect(s.aborted).toBe(true);
+  });
+});
+
+describe('estimate against real meshes', () => {
+  const cases: [string, Design][] = [
+    ['one P donor, P1', design([{ position: [0, 0, 0] }], [25, 25, 25], 1, 1e-2)],
+    ['one P donor off-centre, P2, oblong box', design([{ position: [3.1, -2.2, 5.4] }], [30, 20, 25], 2, 1e-4)],
+    ['donor pair 8 nm apart, P1', design([{ position: [-4, 0, 0] }, { position: [4, 0, 0] }], [30, 25, 25], 1, 1e-2)],
+    ['row of five, Gaussian orbitals, P2', design([0, 1, 2, 3, 4].map((i) => ({ position: [6 * i - 12, 0.5, -0.5] as [number, number, number], orbital: { model: 'gaussian' as const, sigmaNm: 1.2 } })), [35, 20, 20], 2, 1e-3)],
+    ['anisotropic orbital near a face, P1, small cap', design([{ position: [0, 0, 14], orbital: { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 } }], [20, 20, 18], 1, 3e-2)],
+  ];
+  for (const [name, d] of cases) {
+    it(`within ±30 % of the actual count: ${name}`, () => {
+      const r = meshDesign(d);
+      const ratio = r.estimate / r.stats.tets;
+      console.log(`estimate ${name}: ${Math.round(r.estimate)} vs ${r.stats.tets} tets, ratio ${ratio.toFixed(3)}`);
+      expect(ratio).toBeGreaterThan(0.7);
+      expect(ratio).toBeLessThan(1.3);
+      expect(r.stats.tets).toBe(r.mesh.tets.length / 4);
+    });
+  }
+});
+
+describe('refusals', () => {
+  it('refuses a design whose estimate exceeds maxElements, before meshing, with the figures', () => {
+    const d = design([{ position: [0, 0, 0] }], [25, 25, 25], 1, 1e-3, 10_000);
+    let err: unknown;
+    try {
+      meshDesign(d);
+    } catch (e) {
+      err = e;
+    }
+    expect(err).toBeInstanceOf(MeshError);
+    const me = err as MeshError;
+    expect(me.code).toBe('too-many-elements');
+    expect(me.message).toMatch(/maxElements \(10000\)/);
+    expect(me.details.estimate).toBeGreaterThan(10_000);
+  });
+
+  it('refuses above the server-wide cap even when maxElements allows it', () => {
+    const d = design([{ position: [0, 0, 0] }], [25, 25, 25], 1, 1e-3, 50_000_000);
+    let err: unknown;
+    try {
+      meshDesign(d, { hardCap: 20_000 });
+    } catch (e) {
+      err = e;
+    }
+    expect((err as MeshError).code).toBe('too-many-elements');
+    expect((err as MeshError).message).toMatch(/server cap \(20000\)/);
+  });
+
+  it('refuses a degenerate enclosure (zero, negative, NaN extent) with a clear error', () => {
+    for (const half of [[0, 10, 10], [10, -1, 10], [10, 10, Number.NaN]] as [number, number, number][]) {
+      let err: unknown;
+      try {
+        meshDesign(design([{ position: [0, 0, 0] }], half, 1, 1e-2));
+      } catch (e) {
+        err = e;
+      }
+      expect(err).toBeInstanceOf(MeshError);
+      expect((err as MeshError).code).toBe('degenerate-box');
+      expect((err as MeshError).message).toMatch(/enclosure is degenerate/);
+    }
+  });
+});
