@@ -55,22 +55,25 @@ export async function createProject(page: Page, name: string, description = ''):
   return Number(m![1]);
 }
 
-/** The first /invite/<token> link e-mailed to `to`, as caught by the fake SMTP server. */
-export async function invitationLinkFor(to: string): Promise<string> {
+/** The newest `/<kind>/<token>` link e-mailed to `to`, as caught by the fake SMTP server. */
+export async function mailedLinkFor(to: string, kind: 'invite' | 'reset'): Promise<string> {
+  const pattern = new RegExp(`https?://\\S+/${kind}/[A-Za-z0-9_-]+`);
   let link: string | null = null;
   await expect
     .poll(
       async () => {
         const rows: { text: string; recipients: unknown }[] = await testDb()('captured_mail').select('text', 'recipients').orderBy('id', 'desc').limit(200);
-        const row = rows.find((r) => JSON.stringify(r.recipients).toLowerCase().includes(to.toLowerCase()) && /\/invite\//.test(r.text));
-        link = row ? (/https?:\/\/\S+\/invite\/[A-Za-z0-9_-]+/.exec(row.text)?.[0] ?? null) : null;
+        const row = rows.find((r) => JSON.stringify(r.recipients).toLowerCase().includes(to.toLowerCase()) && pattern.test(r.text));
+        link = row ? (pattern.exec(row.text)?.[0] ?? null) : null;
         return link;
       },
-      { message: `invitation e-mail to ${to}`, timeout: 15_000 },
+      { message: `${kind} e-mail to ${to}`, timeout: 15_000 },
     )
     .not.toBeNull();
   return link!;
 }
+
+export const invitationLinkFor = (to: string) => mailedLinkFor(to, 'invite');
 
 /** A request context call with the page's session and a fresh CSRF token (for setting up races). */
 export async function apiWrite(request: APIRequestContext, method: 'PATCH' | 'PUT' | 'POST', url: string, data: unknown) {

@@ -107,7 +107,7 @@ export function AccountPage() {
   return (
     <>
       <PageHeader eyebrow="Account" title="Your account" lead={`Signed in as ${user.email}${user.siteRole === 'admin' ? ' · site administrator' : ''}.`} />
-      <div className="grid max-w-4xl gap-6 md:grid-cols-2">
+      <div className="grid max-w-4xl items-start gap-6 md:grid-cols-2">
         <Panel title="Profile">
           <div className="space-y-3">
             <FormAlert tone="success" message={nameSaved ? 'Name saved.' : null} />

@@ -24,8 +24,3 @@ export function RequireSession() {
   if (!me.data) return <Navigate to={withNext('/sign-in', location.pathname + location.search)} replace />;
   return <Outlet />;
 }
-
-/** For sign-in/sign-up: a visitor who is already signed in goes straight on. */
-export function useSignedInUser() {
-  return useMe().data ?? null;
-}
