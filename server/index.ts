@@ -35,7 +35,7 @@ export const DEFAULT_STATIC_DIR = path.join(REPO_ROOT, 'dist', 'app');
 export async function start(opts: ServerOptions): Promise<RunningServer> {
   const logger = opts.logger ?? consoleLogger;
   const host = opts.host ?? '127.0.0.1';
-  const knex = createKnex(opts.databaseUrl);
+  const knex = createKnex(opts.databaseUrl, { logger });
   const sessionPool = new pg.Pool({ connectionString: opts.databaseUrl, max: 5 });
   const PgStore = connectPgSimple(session);
   const sessionStore = new PgStore({

@@ -11,6 +11,8 @@ export const MIGRATIONS_DIR = path.resolve(path.dirname(fileURLToPath(import.met
 export interface DbOptions {
   /** connections kept by the pool; small by default: the app is I/O bound and PostgreSQL has a connection cap */
   poolMax?: number;
+  /** where knex's own warnings go (e.g. failed connection attempts); console when absent */
+  logger?: { warn(...a: unknown[]): void; error(...a: unknown[]): void };
 }
 
 export function knexConfig(databaseUrl: string, options: DbOptions = {}): Knex.Config {
@@ -19,6 +21,16 @@ export function knexConfig(databaseUrl: string, options: DbOptions = {}): Knex.C
     connection: databaseUrl,
     pool: { min: 0, max: options.poolMax ?? 10 },
     migrations: { tableName: 'knex_migrations' },
+    ...(options.logger
+      ? {
+          log: {
+            warn: (m: unknown) => options.logger!.warn('database:', m),
+            error: (m: unknown) => options.logger!.error('database:', m),
+            deprecate: (m: unknown) => options.logger!.warn('database:', m),
+            debug: () => {},
+          },
+        }
+      : {}),
   };
 }
 

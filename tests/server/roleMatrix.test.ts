@@ -12,7 +12,25 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { can, type Capability, type ProjectRole } from '@contracts/roles';
-import type { User } from '@contracts/api';
+import {
+  auditListSchema,
+  capturedMailListSchema,
+  csrfResponseSchema,
+  healthSchema,
+  invitationAcceptResponseSchema,
+  invitationListSchema,
+  invitationPreviewSchema,
+  invitationSchema,
+  memberListSchema,
+  memberSchema,
+  meResponseSchema,
+  okResponseSchema,
+  projectDesignSchema,
+  projectListSchema,
+  projectSchema,
+  type User,
+} from '@contracts/api';
+import type { z } from 'zod';
 import { addMember, linkToken, newUser, startTestEnv, TEST_PASSWORD, uniqueEmail, waitForMail, type TestClient, type TestEnv } from './helpers';
 import { emptyDesign } from '../../server/services/designs';
 
@@ -41,6 +59,8 @@ interface RouteCase {
   body?(f: Fixture, c: TestClient): unknown | Promise<unknown>;
   /** extra set-up the case needs (kept out of the other cases) */
   needs?: { ownInvite?: boolean; reset?: boolean; openInvitation?: boolean };
+  /** the contract the success body must match (server/contracts/api.ts) */
+  schema?: z.ZodType;
   /** undo after the call so the shared role users stay usable */
   after?(c: TestClient, f: Fixture): Promise<void>;
 }
@@ -48,14 +68,15 @@ interface RouteCase {
 const p = (f: Fixture) => `/api/projects/${f.projectId}`;
 
 const ROUTES: RouteCase[] = [
-  { method: 'get', path: '/health', rule: { kind: 'public' }, success: 200, url: () => '/api/health' },
-  { method: 'get', path: '/auth/csrf', rule: { kind: 'public' }, success: 200, url: () => '/api/auth/csrf' },
+  { method: 'get', path: '/health', rule: { kind: 'public' }, success: 200, url: () => '/api/health', schema: healthSchema },
+  { method: 'get', path: '/auth/csrf', rule: { kind: 'public' }, success: 200, url: () => '/api/auth/csrf', schema: csrfResponseSchema },
   {
     method: 'post',
     path: '/auth/sign-up',
     rule: { kind: 'public' },
     success: 201,
     url: () => '/api/auth/sign-up',
+    schema: meResponseSchema,
     body: () => ({ email: uniqueEmail('matrix-su'), password: TEST_PASSWORD, displayName: 'Matrix' }),
   },
   {
@@ -64,16 +85,18 @@ const ROUTES: RouteCase[] = [
     rule: { kind: 'public' },
     success: 200,
     url: () => '/api/auth/sign-in',
+    schema: meResponseSchema,
     body: (f) => ({ email: f.users.viewer.email, password: TEST_PASSWORD }),
   },
   { method: 'post', path: '/auth/sign-out', rule: { kind: 'public' }, success: 204, url: () => '/api/auth/sign-out' },
-  { method: 'get', path: '/auth/me', rule: { kind: 'user' }, success: 200, url: () => '/api/auth/me' },
+  { method: 'get', path: '/auth/me', rule: { kind: 'user' }, success: 200, url: () => '/api/auth/me', schema: meResponseSchema },
   {
     method: 'post',
     path: '/auth/password-reset/request',
     rule: { kind: 'public' },
     success: 202,
     url: () => '/api/auth/password-reset/request',
+    schema: okResponseSchema,
     body: () => ({ email: uniqueEmail('matrix-nobody') }),
   },
   {
@@ -82,6 +105,7 @@ const ROUTES: RouteCase[] = [
     rule: { kind: 'public' },
     success: 200,
     url: () => '/api/auth/password-reset/confirm',
+    schema: okResponseSchema,
     needs: { reset: true },
     body: (f) => ({ token: f.resetToken, password: 'a-brand-new-passphrase' }),
   },
@@ -91,6 +115,7 @@ const ROUTES: RouteCase[] = [
     rule: { kind: 'user' },
     success: 200,
     url: () => '/api/account',
+    schema: meResponseSchema,
     body: async (_f, c) => {
       const me = await c.get('/api/auth/me');
       return { displayName: 'Renamed in matrix', version: me.status === 200 ? me.body.user.version : 1 };
@@ -102,14 +127,15 @@ const ROUTES: RouteCase[] = [
     rule: { kind: 'user' },
     success: 200,
     url: () => '/api/account/password',
+    schema: okResponseSchema,
     body: () => ({ currentPassword: TEST_PASSWORD, newPassword: 'temporary-passphrase-1' }),
     after: async (c) => {
       if (c.user) await c.post('/api/account/password', { currentPassword: 'temporary-passphrase-1', newPassword: TEST_PASSWORD });
     },
   },
-  { method: 'get', path: '/projects', rule: { kind: 'user' }, success: 200, url: () => '/api/projects' },
-  { method: 'post', path: '/projects', rule: { kind: 'user' }, success: 201, url: () => '/api/projects', body: () => ({ name: 'Matrix extra' }) },
-  { method: 'get', path: '/projects/:projectId', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: p },
+  { method: 'get', path: '/projects', rule: { kind: 'user' }, success: 200, url: () => '/api/projects', schema: projectListSchema },
+  { method: 'post', path: '/projects', rule: { kind: 'user' }, success: 201, url: () => '/api/projects', body: () => ({ name: 'Matrix extra' }), schema: projectSchema },
+  { method: 'get', path: '/projects/:projectId', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: p, schema: projectSchema },
   {
     method: 'patch',
     path: '/projects/:projectId',
@@ -117,9 +143,10 @@ const ROUTES: RouteCase[] = [
     success: 200,
     url: p,
     body: () => ({ name: 'Renamed', version: 1 }),
+    schema: projectSchema,
   },
   { method: 'delete', path: '/projects/:projectId', rule: { kind: 'project', capability: 'project.delete' }, success: 204, url: p },
-  { method: 'get', path: '/projects/:projectId/members', rule: { kind: 'project', capability: 'members.read' }, success: 200, url: (f) => `${p(f)}/members` },
+  { method: 'get', path: '/projects/:projectId/members', rule: { kind: 'project', capability: 'members.read' }, success: 200, url: (f) => `${p(f)}/members`, schema: memberListSchema },
   {
     method: 'patch',
     path: '/projects/:projectId/members/:userId',
@@ -127,6 +154,7 @@ const ROUTES: RouteCase[] = [
     success: 200,
     url: (f) => `${p(f)}/members/${f.users.target.user.id}`,
     body: () => ({ role: 'editor', version: 1 }),
+    schema: memberSchema,
   },
   {
     method: 'delete',
@@ -135,7 +163,7 @@ const ROUTES: RouteCase[] = [
     success: 204,
     url: (f) => `${p(f)}/members/${f.users.target.user.id}`,
   },
-  { method: 'get', path: '/projects/:projectId/invitations', rule: { kind: 'project', capability: 'members.read' }, success: 200, url: (f) => `${p(f)}/invitations` },
+  { method: 'get', path: '/projects/:projectId/invitations', rule: { kind: 'project', capability: 'members.read' }, success: 200, url: (f) => `${p(f)}/invitations`, schema: invitationListSchema },
   {
     method: 'post',
     path: '/projects/:projectId/invitations',
@@ -143,6 +171,7 @@ const ROUTES: RouteCase[] = [
     success: 201,
     url: (f) => `${p(f)}/invitations`,
     body: () => ({ email: uniqueEmail('matrix-inv'), role: 'viewer' }),
+    schema: invitationSchema,
   },
   {
     method: 'delete',
@@ -159,6 +188,7 @@ const ROUTES: RouteCase[] = [
     success: 200,
     needs: { ownInvite: true },
     url: (f) => `/api/invitations/${f.ownInviteToken}`,
+    schema: invitationPreviewSchema,
   },
   {
     method: 'post',
@@ -167,8 +197,9 @@ const ROUTES: RouteCase[] = [
     success: 200,
     needs: { ownInvite: true },
     url: (f) => `/api/invitations/${f.ownInviteToken}/accept`,
+    schema: invitationAcceptResponseSchema,
   },
-  { method: 'get', path: '/projects/:projectId/design', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: (f) => `${p(f)}/design` },
+  { method: 'get', path: '/projects/:projectId/design', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: (f) => `${p(f)}/design`, schema: projectDesignSchema },
   {
     method: 'put',
     path: '/projects/:projectId/design',
@@ -176,10 +207,11 @@ const ROUTES: RouteCase[] = [
     success: 200,
     url: (f) => `${p(f)}/design`,
     body: () => ({ design: emptyDesign('Matrix design'), version: 1 }),
+    schema: projectDesignSchema,
   },
-  { method: 'get', path: '/projects/:projectId/audit', rule: { kind: 'project', capability: 'audit.read' }, success: 200, url: (f) => `${p(f)}/audit` },
+  { method: 'get', path: '/projects/:projectId/audit', rule: { kind: 'project', capability: 'audit.read' }, success: 200, url: (f) => `${p(f)}/audit`, schema: auditListSchema },
   // the role users are ordinary site members, so the admin route refuses all of them
-  { method: 'get', path: '/admin/mail', rule: { kind: 'site-admin' }, success: 200, url: () => '/api/admin/mail' },
+  { method: 'get', path: '/admin/mail', rule: { kind: 'site-admin' }, success: 200, url: () => '/api/admin/mail', schema: capturedMailListSchema },
 ];
 
 function expected(route: RouteCase, who: Who): number {
@@ -262,6 +294,7 @@ describe('role-by-route matrix', () => {
         const r = await c.request(route.method, route.url(f), body);
         expect(r.status, JSON.stringify(r.body)).toBe(want);
         if (want >= 400) expect(r.body.error).toBeDefined();
+        if (r.status === route.success && route.schema) route.schema.parse(r.body);
         if (route.after && r.status === route.success) await route.after(c, f);
       });
     }
@@ -280,6 +313,6 @@ describe('site admin', () => {
     await env.knex('users').where({ id: admin.user.id }).update({ site_role: 'admin' });
     const r = await admin.client.get('/api/admin/mail');
     expect(r.status).toBe(200);
-    expect(Array.isArray(r.body.messages)).toBe(true);
+    capturedMailListSchema.parse(r.body);
   });
 });
