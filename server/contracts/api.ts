@@ -35,11 +35,13 @@ export const errorBodySchema = z.object({
 export type ErrorBody = z.infer<typeof errorBodySchema>;
 
 // ---------- shared ----------
-export const idSchema = z.coerce.number().int().positive();
+/** Largest PostgreSQL `integer` (2^31 − 1): ids and versions are stored in that type. */
+export const PG_INT_MAX = 2_147_483_647;
+export const idSchema = z.coerce.number().int().positive().max(PG_INT_MAX);
 export const emailSchema = z.string().trim().toLowerCase().email().max(254);
 export const passwordSchema = z.string().min(10, 'Use at least 10 characters.').max(200);
 export const displayNameSchema = z.string().trim().min(1).max(80);
-export const versionSchema = z.number().int().min(1);
+export const versionSchema = z.number().int().min(1).max(PG_INT_MAX);
 
 export const userSchema = z.object({
   id: z.number().int(),

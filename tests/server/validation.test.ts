@@ -104,6 +104,17 @@ describe('contract violations → 422 with field paths, nothing written', () => 
     expect(expectCleanError(r.body).details?.[0].path).toEqual(['projectId']);
   });
 
+  it('ids and versions beyond the PostgreSQL integer range are refused with 422, not a database error', async () => {
+    // PostgreSQL documentation, numeric types: integer is −2147483648 … +2147483647
+    const tooBig = 2 ** 31;
+    const r = await owner.client.get(`/api/projects/${tooBig}`);
+    expect(r.status).toBe(422);
+    const v = await owner.client.patch(`/api/projects/${projectId}`, { name: 'x', version: tooBig });
+    expect(v.status).toBe(422);
+    expect(v.body.error.details[0].path).toEqual(['version']);
+    expect((await owner.client.get(`/api/projects/${tooBig - 1}`)).status).toBe(404);
+  });
+
   it('audit query out of range', async () => {
     const r = await owner.client.get(`/api/projects/${projectId}/audit?limit=100000`);
     expect(r.status).toBe(422);
