@@ -96,7 +96,16 @@ export function createApp(deps: AppDeps): Express {
       strictTransportSecurity: behindHttps ? { maxAge: 31_536_000, includeSubDomains: true } : false,
     }),
   );
-  app.use(express.json({ limit: deps.bodyLimit }));
+  app.use(
+    express.json({
+      limit: deps.bodyLimit,
+      // PostgreSQL text and jsonb cannot hold U+0000; refuse it at the door (400) rather than fail in the database (500)
+      reviver: (_key, value: unknown) => {
+        if (typeof value === 'string' && value.includes('\u0000')) throw new SyntaxError('NUL character in a string');
+        return value;
+      },
+    }),
+  );
 
   app.use(
     session({

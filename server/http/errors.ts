@@ -52,7 +52,7 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
     const e = (err ?? {}) as HttpishError;
     // body-parser: malformed JSON and oversize bodies
     if (e.type === 'entity.parse.failed') {
-      sendError(res, 'bad_request', 'The request body is not valid JSON.');
+      sendError(res, 'bad_request', 'The request body is not valid JSON (or holds a NUL character, which the server does not store).');
       return;
     }
     if (e.type === 'entity.too.large') {

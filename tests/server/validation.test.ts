@@ -50,6 +50,17 @@ describe('malformed JSON → 400, nothing written', () => {
   }
 });
 
+describe('strings PostgreSQL cannot store', () => {
+  it('a NUL character is refused with 400 and nothing is written', async () => {
+    // PostgreSQL documentation, character types: "the character with code zero (NUL) cannot be stored"
+    const before = await countRows(env.knex, 'projects');
+    const r = await owner.client.post('/api/projects', { name: 'nul\u0000name' });
+    expect(r.status).toBe(400);
+    expect(expectCleanError(r.body).code).toBe('bad_request');
+    expect(await countRows(env.knex, 'projects')).toBe(before);
+  });
+});
+
 describe('contract violations → 422 with field paths, nothing written', () => {
   it('project without a name', async () => {
     const before = await countRows(env.knex, 'projects');
