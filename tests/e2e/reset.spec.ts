@@ -46,6 +46,6 @@ test('a forgotten password is replaced through the e-mailed link', async ({ page
   await p2.getByLabel('New password', { exact: true }).fill('yet-another-passphrase');
   await p2.getByLabel('Repeat the new password').fill('yet-another-passphrase');
   await p2.getByRole('button', { name: 'Set new password' }).click();
-  await expect(p2.getByRole('alert')).toContainText('request a new one');
+  await expect(p2.getByRole('alert')).toContainText('Request a new one');
   await again.close();
 });

@@ -3,10 +3,17 @@ import { Link, useParams } from 'react-router';
 import { resetConfirmBodySchema } from '@contracts/api';
 import { GateShell } from '../../components/AppShell';
 import { FormAlert, SubmitButton, TextField, formValues, useFormErrors } from '../../components/Form';
+import { ApiError } from '../../lib/api';
 import { formErrorsFromError, validateWith } from '../../lib/formErrors';
 import { useConfirmPasswordReset } from './resetConfirm';
 
 const FIELDS = ['password', 'confirm'] as const;
+const LINK_PROBLEM = 'This reset link is incomplete, expired or already used. Request a new one below.';
+
+/** Issues about the token concern the link, not anything the user typed: say so in plain words. */
+function aboutToken(issues: readonly { path: readonly PropertyKey[] }[]): boolean {
+  return issues.some((i) => i.path[0] === 'token');
+}
 
 export function ResetConfirmPage() {
   const { token = '' } = useParams();
@@ -20,16 +27,13 @@ export function ResetConfirmPage() {
     if (values.password !== values.confirm) {
       return setErrors({ fields: { confirm: 'The two passwords differ.' }, form: 'Some fields need attention; see the notes beside them.' });
     }
+    if (!resetConfirmBodySchema.shape.token.safeParse(token).success) return setErrors({ fields: {}, form: LINK_PROBLEM });
     const checked = validateWith(resetConfirmBodySchema, { token, password: values.password }, FIELDS);
     if (!checked.ok) return setErrors(checked.errors);
     clearErrors();
     confirm.mutate(checked.data, {
       onSuccess: () => setDone(true),
-      onError: (err) => {
-        const mapped = formErrorsFromError(err, FIELDS);
-        // A bad or expired token is the usual failure here; say what to do about it.
-        setErrors(mapped.form && Object.keys(mapped.fields).length === 0 ? { ...mapped, form: `${mapped.form} The link may have expired or been used already: request a new one.` } : mapped);
-      },
+      onError: (err) => setErrors(err instanceof ApiError && aboutToken(err.details) ? { fields: {}, form: LINK_PROBLEM } : formErrorsFromError(err, FIELDS)),
     });
   }
 
