@@ -92,7 +92,9 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     throw err;
   }
   const port = (server.address() as AddressInfo).port;
-  const url = `http://${host.includes(':') ? `[${host}]` : host}:${port}`;
+  // a wildcard listen address is not somewhere a browser can go: name loopback instead
+  const shown = host === '0.0.0.0' ? '127.0.0.1' : host === '::' ? '::1' : host;
+  const url = `http://${shown.includes(':') ? `[${shown}]` : shown}:${port}`;
   if (!config.publicUrl) config.publicUrl = url;
 
   let stopping: Promise<void> | null = null;
