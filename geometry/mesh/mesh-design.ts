@@ -19,7 +19,7 @@ import type { TetMesh } from './types';
 export const DEFAULT_HARD_CAP = 5_000_000;
 
 export interface MeshDesignOptions extends SizeFieldOptions {
-  /** initial Kuhn cells across the smallest enclosure axis (default 2) */
+  /** fewest initial Kuhn cells across the smallest enclosure axis (default 2; see chooseInitialCells) */
   initialCells?: number;
   /** server-wide cap (default DEFAULT_HARD_CAP) */
   hardCap?: number;
@@ -54,11 +54,30 @@ export interface MeshDesignResult {
   bisectionMesh?: BisectionMesh;
 }
 
-/** cells per axis: about n across the smallest axis, others rounded so cells stay near-cubic */
+/**
+ * Cells per axis: n across the smallest axis, the others rounded so that cells stay near-cubic.
+ * Cubic cells keep the Kuhn shapes exact (dihedral angles within [45°, 120°]); stretched cells
+ * stretch every descendant. So n is searched upwards from nMin (up to nMin + 6) for the layout
+ * whose largest/smallest cell side is closest to 1, the smallest n winning ties: extents in ratios
+ * like 3 : 2 : 2.5 then get exactly cubic cells (n = 4 across the smallest).
+ */
 export function chooseInitialCells(halfExtents: readonly number[], nMin: number): [number, number, number] {
   if (!Number.isInteger(nMin) || nMin < 1) throw new MeshError('bad-size-field', `initialCells must be a positive integer, got ${nMin}`);
-  const s = (2 * Math.min(halfExtents[0], halfExtents[1], halfExtents[2])) / nMin;
-  return [0, 1, 2].map((a) => Math.max(1, Math.round((2 * halfExtents[a]) / s))) as [number, number, number];
+  const smallest = Math.min(halfExtents[0], halfExtents[1], halfExtents[2]);
+  let best: [number, number, number] = [1, 1, 1];
+  let bestAspect = Infinity;
+  for (let n = nMin; n <= nMin + 6; n++) {
+    const s = (2 * smallest) / n;
+    const cells = [0, 1, 2].map((a) => Math.max(1, Math.round((2 * halfExtents[a]) / s))) as [number, number, number];
+    const sides = cells.map((c, a) => (2 * halfExtents[a]) / c);
+    const aspect = Math.max(...sides) / Math.min(...sides);
+    // 1e-9: exact ratios computed in floating point should still count as cubic
+    if (aspect < bestAspect - 1e-9) {
+      best = cells;
+      bestAspect = aspect;
+    }
+  }
+  return best;
 }
 
 function checkEnclosure(design: Design): void {
