@@ -91,16 +91,22 @@ export function p2Coords(mesh: Pick<TetMesh, 'coords' | 'tets'>, edgeTable?: Edg
 }
 
 /**
- * Extend a per-vertex field to all P2 nodes by averaging over each edge: the P1 interpolant read
- * on the P2 nodes (exact for fields that are linear on each tet).
+ * Extend a per-vertex field (`components` values per vertex) to all P2 nodes by averaging over
+ * each edge: the P1 interpolant read on the P2 nodes (exact for fields linear on each tet).
  */
-export function p2ExtendVertexField(values: ArrayLike<number>, edgeTable: EdgeTable, nVertices: number): Float64Array {
-  if (values.length !== nVertices) throw new Error(`vertex field has ${values.length} values, expected ${nVertices}`);
+export function p2ExtendVertexField(values: ArrayLike<number>, edgeTable: EdgeTable, nVertices: number, components = 1): Float64Array {
+  const c = components;
+  if (values.length !== c * nVertices) throw new Error(`vertex field has ${values.length} values, expected ${c} × ${nVertices}`);
   const edges = edgeTable.edges;
   const nE = edges.length / 2;
-  const out = new Float64Array(nVertices + nE);
-  for (let i = 0; i < nVertices; i++) out[i] = values[i];
-  for (let e = 0; e < nE; e++) out[nVertices + e] = 0.5 * (values[edges[2 * e]] + values[edges[2 * e + 1]]);
+  const out = new Float64Array(c * (nVertices + nE));
+  for (let i = 0; i < c * nVertices; i++) out[i] = values[i];
+  for (let e = 0; e < nE; e++) {
+    const a = c * edges[2 * e];
+    const b = c * edges[2 * e + 1];
+    const o = c * (nVertices + e);
+    for (let k = 0; k < c; k++) out[o + k] = 0.5 * (values[a + k] + values[b + k]);
+  }
   return out;
 }
 

@@ -95,7 +95,7 @@ export function writeVtkLegacy(mesh: TetMesh, options: VtkLegacyOptions = {}): U
     for (const a of pointArrays) {
       const comps = a.components ?? 1;
       let values = a.values;
-      if (et && comps === 1 && values.length === nV) values = p2ExtendVertexField(values, et, nV);
+      if (et && values.length === comps * nV) values = p2ExtendVertexField(values, et, nV, comps);
       if (values.length !== comps * nPoints) throw new Error(`PointData array "${a.name}" has ${values.length} values, expected ${comps} × ${nPoints}`);
       scalars(a.name, values, comps);
     }

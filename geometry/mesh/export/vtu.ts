@@ -209,8 +209,8 @@ export function writeVtu(mesh: TetMesh, options: VtuOptions = {}): Uint8Array {
   const pointParts: Part[] = [];
   const onPoints = (arr: NamedArray): Part => {
     const comps = arr.components ?? 1;
-    if (order === 2 && et && arr.values.length === nV && comps === 1) {
-      return { name: arr.name, values: p2ExtendVertexField(arr.values, et, nV), components: 1 };
+    if (order === 2 && et && arr.values.length === comps * nV) {
+      return { name: arr.name, values: p2ExtendVertexField(arr.values, et, nV, comps), components: comps };
     }
     return toTyped(arr, nPoints, 'PointData');
   };

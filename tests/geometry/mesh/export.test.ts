@@ -115,7 +115,14 @@ describe('VTK XML (.vtu) export read by meshio', () => {
         encoding,
         blockSize,
         sizeField: size,
-        pointData: order === 2 ? [{ name: 'PotentialPerNm', values: potential }] : [],
+        pointData:
+          order === 2
+            ? [
+                { name: 'PotentialPerNm', values: potential },
+                // a 3-component per-vertex array, extended to the mid-edge nodes by the writer
+                { name: 'PositionCopy', values: mesh.coords, components: 3 },
+              ]
+            : [],
       });
       const [r] = readBack({ [name]: bytes });
       const nPoints = order === 2 ? nV + nE : nV;
@@ -139,6 +146,7 @@ describe('VTK XML (.vtu) export read by meshio', () => {
         expect(r.pointData.SizeFieldNm.slice(0, nV)).toEqual(Array.from(size));
         expect(r.pointData.SizeFieldNm).toHaveLength(nV + nE);
         expect(r.pointData.PotentialPerNm).toEqual(Array.from(potential));
+        expect(r.pointData.PositionCopy).toEqual(Array.from(p2x));
       }
     });
   }

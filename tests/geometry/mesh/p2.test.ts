@@ -88,5 +88,7 @@ describe('P2 node numbering', () => {
     const ext = p2ExtendVertexField(vals, et, nV);
     const x = p2Coords(mesh, et);
     for (let i = 0; i < ext.length; i++) expect(ext[i]).toBeCloseTo(f(x[3 * i], x[3 * i + 1], x[3 * i + 2]), 12);
+    // a 3-component field (the coordinates themselves) extends to the P2 node coordinates
+    expect(Array.from(p2ExtendVertexField(mesh.coords, et, nV, 3))).toEqual(Array.from(x));
   });
 });
