@@ -11,13 +11,26 @@
  *   TETRAWELL_FAKE_SMTP_PORT  without SMTP_HOST: run the loopback mail sink on this port and send there
  *   TRUST_PROXY               Express "trust proxy" (e.g. 1, loopback) when behind a TLS proxy
  *   COOKIE_SECURE             true | false | auto (default auto: Secure whenever the request came over HTTPS)
+ *   TETRAWELL_RATE_LIMIT_SIGN_IN / _SIGN_UP / _RESET   attempts per window and client address
+ *                             (defaults in server/config.ts; NODE_ENV=test raises them to 1000 so browser tests
+ *                             that sign up many people from one address are not throttled)
  *   NODE_ENV=production       refuses to start without SESSION_SECRET
  */
 import { z } from 'zod';
 import { start, type RunningServer } from './index';
 import { startFakeSmtp, type FakeSmtp } from './mail/fakeSmtp';
 import { createKnex } from './db/config';
-import type { SmtpConfig } from './config';
+import { DEFAULT_RATE_LIMITS, type RateLimits, type SmtpConfig } from './config';
+
+/** Limits from the environment; NODE_ENV=test lifts the defaults (not explicit settings) to 1000. */
+function rateLimits(env: { NODE_ENV?: string; TETRAWELL_RATE_LIMIT_SIGN_IN?: number; TETRAWELL_RATE_LIMIT_SIGN_UP?: number; TETRAWELL_RATE_LIMIT_RESET?: number }): RateLimits {
+  const base = (limit: number) => (env.NODE_ENV === 'test' ? Math.max(limit, 1000) : limit);
+  return {
+    signIn: { ...DEFAULT_RATE_LIMITS.signIn, limit: env.TETRAWELL_RATE_LIMIT_SIGN_IN ?? base(DEFAULT_RATE_LIMITS.signIn.limit) },
+    signUp: { ...DEFAULT_RATE_LIMITS.signUp, limit: env.TETRAWELL_RATE_LIMIT_SIGN_UP ?? base(DEFAULT_RATE_LIMITS.signUp.limit) },
+    passwordReset: { ...DEFAULT_RATE_LIMITS.passwordReset, limit: env.TETRAWELL_RATE_LIMIT_RESET ?? base(DEFAULT_RATE_LIMITS.passwordReset.limit) },
+  };
+}
 
 const bool = z.enum(['true', 'false', '1', '0', 'yes', 'no']).transform((v) => v === 'true' || v === '1' || v === 'yes');
 const port = z.coerce.number().int().min(0).max(65535);
@@ -37,6 +50,9 @@ const envSchema = z.object({
   TETRAWELL_FAKE_SMTP_PORT: port.optional(),
   TRUST_PROXY: z.string().optional(),
   COOKIE_SECURE: z.enum(['true', 'false', 'auto']).default('auto'),
+  TETRAWELL_RATE_LIMIT_SIGN_IN: z.coerce.number().int().positive().optional(),
+  TETRAWELL_RATE_LIMIT_SIGN_UP: z.coerce.number().int().positive().optional(),
+  TETRAWELL_RATE_LIMIT_RESET: z.coerce.number().int().positive().optional(),
   NODE_ENV: z.string().optional(),
 });
 
@@ -93,6 +109,7 @@ async function main(): Promise<void> {
       mailFrom: env.MAIL_FROM,
       trustProxy: trustProxy(env.TRUST_PROXY),
       cookieSecure: env.COOKIE_SECURE === 'auto' ? 'auto' : env.COOKIE_SECURE === 'true',
+      rateLimits: rateLimits(env),
     });
   } catch (err) {
     const busy = (err as { code?: string }).code === 'EADDRINUSE';
