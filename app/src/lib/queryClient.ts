@@ -1,4 +1,4 @@
-import { QueryCache, QueryClient } from '@tanstack/react-query';
+import { MutationCache, QueryCache, QueryClient } from '@tanstack/react-query';
 import { ApiError } from './api';
 import { meQuery } from '../features/auth/me';
 
@@ -17,6 +17,12 @@ export function createQueryClient(): QueryClient {
         if (error instanceof ApiError && error.status === 401 && query.queryKey[0] !== meQuery().queryKey[0]) {
           client.setQueryData(meQuery().queryKey, null);
         }
+      },
+    }),
+    // The same for writes: a 401 answer to a write means there is no session any more.
+    mutationCache: new MutationCache({
+      onError: (error) => {
+        if (error instanceof ApiError && error.status === 401) client.setQueryData(meQuery().queryKey, null);
       },
     }),
     defaultOptions: {

@@ -15,7 +15,7 @@ export function ProjectPage() {
   const { projectId: raw } = useParams();
   const projectId = Number(raw);
   const valid = Number.isInteger(projectId) && projectId > 0;
-  const project = useProject(valid ? projectId : 0);
+  const project = useProject(valid ? projectId : 0, valid);
 
   if (!valid || (project.error instanceof ApiError && (project.error.status === 404 || project.error.status === 403))) {
     return (

@@ -17,6 +17,6 @@ export const projectQuery = (projectId: number) =>
     queryFn: ({ signal }) => fetchProject(projectId, signal),
   });
 
-export function useProject(projectId: number) {
-  return useQuery(projectQuery(projectId));
+export function useProject(projectId: number, enabled = true) {
+  return useQuery({ ...projectQuery(projectId), enabled });
 }
