@@ -85,3 +85,13 @@ export const DEFAULT_RATE_LIMITS: RateLimits = {
   signUp: { windowMs: 60 * 60_000, limit: 20 },
   passwordReset: { windowMs: 60 * 60_000, limit: 10 },
 };
+
+/** Limits from the environment; NODE_ENV=test lifts the defaults (not explicit settings) to 1000. */
+export function rateLimitsFromEnv(env: { NODE_ENV?: string; TETRAWELL_RATE_LIMIT_SIGN_IN?: number; TETRAWELL_RATE_LIMIT_SIGN_UP?: number; TETRAWELL_RATE_LIMIT_RESET?: number }): RateLimits {
+  const base = (limit: number) => (env.NODE_ENV === 'test' ? Math.max(limit, 1000) : limit);
+  return {
+    signIn: { ...DEFAULT_RATE_LIMITS.signIn, limit: env.TETRAWELL_RATE_LIMIT_SIGN_IN ?? base(DEFAULT_RATE_LIMITS.signIn.limit) },
+    signUp: { ...DEFAULT_RATE_LIMITS.signUp, limit: env.TETRAWELL_RATE_LIMIT_SIGN_UP ?? base(DEFAULT_RATE_LIMITS.signUp.limit) },
+    passwordReset: { ...DEFAULT_RATE_LIMITS.passwordReset, limit: env.TETRAWELL_RATE_LIMIT_RESET ?? base(DEFAULT_RATE_LIMITS.passwordReset.limit) },
+  };
+}

@@ -20,17 +20,8 @@ import { z } from 'zod';
 import { start, type RunningServer } from './index';
 import { startFakeSmtp, type FakeSmtp } from './mail/fakeSmtp';
 import { createKnex } from './db/config';
-import { DEFAULT_RATE_LIMITS, type RateLimits, type SmtpConfig } from './config';
+import { rateLimitsFromEnv, type SmtpConfig } from './config';
 
-/** Limits from the environment; NODE_ENV=test lifts the defaults (not explicit settings) to 1000. */
-function rateLimits(env: { NODE_ENV?: string; TETRAWELL_RATE_LIMIT_SIGN_IN?: number; TETRAWELL_RATE_LIMIT_SIGN_UP?: number; TETRAWELL_RATE_LIMIT_RESET?: number }): RateLimits {
-  const base = (limit: number) => (env.NODE_ENV === 'test' ? Math.max(limit, 1000) : limit);
-  return {
-    signIn: { ...DEFAULT_RATE_LIMITS.signIn, limit: env.TETRAWELL_RATE_LIMIT_SIGN_IN ?? base(DEFAULT_RATE_LIMITS.signIn.limit) },
-    signUp: { ...DEFAULT_RATE_LIMITS.signUp, limit: env.TETRAWELL_RATE_LIMIT_SIGN_UP ?? base(DEFAULT_RATE_LIMITS.signUp.limit) },
-    passwordReset: { ...DEFAULT_RATE_LIMITS.passwordReset, limit: env.TETRAWELL_RATE_LIMIT_RESET ?? base(DEFAULT_RATE_LIMITS.passwordReset.limit) },
-  };
-}
 
 const bool = z.enum(['true', 'false', '1', '0', 'yes', 'no']).transform((v) => v === 'true' || v === '1' || v === 'yes');
 const port = z.coerce.number().int().min(0).max(65535);
@@ -109,7 +100,7 @@ async function main(): Promise<void> {
       mailFrom: env.MAIL_FROM,
       trustProxy: trustProxy(env.TRUST_PROXY),
       cookieSecure: env.COOKIE_SECURE === 'auto' ? 'auto' : env.COOKIE_SECURE === 'true',
-      rateLimits: rateLimits(env),
+      rateLimits: rateLimitsFromEnv(env),
     });
   } catch (err) {
     const busy = (err as { code?: string }).code === 'EADDRINUSE';
