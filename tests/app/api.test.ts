@@ -141,3 +141,31 @@ describe('bareOrWrapped', () => {
     expect(schema.safeParse({ project: { id: 4 } }).success).toBe(false);
   });
 });
+
+describe('CSRF token and session changes', () => {
+  it('does not keep a token fetched for the old session when forgotten mid-request', async () => {
+    let release: (() => void) | null = null;
+    let tokens = 0;
+    const seen: string[] = [];
+    vi.stubGlobal(
+      'fetch',
+      vi.fn(async (url: string, init: RequestInit = {}) => {
+        if (url === '/api/auth/csrf') {
+          const n = ++tokens;
+          if (n === 1) await new Promise<void>((r) => (release = r)); // the old session's token arrives late
+          return json(200, { csrfToken: `token-${n}` });
+        }
+        seen.push((init.headers as Record<string, string>)['x-csrf-token']);
+        return json(200, {});
+      }),
+    );
+    const early = api('/early', { method: 'POST' });
+    await vi.waitFor(() => expect(release).not.toBeNull());
+    forgetCsrfToken(); // e.g. sign-in finished in the meantime
+    release!();
+    await early;
+    await api('/later', { method: 'POST' });
+    // The later write must use a token fetched after the session changed.
+    expect(seen).toEqual(['token-1', 'token-2']);
+  });
+});

@@ -45,24 +45,31 @@ const CSRF_PATH = '/api/auth/csrf';
 
 let csrfToken: string | null = null;
 let csrfInFlight: Promise<string> | null = null;
+// Bumped on every forget, so a token request that was already under way when the session
+// changed cannot store its (old-session) token afterwards.
+let csrfGeneration = 0;
 
 /** Drop the cached CSRF token; the next write fetches a fresh one. Call after the session changes. */
 export function forgetCsrfToken(): void {
   csrfToken = null;
   csrfInFlight = null;
+  csrfGeneration++;
 }
 
 async function currentCsrfToken(): Promise<string> {
   if (csrfToken) return csrfToken;
   // Several writes fired together share one token request.
+  const generation = csrfGeneration;
   csrfInFlight ??= send(CSRF_PATH, { method: 'GET' }, csrfResponseSchema).then(
     (r) => {
-      csrfToken = r.csrfToken;
-      csrfInFlight = null;
+      if (generation === csrfGeneration) {
+        csrfToken = r.csrfToken;
+        csrfInFlight = null;
+      }
       return r.csrfToken;
     },
     (err: unknown) => {
-      csrfInFlight = null;
+      if (generation === csrfGeneration) csrfInFlight = null;
       throw err;
     },
   );

@@ -24,7 +24,7 @@ interface IssueLike {
   message: string;
 }
 
-const FIELDS_SUMMARY = 'Some fields need attention; see the notes beside them.';
+export const FIELDS_SUMMARY = 'Some fields need attention; see the notes beside them.';
 
 export function issuesToFormErrors(
   issues: readonly IssueLike[],

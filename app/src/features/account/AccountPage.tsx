@@ -6,7 +6,7 @@ import { PageHeader } from '../../components/PageHeader';
 import { Panel } from '../../components/Panel';
 import { Loading } from '../../components/QueryState';
 import { ApiError } from '../../lib/api';
-import { formErrorsFromError, validateWith } from '../../lib/formErrors';
+import { FIELDS_SUMMARY, formErrorsFromError, validateWith } from '../../lib/formErrors';
 import { useMe } from '../auth/me';
 import { useChangePassword } from './changePassword';
 import { useUpdateAccount } from './updateAccount';
@@ -70,7 +70,7 @@ function PasswordForm() {
     setDone(false);
     const values = formValues(form);
     if (values.newPassword !== values.repeatPassword) {
-      return setErrors({ fields: { repeatPassword: 'The two new passwords differ.' }, form: 'Some fields need attention; see the notes beside them.' });
+      return setErrors({ fields: { repeatPassword: 'The two new passwords differ.' }, form: FIELDS_SUMMARY });
     }
     const checked = validateWith(passwordChangeBodySchema, values, PASSWORD_FIELDS);
     if (!checked.ok) return setErrors(checked.errors);

@@ -4,7 +4,7 @@ import { resetConfirmBodySchema } from '@contracts/api';
 import { GateShell } from '../../components/AppShell';
 import { FormAlert, SubmitButton, TextField, formValues, useFormErrors } from '../../components/Form';
 import { ApiError } from '../../lib/api';
-import { formErrorsFromError, validateWith } from '../../lib/formErrors';
+import { FIELDS_SUMMARY, formErrorsFromError, validateWith } from '../../lib/formErrors';
 import { useConfirmPasswordReset } from './resetConfirm';
 
 const FIELDS = ['password', 'confirm'] as const;
@@ -25,7 +25,7 @@ export function ResetConfirmPage() {
     e.preventDefault();
     const values = formValues(e.currentTarget);
     if (values.password !== values.confirm) {
-      return setErrors({ fields: { confirm: 'The two passwords differ.' }, form: 'Some fields need attention; see the notes beside them.' });
+      return setErrors({ fields: { confirm: 'The two passwords differ.' }, form: FIELDS_SUMMARY });
     }
     if (!resetConfirmBodySchema.shape.token.safeParse(token).success) return setErrors({ fields: {}, form: LINK_PROBLEM });
     const checked = validateWith(resetConfirmBodySchema, { token, password: values.password }, FIELDS);
