@@ -38,6 +38,7 @@ function DesignBody({ design }: { design: DesignDocument }) {
   const minSep = smallestSeparation(nn);
   const counts = countBySpecies(design.sites);
   const usesAnisotropic = design.sites.some((s) => resolveOrbital(s).model === 'anisotropic-1s');
+  const usesPreset = design.sites.some((s) => !s.orbital);
   const { center, halfExtentsNm, boundary } = design.enclosure;
 
   return (
@@ -81,7 +82,7 @@ function DesignBody({ design }: { design: DesignDocument }) {
                 <tr key={`${s.id}-${i}`}>
                   <th scope="row" className="px-3 py-1.5 font-semibold text-wafer-900">{s.id}</th>
                   <td className="px-3 py-1.5">
-                    {s.species} <span className="text-wafer-400">({SPECIES_PRESETS[s.species].kind})</span>
+                    {s.species} <span className="text-wafer-500">({SPECIES_PRESETS[s.species].kind})</span>
                   </td>
                   <td className="px-3 py-1.5 text-right">{formatNm(s.position[0])}</td>
                   <td className="px-3 py-1.5 text-right">{formatNm(s.position[1])}</td>
@@ -111,9 +112,12 @@ function DesignBody({ design }: { design: DesignDocument }) {
       )}
       <EstimateNote
         assumptions={
-          'Orbitals marked “species preset” use the default envelope: ' +
-          `${SPECIES_PRESETS.P.orbitalSource}.` +
-          (usesAnisotropic ? ' The anisotropic envelope is a single-valley model; a real donor state sums six valleys and is nearly isotropic.' : '')
+          [
+            usesPreset ? `Orbitals marked “species preset” use the default envelope: ${SPECIES_PRESETS.P.orbitalSource}.` : '',
+            usesAnisotropic ? 'The anisotropic envelope is a single-valley model; a real donor state sums six valleys and is nearly isotropic.' : '',
+          ]
+            .filter(Boolean)
+            .join(' ') || undefined
         }
       />
     </div>

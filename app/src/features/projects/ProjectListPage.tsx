@@ -66,7 +66,7 @@ export function ProjectListPage() {
                         {p.name}
                       </Link>
                       {p.description && <p className="mt-0.5 line-clamp-2 text-note text-wafer-600">{p.description}</p>}
-                      <p className="mt-1 text-fine text-wafer-400">
+                      <p className="mt-1 text-fine text-wafer-500">
                         Updated <time dateTime={p.updatedAt}>{formatDateTime(p.updatedAt)}</time>
                       </p>
                     </div>

@@ -41,11 +41,11 @@ export function ProjectPage() {
         <span aria-current="page" className="text-wafer-600">{p.name}</span>
       </nav>
       <PageHeader title={p.name} lead={p.description || undefined}>
-        <div className="text-right text-note text-wafer-600">
+        <div className="text-note text-wafer-600 md:text-right">
           <p>
             Your role: <span className="font-semibold text-wafer-900">{ROLE_LABELS[p.role].label}</span> ({ROLE_LABELS[p.role].summary})
           </p>
-          <p className="text-fine text-wafer-400">
+          <p className="text-fine text-wafer-500">
             Created <time dateTime={p.createdAt}>{formatDateTime(p.createdAt)}</time> · updated <time dateTime={p.updatedAt}>{formatDateTime(p.updatedAt)}</time>
           </p>
         </div>
