@@ -8,7 +8,7 @@
  * integrals of that element (assembleSystem does stiffness and load in one pass).
  */
 import type { FeSpace } from './space';
-import { type Csr, sparsityPattern, findEntry, withValues } from './csr';
+import { type Csr, sparsityPattern, withValues } from './csr';
 import {
   GEOM_SIZE, P2_STIFFNESS_TENSOR, SYM4_INDEX, type TetRule, mapBary, p2BasisBary, p2GradientsBary, tetGeometry,
   tetQuadrature,
@@ -35,6 +35,8 @@ function epsOf(epsByRegion: ArrayLike<number>, region: number): number {
   return e;
 }
 
+const gramScratch = new Float64Array(10);
+
 /**
  * Local stiffness of one element into K (nLoc × nLoc, row-major), scaled by eps.
  * g: geometry record from tetGeometry.
@@ -51,7 +53,7 @@ export function localStiffness(order: 1 | 2, g: Float64Array, eps: number, K: Fl
     }
     return;
   }
-  const G = new Float64Array(10);
+  const G = gramScratch;
   for (let p = 0; p < 4; p++) {
     for (let q = p; q < 4; q++) {
       G[SYM4_INDEX[p][q]] = g[3 * p] * g[3 * q] + g[3 * p + 1] * g[3 * q + 1] + g[3 * p + 2] * g[3 * q + 2];
@@ -95,17 +97,42 @@ export function basisAtRule(rule: TetRule, order: 1 | 2): Float64Array {
   return entry[order];
 }
 
+/**
+ * Add the local matrix K of one element into A. The element's dofs are sorted once (insertion
+ * sort of ≤ 10 entries); each local row then finds all its columns in one forward walk over the
+ * sorted CSR row, instead of a search per entry.
+ */
+const order10 = new Int32Array(10);
 function scatter(A: Csr, dofs: Uint32Array, base: number, nLoc: number, K: Float64Array): void {
+  const ord = order10;
+  for (let a = 0; a < nLoc; a++) {
+    const d = dofs[base + a];
+    let j = a - 1;
+    while (j >= 0 && dofs[base + ord[j]] > d) {
+      ord[j + 1] = ord[j];
+      j--;
+    }
+    ord[j + 1] = a;
+  }
+  const { rowPtr, cols, vals } = A;
   for (let i = 0; i < nLoc; i++) {
-    const gi = dofs[base + i];
-    for (let j = 0; j < nLoc; j++) A.vals[findEntry(A, gi, dofs[base + j])] += K[nLoc * i + j];
+    let p = rowPtr[dofs[base + i]];
+    const end = rowPtr[dofs[base + i] + 1];
+    const rowK = nLoc * i;
+    for (let q = 0; q < nLoc; q++) {
+      const a = ord[q];
+      const d = dofs[base + a];
+      while (p < end && cols[p] < d) p++;
+      if (p === end || cols[p] !== d) throw new Error(`sparsity pattern has no entry (${dofs[base + i]}, ${d})`);
+      vals[p] += K[rowK + a];
+    }
   }
 }
 
 export interface SystemOptions {
   /** right-hand-side density f: the load is ∫ f φ_i; omitted → zero load */
   load?: PointFunction;
-  /** exact degree of the load quadrature (default 2·order + 2) */
+  /** exact degree of the load quadrature (default 2·order + 1) */
   degree?: number;
 }
 
@@ -122,7 +149,7 @@ export function assembleSystem(
   const b = new Float64Array(space.nDofs);
   const g = new Float64Array(GEOM_SIZE);
   const K = new Float64Array(nLoc * nLoc);
-  const rule = tetQuadrature(options.degree ?? 2 * order + 2);
+  const rule = tetQuadrature(options.degree ?? 2 * order + 1);
   const phi = basisAtRule(rule, order);
   const x = new Float64Array(3);
   const tets = mesh.tets;
@@ -149,11 +176,11 @@ export function assembleStiffness(space: FeSpace, epsByRegion: ArrayLike<number>
   return assembleSystem(space, epsByRegion).A;
 }
 
-/** Load vector ∫ f φ_i with a rule of the given exact degree (default 2·order + 2). */
+/** Load vector ∫ f φ_i with a rule of the given exact degree (default 2·order + 1). */
 export function assembleLoad(space: FeSpace, f: PointFunction, degree?: number): Float64Array {
   const { mesh, order, nTets, tetDofs } = space;
   const nLoc = space.dofsPerTet;
-  const rule = tetQuadrature(degree ?? 2 * order + 2);
+  const rule = tetQuadrature(degree ?? 2 * order + 1);
   const phi = basisAtRule(rule, order);
   const b = new Float64Array(space.nDofs);
   const g = new Float64Array(GEOM_SIZE);

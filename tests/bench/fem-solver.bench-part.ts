@@ -1,0 +1,137 @@
+/**
+ * Solver section of the FEM benchmark (called from fem.bench.ts):
+ *   1. sparse matrix-vector product bandwidth against a plain memory copy in the same process;
+ *   2. PCG iteration counts to a relative residual of 1e-10, Jacobi against multigrid, on graded
+ *      meshes from about 1e4 to 1e6 unknowns (P1 and P2).
+ * Figures are printed, never asserted. Set TETRAWELL_BENCH_MAX_DOFS to cap the largest problems
+ * (default 1.3e6) and TETRAWELL_BENCH_JACOBI_MAX_DOFS to skip slow Jacobi runs (default: no cap).
+ */
+import { kuhnBox, refineToSize, refineUniform, toTetMesh } from '../../geometry/mesh';
+import type { TetMesh } from '../../geometry/mesh/types';
+import { buildSpace } from '../../geometry/fem/space';
+import { applyDirichlet, assembleSystem } from '../../geometry/fem/assemble';
+import { spmv, type Csr } from '../../geometry/fem/csr';
+import { pcg, jacobi } from '../../geometry/fem/pcg';
+import { multigridPreconditioner } from '../../geometry/fem/multigrid';
+
+type V3 = [number, number, number];
+const SITE: V3 = [0.93, 1.07, 1.01];
+const EPS = 11.7; // silicon εr, common practice (geometry/units.ts)
+
+function gradedMesh(h0: number): TetMesh {
+  const m = kuhnBox({ center: [1, 1, 1], halfExtents: [1, 1, 1], cells: [2, 2, 2] });
+  const grade = 10 * h0; // element size h0 + grade·r around the site
+  refineToSize(m, (coords, tets, t) => {
+    let longest = 0;
+    let dmin = Infinity;
+    for (let i = 0; i < 4; i++) {
+      const a = 3 * tets[4 * t + i];
+      dmin = Math.min(dmin, Math.hypot(coords[a] - SITE[0], coords[a + 1] - SITE[1], coords[a + 2] - SITE[2]));
+      for (let j = i + 1; j < 4; j++) {
+        const b = 3 * tets[4 * t + j];
+        longest = Math.max(longest, Math.hypot(coords[a] - coords[b], coords[a + 1] - coords[b + 1], coords[a + 2] - coords[b + 2]));
+      }
+    }
+    return longest > h0 + grade * dmin;
+  });
+  return toTetMesh(m);
+}
+
+const density = (x: number, y: number, z: number): number =>
+  Math.exp(-((x - SITE[0]) ** 2 + (y - SITE[1]) ** 2 + (z - SITE[2]) ** 2) / 0.01);
+
+function bestOf(reps: number, f: () => void): number {
+  f(); // warm-up: let the JIT optimise
+  let best = Infinity;
+  for (let r = 0; r < reps; r++) {
+    const t = performance.now();
+    f();
+    best = Math.min(best, performance.now() - t);
+  }
+  return best / 1000;
+}
+
+function spmvBandwidth(): void {
+  console.log('\n-- spmv bandwidth vs memcpy');
+  const m = kuhnBox({ center: [1, 1, 1], halfExtents: [1, 1, 1], cells: [2, 2, 2] });
+  refineUniform(m, 12);
+  const mesh = toTetMesh(m);
+  for (const order of [1, 2] as const) {
+    const space = buildSpace(mesh, order);
+    const A: Csr = assembleSystem(space, [EPS]).A;
+    const n = A.n;
+    const nnz = A.cols.length;
+    const x = new Float64Array(n).fill(1);
+    const y = new Float64Array(n);
+    // bytes an spmv must move at least: vals (8) + cols (4) per nonzero, rowPtr (4), x read once, y written once
+    const bytes = 12 * nnz + 4 * (n + 1) + 8 * n + 8 * n;
+    const tSpmv = bestOf(10, () => spmv(A, x, y));
+    // memcpy of the same amount of matrix data (vals + cols), counted as read + write like STREAM Copy
+    const src = new Uint8Array(12 * nnz);
+    const dst = new Uint8Array(12 * nnz);
+    src.fill(7);
+    const tCopy = bestOf(10, () => dst.set(src));
+    const bwSpmv = bytes / tSpmv / 1e9;
+    const bwCopy = (2 * src.length) / tCopy / 1e9;
+    console.log(
+      `P${order}: n=${n} nnz=${nnz} (${(nnz / n).toFixed(1)}/row)  spmv ${(tSpmv * 1e3).toFixed(2)} ms = ${bwSpmv.toFixed(2)} GB/s` +
+        `  memcpy ${(tCopy * 1e3).toFixed(2)} ms = ${bwCopy.toFixed(2)} GB/s (read+write)` +
+        `  ratio ${((100 * bwSpmv) / bwCopy).toFixed(0)}% (target ≥ 50%)`,
+    );
+  }
+  console.log('   spmv bytes = 12·nnz + 4·(n+1) + 16·n (x read once, y written once): a lower bound on traffic');
+}
+
+function iterationTable(): void {
+  console.log('\n-- iteration counts Jacobi vs multigrid from 1e4 to 1e6 unknowns (PCG, relative residual 1e-10)');
+  const maxDofs = Number(process.env.TETRAWELL_BENCH_MAX_DOFS ?? 1.3e6);
+  const jacobiMax = Number(process.env.TETRAWELL_BENCH_JACOBI_MAX_DOFS ?? Infinity);
+  // graded meshes around one site; h0 chosen for about 1e4, 1e5, 1e6 unknowns per order
+  const plan: { order: 1 | 2; h0: number }[] = [
+    { order: 1, h0: 0.03 }, { order: 1, h0: 0.011 }, { order: 1, h0: 0.005 },
+    { order: 2, h0: 0.05 }, { order: 2, h0: 0.022 }, { order: 2, h0: 0.0095 },
+  ];
+  console.log('order  unknowns   tets      levels  jacobi(it, s)      multigrid(it, setup s, solve s)  N^(1/3)');
+  const meshes = new Map<number, TetMesh>();
+  for (const { order, h0 } of plan) {
+    let mesh = meshes.get(h0);
+    if (!mesh) {
+      mesh = gradedMesh(h0);
+      meshes.clear(); // keep one mesh alive at a time
+      meshes.set(h0, mesh);
+    }
+    const nT = mesh.tets.length / 4;
+    const nV = mesh.coords.length / 3;
+    const estimate = order === 1 ? nV : 7.4 * nV;
+    if (estimate > maxDofs) {
+      console.log(`P${order}     ~${estimate.toExponential(1)} skipped (TETRAWELL_BENCH_MAX_DOFS=${maxDofs})`);
+      continue;
+    }
+    const space = buildSpace(mesh, order);
+    const { A, b } = assembleSystem(space, [EPS], { load: density });
+    const sys = applyDirichlet(A, b, space.boundaryDof);
+    let t = performance.now();
+    const mg = multigridPreconditioner(space, sys.A, { epsByRegion: [EPS] });
+    const setup = (performance.now() - t) / 1000;
+    t = performance.now();
+    const rm = pcg(sys.A, sys.b, null, { preconditioner: mg, tol: 1e-10 });
+    const solve = (performance.now() - t) / 1000;
+    let jac = 'skipped';
+    if (space.nDofs <= jacobiMax) {
+      t = performance.now();
+      const rj = pcg(sys.A, sys.b, null, { preconditioner: jacobi(sys.A), tol: 1e-10, maxIter: 20000 });
+      jac = `${rj.iterations}${rj.converged ? '' : '(!)'}, ${((performance.now() - t) / 1000).toFixed(1)}`;
+    }
+    console.log(
+      `P${order}     ${String(space.nDofs).padEnd(10)} ${String(nT).padEnd(9)} ${String(mg.stats.levels).padEnd(7)} ` +
+        `${jac.padEnd(18)} ${String(rm.iterations).padEnd(3)} ${setup.toFixed(2).padStart(6)} ${solve.toFixed(2).padStart(8)}` +
+        `               ${Math.cbrt(space.nDofs).toFixed(0)}`,
+    );
+  }
+  console.log('   target: multigrid under 30 iterations across the range; Jacobi grows like N^(1/3)');
+}
+
+export async function runSolverBench(): Promise<void> {
+  spmvBandwidth();
+  iterationTable();
+}
