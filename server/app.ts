@@ -162,12 +162,18 @@ export function createApp(deps: AppDeps): Express {
   api.use(apiNotFound);
   app.use('/api', api);
 
-  if (deps.staticDir && existsSync(path.join(deps.staticDir, 'index.html'))) {
-    const indexHtml = path.join(deps.staticDir, 'index.html');
-    app.use(express.static(deps.staticDir, { index: false, maxAge: '1h' }));
-    // client-side routes (/projects/3, /invite/<token>, …) all load the single page
+  if (deps.staticDir) {
+    const staticDir = deps.staticDir;
+    const indexHtml = path.join(staticDir, 'index.html');
+    app.use(express.static(staticDir, { index: false, maxAge: '1h' }));
+    // client-side routes (/projects/3, /invite/<token>, …) all load the single page; looked up per request
+    // so a client built (or rebuilt) while the server runs is picked up without a restart
     app.use((req, res, next) => {
       if (req.method !== 'GET' && req.method !== 'HEAD') return next();
+      if (!existsSync(indexHtml)) {
+        res.status(503).type('text/plain').send('The Tetrawell client is not built yet: run `npm run build` (npm start does this for you).');
+        return;
+      }
       res.setHeader('Cache-Control', 'no-cache');
       res.sendFile(indexHtml);
     });

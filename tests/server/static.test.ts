@@ -56,6 +56,25 @@ describe('client files', () => {
   });
 });
 
+describe('no client built', () => {
+  it('says so in plain words for page requests, while the API works', async () => {
+    const empty = mkdtempSync(path.join(tmpdir(), 'tw-empty-'));
+    const bare = await startTestEnv({ staticDir: empty });
+    try {
+      const page = await supertest(bare.url).get('/projects');
+      expect(page.status).toBe(503);
+      expect(page.text).toContain('npm run build');
+      expect((await supertest(bare.url).get('/api/health')).status).toBe(200);
+      // built while running: picked up without a restart
+      writeFileSync(path.join(empty, 'index.html'), INDEX);
+      expect((await supertest(bare.url).get('/projects')).text).toBe(INDEX);
+    } finally {
+      await bare.stop();
+      rmSync(empty, { recursive: true, force: true });
+    }
+  });
+});
+
 describe('unexpected failures', () => {
   it('answer 500 internal, in the error shape, without a stack trace', async () => {
     // a public read that has to ask the database
