@@ -4,8 +4,8 @@
  * 1. Nodes: sites sharing a `group` label (a donor cluster) form one node at their centroid;
  *    every other site is its own node.
  * 2. Candidate edges: the Delaunay triangulation (delaunator) of the node projections onto the
- *    (001) plane. Nodes whose projections coincide exactly (stacked along z) are joined to the
- *    first of them (by index) and left out of the triangulation, which cannot hold duplicates.
+ *    (001) plane. Nodes whose projections coincide exactly (stacked along z) are skipped by
+ *    delaunator; each is joined to the first node (by index) with the same projection.
  *    Collinear nodes (a chain) give delaunator no triangles; it then returns the points sorted
  *    along the line as its hull, and consecutive hull points are the edges.
  * 3. Lengths: 3D distances between node centroids (projections fix the topology only).
@@ -68,48 +68,57 @@ export function bondGraph(positions: Float64Array, options: BondGraphOptions = {
     for (const i of members[p]) for (let k = 0; k < 3; k++) centroids[3 * p + k] += positions[3 * i + k];
     for (let k = 0; k < 3; k++) centroids[3 * p + k] /= members[p].length;
   }
-  // --- candidate edges (as p*m+q keys, p < q)
-  const cand = new Set<number>();
+  // --- candidate edges as keys p*m + q (p < q), collected into a typed array sized by the
+  // proven bound: a planar triangulation of m points has at most 3m − 6 edges, plus at most
+  // m − 1 edges joining stacked duplicates
+  const keysBuf = new Float64Array(Math.max(4 * m, 4));
+  let nk = 0;
   const add = (p: number, q: number) => {
-    if (p === q) return;
-    cand.add(p < q ? p * m + q : q * m + p);
+    if (p !== q) keysBuf[nk++] = p < q ? p * m + q : q * m + p;
   };
-  const rep = new Map<string, number>();
-  const reps: number[] = [];
+  const xy = new Float64Array(2 * m);
   for (let p = 0; p < m; p++) {
-    const key = `${centroids[3 * p]},${centroids[3 * p + 1]}`;
-    const r = rep.get(key);
-    if (r === undefined) {
-      rep.set(key, p);
-      reps.push(p);
-    } else add(r, p);
+    xy[2 * p] = centroids[3 * p];
+    xy[2 * p + 1] = centroids[3 * p + 1];
   }
-  if (reps.length === 2) add(reps[0], reps[1]);
-  if (reps.length >= 3) {
-    const xy = new Float64Array(2 * reps.length);
-    reps.forEach((p, t) => {
-      xy[2 * t] = centroids[3 * p];
-      xy[2 * t + 1] = centroids[3 * p + 1];
-    });
+  if (m === 2) add(0, 1);
+  if (m >= 3) {
     const line = collinearOrder(xy);
-    const d = line ? null : new Delaunator(xy);
     if (line) {
-      for (let t = 0; t + 1 < line.length; t++) add(reps[line[t]], reps[line[t + 1]]);
-    } else if (d!.triangles.length === 0) {
-      for (let t = 0; t + 1 < d!.hull.length; t++) add(reps[d!.hull[t]], reps[d!.hull[t + 1]]);
+      for (let t = 0; t + 1 < line.length; t++) add(line[t], line[t + 1]);
     } else {
-      const d2 = d!;
-      const tri = d2.triangles;
+      const d = new Delaunator(xy);
+      const tri = d.triangles;
+      const half = d.halfedges;
+      const seen = new Uint8Array(m);
       for (let e = 0; e < tri.length; e++) {
-        const next = e % 3 === 2 ? e - 2 : e + 1;
-        add(reps[tri[e]], reps[tri[next]]);
+        seen[tri[e]] = 1;
+        // each interior edge appears twice (e and its twin); take it once
+        if (half[e] === -1 || e < half[e]) add(tri[e], tri[e % 3 === 2 ? e - 2 : e + 1]);
+      }
+      // exact duplicates in the plane (stacked along z) are left out by delaunator: join each to
+      // the first node with the same projection
+      let missing = false;
+      for (let p = 0; p < m && !missing; p++) if (!seen[p]) missing = true;
+      if (missing) {
+        const first = new Map<string, number>();
+        for (let p = 0; p < m; p++) {
+          const key = `${xy[2 * p]},${xy[2 * p + 1]}`;
+          const r = first.get(key);
+          if (r === undefined) first.set(key, p);
+          else if (!seen[p] || !seen[r]) add(r, p);
+        }
       }
     }
   }
+  const keys = keysBuf.subarray(0, nk).sort();
   // --- lengths and the distance rule
-  const keys = [...cand].sort((u, v) => u - v);
-  const len = (p: number, q: number) =>
-    Math.hypot(centroids[3 * p] - centroids[3 * q], centroids[3 * p + 1] - centroids[3 * q + 1], centroids[3 * p + 2] - centroids[3 * q + 2]);
+  const len = (p: number, q: number) => {
+    const dx = centroids[3 * p] - centroids[3 * q];
+    const dy = centroids[3 * p + 1] - centroids[3 * q + 1];
+    const dz = centroids[3 * p + 2] - centroids[3 * q + 2];
+    return Math.sqrt(dx * dx + dy * dy + dz * dz);
+  };
   const nn = new Float64Array(m).fill(Infinity);
   const L = new Float64Array(keys.length);
   keys.forEach((key, t) => {

@@ -22,9 +22,11 @@ function erfSeries(x: number): number {
 }
 
 function erfcFraction(x: number): number {
-  // K = 1/(x + (1/2)/(x + (2/2)/(x + (3/2)/(x + ...)))) — depth 80 is ample for x ≥ 2
+  // K = 1/(x + (1/2)/(x + (2/2)/(x + (3/2)/(x + ...)))); the fraction converges faster for
+  // larger x: depth 12 + 200/x² (62 at x = 2, 20 at x = 5) keeps ~1e-16 (checked in the tests)
+  if (x > 27) return 0; // e^{−729} underflows
   let f = x;
-  for (let k = 80; k >= 1; k--) f = x + k / 2 / f;
+  for (let k = Math.ceil(12 + 200 / (x * x)); k >= 1; k--) f = x + k / 2 / f;
   return (ONE_OVER_SQRT_PI * Math.exp(-x * x)) / f;
 }
 

@@ -1,0 +1,50 @@
+/**
+ * Far-field check speed: target ≤ 5 ms for 1,000 sites (it runs on every pointer move).
+ * Prints median and 90th-percentile times; asserts nothing.
+ */
+import { generateArray } from '../../geometry/arrays';
+import { farFieldCheck } from '../../geometry/farfield';
+import type { Design, Orbital } from '../../geometry/design/types';
+import { SI_LATTICE_CONSTANT_NM } from '../../geometry/units';
+
+function designOf(nx: number, ny: number, boundary: Design['enclosure']['boundary'], orbital?: Orbital): Design {
+  const sites = generateArray({ kind: 'triangular', nx, ny, spacingNm: 4.5, latticeConstantNm: SI_LATTICE_CONSTANT_NM, orbital });
+  return {
+    format: 'tetrawell-design',
+    version: 1,
+    name: 'bench',
+    host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: SI_LATTICE_CONSTANT_NM },
+    sites,
+    enclosure: { center: [0, 0, 0], halfExtentsNm: [4.5 * nx, 4.5 * ny, 40], boundary },
+    refinement: { order: 2, targetRelError: 1e-3, maxElements: 2_000_000 },
+  };
+}
+
+function time(label: string, d: Design, reps: number, options = {}): void {
+  const t0 = performance.now();
+  farFieldCheck(d, options); // first call: includes any per-orbital table
+  const first = performance.now() - t0;
+  const ts: number[] = [];
+  for (let i = 0; i < reps; i++) {
+    // move the box a little each time, as a drag would
+    d.enclosure.halfExtentsNm[0] += 0.01;
+    const t = performance.now();
+    farFieldCheck(d, options);
+    ts.push(performance.now() - t);
+  }
+  ts.sort((a, b) => a - b);
+  const med = ts[Math.floor(ts.length / 2)];
+  const p90 = ts[Math.floor(ts.length * 0.9)];
+  console.log(`${label.padEnd(52)} sites ${String(d.sites.length).padStart(6)}  first ${first.toFixed(2).padStart(7)} ms  median ${med.toFixed(2).padStart(6)} ms  p90 ${p90.toFixed(2).padStart(6)} ms`);
+}
+
+export async function run(): Promise<void> {
+  console.log('far-field check (target: ≤ 5 ms for 1,000 sites)');
+  time('hydrogenic, multipole order 2', designOf(40, 25, { kind: 'multipole', order: 2 }), 200);
+  time('hydrogenic, grounded', designOf(40, 25, { kind: 'grounded' }), 200);
+  time('gaussian, multipole order 4', designOf(40, 25, { kind: 'multipole', order: 4 }, { model: 'gaussian', sigmaNm: 1.5 }), 200);
+  time('anisotropic 2.5/1.4 nm, multipole order 2', designOf(40, 25, { kind: 'multipole', order: 2 }, { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 }), 200);
+  time('hydrogenic, multipole 2, with array moments (order 4)', designOf(40, 25, { kind: 'multipole', order: 2 }), 100, { moments: true });
+  time('hydrogenic, multipole order 2', designOf(100, 100, { kind: 'multipole', order: 2 }), 20);
+  time('hydrogenic, 64 sites (all pairs)', designOf(8, 8, { kind: 'multipole', order: 2 }), 200);
+}
