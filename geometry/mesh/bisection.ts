@@ -261,77 +261,111 @@ function growVertices(m: BisectionMesh, need: number): void {
 
 /* ------------------------------------------------------------------------------------------ */
 /* Edge → midpoint hash: open addressing, linear probing, keys (lo, hi) with lo < hi.           */
+/*                                                                                              */
+/*   slots: | lo | hi | mid | - | lo | hi | mid | - | ...   4 × Uint32 = 16 bytes per slot,     */
+/*   so one probe touches one cache line (separate key/value arrays cost three misses).         */
 
 const EMPTY = 0xffffffff;
 
 class MidpointHash {
-  keyLo: Uint32Array;
-  keyHi: Uint32Array;
-  value: Uint32Array;
+  slots: Uint32Array;
   mask: number;
   count = 0;
+  /**
+   * One bit per 4 slots, set from other hash bits than the slot index: most lookups (the hanging
+   * test) are misses, and this 1/64-size filter answers most of them from cache without touching
+   * the table (a one-hash Bloom filter; Bloom, CACM 13, 1970).
+   */
+  filter: Int32Array;
+  filterMask: number;
 
   constructor(expected: number) {
     // load factor ≤ 1/2 keeps linear probing short (expected probes ≈ 1.5 hit / 2.5 miss; Knuth TAOCP 3, 6.4)
     let cap = 1024;
     while (cap < 2 * expected) cap *= 2;
-    this.keyLo = new Uint32Array(cap).fill(EMPTY);
-    this.keyHi = new Uint32Array(cap);
-    this.value = new Uint32Array(cap);
+    this.slots = new Uint32Array(4 * cap).fill(EMPTY);
     this.mask = cap - 1;
+    // 16 filter bits per expected entry at full load: false-positive rate ≈ 1 − e^{−1/16} ≈ 6 %
+    this.filter = new Int32Array(cap >> 2);
+    this.filterMask = 8 * cap - 1;
   }
 
-  static slot(lo: number, hi: number, mask: number): number {
+  get byteLength(): number {
+    return this.slots.byteLength + this.filter.byteLength;
+  }
+
+  static mix(lo: number, hi: number): number {
     let h = Math.imul(lo, 0x9e3779b1) ^ Math.imul(hi, 0x85ebca77);
     h ^= h >>> 16;
     h = Math.imul(h, 0x7feb352d);
     h ^= h >>> 15;
-    return h & mask;
+    return h;
+  }
+
+  static slot(lo: number, hi: number, mask: number): number {
+    return MidpointHash.mix(lo, hi) & mask;
+  }
+
+  /** filter bit index: the mixed hash rotated, so it is not the slot index */
+  private bit(h: number): number {
+    return ((h >>> 13) | (h << 19)) & this.filterMask;
   }
 
   get(lo: number, hi: number): number {
-    const keyLo = this.keyLo;
-    const keyHi = this.keyHi;
+    const h = MidpointHash.mix(lo, hi);
+    const f = this.bit(h);
+    if ((this.filter[f >>> 5] & (1 << (f & 31))) === 0) return EMPTY;
+    const slots = this.slots;
     const mask = this.mask;
-    let s = MidpointHash.slot(lo, hi, mask);
+    let s = h & mask;
     for (;;) {
-      const k = keyLo[s];
+      const b = s << 2;
+      const k = slots[b];
       if (k === EMPTY) return EMPTY;
-      if (k === lo && keyHi[s] === hi) return this.value[s];
+      if (k === lo && slots[b + 1] === hi) return slots[b + 2];
       s = (s + 1) & mask;
     }
   }
 
   /** insert a key known to be absent */
   put(lo: number, hi: number, v: number): void {
-    if (2 * (this.count + 1) > this.keyLo.length) this.rehash();
+    if (2 * (this.count + 1) > this.mask + 1) this.rehash();
+    const slots = this.slots;
     const mask = this.mask;
     let s = MidpointHash.slot(lo, hi, mask);
-    while (this.keyLo[s] !== EMPTY) s = (s + 1) & mask;
-    this.keyLo[s] = lo;
-    this.keyHi[s] = hi;
-    this.value[s] = v;
+    while (slots[s << 2] !== EMPTY) s = (s + 1) & mask;
+    const b = s << 2;
+    slots[b] = lo;
+    slots[b + 1] = hi;
+    slots[b + 2] = v;
+    const f = this.bit(MidpointHash.mix(lo, hi));
+    this.filter[f >>> 5] |= 1 << (f & 31);
     this.count++;
   }
 
   private rehash(): void {
-    const oldLo = this.keyLo;
-    const oldHi = this.keyHi;
-    const oldV = this.value;
-    const cap = oldLo.length * 2;
-    this.keyLo = new Uint32Array(cap).fill(EMPTY);
-    this.keyHi = new Uint32Array(cap);
-    this.value = new Uint32Array(cap);
-    this.mask = cap - 1;
+    const old = this.slots;
+    const cap = 2 * (this.mask + 1);
+    const slots = new Uint32Array(4 * cap).fill(EMPTY);
+    const mask = cap - 1;
     // re-insert in slot order: deterministic
-    for (let s = 0; s < oldLo.length; s++) {
-      const lo = oldLo[s];
+    for (let b = 0; b < old.length; b += 4) {
+      const lo = old[b];
       if (lo === EMPTY) continue;
-      let t = MidpointHash.slot(lo, oldHi[s], this.mask);
-      while (this.keyLo[t] !== EMPTY) t = (t + 1) & this.mask;
-      this.keyLo[t] = lo;
-      this.keyHi[t] = oldHi[s];
-      this.value[t] = oldV[s];
+      let s = MidpointHash.slot(lo, old[b + 1], mask);
+      while (slots[s << 2] !== EMPTY) s = (s + 1) & mask;
+      slots[s << 2] = lo;
+      slots[(s << 2) + 1] = old[b + 1];
+      slots[(s << 2) + 2] = old[b + 2];
+    }
+    this.slots = slots;
+    this.mask = mask;
+    this.filter = new Int32Array(cap >> 2);
+    this.filterMask = 8 * cap - 1;
+    for (let b = 0; b < slots.length; b += 4) {
+      if (slots[b] === EMPTY) continue;
+      const f = this.bit(MidpointHash.mix(slots[b], slots[b + 1]));
+      this.filter[f >>> 5] |= 1 << (f & 31);
     }
   }
 }
@@ -344,26 +378,38 @@ export type TooLarge = (coords: Float64Array, tets: Uint32Array, t: number) => b
 export interface RefineOptions {
   /** refuse (MeshError 'too-many-elements') when the tet count would exceed this */
   maxTets?: number;
+  /** expected number of new vertices (sizes the midpoint hash; it grows by doubling if short) */
+  expectedNewVertices?: number;
 }
 
 export interface RefineStats {
   bisections: number;
   passes: number;
+  /** bytes of the engine's transient arrays at their largest (midpoint hash, stamps, block clocks) */
+  workBytes: number;
 }
+
+/** tets per block of the verification clock (see refineEngine) */
+const BLOCK_SHIFT = 6;
 
 /**
  * The refinement engine shared by refine() and refineToSize().
  *
  * Pass 1 bisects the marked tets once each (marks mode), or bisects every tet repeatedly until it
- * meets the size field (size mode; child A stays at index t and is re-examined at once, child B is
- * appended and examined when the loop reaches it). Later passes only close the mesh: bisect tets
- * with a hanging midpoint until none is left.
+ * meets the size field and has no hanging midpoint (size mode; child A stays at index t and is
+ * re-examined at once, child B is appended and examined when the loop reaches it). Later passes
+ * only close the mesh: bisect tets with a hanging midpoint until a pass changes nothing.
  *
- * Cheap pre-filter for the hanging test: stamp[v] = the pass in which v last became an endpoint of
- * a newly split edge. A tet can only carry a hanging midpoint created in pass q if two of its
- * vertices have stamp ≥ q; in pass p it was either visited after that split (q = p) or will be
- * visited again in pass p + 1 (q = p - 1). So pass p looks up the hash only for vertex pairs with
- * stamp ≥ p - 1: most tets cost four byte loads per pass, not six hash probes.
+ * Which tets need a hash lookup? A global clock counts edge splits; stamp[v] is the clock of the
+ * last split of an edge at v. A pass visits tets in increasing index (appended tets included) and
+ * verifies each one, so the time a tet was last verified grows with its index; we keep that
+ * time only per block of 64 tets (blockClock, the clock when the pass reached the block: a lower
+ * bound, hence safe). In the next pass a tet can only have gained a hanging midpoint if two of its
+ * vertices carry a stamp newer than its block clock; every other tet costs four loads and no
+ * probe. A tet just bisected, or appended after the previous pass, is checked in full (clock 0).
+ *
+ *     pass p:   t = 0 ....... 63 | 64 ...... 127 | ...      blockClock[b] = clock at block start
+ *     pass p+1: probe tet t only if ≥ 2 vertices have stamp > blockClock_p[t >> 6]
  *
  * The hash holds only edges split during this call: the input mesh is conforming, so any hanging
  * midpoint was created in this call.
@@ -382,9 +428,13 @@ function refineEngine(m: BisectionMesh, marks: Uint8Array | null, tooLarge: TooL
   let stamp = new Uint32Array(vertexLevel.length);
   let nv = m.nVertices;
   let nt = m.nTets;
-  let pass = 1;
+  let passes = 1;
   let bisections = 0;
-  const hash = new MidpointHash(Math.max(1024, nv >> 2));
+  let clock = 0;
+  let workPeak = 0;
+  const hash = new MidpointHash(Math.max(1024, opts.expectedNewVertices ?? nv >> 2));
+  let prevBlock = new Uint32Array(0);
+  let prevEnd = 0; // tets with index < prevEnd were verified in the previous pass
 
   const refreshTets = (): void => {
     tets = m.tets;
@@ -424,8 +474,9 @@ function refineEngine(m: BisectionMesh, marks: Uint8Array | null, tooLarge: TooL
     vertexLevel[z] = level;
     vertexFaces[z] = vertexFaces[lo] & vertexFaces[hi];
     hash.put(lo, hi, z);
-    stamp[lo] = pass;
-    stamp[hi] = pass;
+    clock++;
+    stamp[lo] = clock;
+    stamp[hi] = clock;
     return z;
   };
 
@@ -470,17 +521,18 @@ function refineEngine(m: BisectionMesh, marks: Uint8Array | null, tooLarge: TooL
     bisections++;
   };
 
-  /** true when tet t has a hanging midpoint on an edge whose endpoints both have stamp ≥ thr */
-  const hanging = (t: number, thr: number): boolean => {
+  /** true when tet t has a hanging midpoint on an edge whose endpoints both have stamp > since */
+  const hanging = (t: number, since: number): boolean => {
+    if (hash.count === 0) return false;
     const b = 4 * t;
     const v0 = tets[b];
     const v1 = tets[b + 1];
     const v2 = tets[b + 2];
     const v3 = tets[b + 3];
-    const s0 = stamp[v0] >= thr;
-    const s1 = stamp[v1] >= thr;
-    const s2 = stamp[v2] >= thr;
-    const s3 = stamp[v3] >= thr;
+    const s0 = stamp[v0] > since;
+    const s1 = stamp[v1] > since;
+    const s2 = stamp[v2] > since;
+    const s3 = stamp[v3] > since;
     if (+s0 + +s1 + +s2 + +s3 < 2) return false;
     if (s0 && s1 && hash.get(v0 < v1 ? v0 : v1, v0 < v1 ? v1 : v0) !== EMPTY) return true;
     if (s0 && s2 && hash.get(v0 < v2 ? v0 : v2, v0 < v2 ? v2 : v0) !== EMPTY) return true;
@@ -491,25 +543,60 @@ function refineEngine(m: BisectionMesh, marks: Uint8Array | null, tooLarge: TooL
     return false;
   };
 
+  const noteWork = (blocks: Uint32Array): void => {
+    const bytes = hash.byteLength + stamp.byteLength + prevBlock.byteLength + blocks.byteLength;
+    if (bytes > workPeak) workPeak = bytes;
+  };
+
   try {
-    // pass 1
     if (marks) {
+      // pass 1: each marked tet once; nothing verified yet, so the next pass checks all (clock 0)
       const n0 = nt;
       for (let t = 0; t < n0; t++) if (marks[t]) bisect(t);
     } else if (tooLarge) {
+      // pass 1: to size, verifying each tet against splits so far
+      let block = new Uint32Array(((m.tetTag.length - 1) >> BLOCK_SHIFT) + 1);
       for (let t = 0; t < nt; t++) {
-        while (tooLarge(coords, tets, t) || (hash.count > 0 && hanging(t, 1))) bisect(t);
+        if ((t & ((1 << BLOCK_SHIFT) - 1)) === 0) {
+          const bi = t >> BLOCK_SHIFT;
+          if (bi >= block.length) {
+            const g = new Uint32Array(2 * block.length + 1);
+            g.set(block);
+            block = g;
+          }
+          block[bi] = clock;
+        }
+        while (tooLarge(coords, tets, t) || hanging(t, 0)) bisect(t);
       }
+      noteWork(block);
+      prevBlock = block;
+      prevEnd = nt;
     }
     // closure passes
     for (;;) {
       if (hash.count === 0) break;
-      pass++;
-      const thr = pass - 1;
+      passes++;
       const before = bisections;
+      let block = new Uint32Array(((Math.max(nt, 1) - 1) >> BLOCK_SHIFT) + 1);
       for (let t = 0; t < nt; t++) {
-        while (hanging(t, thr)) bisect(t);
+        if ((t & ((1 << BLOCK_SHIFT) - 1)) === 0) {
+          const bi = t >> BLOCK_SHIFT;
+          if (bi >= block.length) {
+            const g = new Uint32Array(2 * block.length + 1);
+            g.set(block);
+            block = g;
+          }
+          block[bi] = clock;
+        }
+        let since = t < prevEnd ? prevBlock[t >> BLOCK_SHIFT] : 0;
+        while (hanging(t, since)) {
+          bisect(t);
+          since = 0;
+        }
       }
+      noteWork(block);
+      prevBlock = block;
+      prevEnd = nt;
       if (bisections === before) break;
     }
   } finally {
@@ -517,7 +604,8 @@ function refineEngine(m: BisectionMesh, marks: Uint8Array | null, tooLarge: TooL
     m.nVertices = nv;
     m.nTets = nt;
   }
-  return { bisections, passes: pass };
+  noteWork(new Uint32Array(0));
+  return { bisections, passes, workBytes: workPeak };
 }
 
 /**

@@ -36,6 +36,8 @@ export interface MeshDesignStats {
   initialTets: number;
   bisections: number;
   closurePasses: number;
+  /** transient bytes of the refinement (midpoint hash + vertex stamps) */
+  workBytes: number;
   /** largest tet generation */
   maxLevel: number;
   estimateLeaves: number;
@@ -128,7 +130,10 @@ export function meshDesign(design: Design, options: MeshDesignOptions = {}): Mes
   const mesh = kuhnBox({ center, halfExtents: halfExtentsNm, cells, capacity: { tets: tetCap, vertices: Math.ceil(tetCap / 4) } });
   // The running guard: the estimate may be low by its error margin; past twice the limit (or the
   // hard cap) the run stops rather than exhaust memory.
-  const refineStats = refineToSize(mesh, field.tooLarge, { maxTets: Math.min(hardCap, Math.max(2 * maxElements, initialTets)) });
+  const refineStats = refineToSize(mesh, field.tooLarge, {
+    maxTets: Math.min(hardCap, Math.max(2 * maxElements, initialTets)),
+    expectedNewVertices: Math.ceil(estimate / 5),
+  });
   const t2 = performance.now();
   const tetMesh = toTetMesh(mesh);
   const t3 = performance.now();
@@ -146,6 +151,7 @@ export function meshDesign(design: Design, options: MeshDesignOptions = {}): Mes
       initialTets,
       bisections: refineStats.bisections,
       closurePasses: refineStats.passes,
+      workBytes: refineStats.workBytes,
       maxLevel,
       estimateLeaves: est.leaves,
       secondsEstimate: (t1 - t0) / 1000,

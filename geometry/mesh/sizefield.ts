@@ -291,6 +291,9 @@ export class SizeField {
   readonly hmax: number;
   private readonly invExponent: number;
   private readonly classes: RuntimeClass[];
+  /** per class: reach for the last longest edge seen by tooLarge (−1: no refinement) */
+  private readonly reach: Float64Array;
+  private lastL2 = -1;
 
   constructor(spec: SizeFieldSpec) {
     this.exponent = positive('exponent', spec.exponent);
@@ -303,6 +306,7 @@ export class SizeField {
         const a = positive('coreRadiusNm', c.coreRadiusNm);
         return { h0, a, grid: new SiteGrid(c.positions), reachMax: h0 < this.hmax ? a * Math.pow(this.hmax / h0, this.invExponent) : 0 };
       });
+    this.reach = new Float64Array(this.classes.length);
   }
 
   /** min of h over the box [l, u] */
@@ -348,12 +352,22 @@ export class SizeField {
     dx = x3 - x2; dy = y3 - y2; dz = z3 - z2; e = dx * dx + dy * dy + dz * dz; if (e > L2) L2 = e;
     const hmax = this.hmax;
     if (L2 > hmax * hmax) return true;
-    const L = Math.sqrt(L2);
     const classes = this.classes;
+    // Bisection produces few distinct edge lengths (3 per halving for cubic cells), and
+    // consecutive tets often share one: remember the reaches of the last L² instead of pow again.
+    const reach = this.reach;
+    if (L2 !== this.lastL2) {
+      const L = Math.sqrt(L2);
+      for (let i = 0; i < classes.length; i++) {
+        const c = classes[i];
+        reach[i] = L <= c.h0 ? -1 : c.a * Math.pow(L / c.h0, this.invExponent);
+      }
+      this.lastL2 = L2;
+    }
     for (let i = 0; i < classes.length; i++) {
       const c = classes[i];
-      if (L <= c.h0) continue;
-      const R = c.a * Math.pow(L / c.h0, this.invExponent);
+      const R = reach[i];
+      if (R < 0) continue;
       const l0 = Math.min(x0, x1, x2, x3), u0 = Math.max(x0, x1, x2, x3);
       const l1 = Math.min(y0, y1, y2, y3), u1 = Math.max(y0, y1, y2, y3);
       const l2 = Math.min(z0, z1, z2, z3), u2 = Math.max(z0, z1, z2, z3);
