@@ -100,7 +100,7 @@ describe('potentials and energies', () => {
   });
   it('anisotropic with a = b reduces to the hydrogenic potential', () => {
     const iso: Orbital = { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 2.5 };
-    for (const r of [0, 0.3, 2, 9, 60, 500]) {
+    for (const r of [0, 1e-3, 0.011, 0.3, 2, 9, 60, 500]) {
       const p = potentialAt(iso, [0, 0, 0], 0.6 * r, 0, 0.8 * r);
       expect(Math.abs(p / (radialPotential(H, r) as number) - 1)).toBeLessThan(1e-12);
     }
@@ -144,6 +144,12 @@ describe('moments and charge outside a box', () => {
       const exact = chargeOutsideBox(G, c, [0, 0, 0], h);
       const faces = chargeOutsideBoxByFaces(G, c, [0, 0, 0], h, 12);
       expect(Math.abs(faces / exact - 1)).toBeLessThan(1e-6);
+    }
+  });
+  it('the default rule (8×8 per face quarter) is within 1e-4 of the exact Gaussian fraction', () => {
+    for (const c of [[0.3, -0.2, 0.5], [2.9, 0, 0], [1, 1, 1.2]] as Vec3[]) {
+      const exact = chargeOutsideBox(G, c, [0, 0, 0], [3, 4, 2.5]);
+      expect(Math.abs(chargeOutsideBoxByFaces(G, c, [0, 0, 0], [3, 4, 2.5], 8) / exact - 1)).toBeLessThan(1e-4);
     }
   });
   it('1s outside fraction of a centred cube lies between the inscribed and circumscribed sphere tails', () => {
