@@ -537,29 +537,30 @@ export function multigridPreconditioner(
   const edges = space.edges;
   const nE = edges.length / 2;
   const sweeps = options.p2Sweeps ?? 1;
-  const gsForward = (b: Float64Array, x: Float64Array): void => {
-    for (let i = 0; i < n; i++) {
-      let acc = b[i];
-      let diag = 0;
-      for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) {
-        const j = cols[p];
-        if (j === i) diag = vals[p];
-        else acc -= vals[p] * x[j];
-      }
-      x[i] = acc / diag;
+  // Gauss–Seidel in correction form, x_i += (b_i − (A x)_i)/a_ii: no branch on the diagonal in
+  // the inner loop, and the same code serves the first sweep from zero and later ones
+  const dinv = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) if (cols[p] === i) dinv[i] = 1 / vals[p];
+    if (!(dinv[i] > 0)) throw new HierarchyError(`P2 matrix row ${i} has no positive diagonal`);
+  }
+  const gsRow = (b: Float64Array, x: Float64Array, i: number): void => {
+    let s0 = b[i];
+    let s1 = 0;
+    let p = rowPtr[i];
+    const end = rowPtr[i + 1];
+    for (; p + 1 < end; p += 2) {
+      s0 -= vals[p] * x[cols[p]];
+      s1 -= vals[p + 1] * x[cols[p + 1]];
     }
+    if (p < end) s0 -= vals[p] * x[cols[p]];
+    x[i] += (s0 + s1) * dinv[i];
+  };
+  const gsForward = (b: Float64Array, x: Float64Array): void => {
+    for (let i = 0; i < n; i++) gsRow(b, x, i);
   };
   const gsBackward = (b: Float64Array, x: Float64Array): void => {
-    for (let i = n - 1; i >= 0; i--) {
-      let acc = b[i];
-      let diag = 0;
-      for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) {
-        const j = cols[p];
-        if (j === i) diag = vals[p];
-        else acc -= vals[p] * x[j];
-      }
-      x[i] = acc / diag;
-    }
+    for (let i = n - 1; i >= 0; i--) gsRow(b, x, i);
   };
   return {
     name: 'multigrid-p2',

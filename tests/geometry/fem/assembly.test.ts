@@ -47,6 +47,34 @@ describe('stiffness assembly', () => {
     });
   }
 
+  it('Dirichlet-lifted stiffness is positive definite: xᵀAx > 0 for interior vectors', () => {
+    for (const order of [1, 2] as const) {
+      const space = buildSpace(graded, order);
+      const { A } = applyDirichlet(assembleStiffness(space, [11.7]), new Float64Array(space.nDofs), space.boundaryDof);
+      let seed = 7;
+      for (let trial = 0; trial < 5; trial++) {
+        const x = Float64Array.from({ length: space.nDofs }, () => ((seed = (seed * 16807) % 2147483647) / 2147483647) - 0.5);
+        const Ax = new Float64Array(space.nDofs);
+        spmv(A, x, Ax);
+        expect(x.reduce((s, v, i) => s + v * Ax[i], 0)).toBeGreaterThan(0);
+      }
+    }
+  });
+
+  it('boundary dofs are exactly the nodes on the box surface (P1 and P2)', () => {
+    for (const order of [1, 2] as const) {
+      const space = buildSpace(graded, order);
+      for (let i = 0; i < space.nDofs; i++) {
+        let onSurface = false;
+        for (let k = 0; k < 3; k++) {
+          const c = space.dofCoords[3 * i + k];
+          if (c === 0 || c === 1) onSurface = true;
+        }
+        expect(space.boundaryDof[i]).toBe(onSurface ? 1 : 0);
+      }
+    }
+  });
+
   it('P2 reproduces a quadratic exactly: −Δu = −6 with u = x² + y² + z²', () => {
     // u is in the P2 space, so the Galerkin solution equals u at every node (Céa's lemma: zero best-approximation error).
     for (const mesh of [coarse, graded]) {

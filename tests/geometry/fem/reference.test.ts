@@ -40,6 +40,11 @@ describe('quadrature on the reference tetrahedron', () => {
     }
   });
 
+  it('degrees 3 to 5 use the 15-point symmetric rule (Keast 1986), exact to degree 5 but not 6', () => {
+    for (const d of [3, 4, 5]) expect(tetQuadrature(d).n).toBe(15);
+    expect(worstMonomialError(tetQuadrature(5), 6)).toBeGreaterThan(1e-6);
+  });
+
   it('default rules are not exact one degree beyond (the check can fail)', () => {
     // the centroid rule misses ∫x² = 2/5! = 1/60
     expect(worstMonomialError(tetQuadrature(1), 2)).toBeGreaterThan(1e-3);
