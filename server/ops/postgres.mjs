@@ -236,3 +236,10 @@ export async function startCluster({ name, port }) {
     },
   };
 }
+
+/** Connection URL of a cluster that another process (a running `npm start`) has already started. */
+export function existingClusterUrl({ name, port, database }) {
+  const { passwordFile } = clusterPaths(name);
+  const password = fs.readFileSync(passwordFile, 'utf8').trim();
+  return pgUrl({ user: SUPERUSER, password, port, database });
+}

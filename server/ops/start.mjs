@@ -136,6 +136,7 @@ async function main() {
   } else {
     const cluster = await startCluster({ name: 'pg', port: pgPort });
     cleanups.push(() => cluster.stop());
+    lock.update({ pgPort });
     databaseUrl = cluster.url('tetrawell');
     info = await prepareDatabase({ databaseUrl, adminUrl: cluster.url('postgres'), create: true, seed: true });
   }
@@ -164,7 +165,7 @@ async function main() {
     if (!exiting) await shutdown(1, 'the server did not answer /api/health; stopping');
     return;
   }
-  lock.update({ url: localUrl, serverPid: server.pid });
+  lock.update({ url: localUrl, serverPid: server.pid, pgPort: process.env.DATABASE_URL ? null : pgPort });
 
   const logins = demoLogins(info?.seeded);
   const lines = [

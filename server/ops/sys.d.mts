@@ -2,7 +2,10 @@
 
 export const ROOT: string;
 export const DATA: string;
-export class OpsError extends Error {}
+export class OpsError extends Error {
+  /** Set when a lock is refused: what the live holder wrote in the lock file. */
+  holder?: Record<string, unknown>;
+}
 export function pidAlive(pid: number): boolean;
 export interface Lock {
   stale: Record<string, unknown> | null;

@@ -189,7 +189,8 @@ export function acquireLock(file, what) {
         /** What the lock file said when a dead holder's lock was taken over (null otherwise). */
         stale,
         update(extra) {
-          fs.writeFileSync(file, JSON.stringify({ ...info, ...extra }));
+          Object.assign(info, extra);
+          fs.writeFileSync(file, JSON.stringify(info));
         },
         release() {
           if (released) return;
@@ -212,10 +213,12 @@ export function acquireLock(file, what) {
       }
       if (holder && pidAlive(holder.pid) && holder.pid !== process.pid) {
         const where = holder.url ? ` at ${holder.url}` : '';
-        throw new OpsError(
+        const err = new OpsError(
           `${what} is already running (pid ${holder.pid}, since ${holder.startedAt}${where}).\n` +
             `Stop it with Ctrl-C in its terminal (or: kill -INT ${holder.pid}) before starting another.`,
         );
+        err.holder = holder;
+        throw err;
       }
       warn(`removing a stale lock ${path.relative(ROOT, file)} (pid ${holder?.pid ?? '?'} is gone)`);
       stale = holder;

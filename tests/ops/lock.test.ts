@@ -49,6 +49,8 @@ describe('the start lock', () => {
     expect((err as Error).message).toContain(`pid ${process.ppid}`);
     expect((err as Error).message).toContain('already running');
     expect((err as Error).message).toContain('http://127.0.0.1:8080');
+    // The holder's record rides along, so `npm run migrate` can reuse a running start's database.
+    expect((err as OpsError).holder).toMatchObject({ pid: process.ppid, url: 'http://127.0.0.1:8080' });
     // The live holder's file is left alone.
     expect(JSON.parse(fs.readFileSync(file, 'utf8')).pid).toBe(process.ppid);
   });
