@@ -280,7 +280,9 @@ function gaussianOutside(sigma: number, center: Vec3, boxCenter: Vec3, half: Vec
     outsideSum += out;
     inside *= 1 - out;
   }
-  return outsideSum < 1e-6 ? outsideSum - 0 : 1 - inside;
+  // below 1e-6 report Σ ε_k: an upper bound of 1 − Π(1 − ε_k) within Σ ε_k², and free of the
+  // cancellation in 1 − inside
+  return outsideSum < 1e-6 ? outsideSum : 1 - inside;
 }
 
 /**

@@ -35,18 +35,21 @@ import { snapToLattice, siteToNm } from '../lattice';
 import { clearanceFor, neglectedEnvelope, type Envelope } from './envelope';
 import { combinedMoments } from './moments';
 
-export type WarningCode =
-  | 'site-outside-enclosure'
-  | 'boundary-too-close'
-  | 'density-cut'
-  | 'sites-coincide'
-  | 'sites-overlap'
-  | 'off-lattice'
-  | 'anisotropic-envelope'
-  | 'no-electrons'
-  | 'pairs-limited'
-  | 'element-budget'
-  | 'no-sites';
+/** Stable warning codes: the UI and scripts may key on them; never rename, only add. */
+export const WARNING_CODES = [
+  'site-outside-enclosure',
+  'boundary-too-close',
+  'density-cut',
+  'sites-coincide',
+  'sites-overlap',
+  'off-lattice',
+  'anisotropic-envelope',
+  'no-electrons',
+  'pairs-limited',
+  'element-budget',
+  'no-sites',
+] as const;
+export type WarningCode = (typeof WARNING_CODES)[number];
 
 export interface FarFieldWarning {
   code: WarningCode;
