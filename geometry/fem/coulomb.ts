@@ -272,7 +272,7 @@ function dotv(a: Float64Array, b: Float64Array): number {
 
 export interface RichardsonResult {
   extrapolated: number;
-  /** |E_finest − extrapolated| */
+  /** F_s·|E_finest − extrapolated| (the grid convergence index) */
   error: number;
   rate: number;
   rateSource: 'observed' | 'theoretical';

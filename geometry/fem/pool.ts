@@ -1,0 +1,76 @@
+/**
+ * Long Coulomb solves in worker threads: a small piscina pool with progress and cancellation.
+ *
+ *   const pool = createCoulombPool({ maxThreads: 2 });
+ *   const result = await pool.run({ kind: 'coulomb', design }, { onProgress, signal });
+ *   await pool.destroy();
+ *
+ * Progress arrives through a MessageChannel whose far end travels with the task (transferred,
+ * not copied). Cancellation: abort `signal`; piscina terminates the worker running the task and
+ * the promise rejects with an error named "AbortError".
+ *
+ * The worker is TypeScript. When this file itself runs as TypeScript (under tsx or vitest) the
+ * worker thread is started with `--import tsx` so it can load worker.ts; a build that emits
+ * JavaScript next to it loads worker.js without it.
+ */
+import { MessageChannel } from 'node:worker_threads';
+import { fileURLToPath } from 'node:url';
+import { existsSync } from 'node:fs';
+import Piscina from 'piscina';
+import type { CoulombJob } from './worker';
+import type { Progress } from './coulomb';
+
+export type { CoulombJob } from './worker';
+
+export interface CoulombPoolOptions {
+  /** worker threads (default 1: each solve is single-threaded and memory-hungry) */
+  maxThreads?: number;
+  /** ms an idle worker stays alive (default 30 s) */
+  idleTimeout?: number;
+}
+
+export interface RunOptions {
+  onProgress?: (p: Progress) => void;
+  signal?: AbortSignal;
+}
+
+export interface CoulombPool {
+  run<T = unknown>(job: CoulombJob, options?: RunOptions): Promise<T>;
+  destroy(): Promise<void>;
+  readonly threads: number;
+}
+
+function workerFile(): { filename: string; execArgv: string[] } {
+  const ts = fileURLToPath(new URL('./worker.ts', import.meta.url));
+  const js = fileURLToPath(new URL('./worker.js', import.meta.url));
+  if (import.meta.url.endsWith('.ts') || !existsSync(js)) return { filename: ts, execArgv: ['--import', 'tsx'] };
+  return { filename: js, execArgv: [] };
+}
+
+export function createCoulombPool(options: CoulombPoolOptions = {}): CoulombPool {
+  const { filename, execArgv } = workerFile();
+  const pool = new Piscina({
+    filename,
+    execArgv,
+    minThreads: 0,
+    maxThreads: Math.max(1, options.maxThreads ?? 1),
+    idleTimeout: options.idleTimeout ?? 30_000,
+  });
+  return {
+    get threads() {
+      return pool.threads.length;
+    },
+    async run<T>(job: CoulombJob, runOptions: RunOptions = {}): Promise<T> {
+      const { port1, port2 } = new MessageChannel();
+      if (runOptions.onProgress) port1.on('message', (p: Progress) => runOptions.onProgress!(p));
+      try {
+        return (await pool.run({ job, port: port2 }, { transferList: [port2] as never, signal: runOptions.signal })) as T;
+      } finally {
+        // let the last progress messages drain before closing our end
+        await new Promise((r) => setImmediate(r));
+        port1.close();
+      }
+    },
+    destroy: () => pool.destroy(),
+  };
+}

@@ -1,0 +1,70 @@
+/**
+ * The worker-thread side of long Coulomb solves (run by pool.ts through piscina).
+ *
+ * A task carries the design, the job options and a MessagePort; progress (stage, fraction) is
+ * posted on the port at most every PROGRESS_INTERVAL_MS so a fast solve does not flood the
+ * main thread. Cancellation is piscina's: aborting the task's signal terminates this thread
+ * (the solve is synchronous CPU work, so terminating is the only prompt way to stop it).
+ */
+import type { MessagePort } from 'node:worker_threads';
+import type { Design } from '../design/types';
+import { solveCoulomb, solveSitePotentials, type CoulombOptions, type Progress } from './coulomb';
+import { runStudy, type StudyOptions } from './study';
+import type { TetMesh } from '../mesh/types';
+
+export const PROGRESS_INTERVAL_MS = 50;
+
+export type CoulombJob =
+  | { kind: 'coulomb'; design: Design; options?: Omit<CoulombOptions, 'onProgress' | 'signal'> }
+  | { kind: 'study'; design: Design; options: Omit<StudyOptions, 'onProgress' | 'signal'> }
+  | { kind: 'potentials'; design: Design; mesh: TetMesh; order?: 1 | 2 }
+  /** a synthetic job for tests of the pool itself: reports progress for `ms`, then returns */
+  | { kind: 'sleep'; ms: number };
+
+export interface WorkerTask {
+  job: CoulombJob;
+  port?: MessagePort;
+}
+
+function throttled(port: MessagePort | undefined): (p: Progress) => void {
+  let last = -Infinity;
+  let lastStage = '';
+  return (p) => {
+    if (!port) return;
+    const now = performance.now();
+    if (p.stage === lastStage && p.fraction < 1 && now - last < PROGRESS_INTERVAL_MS) return;
+    last = now;
+    lastStage = p.stage;
+    port.postMessage(p);
+  };
+}
+
+export default function runJob(task: WorkerTask): unknown {
+  const onProgress = throttled(task.port);
+  const job = task.job;
+  try {
+    switch (job.kind) {
+      case 'coulomb':
+        return solveCoulomb(job.design, { ...job.options, onProgress });
+      case 'study':
+        return runStudy(job.design, { ...job.options, onProgress });
+      case 'potentials': {
+        const r = solveSitePotentials(job.design, job.mesh, job.order ?? job.design.refinement.order, { onProgress });
+        return r;
+      }
+      case 'sleep': {
+        const t0 = performance.now();
+        let k = 0;
+        while (performance.now() - t0 < job.ms) {
+          // busy work, like a solve: the thread cannot take messages while it runs
+          for (let i = 0; i < 1e5; i++) k += Math.sqrt(i);
+          onProgress({ stage: 'sleep', fraction: Math.min(1, (performance.now() - t0) / job.ms) });
+        }
+        onProgress({ stage: 'sleep', fraction: 1 });
+        return { slept: job.ms, k: k > 0 };
+      }
+    }
+  } finally {
+    task.port?.close();
+  }
+}

@@ -1,0 +1,61 @@
+/**
+ * Worker pool (piscina) running the TypeScript worker: progress events arrive through the
+ * MessagePort, a real solve comes back with numbers, and aborting rejects with an AbortError.
+ */
+import { afterAll, describe, expect, it } from 'vitest';
+import { createCoulombPool } from '../../../geometry/fem/pool';
+import { COULOMB_EV_NM } from '../../../geometry/units';
+import type { Design } from '../../../geometry/design/types';
+import type { CoulombResult, Progress } from '../../../geometry/fem/coulomb';
+
+const pool = createCoulombPool({ maxThreads: 1 });
+afterAll(async () => {
+  await pool.destroy();
+});
+
+function gaussianDesign(sigma: number): Design {
+  return {
+    format: 'tetrawell-design',
+    version: 1,
+    name: 'worker test',
+    host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: 0.5431020511 },
+    sites: [{ id: 'g', species: 'P', position: [0, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: sigma } }],
+    enclosure: { center: [0, 0, 0], halfExtentsNm: [20 * sigma, 20 * sigma, 20 * sigma], boundary: { kind: 'multipole', order: 0 } },
+    refinement: { order: 2, targetRelError: 1e-2, maxElements: 200_000 },
+  };
+}
+
+describe('coulomb worker pool', () => {
+  it('reports progress and returns a solve from a worker thread', async () => {
+    const events: Progress[] = [];
+    const r = await pool.run<CoulombResult>({ kind: 'coulomb', design: gaussianDesign(1), options: { levels: 2 } }, { onProgress: (p) => events.push(p) });
+    expect(events.length).toBeGreaterThan(2);
+    expect(events.some((e) => e.stage.includes('solve'))).toBe(true);
+    for (const e of events) expect(e.fraction).toBeGreaterThanOrEqual(0);
+    expect(events[events.length - 1].fraction).toBe(1);
+    // Gaussian self-energy e²/(4πε0 εr)/(σ√π): standard result for Gaussian charge distributions
+    const exact = COULOMB_EV_NM / (11.7 * Math.sqrt(Math.PI));
+    expect(Math.abs(r.sites[0].uEv - exact)).toBeLessThan(r.sites[0].uErrorEv);
+  });
+
+  it('cancel rejects with an abort error and the pool keeps working', async () => {
+    const ac = new AbortController();
+    const events: Progress[] = [];
+    const p = pool.run({ kind: 'sleep', ms: 20_000 }, { onProgress: (e) => events.push(e), signal: ac.signal });
+    // abort once the worker has shown it is running
+    await new Promise<void>((resolve) => {
+      const t = setInterval(() => {
+        if (events.length > 0) {
+          clearInterval(t);
+          resolve();
+        }
+      }, 10);
+    });
+    const t0 = Date.now();
+    ac.abort();
+    await expect(p).rejects.toMatchObject({ name: 'AbortError' });
+    expect(Date.now() - t0).toBeLessThan(10_000); // common practice: cancellation must not wait for the job
+    const again = await pool.run<{ slept: number }>({ kind: 'sleep', ms: 10 });
+    expect(again.slept).toBe(10);
+  });
+});
