@@ -18,7 +18,7 @@ import path from 'node:path';
 import { demoLogins, portFromEnv } from './lib.mjs';
 import { startCluster } from './postgres.mjs';
 import { buildClient, ensureDeps, prepareDatabase } from './setup.mjs';
-import { DATA, OpsError, ROOT, acquireLock, bold, dim, ensureDir, portInUse, say, stopOrphanServer, tsxArgs, warn } from './sys.mjs';
+import { DATA, OpsError, ROOT, acquireLock, bold, dim, ensureDir, portInUse, say, signalChildren, childrenExited, stopOrphanServer, tsxArgs, warn } from './sys.mjs';
 
 const HELP = `npm start: run Tetrawell locally.
 
@@ -40,6 +40,7 @@ if (process.argv.includes('--help') || process.argv.includes('-h')) {
 
 const cleanups = []; // run in reverse order on the way out
 let exiting = false;
+let interrupted = false; // a signal arrived; shutdown follows once running set-up steps have ended
 let server = null; // the server child process
 
 async function shutdown(code, why) {
@@ -58,8 +59,12 @@ async function shutdown(code, why) {
 
 for (const sig of ['SIGINT', 'SIGTERM', 'SIGHUP']) {
   process.on(sig, () => {
-    if (exiting) return;
-    void shutdown(sig === 'SIGINT' ? 0 : 1, `${sig} received: shutting down`);
+    if (exiting || interrupted) return;
+    interrupted = true;
+    // A set-up step still running (npm ci, vite build, migrations) gets the signal too, and is given time to end
+    // before the database goes down under it.
+    signalChildren(sig);
+    void childrenExited(15_000).then(() => shutdown(sig === 'SIGINT' ? 0 : 1, `${sig} received: shutting down`));
   });
 }
 
@@ -142,6 +147,7 @@ async function main() {
   }
 
   await buildClient();
+  if (exiting || interrupted) return; // interrupted during set-up: shutdown() is already under way
 
   const env = {
     ...process.env,
@@ -188,6 +194,7 @@ async function main() {
 }
 
 main().catch(async (e) => {
+  if (interrupted) return; // the step failed because it was interrupted; the signal handler shuts down
   if (e instanceof OpsError) process.stderr.write(`\n[tetrawell] ${e.message}\n`);
   else process.stderr.write(`\n[tetrawell] unexpected error: ${e?.stack ?? e}\n`);
   await shutdown(1);

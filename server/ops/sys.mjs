@@ -49,6 +49,26 @@ export function ensureDir(dir, mode = 0o755) {
   fs.mkdirSync(dir, { recursive: true, mode });
 }
 
+/** Children started by run() that have not exited yet, so a signal handler can pass the signal on. */
+const activeChildren = new Set();
+
+/** Sends `signal` to every child run() started that is still running (a Ctrl-C aimed at this script alone). */
+export function signalChildren(signal) {
+  for (const c of activeChildren) {
+    try {
+      c.kill(signal);
+    } catch {
+      /* already gone */
+    }
+  }
+}
+
+/** Resolves when every child run() started has exited, or after `timeoutMs`. */
+export async function childrenExited(timeoutMs) {
+  const until = Date.now() + timeoutMs;
+  while (activeChildren.size > 0 && Date.now() < until) await new Promise((r) => setTimeout(r, 100));
+}
+
 /**
  * Runs a command to completion with inherited output (or captured when `capture` is set).
  * Resolves with { code, stdout, stderr }; never rejects on a non-zero exit (callers decide).
@@ -67,8 +87,15 @@ export function run(cmd, args, { cwd = ROOT, env = process.env, capture = false,
       child.stderr.on('data', (d) => (stderr += d));
     }
     if (input != null) child.stdin.end(input);
-    child.on('error', reject);
-    child.on('close', (code, signal) => resolve({ code: code ?? (signal ? 128 : 1), signal, stdout, stderr }));
+    activeChildren.add(child);
+    child.on('error', (e) => {
+      activeChildren.delete(child);
+      reject(e);
+    });
+    child.on('close', (code, signal) => {
+      activeChildren.delete(child);
+      resolve({ code: code ?? (signal ? 128 : 1), signal, stdout, stderr });
+    });
   });
 }
 

@@ -22,12 +22,14 @@ import {
   acquireLock,
   aptInstall,
   bold,
+  childrenExited,
   ensureDir,
   freePort,
   isExecutable,
   pythonHasModule,
   run,
   say,
+  signalChildren,
   warn,
 } from './sys.mjs';
 
@@ -94,8 +96,12 @@ for (const sig of ['SIGINT', 'SIGTERM', 'SIGHUP']) {
   process.on(sig, () => {
     if (exiting) return;
     exiting = true;
-    say(`${sig} received: stopping the test database`);
-    void cleanup().then(() => process.exit(130));
+    say(`${sig} received: stopping the running stage and the test database`);
+    // A terminal's Ctrl-C reaches the runner too; `kill -INT <pid>` reaches only us, so pass it on.
+    signalChildren(sig);
+    void childrenExited(15_000)
+      .then(cleanup)
+      .then(() => process.exit(130));
   });
 }
 
@@ -269,10 +275,11 @@ async function main() {
     delete env.DATABASE_URL;
   }
 
-  if (wants('typecheck')) await stageTypecheck();
-  if (wants('lint')) await stageLint();
-  if (wants('vitest')) await stageVitest(env);
-  if (wants('e2e')) await stageE2e(env);
+  // After a Ctrl-C no new stage starts; the signal handler is already stopping the database.
+  if (wants('typecheck') && !exiting) await stageTypecheck();
+  if (wants('lint') && !exiting) await stageLint();
+  if (wants('vitest') && !exiting) await stageVitest(env);
+  if (wants('e2e') && !exiting) await stageE2e(env);
 
   for (const s of STAGES) {
     if (!wants(s)) results.push({ name: s, ok: true, notRun: true, detail: 'not run (left out by --only/--skip)' });
