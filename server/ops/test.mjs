@@ -119,6 +119,7 @@ function readJson(file) {
 
 /** Runs one set-up step; a failure is recorded and the run goes on. */
 async function setupStep(name, fn) {
+  if (exiting) return false;
   banner(name);
   try {
     const detail = await fn();
