@@ -1,0 +1,186 @@
+/**
+ * `npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]… [--json]`:
+ * on-site U and inter-site V of a design with error bars.
+ *
+ * With --json prints exactly one JSON object:
+ *   { order, elements, dofs, iterations, sites: [{ id, uEv, uErrorEv }],
+ *     pairs: [{ a, b, distanceNm, vEv, vErrorEv }], seconds }
+ * Without it, a readable table with the error budget of each number, the model assumptions and
+ * the reminder that these are estimates.
+ * Exit codes: 0 solved, 1 invalid document or a refusal (message on stderr, no numbers),
+ * 2 usage, 3 adaptive refinement ran out of budget before the target (message, no numbers).
+ */
+import { readFile } from 'node:fs/promises';
+import { describeIssues, parseDesign } from '@contracts/design';
+import type { Design } from '../../geometry/design/types';
+import { solveCoulomb, CoulombError, type CoulombResult } from '../../geometry/fem/coulomb';
+import { MeshError } from '../../geometry/mesh/index';
+
+const USAGE = 'usage: npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]... [--json]';
+
+export interface ParsedArgs {
+  files: string[];
+  flags: Set<string>;
+  values: Map<string, string[]>;
+  errors: string[];
+}
+
+/** Minimal argv parser: `--flag`, `--key value`, positional files. */
+export function parseArgs(argv: string[], withValue: string[], bare: string[]): ParsedArgs {
+  const out: ParsedArgs = { files: [], flags: new Set(), values: new Map(), errors: [] };
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i];
+    if (!a.startsWith('--')) {
+      out.files.push(a);
+      continue;
+    }
+    const [key, inline] = a.split('=', 2);
+    if (withValue.includes(key)) {
+      const v = inline ?? argv[++i];
+      if (v === undefined) out.errors.push(`${key} needs a value`);
+      else out.values.set(key, [...(out.values.get(key) ?? []), v]);
+    } else if (bare.includes(key)) out.flags.add(key);
+    else out.errors.push(`unknown option ${a}`);
+  }
+  return out;
+}
+
+/** Read and validate a design file; prints plain-words problems and returns null on failure. */
+export async function readDesign(file: string, json: boolean): Promise<Design | null> {
+  let text: string;
+  try {
+    text = await readFile(file, 'utf8');
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    console.error(`cannot read ${file}: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a folder' : (e as Error).message}`);
+    return null;
+  }
+  let doc: unknown;
+  try {
+    doc = JSON.parse(text);
+  } catch (e) {
+    console.error(`${file} is not valid JSON: ${(e as Error).message}`);
+    return null;
+  }
+  const parsed = parseDesign(doc);
+  if (!parsed.ok) {
+    console.error(`${file} is not a valid design document:`);
+    for (const line of describeIssues(parsed.issues.slice(0, 50))) console.error(`  ${line}`);
+    if (json) console.log(JSON.stringify({ valid: false, issues: parsed.issues }));
+    return null;
+  }
+  return parsed.design as Design;
+}
+
+/** The refusals the solver layer raises on purpose: shown as they are, never as a stack trace. */
+export function refusalMessage(err: unknown): string | null {
+  if (err instanceof CoulombError || err instanceof MeshError) return err.message;
+  return null;
+}
+
+export function toCoulombJson(r: CoulombResult) {
+  return {
+    order: r.order,
+    elements: r.elements,
+    dofs: r.dofs,
+    iterations: r.iterations,
+    sites: r.sites.map((s) => ({ id: s.id, uEv: s.uEv, uErrorEv: s.uErrorEv })),
+    pairs: r.pairs.map((p) => ({ a: p.a, b: p.b, distanceNm: p.distanceNm, vEv: p.vEv, vErrorEv: p.vErrorEv })),
+    seconds: r.seconds,
+  };
+}
+
+const meV = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(6) : '—');
+const meVs = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(2) : '—');
+
+function table(rows: string[][]): string {
+  const w = rows[0].map((_, c) => Math.max(...rows.map((r) => r[c].length)));
+  return rows.map((r) => r.map((cell, c) => (c === 0 ? cell.padEnd(w[c]) : cell.padStart(w[c]))).join('  ')).join('\n');
+}
+
+export function toCoulombReadable(design: Design, r: CoulombResult): string {
+  const out: string[] = [];
+  out.push(`Coulomb energies: ${design.name}`);
+  out.push(
+    `P${r.order} elements, ${r.mode === 'adaptive' ? 'adaptive refinement' : `${r.levels.length} nested graded meshes`}; finest mesh ${r.elements} tetrahedra, ${r.dofs} unknowns, ` +
+      `${r.iterations} PCG iterations; εr = ${design.host.epsilonR}, boundary ${design.enclosure.boundary.kind === 'grounded' ? 'grounded' : `multipole(order ${design.enclosure.boundary.order})`}; ${r.seconds.toFixed(1)} s`,
+  );
+  out.push('');
+  out.push(
+    table([
+      ['site', 'U (meV)', '± (meV)', 'discretisation', 'boundary', 'density cut', 'rate', 'charge in box'],
+      ...r.sites.map((s) => [s.id, meV(s.uEv), meVs(s.uErrorEv), meVs(s.budget.discretisationEv), meVs(s.budget.boundaryEv), meVs(s.budget.densityCutEv), `${s.budget.rate.toFixed(2)} ${s.budget.rateSource}`, s.charge.toFixed(8)]),
+    ]),
+  );
+  if (r.pairs.length) {
+    out.push('');
+    const shown = r.pairs.slice(0, 40);
+    out.push(
+      table([
+        ['pair', 'R (nm)', 'V (meV)', '± (meV)', 'discretisation', 'boundary', 'density cut'],
+        ...shown.map((p) => [`${p.a}–${p.b}`, p.distanceNm.toPrecision(4), meV(p.vEv), meVs(p.vErrorEv), meVs(p.budget.discretisationEv), meVs(p.budget.boundaryEv), meVs(p.budget.densityCutEv)]),
+      ]),
+    );
+    if (r.pairs.length > shown.length) out.push(`… ${r.pairs.length - shown.length} more pairs (use --json for all)`);
+  }
+  out.push('');
+  out.push(
+    `estimated relative error ${r.estimatedRelError.toExponential(2)}, target ${r.targetRelError} — ${r.meetsTarget ? 'met' : 'NOT met'}` +
+      ' (error columns: grid-convergence-index bar from nested meshes; maximum-principle boundary bound; density outside the box)',
+  );
+  if (r.notes.length) {
+    out.push('');
+    out.push('notes:');
+    for (const n of r.notes) out.push(`  - ${n}`);
+  }
+  out.push('');
+  out.push('Model assumptions:');
+  for (const a of r.assumptions) out.push(`  - ${a}`);
+  return out.join('\n');
+}
+
+export async function run(argv: string[]): Promise<number> {
+  const args = parseArgs(argv, ['--order', '--site', '--theta'], ['--json', '--adaptive', '--help']);
+  if (args.flags.has('--help')) {
+    console.log(USAGE);
+    return 0;
+  }
+  if (args.errors.length || args.files.length !== 1) {
+    console.error(`${args.errors.join('\n')}${args.errors.length ? '\n' : ''}${USAGE}`);
+    return 2;
+  }
+  const orderArg = args.values.get('--order')?.at(-1);
+  if (orderArg !== undefined && orderArg !== '1' && orderArg !== '2') {
+    console.error(`--order must be 1 or 2, not "${orderArg}"\n${USAGE}`);
+    return 2;
+  }
+  const thetaArg = args.values.get('--theta')?.at(-1);
+  const theta = thetaArg === undefined ? undefined : Number(thetaArg);
+  if (theta !== undefined && !(theta > 0 && theta <= 1)) {
+    console.error(`--theta must be a number in (0, 1], not "${thetaArg}"`);
+    return 2;
+  }
+  const json = args.flags.has('--json');
+  const design = await readDesign(args.files[0], json);
+  if (!design) return 1;
+  let result: CoulombResult;
+  try {
+    result = solveCoulomb(design, {
+      order: orderArg ? (Number(orderArg) as 1 | 2) : undefined,
+      adaptive: args.flags.has('--adaptive'),
+      theta,
+      siteIds: args.values.get('--site'),
+    });
+  } catch (err) {
+    const msg = refusalMessage(err);
+    if (msg === null) throw err;
+    console.error(`cannot compute U and V: ${msg}`);
+    return 1;
+  }
+  if (result.mode === 'adaptive' && !result.meetsTarget) {
+    console.error(`no result: ${result.notes[0] ?? 'the adaptive refinement did not reach the target'}`);
+    return 3;
+  }
+  console.log(json ? JSON.stringify(toCoulombJson(result), null, 2) : toCoulombReadable(design, result));
+  return 0;
+}
