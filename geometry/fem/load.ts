@@ -19,9 +19,12 @@
  *
  *  2. Under-resolved elements. Where the mesh is coarse compared with the density's decay
  *     length (ℓ = a/2 for exp(−2r/a), σ for a Gaussian) the fixed-degree rule is not accurate
- *     enough for a charge that must add up to 1 within 1e-6: such elements are bisected the
- *     same way until their radius is below RESOLVE_FRACTION·ℓ.
- *
+ *     enough for a charge that must add up to 1 within 1e-6. A degree-d rule errs by about
+ *     |f^(d+1)| R^(d+1)/(d+1)! × volume on a piece of radius R (Taylor remainder), and the
+ *     density's derivatives are ≈ ρ/ℓ^(d+1), so a piece is split while
+ *         ρ_max(ball) · volume · (R/ℓ)^(d+1)/(d+1)!  >  PIECE_TOLERANCE.
+ *     The estimate is pessimistic (the rule's own constant is far below one), so the graded
+ *     meshes rarely trigger it; a coarse uniform mesh does.
  * Elements whose whole bounding ball sees a density below NEGLIGIBLE (absolute: charge per
  * element) use a 4-point rule: they carry nothing the energies can notice, and they are most of
  * a graded mesh.
@@ -39,10 +42,8 @@ import type { FeSpace } from './space';
 
 /** Pieces containing the nucleus are split until their radius is below this × ℓ. */
 export const CUSP_RADIUS_FRACTION = 1 / 256;
-/** Other pieces are split until their radius is below this × ℓ (where the density matters): a guard
- * against meshes much coarser than the density; the graded meshes never need it (measured: the charge
- * error of a 1s density stays at 1e-8..1e-9 with or without it). */
-export const RESOLVE_FRACTION = 4;
+/** Pieces whose pessimistic quadrature-error estimate (see header) exceeds this are split. */
+export const PIECE_TOLERANCE = 1e-8;
 /** An element whose largest possible charge is below this uses the cheap rule (absolute). */
 export const NEGLIGIBLE = 1e-15;
 /** Safety stop on the recursion depth (each level halves the volume). */
@@ -51,8 +52,8 @@ const MAX_DEPTH = 60;
 export interface DensityLoadOptions {
   /** exact degree of the base rule (default 2·order + 2: the product ρ·v_j with ρ resolved) */
   degree?: number;
-  /** tighter or looser resolution criterion (default RESOLVE_FRACTION) */
-  resolveFraction?: number;
+  /** per-piece quadrature tolerance of the resolution criterion (default PIECE_TOLERANCE; Infinity switches it off) */
+  pieceTolerance?: number;
 }
 
 export interface DensityLoad {
@@ -103,7 +104,10 @@ export function densityLoad(space: FeSpace, orbital: Orbital, center: Vec3, opti
   const base: TetRule = tetQuadrature(options.degree ?? 2 * order + 2);
   const cheap: TetRule = tetQuadrature(2);
   const { ell, ellMax, cusp, peak } = densityScale(orbital);
-  const resolveR = (options.resolveFraction ?? RESOLVE_FRACTION) * ell;
+  const pieceTol = options.pieceTolerance ?? PIECE_TOLERANCE;
+  let fact = 1;
+  for (let k = 2; k <= base.degree + 1; k++) fact *= k;
+  const errScale = 1 / fact;
   const cuspR = CUSP_RADIUS_FRACTION * ell;
   const cx = center[0], cy = center[1], cz = center[2];
 
@@ -173,7 +177,7 @@ export function densityLoad(space: FeSpace, orbital: Orbital, center: Vec3, opti
     if (bound < NEGLIGIBLE) return 0;
     if (depth >= MAX_DEPTH) return 1;
     if (cusp && d <= ballR && ballR > cuspR) return 2;
-    if (ballR > resolveR && bound > NEGLIGIBLE * 1e3) return 2;
+    if (bound * Math.pow(ballR / ell, base.degree + 1) * errScale > pieceTol) return 2;
     return 1;
   };
 
