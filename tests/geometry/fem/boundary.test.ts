@@ -5,7 +5,7 @@ import { buildSpace } from '../../../geometry/fem/space';
 import { boundaryValues } from '../../../geometry/fem/boundary';
 import { potentialAt } from '../../../geometry/density';
 import type { Orbital, Vec3 } from '../../../geometry/design/types';
-import { oneSite } from './helpers';
+import { oneSite } from './coulomb-fixtures';
 
 const eps = 11.7;
 

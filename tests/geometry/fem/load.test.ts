@@ -8,7 +8,7 @@ import { buildSpace } from '../../../geometry/fem/space';
 import { densityLoad } from '../../../geometry/fem/load';
 import { chargeOutsideBox } from '../../../geometry/density';
 import type { Orbital, Vec3 } from '../../../geometry/design/types';
-import { oneSite } from './helpers';
+import { oneSite } from './coulomb-fixtures';
 
 const cases: { name: string; orbital: Orbital; half: number }[] = [
   { name: 'hydrogenic 1s', orbital: { model: 'hydrogenic-1s', radiusNm: 2.5 }, half: 30 },
