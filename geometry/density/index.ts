@@ -285,6 +285,11 @@ function gaussianOutside(sigma: number, center: Vec3, boxCenter: Vec3, half: Vec
   return outsideSum < 1e-6 ? outsideSum : 1 - inside;
 }
 
+/** Faces whose whole tail is below this are left out of the face rule (absolute). */
+const FACE_NEGLIGIBLE = 1e-14;
+/** Faces whose whole tail is below this share of the nearest face's tail are left out. */
+const FACE_RELATIVE = 1e-7;
+
 /**
  * Fraction of the density outside the box by integrating over the box's own faces:
  *   outside = Σ_faces ∫_face Q(r(p)) · d / (4π r³) dA,
@@ -294,7 +299,8 @@ function gaussianOutside(sigma: number, center: Vec3, boxCenter: Vec3, half: Vec
  * smooth (no kinks where rays cross box edges). Each face is split at the foot of the
  * perpendicular and each quarter uses s = d·sinh(t) in both directions (the solid-angle
  * weight has width d), with an n×n Gauss–Legendre rule (n = 8 by default: ~1e-4 relative,
- * ample for a warning figure; faces whose whole tail is below 1e-14 are skipped). Validated against the exact
+ * ample for a warning figure; faces whose whole tail is below 1e-7 of the nearest face's
+ * tail, or below 1e-14, are skipped). Validated against the exact
  * factorised Gaussian result in the tests. Works in the stretched frame u = A⁻¹(x − c).
  */
 function faceRuleOutside(model: Orbital['model'], A: Vec3, center: Vec3, boxCenter: Vec3, half: Vec3, n: number): number {
@@ -306,13 +312,17 @@ function faceRuleOutside(model: Orbital['model'], A: Vec3, center: Vec3, boxCent
     if (lo[k] >= 0 || hi[k] <= 0) return Number.NaN; // centre not strictly inside: caller handles
   }
   const { nodes, weights } = gaussLegendre(n);
+  // a face at distance d receives at most the tail beyond d: skip faces that cannot matter
+  // next to the nearest one (their share is below FACE_RELATIVE of it)
+  let nearest = Infinity;
+  for (let axis = 0; axis < 3; axis++) nearest = Math.min(nearest, -lo[axis], hi[axis]);
+  const skipBelow = Math.max(FACE_NEGLIGIBLE, FACE_RELATIVE * radialTail(model, nearest));
   let total = 0;
   for (let axis = 0; axis < 3; axis++) {
     const p = (axis + 1) % 3;
     const q = (axis + 2) % 3;
     for (const d of [-lo[axis], hi[axis]]) {
-      // a face at distance d holds at most the tail beyond d: skip faces that cannot matter
-      if (radialTail(model, d) < FACE_NEGLIGIBLE) continue;
+      if (radialTail(model, d) < skipBelow) continue;
       // quarters of the face around the foot point (0,0) in (p,q)
       for (const [pl, ql] of [
         [-lo[p], -lo[q]],
@@ -342,38 +352,47 @@ function faceRuleOutside(model: Orbital['model'], A: Vec3, center: Vec3, boxCent
   return total;
 }
 
-/** Faces whose whole tail is below this are left out of the face rule (≤ 1e-5 of any fraction the rule is used for). */
-const FACE_NEGLIGIBLE = 1e-14;
+/**
+ * Fraction of the unit e^{−2|u|} density beyond one plane at (stretched) distance d:
+ * the marginal along the normal is ½(1 + 2|z|)e^{−2|z|}, whose tail is ½(1 + d)e^{−2d}.
+ */
+export function halfSpaceTail1s(d: number): number {
+  return 0.5 * (1 + d) * Math.exp(-2 * d);
+}
 
-/** Below this rigorous upper bound the outside fraction is reported as the bound itself. */
-export const OUTSIDE_NEGLIGIBLE = 1e-9;
+/** Relative accuracy at which the half-space sum is accepted in place of the face rule. */
+const HALF_SPACE_ACCEPT = 1e-2;
 
 /**
- * Fraction of the orbital's unit charge lying outside the axis-aligned box
- * (boxCenter ± half). Gaussian: exact (erf per axis). 1s models: the face rule above, after a
- * rigorous shortcut — the box contains the (stretched) ball of radius equal to the nearest
- * face distance, so outside ≤ Q(d_min); when that is below OUTSIDE_NEGLIGIBLE it is returned
- * as is. A centre on or outside the box gives a value ≥ ½ from the same rule applied with the
- * complement, so it is computed crudely as 1 − inside (inside from the face rule is then not
- * defined); we return 1 for a centre outside and 0.5 for a centre on a face — the caller flags
- * such sites separately.
+ * Fraction of the orbital's unit charge lying outside the axis-aligned box (boxCenter ± half).
+ * Gaussian: exact (erf per axis). 1s models, in the stretched frame: the outside is the union of
+ * the six half-spaces beyond the faces, so by inclusion–exclusion
+ *   Σ_k T(d_k) − C ≤ outside ≤ Σ_k T(d_k),   T = halfSpaceTail1s,
+ * where C is at most Σ over perpendicular face pairs of Q(√(d_i² + d_j²))/4: two half-spaces
+ * meet only beyond the ball of that radius, inside one quadrant of the pair's plane, and the
+ * density is symmetric under each axis reflection, so that quadrant holds a quarter of the
+ * tail. Opposite faces never meet. When that C is below 1 % of the sum — every site not close
+ * to an edge or corner — the closed-form sum is returned (an upper bound within 1 %). Otherwise the face rule integrates it. A centre outside the box gives 1,
+ * a centre on a face 0.5 (the check flags such sites separately).
  */
 export function chargeOutsideBox(orbital: Orbital, center: Vec3, boxCenter: Vec3, half: Vec3, n = 8): number {
   if (orbital.model === 'gaussian') return gaussianOutside(orbital.sigmaNm, center, boxCenter, half);
   const A = stretch(orbital);
-  let dmin = Infinity;
-  let outside = false;
-  let onFace = false;
+  const lo = [0, 0, 0];
+  const hi = [0, 0, 0];
   for (let k = 0; k < 3; k++) {
-    const dk = (half[k] - Math.abs(center[k] - boxCenter[k])) / A[k];
-    if (dk < 0) outside = true;
-    else if (dk === 0) onFace = true;
-    dmin = Math.min(dmin, dk);
+    lo[k] = (center[k] - (boxCenter[k] - half[k])) / A[k];
+    hi[k] = (boxCenter[k] + half[k] - center[k]) / A[k];
+    if (lo[k] < 0 || hi[k] < 0) return 1;
   }
-  if (outside) return 1;
-  if (onFace) return 0.5;
-  const bound = radialTail(orbital.model, dmin);
-  if (bound < OUTSIDE_NEGLIGIBLE) return bound;
+  for (let k = 0; k < 3; k++) if (lo[k] === 0 || hi[k] === 0) return 0.5;
+  let sum = 0;
+  for (let k = 0; k < 3; k++) sum += halfSpaceTail1s(lo[k]) + halfSpaceTail1s(hi[k]);
+  let corr = 0;
+  for (let p = 0; p < 3; p++)
+    for (let q = p + 1; q < 3; q++)
+      for (const dp of [lo[p], hi[p]]) for (const dq of [lo[q], hi[q]]) corr += 0.25 * radialTail(orbital.model, Math.sqrt(dp * dp + dq * dq));
+  if (corr <= HALF_SPACE_ACCEPT * sum) return sum;
   return Math.min(1, Math.max(0, faceRuleOutside(orbital.model, A, center, boxCenter, half, n)));
 }
 

@@ -9,6 +9,7 @@ import {
   erf,
   erfc,
   gaussLegendre,
+  halfSpaceTail1s,
   pairEnergy,
   potentialAt,
   radialPotential,
@@ -158,5 +159,34 @@ describe('moments and charge outside a box', () => {
     const tail = (R: number) => Math.exp(-2 * R) * (1 + 2 * R + 2 * R * R);
     expect(out).toBeLessThan(tail(L / 2.5));
     expect(out).toBeGreaterThan(tail((Math.sqrt(3) * L) / 2.5));
+  });
+});
+
+describe('half-space closed form for 1s densities', () => {
+  it('½(1 + d)e^{−2d} (marginal of e^{−2r}/π) matches the face rule for a site near one face of a large box', () => {
+    const H1: Orbital = { model: 'hydrogenic-1s', radiusNm: 1 };
+    for (const d of [0.5, 2, 6]) {
+      const c: Vec3 = [50 - d, 0, 0];
+      const faces = chargeOutsideBoxByFaces(H1, c, [0, 0, 0], [50, 50, 50], 16);
+      expect(Math.abs(halfSpaceTail1s(d) / faces - 1)).toBeLessThan(1e-6);
+      expect(Math.abs(chargeOutsideBox(H1, c, [0, 0, 0], [50, 50, 50]) / faces - 1)).toBeLessThan(1e-6);
+    }
+  });
+  it('near an edge the face rule takes over and stays within 1e-4 of a fine rule', () => {
+    const c: Vec3 = [2.0, 2.2, 0];
+    const fine = chargeOutsideBoxByFaces(A, c, [0, 0, 0], [3, 3, 10], 24);
+    expect(Math.abs(chargeOutsideBox(A, c, [0, 0, 0], [3, 3, 10]) / fine - 1)).toBeLessThan(1e-4);
+  });
+});
+
+describe('closed-form path near (not at) an edge', () => {
+  it('is an upper bound within 1% of the fine face rule (inclusion–exclusion)', () => {
+    const Hc: Orbital = { model: 'hydrogenic-1s', radiusNm: 2.5 };
+    for (const c of [[16, 14, 0], [10, 12, 0], [-18, 3, 30]] as Vec3[]) {
+      const fine = chargeOutsideBoxByFaces(Hc, c, [0, 0, 0], [36, 36, 40], 24);
+      const v = chargeOutsideBox(Hc, c, [0, 0, 0], [36, 36, 40]);
+      expect(v).toBeGreaterThanOrEqual(fine * (1 - 1e-6));
+      expect(v).toBeLessThanOrEqual(fine * 1.01);
+    }
   });
 });
