@@ -126,7 +126,7 @@ export function clusterPaths(name) {
  * Creates the cluster on first use and starts it on 127.0.0.1:port. Returns a handle with the connection
  * URL builder and a stop() that shuts the server down (pg_ctl stop -m fast).
  */
-export async function startCluster({ name, port }) {
+export async function startCluster({ name, port, disposable = false }) {
   const bin0 = await ensurePostgresInstalled();
   const { dataDir, runDir, logFile, passwordFile } = clusterPaths(name);
   const user = await clusterUser();
@@ -140,6 +140,13 @@ export async function startCluster({ name, port }) {
     const v = fs.readFileSync(versionFile, 'utf8').trim();
     const own = path.join(VERSIONED_ROOT, v, 'bin');
     if (hasTools(own)) bin = own;
+    else if (disposable) {
+      // The test cluster holds nothing worth keeping: rebuild it with the PostgreSQL we have.
+      warn(`${path.relative(ROOT, dataDir)} was made by PostgreSQL ${v}, which is not installed; recreating it`);
+      const stale = asUser(user, path.join(bin, 'pg_ctl'), ['-D', dataDir, '-m', 'immediate', 'stop'], shQuote);
+      await run(stale.cmd, stale.args, { capture: true });
+      fs.rmSync(dataDir, { recursive: true, force: true });
+    }
   }
   const exec = (tool, args, opts) => {
     const c = asUser(user, path.join(bin, tool), args, shQuote);

@@ -251,7 +251,7 @@ async function main() {
         return 'TETRAWELL_TEST_DATABASE_URL migrated';
       }
       const port = portFromEnv(process.env.TETRAWELL_TEST_PG_PORT, 54339);
-      const cluster = await startCluster({ name: 'pg-test', port });
+      const cluster = await startCluster({ name: 'pg-test', port, disposable: true });
       cleanups.push(() => cluster.stop());
       databaseUrl = cluster.url('tetrawell_test');
       const info = await prepareDatabase({ databaseUrl, adminUrl: cluster.url('postgres'), recreate: true });
