@@ -186,7 +186,8 @@ async function main() {
     lines.push(`  Demo sign-in${project}:`);
     for (const l of logins) lines.push(`    ${l.email}  /  ${l.password}${l.role ? dim(`   (${l.role})`) : ''}`);
   } else {
-    lines.push('  Demo sign-in: the demo was seeded on an earlier run; its accounts are listed in README.md.');
+    lines.push('  Demo sign-in: none. This database already had accounts when the demo would have been seeded,');
+    lines.push('  or the demo accounts were removed since; sign in with an account of your own or sign up.');
   }
   lines.push('', dim('  Numbers shown by Tetrawell are model estimates; confirm them with your group\'s validated methods.'));
   lines.push(dim('  Press Ctrl-C to stop the server and the database.'), '');
