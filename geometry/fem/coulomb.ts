@@ -41,7 +41,7 @@ import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
 import { farFieldCheck, type FarFieldReport } from '../farfield';
 import { densityAt } from '../density';
-import { meshDesign, MeshError, type MeshDesignOptions } from '../mesh/index';
+import { meshDesign, MeshError, refineUniform, toTetMesh, type MeshDesignOptions } from '../mesh/index';
 import type { TetMesh } from '../mesh/types';
 import { buildSpace, type FeSpace } from './space';
 import { assembleStiffness, applyDirichlet } from './assemble';
@@ -435,6 +435,31 @@ function budgetsFrom(h: History, pl: Plan, order: 1 | 2, design: Design): { site
 }
 
 /**
+ * The nested a priori meshes of the graded mode, coarsest first, finest = the design's own mesh.
+ * Coarser levels double the core size h0 (factor 2, 4, … up to 64) and are kept only when they
+ * are really coarser (≤ 0.8× the unknowns-proxy vertices of the next level): where the size cap
+ * hmax governs, doubling h0 changes nothing, and two identical "levels" would fake a converged
+ * number. When no coarser distinct mesh exists, the finest is bisected uniformly three times
+ * (h/2) and that refinement becomes the reported level instead.
+ */
+export function gradedFamily(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions): TetMesh[] {
+  const base = meshOpts.h0Factor ?? 1;
+  const finest = meshDesign(design, { ...meshOpts, order, h0Factor: base, keepBisectionMesh: true });
+  const out: TetMesh[] = [finest.mesh];
+  let factor = base;
+  while (out.length < levels && factor < 64 * base) {
+    factor *= 2;
+    const m = meshDesign(design, { ...meshOpts, order, h0Factor: factor }).mesh;
+    if (m.coords.length <= 0.8 * out[0].coords.length) out.unshift(m);
+  }
+  if (out.length < 2) {
+    const finer = refineUniform(finest.bisectionMesh!, 3, { maxTets: Math.min(design.refinement.maxElements, meshOpts.hardCap ?? Infinity) });
+    out.push(toTetMesh(finer));
+  }
+  return out;
+}
+
+/**
  * U_i and V_ij of a design with error bars. Graded mode (default): `levels` nested a priori
  * graded meshes with core sizes 2^(levels−1)·h0 … h0 (h0 from design.refinement), the values of
  * the finest reported. Adaptive mode: residual-indicator refinement from the mesh for a 16× looser
@@ -466,20 +491,17 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
   if (!opts.adaptive) {
     mode = 'graded';
     const levels = Math.max(2, Math.floor(opts.levels ?? 3));
-    const baseFactor = opts.mesh?.h0Factor ?? 1;
-    // weights of the levels in the progress bar: ~8× the elements per level
-    const w = Array.from({ length: levels }, (_, l) => Math.pow(8, l));
+    const meshes = gradedFamily(design, order, levels, opts.mesh ?? {});
+    // weights of the levels in the progress bar: proportional to their sizes
+    const w = meshes.map((m) => m.tets.length);
     const wSum = w.reduce((a, b) => a + b, 0);
     let done = 0;
-    for (let l = 0; l < levels; l++) {
-      const factor = baseFactor * Math.pow(2, levels - 1 - l);
+    for (let l = 0; l < meshes.length; l++) {
       if (aborted(opts.signal)) throw new SolveAbortedError();
-      report(`mesh level ${l + 1}/${levels}`, done / wSum);
-      const md = meshDesign(design, { ...opts.mesh, order, h0Factor: factor });
-      const sol = solveLevel(design, md.mesh, order, pl.sites, pl.pairIdx, opts, (stage, f) =>
-        report(`level ${l + 1}/${levels}: ${stage}`, (done + w[l] * f) / wSum),
+      const sol = solveLevel(design, meshes[l], order, pl.sites, pl.pairIdx, opts, (stage, f) =>
+        report(`level ${l + 1}/${meshes.length}: ${stage}`, (done + w[l] * f) / wSum),
       );
-      record(sol, md.mesh, Math.pow(sol.space.nDofs, -1 / 3));
+      record(sol, meshes[l], Math.pow(sol.space.nDofs, -1 / 3));
       done += w[l];
     }
     const b = budgetsFrom(h, pl, order, design);
@@ -496,7 +518,15 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
   mode = 'adaptive';
   const theta = opts.theta ?? DEFAULT_THETA;
   const startTol = Math.min(0.2, 16 * tol);
-  const md = meshDesign(design, { ...opts.mesh, order, targetRelError: startTol, keepBisectionMesh: true });
+  // the starting mesh: graded for a looser tolerance; looser still when the budget asks for it
+  let md: ReturnType<typeof meshDesign> | null = null;
+  for (let t = startTol; !md; t *= 4) {
+    try {
+      md = meshDesign(design, { ...opts.mesh, order, targetRelError: Math.min(t, 0.5), keepBisectionMesh: true });
+    } catch (err) {
+      if (!(err instanceof MeshError && err.code === 'too-many-elements') || t >= 0.5) throw err;
+    }
+  }
   // The boundary bound does not shrink with refinement: refuse at once when it alone exceeds the target.
   const worstBoundary = Math.max(0, ...pl.far.sites.filter((s) => pl.sites.some((a) => a.id === s.id)).map((s) => s.uRelBound ?? Infinity));
   if (worstBoundary > tol) {
@@ -566,6 +596,27 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
       assumptions: COULOMB_ASSUMPTIONS,
     };
   }
+}
+
+/**
+ * U of every site with electrons on one given mesh (eV), for studies that build their own meshes.
+ */
+export function energiesOnMesh(
+  design: Design,
+  mesh: TetMesh,
+  order: 1 | 2,
+  opts: Pick<CoulombOptions, 'solverTol' | 'signal' | 'onProgress' | 'siteIds'> = {},
+): { siteIds: string[]; uEv: number[]; dofs: number; elements: number; iterations: number; charges: number[] } {
+  const sites = activeSites(design, opts.siteIds);
+  const sol = solveLevel(design, mesh, order, sites, new Int32Array(0), opts, (stage, f) => opts.onProgress?.({ stage, fraction: f }));
+  return {
+    siteIds: sites.map((s) => s.id),
+    uEv: Array.from(sol.self, (x) => x * COULOMB_EV_NM),
+    dofs: sol.space.nDofs,
+    elements: mesh.tets.length / 4,
+    iterations: sol.iterations,
+    charges: sol.charges,
+  };
 }
 
 /**

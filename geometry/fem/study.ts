@@ -1,8 +1,9 @@
 /**
  * Convergence studies of a design's Coulomb energies: tables and plot data.
  *
- *   refinement  nested a priori graded meshes with core sizes 2^(L−1)·h0 … h0 (the same family
- *               solveCoulomb uses for its error bars). Rows: unknowns, U per site, the change
+ *   refinement  a graded mesh for a core size 2^(L−1)·h0, then uniform refinement by three
+ *               bisections per level (every edge halved, N × 8, the grading kept), so the levels
+ *               form one self-similar nested family and the rate is clean. Rows: unknowns, U per site, the change
  *               from the previous level. Plot: U against unknowns N (log x), and |ΔU| against N
  *               on log–log axes with the least-squares rate: |ΔU| ≈ C N^(−rate). For a power
  *               law error C N^(−r) the successive differences fall at the same rate r, so the
@@ -15,12 +16,13 @@
  *               value like −1/(εr L); multipole U is flat once the box holds the density.
  */
 import type { Design, Boundary } from '../design/types';
-import { solveCoulomb, type CoulombOptions, type Progress, COULOMB_ASSUMPTIONS } from './coulomb';
+import { solveCoulomb, energiesOnMesh, type CoulombOptions, type Progress, COULOMB_ASSUMPTIONS } from './coulomb';
+import { meshDesign, refineUniform, toTetMesh } from '../mesh/index';
 
 export interface StudyOptions {
   kind: 'refinement' | 'box';
   order?: 1 | 2;
-  /** refinement: number of levels (default 4) */
+  /** refinement: number of levels (default 3; each is 8× the previous) */
   levels?: number;
   /** box: half-width factors (default [0.5, 0.75, 1, 1.5, 2]) */
   factors?: number[];
@@ -56,7 +58,8 @@ export interface StudyPlot {
 
 export interface RefinementRow {
   level: number;
-  h0Factor: number;
+  /** uniform bisections applied to the starting graded mesh (3 per level: every edge halved, N ≥ 8× with the closure) */
+  bisections: number;
   elements: number;
   dofs: number;
   iterations: number;
@@ -126,21 +129,30 @@ export function runStudy(design: Design, options: StudyOptions): StudyResult {
   const report = (stage: string, f: number): void => options.onProgress?.({ stage, fraction: f });
 
   if (options.kind === 'refinement') {
-    const levels = Math.max(3, Math.floor(options.levels ?? 4));
-    const r = solveCoulomb(design, {
-      order, levels, pairs: 'none', signal: options.signal,
-      onProgress: (p) => report(p.stage, p.fraction),
-    });
-    const siteIds = r.sites.map((s) => s.id);
-    const rows: RefinementRow[] = r.levels.map((l, k) => ({
-      level: k,
-      h0Factor: Math.pow(2, levels - 1 - k),
-      elements: l.elements,
-      dofs: l.dofs,
-      iterations: l.iterations,
-      uEv: l.uEv,
-      deltaEv: k === 0 ? null : Math.abs(l.uEv[0] - r.levels[k - 1].uEv[0]),
-    }));
+    const levels = Math.max(3, Math.floor(options.levels ?? 3));
+    // start graded for a looser target so that the finest level lands near the design's own mesh
+    const start = meshDesign(design, { order, h0Factor: Math.pow(2, levels - 1), keepBisectionMesh: true });
+    const bm = start.bisectionMesh!;
+    const rows: RefinementRow[] = [];
+    let siteIds: string[] = [];
+    for (let k = 0; k < levels; k++) {
+      if (k > 0) refineUniform(bm, 3, { maxTets: Math.min(design.refinement.maxElements, 5_000_000) });
+      const mesh = toTetMesh(bm);
+      const e = energiesOnMesh(design, mesh, order, {
+        signal: options.signal,
+        onProgress: (p) => report(`level ${k + 1}/${levels}: ${p.stage}`, (Math.pow(8, k) - 1 + p.fraction * Math.pow(8, k)) / (Math.pow(8, levels) - 1) * 7 / 8 + 0),
+      });
+      siteIds = e.siteIds;
+      rows.push({
+        level: k,
+        bisections: 3 * k,
+        elements: e.elements,
+        dofs: e.dofs,
+        iterations: e.iterations,
+        uEv: e.uEv,
+        deltaEv: k === 0 ? null : Math.abs(e.uEv[0] - rows[k - 1].uEv[0]),
+      });
+    }
     const fx = rows.slice(1).map((row) => row.dofs);
     const fy = rows.slice(1).map((row) => row.deltaEv as number);
     const fit = fitLogLog(fx, fy);
@@ -168,7 +180,7 @@ export function runStudy(design: Design, options: StudyOptions): StudyResult {
     ];
     return {
       kind: 'refinement', order, siteIds, rows, plots, fittedRate: fit ? fit.rate : null, theoreticalRate,
-      seconds: (performance.now() - t0) / 1000, notes: [...notes, ...r.notes], assumptions: COULOMB_ASSUMPTIONS,
+      seconds: (performance.now() - t0) / 1000, notes, assumptions: COULOMB_ASSUMPTIONS,
     };
   }
 

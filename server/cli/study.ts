@@ -41,8 +41,8 @@ export function toStudyReadable(design: Design, r: StudyResult): string {
     const rows = r.rows as RefinementRow[];
     out.push(
       table([
-        ['level', 'h0 ×', 'tetrahedra', 'unknowns', 'PCG its', ...r.siteIds.map((id) => `U ${id} (meV)`), '|ΔU| (meV)'],
-        ...rows.map((row) => [String(row.level), String(row.h0Factor), String(row.elements), String(row.dofs), String(row.iterations), ...row.uEv.map(meV), row.deltaEv === null ? '—' : (1000 * row.deltaEv).toPrecision(3)]),
+        ['level', 'bisections', 'tetrahedra', 'unknowns', 'PCG its', ...r.siteIds.map((id) => `U ${id} (meV)`), '|ΔU| (meV)'],
+        ...rows.map((row) => [String(row.level), String(row.bisections), String(row.elements), String(row.dofs), String(row.iterations), ...row.uEv.map(meV), row.deltaEv === null ? '—' : (1000 * row.deltaEv).toPrecision(3)]),
       ]),
     );
     out.push('');
