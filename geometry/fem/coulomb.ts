@@ -444,12 +444,12 @@ function budgetsFrom(h: History, pl: Plan, order: 1 | 2, design: Design): { site
  */
 export function gradedFamily(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions): TetMesh[] {
   const base = meshOpts.h0Factor ?? 1;
-  const finest = meshDesign(design, { ...meshOpts, order, h0Factor: base, keepBisectionMesh: true });
+  const finest = meshDesign(design, { order, ...meshOpts, h0Factor: base, keepBisectionMesh: true });
   const out: TetMesh[] = [finest.mesh];
   let factor = base;
   while (out.length < levels && factor < 64 * base) {
     factor *= 2;
-    const m = meshDesign(design, { ...meshOpts, order, h0Factor: factor }).mesh;
+    const m = meshDesign(design, { order, ...meshOpts, h0Factor: factor }).mesh;
     if (m.coords.length <= 0.8 * out[0].coords.length) out.unshift(m);
   }
   if (out.length < 2) {

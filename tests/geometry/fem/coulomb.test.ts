@@ -1,0 +1,109 @@
+/**
+ * U and V against closed forms, the error bars against the true error, refusals, P1/P2
+ * consistency and translation invariance.
+ */
+import { describe, expect, it } from 'vitest';
+import { solveCoulomb, richardson, observedRate, CoulombError, GCI_SAFETY_OBSERVED, GCI_SAFETY_THEORETICAL } from '../../../geometry/fem/coulomb';
+import { erf } from '../../../geometry/density';
+import { COULOMB_EV_NM, SI_LATTICE_CONSTANT_NM } from '../../../geometry/units';
+import type { Design } from '../../../geometry/design/types';
+import { oneSite } from './coulomb-fixtures';
+
+const EPS = 11.7;
+// e²/(4πε0) = 1.439964547 eV·nm (CODATA 2018), held in geometry/units.ts
+const K = COULOMB_EV_NM / EPS;
+
+describe('richardson / observedRate', () => {
+  it('recovers an exact power law E = E∞ + C s^q (Richardson 1911; Roache 1994 safety factors)', () => {
+    const s = [0.4, 0.2, 0.1];
+    const e = s.map((x) => 1 + 2 * x ** 3);
+    expect(observedRate(s, e)).toBeCloseTo(3, 8);
+    const r = richardson(s, e, 4);
+    expect(r.rateSource).toBe('observed');
+    expect(r.rate).toBeCloseTo(3, 8);
+    expect(r.extrapolated).toBeCloseTo(1, 10);
+    expect(r.error).toBeCloseTo(GCI_SAFETY_OBSERVED * 2 * 0.1 ** 3, 10);
+  });
+  it('caps the observed rate at the theoretical one and falls back with two levels or mixed signs', () => {
+    const s = [0.4, 0.2, 0.1];
+    const fast = richardson(s, s.map((x) => 1 + x ** 6), 4);
+    expect(fast.rate).toBe(4);
+    const two = richardson([0.2, 0.1], [1.1, 1.05], 2);
+    expect(two.rateSource).toBe('theoretical');
+    expect(two.error).toBeCloseTo(GCI_SAFETY_THEORETICAL * 0.05 / 3, 12);
+    const mixed = richardson(s, [1, 1.1, 1.05], 2);
+    expect(mixed.rateSource).toBe('theoretical');
+    expect(richardson([0.1], [1], 2).error).toBe(Infinity);
+  });
+});
+
+function twoGaussians(R: number, sigma: number, half: number, tol: number): Design {
+  const base = oneSite({ model: 'gaussian', sigmaNm: sigma }, { half, order: 2, tol });
+  return {
+    ...base,
+    sites: [
+      { id: 'a', species: 'P', position: [-R / 2, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: sigma } },
+      { id: 'b', species: 'P', position: [R / 2, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: sigma } },
+      { id: 'ion', species: 'P', position: [0, 3, 0], electrons: 0 },
+    ],
+  };
+}
+
+describe('solveCoulomb', () => {
+  it('Gaussian self-energy e²/(4πε0 εr)/(σ√π) and pair energy e²/(4πε0 εr)·erf(R/2σ)/R within the error bars (standard Gaussian results)', () => {
+    const sigma = 1, R = 3;
+    const r = solveCoulomb(twoGaussians(R, sigma, 16, 1e-3));
+    const uExact = K / (sigma * Math.sqrt(Math.PI));
+    const vExact = (K * erf(R / (2 * sigma))) / R;
+    expect(r.sites.map((s) => s.id)).toEqual(['a', 'b']); // the ionised site has no density
+    expect(r.notes.join(' ')).toMatch(/ion/);
+    for (const s of r.sites) {
+      expect(Math.abs(s.uEv - uExact)).toBeLessThanOrEqual(s.uErrorEv);
+      expect(s.uErrorEv / uExact).toBeLessThan(1e-2); // honest, and still useful
+      expect(Math.abs(s.charge - 1)).toBeLessThan(1e-6);
+    }
+    expect(r.pairs).toHaveLength(1);
+    const p = r.pairs[0];
+    expect(p.distanceNm).toBeCloseTo(R, 12);
+    expect(Math.abs(p.vEv - vExact)).toBeLessThanOrEqual(p.vErrorEv);
+    expect(p.vErrorEv / vExact).toBeLessThan(1e-2);
+  });
+
+  it('asked for U of a site without electrons: a clear error, no number', () => {
+    const d = twoGaussians(3, 1, 16, 1e-2);
+    expect(() => solveCoulomb(d, { siteIds: ['ion'] })).toThrow(CoulombError);
+    expect(() => solveCoulomb(d, { siteIds: ['ion'] })).toThrow(/no electrons/);
+    expect(() => solveCoulomb(d, { siteIds: ['nope'] })).toThrow(/no site "nope"/);
+  });
+
+  it('an orbital far narrower than the budget can resolve: refused before meshing, with the numbers', () => {
+    // a 0.01 nm orbital in a 40 nm box: the graded mesh needs ~5e3 tetrahedra, the budget allows 3e3
+    const d = oneSite({ model: 'hydrogenic-1s', radiusNm: 0.01 }, { half: 40, tol: 1e-4, maxElements: 3000 });
+    expect(() => solveCoulomb(d)).toThrow(/needs about .* tetrahedra, more than the design's maxElements \(3000\)/);
+  });
+
+  it('P1 and P2 on the same meshes agree to their error estimates', () => {
+    const d = oneSite({ model: 'hydrogenic-1s', radiusNm: 2.5 }, { half: 30, tol: 3e-3, order: 2 });
+    const r2 = solveCoulomb(d, { order: 2 });
+    const r1 = solveCoulomb(d, { order: 1, mesh: { order: 2 } });
+    expect(r1.elements).toBe(r2.elements);
+    const a = r1.sites[0], b = r2.sites[0];
+    expect(Math.abs(a.uEv - b.uEv)).toBeLessThanOrEqual(a.uErrorEv + b.uErrorEv);
+    // and P1 is the less accurate one on the same mesh
+    expect(a.uErrorEv).toBeGreaterThan(b.uErrorEv);
+  });
+
+  it('is invariant under translating the whole design by one lattice vector (a/2)(1,1,0), to solver tolerance', () => {
+    const d = oneSite({ model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 }, { half: 20, tol: 1e-2, order: 2, boundary: { kind: 'multipole', order: 2 } });
+    const t = SI_LATTICE_CONSTANT_NM / 2; // FCC primitive vector of the diamond lattice
+    const shifted: Design = {
+      ...d,
+      sites: d.sites.map((s) => ({ ...s, position: [s.position[0] + t, s.position[1] + t, s.position[2]] })),
+      enclosure: { ...d.enclosure, center: [t, t, 0] },
+    };
+    const a = solveCoulomb(d, { levels: 2 });
+    const b = solveCoulomb(shifted, { levels: 2 });
+    expect(b.elements).toBe(a.elements);
+    expect(Math.abs(a.sites[0].uEv - b.sites[0].uEv) / a.sites[0].uEv).toBeLessThan(1e-8);
+  });
+});
