@@ -6,6 +6,7 @@
  * Figures are printed, never asserted. Set TETRAWELL_BENCH_MAX_DOFS to cap the largest problems
  * (default 1.3e6) and TETRAWELL_BENCH_JACOBI_MAX_DOFS to skip slow Jacobi runs (default: no cap).
  */
+import { cpus, loadavg } from 'node:os';
 import { kuhnBox, refineToSize, refineUniform, toTetMesh } from '../../geometry/mesh';
 import type { TetMesh } from '../../geometry/mesh/types';
 import { buildSpace } from '../../geometry/fem/space';
@@ -53,11 +54,19 @@ function bestOf(reps: number, f: () => void): number {
 
 function spmvBandwidth(): void {
   console.log('\n-- spmv bandwidth vs memcpy');
-  const m = kuhnBox({ center: [1, 1, 1], halfExtents: [1, 1, 1], cells: [2, 2, 2] });
-  refineUniform(m, 12);
-  const mesh = toTetMesh(m);
-  for (const order of [1, 2] as const) {
-    const space = buildSpace(mesh, order);
+  console.log(`   (load average ${loadavg().map((v) => v.toFixed(1)).join(' ')} on ${cpus().length} cores: other work skews both figures)`);
+  // one memcpy figure for the process: 128 MB, far beyond the caches, best of 20, read + write
+  // counted as in STREAM Copy
+  const src = new Uint8Array(128 * 2 ** 20).fill(7);
+  const dst = new Uint8Array(src.length);
+  const tCopy = bestOf(20, () => dst.set(src));
+  const bwCopy = (2 * src.length) / tCopy / 1e9;
+  // uniform meshes large enough that the matrix (~50–100 MB) is far outside the caches:
+  // P1 after 15 bisection generations (274,625 unknowns), P2 after 12 (274,625 unknowns)
+  for (const [order, times] of [[1, 15], [2, 12]] as const) {
+    const m = kuhnBox({ center: [1, 1, 1], halfExtents: [1, 1, 1], cells: [2, 2, 2] });
+    refineUniform(m, times);
+    const space = buildSpace(toTetMesh(m), order);
     const A: Csr = assembleSystem(space, [EPS]).A;
     const n = A.n;
     const nnz = A.cols.length;
@@ -65,18 +74,11 @@ function spmvBandwidth(): void {
     const y = new Float64Array(n);
     // bytes an spmv must move at least: vals (8) + cols (4) per nonzero, rowPtr (4), x read once, y written once
     const bytes = 12 * nnz + 4 * (n + 1) + 8 * n + 8 * n;
-    const tSpmv = bestOf(10, () => spmv(A, x, y));
-    // memcpy of the same amount of matrix data (vals + cols), counted as read + write like STREAM Copy
-    const src = new Uint8Array(12 * nnz);
-    const dst = new Uint8Array(12 * nnz);
-    src.fill(7);
-    const tCopy = bestOf(10, () => dst.set(src));
+    const tSpmv = bestOf(20, () => spmv(A, x, y));
     const bwSpmv = bytes / tSpmv / 1e9;
-    const bwCopy = (2 * src.length) / tCopy / 1e9;
     console.log(
-      `P${order}: n=${n} nnz=${nnz} (${(nnz / n).toFixed(1)}/row)  spmv ${(tSpmv * 1e3).toFixed(2)} ms = ${bwSpmv.toFixed(2)} GB/s` +
-        `  memcpy ${(tCopy * 1e3).toFixed(2)} ms = ${bwCopy.toFixed(2)} GB/s (read+write)` +
-        `  ratio ${((100 * bwSpmv) / bwCopy).toFixed(0)}% (target ≥ 50%)`,
+      `P${order}: n=${n} nnz=${nnz} (${(nnz / n).toFixed(1)}/row, ${(bytes / 2 ** 20).toFixed(0)} MB)  spmv ${(tSpmv * 1e3).toFixed(2)} ms` +
+        ` = ${bwSpmv.toFixed(2)} GB/s   memcpy ${bwCopy.toFixed(2)} GB/s   ratio ${((100 * bwSpmv) / bwCopy).toFixed(0)}% (target ≥ 50%)`,
     );
   }
   console.log('   spmv bytes = 12·nnz + 4·(n+1) + 16·n (x read once, y written once): a lower bound on traffic');
@@ -92,6 +94,7 @@ function iterationTable(): void {
     { order: 2, h0: 0.05 }, { order: 2, h0: 0.022 }, { order: 2, h0: 0.0095 },
   ];
   console.log('order  unknowns   tets      levels  jacobi(it, s)      multigrid(it, setup s, solve s)  N^(1/3)');
+  const rows: { order: number; n: number; jac: number; mg: number }[] = [];
   const meshes = new Map<number, TetMesh>();
   for (const { order, h0 } of plan) {
     let mesh = meshes.get(h0);
@@ -117,15 +120,38 @@ function iterationTable(): void {
     const rm = pcg(sys.A, sys.b, null, { preconditioner: mg, tol: 1e-10 });
     const solve = (performance.now() - t) / 1000;
     let jac = 'skipped';
+    let jacIt = NaN;
     if (space.nDofs <= jacobiMax) {
       t = performance.now();
       const rj = pcg(sys.A, sys.b, null, { preconditioner: jacobi(sys.A), tol: 1e-10, maxIter: 20000 });
       jac = `${rj.iterations}${rj.converged ? '' : '(!)'}, ${((performance.now() - t) / 1000).toFixed(1)}`;
+      jacIt = rj.iterations;
     }
+    rows.push({ order, n: space.nDofs, jac: jacIt, mg: rm.iterations });
     console.log(
       `P${order}     ${String(space.nDofs).padEnd(10)} ${String(nT).padEnd(9)} ${String(mg.stats.levels).padEnd(7)} ` +
         `${jac.padEnd(18)} ${String(rm.iterations).padEnd(3)} ${setup.toFixed(2).padStart(6)} ${solve.toFixed(2).padStart(8)}` +
         `               ${Math.cbrt(space.nDofs).toFixed(0)}`,
+    );
+  }
+  // least-squares slope of log(iterations) against log(N), per order and method
+  const slope = (pts: [number, number][]): number => {
+    const ok = pts.filter(([, y]) => Number.isFinite(y));
+    if (ok.length < 2) return NaN;
+    const mx = ok.reduce((s, [x]) => s + Math.log(x), 0) / ok.length;
+    const my = ok.reduce((s, [, y]) => s + Math.log(y), 0) / ok.length;
+    let num = 0, den = 0;
+    for (const [x, y] of ok) {
+      num += (Math.log(x) - mx) * (Math.log(y) - my);
+      den += (Math.log(x) - mx) ** 2;
+    }
+    return num / den;
+  };
+  for (const order of [1, 2]) {
+    const r = rows.filter((q) => q.order === order);
+    console.log(
+      `   P${order}: iterations ∝ N^k with k = ${slope(r.map((q) => [q.n, q.jac])).toFixed(2)} (Jacobi), ` +
+        `${slope(r.map((q) => [q.n, q.mg])).toFixed(2)} (multigrid); N^(1/3) growth means k = 0.33`,
     );
   }
   console.log('   target: multigrid under 30 iterations across the range; Jacobi grows like N^(1/3)');
