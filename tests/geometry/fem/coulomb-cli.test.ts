@@ -1,0 +1,104 @@
+/** The coulomb and study commands: exact JSON shapes, readable honesty, refusals and exit codes. */
+import { afterEach, describe, expect, it, vi } from 'vitest';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { run as coulomb } from '../../../server/cli/coulomb';
+import { run as study } from '../../../server/cli/study';
+import { oneSite } from './coulomb-fixtures';
+
+const dir = mkdtempSync(join(tmpdir(), 'tetrawell-coulomb-'));
+function designFile(name: string, doc: unknown): string {
+  const p = join(dir, name);
+  writeFileSync(p, JSON.stringify(doc));
+  return p;
+}
+
+function capture() {
+  const out: string[] = [];
+  const err: string[] = [];
+  vi.spyOn(console, 'log').mockImplementation((...a: unknown[]) => void out.push(a.join(' ')));
+  vi.spyOn(console, 'error').mockImplementation((...a: unknown[]) => void err.push(a.join(' ')));
+  return { out, err };
+}
+afterEach(() => vi.restoreAllMocks());
+
+const base = oneSite({ model: 'gaussian', sigmaNm: 1 }, { half: 10, order: 2, tol: 1e-2 });
+const twoSites = {
+  ...base,
+  sites: [
+    { id: 'a', species: 'P', position: [-1.5, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: 1 } },
+    { id: 'b', species: 'P', position: [1.5, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: 1 } },
+    { id: 'c', species: 'P', position: [0, 2, 0], electrons: 0 },
+  ],
+};
+
+describe('coulomb command', () => {
+  it('--json prints exactly { order, elements, dofs, iterations, sites, pairs, seconds }', async () => {
+    const io = capture();
+    const code = await coulomb([designFile('two.json', twoSites), '--json']);
+    expect(code).toBe(0);
+    const j = JSON.parse(io.out.join('\n'));
+    expect(Object.keys(j).sort()).toEqual(['dofs', 'elements', 'iterations', 'order', 'pairs', 'seconds', 'sites']);
+    expect(j.order).toBe(2);
+    expect(j.sites.map((s: { id: string }) => s.id)).toEqual(['a', 'b']);
+    for (const s of j.sites) expect(Object.keys(s).sort()).toEqual(['id', 'uErrorEv', 'uEv']);
+    expect(j.pairs).toHaveLength(1);
+    expect(Object.keys(j.pairs[0]).sort()).toEqual(['a', 'b', 'distanceNm', 'vErrorEv', 'vEv']);
+    expect(j.pairs[0].distanceNm).toBeCloseTo(3, 12);
+  });
+
+  it('readable output states the model assumptions and that values are estimates', async () => {
+    const io = capture();
+    const code = await coulomb([designFile('one.json', base), '--order', '1']);
+    expect(code).toBe(0);
+    const text = io.out.join('\n');
+    expect(text).toMatch(/P1 elements/);
+    expect(text).toMatch(/Model assumptions/);
+    expect(text).toMatch(/estimates to be confirmed by your group's own validated methods/);
+  });
+
+  it('a site without electrons asked for U: exit 1, a plain message, no numbers', async () => {
+    const io = capture();
+    const code = await coulomb([designFile('two2.json', twoSites), '--site', 'c', '--json']);
+    expect(code).toBe(1);
+    expect(io.err.join('\n')).toMatch(/site "c" has no electrons/);
+    expect(io.out).toHaveLength(0);
+  });
+
+  it('a budget that cannot reach the tolerance (adaptive): exit 3 with the reason, no numbers', async () => {
+    const io = capture();
+    const tight = oneSite({ model: 'gaussian', sigmaNm: 1 }, { half: 10, order: 1, tol: 1e-6, maxElements: 20_000 });
+    const code = await coulomb([designFile('tight.json', tight), '--adaptive', '--json']);
+    expect(code).toBe(3);
+    expect(io.err.join('\n')).toMatch(/budget .* spent/);
+    expect(io.out).toHaveLength(0);
+  });
+
+  it('usage errors exit 2; invalid documents exit 1 with field paths', async () => {
+    const io = capture();
+    expect(await coulomb([designFile('x.json', base), '--order', '3'])).toBe(2);
+    expect(await coulomb([])).toBe(2);
+    expect(await coulomb([designFile('bad.json', { ...base, host: { ...base.host, epsilonR: -1 } })])).toBe(1);
+    expect(io.err.join('\n')).toMatch(/epsilonR/);
+  });
+});
+
+describe('study command', () => {
+  it('--kind refinement --json prints rows, plots and the fitted rate', async () => {
+    const io = capture();
+    const coarse = oneSite({ model: 'gaussian', sigmaNm: 1 }, { half: 8, order: 1, tol: 5e-2 });
+    const code = await study([designFile('s.json', coarse), '--kind', 'refinement', '--json']);
+    expect(code).toBe(0);
+    const j = JSON.parse(io.out.join('\n'));
+    expect(j.kind).toBe('refinement');
+    expect(j.rows).toHaveLength(3);
+    expect(typeof j.fittedRate).toBe('number');
+    expect(j.plots[1].logX).toBe(true);
+  });
+  it('a missing or wrong --kind is a usage error', async () => {
+    capture();
+    expect(await study([designFile('s2.json', base)])).toBe(2);
+    expect(await study([designFile('s3.json', base), '--kind', 'sideways'])).toBe(2);
+  });
+});
