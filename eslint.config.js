@@ -41,11 +41,8 @@ export default defineConfig([
     // The client runs in the browser.
     files: ['app/**/*.{ts,tsx,js,jsx}'],
     languageOptions: { globals: { ...globals.browser } },
-    plugins: { 'react-hooks': reactHooks },
-    rules: {
-      'react-hooks/rules-of-hooks': 'error',
-      'react-hooks/exhaustive-deps': 'warn',
-    },
+    // The plugin's recommended set: the rules of hooks plus the React Compiler's checks (purity, refs, state in effects).
+    ...reactHooks.configs.flat.recommended,
   },
   {
     // The numerical core is shared by browser and Node: only what both have.
