@@ -5,7 +5,12 @@
  *   const { A, b } = assembleSystem(space, eps, { load });   // ∫ε∇φi·∇φj and ∫f φi, one pass
  *   const sys = applyDirichlet(A, b, space.boundaryDof, g);  // symmetric lifting
  *   const M = multigridPreconditioner(space, sys.A, { epsByRegion: eps });  // or jacobi(sys.A)
- *   const { x, iterations } = pcg(sys.A, sys.b, null, { preconditioner: M, tol: 1e-10, onProgress, signal });
+ *   const { x, iterations } = pcg(sys.A, sys.b, g, { preconditioner: M, tol: 1e-10, onProgress, signal });
+ *
+ * Starting PCG from x0 = g keeps the boundary values bit-exact (their rows are identity rows).
+ * multigridPreconditioner needs the bisection hierarchy of the mesh (parents, vertexLevel,
+ * tetLevel from geometry/mesh) and throws HierarchyError when it is inconsistent; jacobi works on
+ * any mesh. Build the preconditioner once per matrix and reuse it for every right-hand side.
  *
  * Units are those of geometry/units.ts. Everything is deterministic and uses flat typed arrays.
  * Other modules of this folder append their exports below the solver core's.

@@ -97,6 +97,20 @@ describe('multigrid preconditioner on the bisection hierarchy', () => {
     expect(Math.max(...counts) - Math.min(...counts)).toBeLessThanOrEqual(8);
   });
 
+  it('works with the Gauss–Seidel coarse solver and with ε read off the matrix', () => {
+    const mesh = uniformBox(4, 0.5, 6); // 27 interior coarse vertices
+    const { space, A, b } = system(mesh, 2);
+    const dense = pcg(A, b, null, { preconditioner: multigridPreconditioner(space, A, { epsByRegion: [EPS_SI] }) });
+    const sweeps = pcg(A, b, null, { preconditioner: multigridPreconditioner(space, A, { denseCoarseMax: 0 }) });
+    expect(dense.iterations).toBeLessThan(30);
+    expect(sweeps.iterations).toBeLessThan(30);
+    // inferred ε gives the same operator as the given one, up to rounding of the ratio
+    const z1 = new Float64Array(space.nDofs), z2 = new Float64Array(space.nDofs);
+    multigridPreconditioner(space, A, { epsByRegion: [EPS_SI] }).apply(b, z1);
+    multigridPreconditioner(space, A).apply(b, z2);
+    for (let i = 0; i < z1.length; i++) expect(z2[i]).toBeCloseTo(z1[i], 10);
+  });
+
   it('refuses a mesh whose hierarchy is inconsistent, with a clear error', () => {
     const mesh = uniformBox(1, 1, 2);
     const broken: TetMesh = { ...mesh, parents: mesh.parents.slice() };
