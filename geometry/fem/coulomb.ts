@@ -74,8 +74,10 @@ export interface CoulombOptions {
   order?: 1 | 2;
   /** adaptive refinement from a coarse graded mesh (default false: a priori graded meshes) */
   adaptive?: boolean;
-  /** Dörfler θ for the adaptive mode (default 0.5) */
+  /** Dörfler θ for the adaptive mode (default DEFAULT_THETA = 0.7) */
   theta?: number;
+  /** adaptive mode: the starting mesh is graded for startFactor × targetRelError (default 4) */
+  startFactor?: number;
   /** sites asked for U (ids); default every site with electrons. A site without electrons here is an error. */
   siteIds?: string[];
   /** which pairs get V: the far-field check's selection (all pairs up to 64 sites, else bond-graph neighbours; default), or none */
@@ -517,7 +519,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
   // ---- adaptive
   mode = 'adaptive';
   const theta = opts.theta ?? DEFAULT_THETA;
-  const startTol = Math.min(0.2, 16 * tol);
+  const startTol = Math.min(0.2, (opts.startFactor ?? 4) * tol);
   // the starting mesh: graded for a looser tolerance; looser still when the budget asks for it
   let md: ReturnType<typeof meshDesign> | null = null;
   for (let t = startTol; !md; t *= 4) {

@@ -43,14 +43,16 @@ import type { FeSpace } from './space';
 /** Pieces containing the nucleus are split until their radius is below this × ℓ. */
 export const CUSP_RADIUS_FRACTION = 1 / 256;
 /** Pieces whose pessimistic quadrature-error estimate (see header) exceeds this are split. */
-export const PIECE_TOLERANCE = 1e-8;
+export const PIECE_TOLERANCE = 1e-7;
 /** An element whose largest possible charge is below this uses the cheap rule (absolute). */
 export const NEGLIGIBLE = 1e-15;
 /** Safety stop on the recursion depth (each level halves the volume). */
 const MAX_DEPTH = 60;
 
 export interface DensityLoadOptions {
-  /** exact degree of the base rule (default 2·order + 2: the product ρ·v_j with ρ resolved) */
+  /** exact degree of the base rule (default 5: the positive 15-point rule; with v_j of degree ≤ 2 it
+   *  still integrates the density's Taylor expansion to third order, and the resolution criterion
+   *  splits the pieces where that is not enough) */
   degree?: number;
   /** per-piece quadrature tolerance of the resolution criterion (default PIECE_TOLERANCE; Infinity switches it off) */
   pieceTolerance?: number;
@@ -101,7 +103,9 @@ export function densityLoad(space: FeSpace, orbital: Orbital, center: Vec3, opti
   const nLoc = space.dofsPerTet;
   const coords = mesh.coords;
   const tets = mesh.tets;
-  const base: TetRule = tetQuadrature(options.degree ?? 2 * order + 2);
+  const base: TetRule = tetQuadrature(options.degree ?? 5);
+  // a local binding: module re-exports can compile to getters, too slow for the innermost loop
+  const rho = densityAt;
   const cheap: TetRule = tetQuadrature(2);
   const { ell, ellMax, cusp, peak } = densityScale(orbital);
   const pieceTol = options.pieceTolerance ?? PIECE_TOLERANCE;
@@ -135,7 +139,7 @@ export function densityLoad(space: FeSpace, orbital: Orbital, center: Vec3, opti
       const x = lam[0] * p[0] + lam[1] * p[3] + lam[2] * p[6] + lam[3] * p[9];
       const y = lam[0] * p[1] + lam[1] * p[4] + lam[2] * p[7] + lam[3] * p[10];
       const z = lam[0] * p[2] + lam[1] * p[5] + lam[2] * p[8] + lam[3] * p[11];
-      const w = densityAt(orbital, center, x, y, z) * rule.weights[k] * jac;
+      const w = rho(orbital, center, x, y, z) * rule.weights[k] * jac;
       if (w === 0) continue;
       s += w;
       if (order === 1) {
@@ -205,7 +209,7 @@ export function densityLoad(space: FeSpace, orbital: Orbital, center: Vec3, opti
       const x = l0 * p[0] + l1 * p[3] + l2 * p[6] + l3 * p[9];
       const y = l0 * p[1] + l1 * p[4] + l2 * p[7] + l3 * p[10];
       const z = l0 * p[2] + l1 * p[5] + l2 * p[8] + l3 * p[11];
-      const w = densityAt(orbital, center, x, y, z) * rule.weights[k] * jac;
+      const w = rho(orbital, center, x, y, z) * rule.weights[k] * jac;
       s += w;
       const o = nLoc * k;
       for (let i = 0; i < nLoc; i++) local[i] += w * tab[o + i];
