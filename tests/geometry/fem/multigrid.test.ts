@@ -6,6 +6,7 @@ import type { Csr } from '../../../geometry/fem/csr';
 import { pcg, jacobi } from '../../../geometry/fem/pcg';
 import { multigridPreconditioner, HierarchyError } from '../../../geometry/fem/multigrid';
 import type { TetMesh } from '../../../geometry/mesh/types';
+import { kuhnBox, refine, refineUniform, toTetMesh } from '../../../geometry/mesh';
 
 const EPS_SI = 11.7; // silicon εr, common practice (geometry/units.ts)
 const site: [number, number, number] = [0.93, 1.07, 1.01];
@@ -109,6 +110,36 @@ describe('multigrid preconditioner on the bisection hierarchy', () => {
     multigridPreconditioner(space, A, { epsByRegion: [EPS_SI] }).apply(b, z1);
     multigridPreconditioner(space, A).apply(b, z2);
     for (let i = 0; i < z1.length; i++) expect(z2[i]).toBeCloseTo(z1[i], 10);
+  });
+
+  it('stays under 30 iterations after many rounds of marked refinement (the adaptive loop)', () => {
+    // a non-cubic box, uniform start, then 12 refine() calls with closure around two points and a line
+    const m = kuhnBox({ center: [0, 0, 0], halfExtents: [1, 1.5, 1], cells: [2, 3, 2] });
+    refineUniform(m, 3);
+    for (let round = 0; round < 12; round++) {
+      const marked = new Uint8Array(m.nTets);
+      for (let t = 0; t < m.nTets; t++) {
+        let cx = 0, cy = 0, cz = 0;
+        for (let i = 0; i < 4; i++) {
+          const v = m.tets[4 * t + i];
+          cx += m.coords[3 * v] / 4;
+          cy += m.coords[3 * v + 1] / 4;
+          cz += m.coords[3 * v + 2] / 4;
+        }
+        const d = Math.min(Math.hypot(cx - 0.3, cy - 0.2, cz), Math.hypot(cx + 0.4, cy - 0.7, cz - 0.1), Math.abs(cy + 0.5) + Math.abs(cz - 0.2));
+        if (d < 0.6 / (round + 1)) marked[t] = 1;
+      }
+      refine(m, marked);
+    }
+    const mesh = toTetMesh(m);
+    for (const order of [1, 2] as const) {
+      const { space, A, b } = system(mesh, order);
+      const mg = multigridPreconditioner(space, A);
+      const res = pcg(A, b, null, { preconditioner: mg, tol: 1e-10 });
+      expect(mg.stats.levels).toBeGreaterThan(12);
+      expect(res.iterations).toBeLessThan(30);
+      expect(res.relResidual).toBeLessThan(1.0001e-10);
+    }
   });
 
   it('refuses a mesh whose hierarchy is inconsistent, with a clear error', () => {
