@@ -32,3 +32,14 @@ export {
   tetQuadrature, conicalRule, grundmannMollerRule, p1Basis, p2Basis, p2BasisBary, p2GradientsBary, p1RefGradients,
   p2RefGradients, tetGeometry, mapBary, GEOM_SIZE, P2_REF_NODES,
 } from './reference';
+
+// The Coulomb problem layer: densities, boundary values, U and V with error bars, adaptivity,
+// studies (the worker pool lives in pool.ts and is imported directly by Node-side callers only).
+export { densityLoad } from './load';
+export type { DensityLoad, DensityLoadOptions } from './load';
+export { boundaryValues } from './boundary';
+export { solveCoulomb, solveSitePotentials, energiesOnMesh, richardson, observedRate, CoulombError, COULOMB_ASSUMPTIONS } from './coulomb';
+export type { CoulombOptions, CoulombResult, SiteEnergy, PairEnergy, ErrorBudget, Progress } from './coulomb';
+export { residualIndicator, dorflerMark, runAdaptive, DEFAULT_THETA } from './adaptive';
+export { runStudy, fitLogLog } from './study';
+export type { StudyOptions, StudyResult, StudyPlot } from './study';
