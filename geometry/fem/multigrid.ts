@@ -540,10 +540,34 @@ export function multigridPreconditioner(
   // Gauss–Seidel in correction form, x_i += (b_i − (A x)_i)/a_ii: no branch on the diagonal in
   // the inner loop, and the same code serves the first sweep from zero and later ones
   const dinv = new Float64Array(n);
+  const diagPos = new Uint32Array(n); // columns are sorted: entries before it are the lower part
   for (let i = 0; i < n; i++) {
-    for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) if (cols[p] === i) dinv[i] = 1 / vals[p];
+    for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) {
+      if (cols[p] === i) {
+        dinv[i] = 1 / vals[p];
+        diagPos[i] = p;
+      }
+    }
     if (!(dinv[i] > 0)) throw new HierarchyError(`P2 matrix row ${i} has no positive diagonal`);
   }
+  /**
+   * One forward sweep from z = 0 followed by the residual, for the price of one product:
+   * the sweep only sees the strictly lower part (later unknowns are still zero), and afterwards
+   *   r_i − (A z)_i = (r_i − Σ_{j<i} a_ij z_j) − a_ii z_i − Σ_{j>i} a_ij z_j = −Σ_{j>i} a_ij z_j,
+   * the strictly upper part.
+   */
+  const forwardFromZeroWithResidual = (b: Float64Array, x: Float64Array, out: Float64Array): void => {
+    for (let i = 0; i < n; i++) {
+      let s = b[i];
+      for (let p = rowPtr[i], end = diagPos[i]; p < end; p++) s -= vals[p] * x[cols[p]];
+      x[i] = s * dinv[i];
+    }
+    for (let i = 0; i < n; i++) {
+      let s = 0;
+      for (let p = diagPos[i] + 1, end = rowPtr[i + 1]; p < end; p++) s -= vals[p] * x[cols[p]];
+      out[i] = s;
+    }
+  };
   const gsRow = (b: Float64Array, x: Float64Array, i: number): void => {
     let s0 = b[i];
     let s1 = 0;
@@ -567,9 +591,12 @@ export function multigridPreconditioner(
     stats: cyc.stats,
     apply(rIn, z) {
       z.fill(0);
-      for (let k = 0; k < sweeps; k++) gsForward(rIn, z);
-      spmv(A, z, res);
-      for (let i = 0; i < n; i++) res[i] = rIn[i] - res[i];
+      if (sweeps === 1) forwardFromZeroWithResidual(rIn, z, res);
+      else {
+        for (let k = 0; k < sweeps; k++) gsForward(rIn, z);
+        spmv(A, z, res);
+        for (let i = 0; i < n; i++) res[i] = rIn[i] - res[i];
+      }
       // restriction to P1: the vertex hat is φ_v + ½ Σ_{edges at v} φ_e in the P2 basis
       for (let v = 0; v < nV; v++) r1[v] = res[v];
       for (let k = 0; k < nE; k++) {
