@@ -203,12 +203,20 @@ function buildForest(mesh: TetMesh): Forest {
     createdStart = nextStart;
     createdEnd = nNodes;
   }
+  const used = new Uint8Array(nV);
+  for (let k = 0; k < mesh.tets.length; k++) used[mesh.tets[k]] = 1;
   for (let v = 0; v < nV; v++) {
-    if (newLevel[v] === -1) {
-      if (par[2 * v] !== NO_PARENT && par[2 * v] !== undefined) {
-        // a created vertex that is nobody's newest vertex: only possible for unused vertices
-        newLevel[v] = -2;
-      } else newLevel[v] = 0;
+    if (newLevel[v] !== -1) continue;
+    if (par[2 * v] === NO_PARENT) newLevel[v] = 0;
+    else if (used[v]) throw new HierarchyError(`vertex ${v} has parents but no tetrahedron was bisected to create it`);
+    else newLevel[v] = -2; // a created vertex no tetrahedron uses: left out of every level
+  }
+  for (let v = 0; v < nV; v++) {
+    if (newLevel[v] <= 0) continue;
+    const pa = par[2 * v], pb = par[2 * v + 1];
+    // prolongation runs level by level: both parents must exist on the coarser levels
+    if (!(newLevel[pa] >= 0 && newLevel[pa] < newLevel[v] && newLevel[pb] >= 0 && newLevel[pb] < newLevel[v])) {
+      throw new HierarchyError(`vertex ${v} is older than its parents`);
     }
   }
   return { nNodes, nodeV, nodeLevel, nodeRegion, nodeInternal, newLevel, G };
