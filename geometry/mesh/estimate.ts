@@ -200,7 +200,11 @@ export function estimateTetCount(input: EstimateInput): EstimateResult {
     halfBox[g] = 0.5 * Math.cbrt(6 * v);
   }
   const f = (x: number, y: number, z: number): number => {
+    // h at x bounds the min over any box around x from above, so no generation before the first
+    // with edge ≤ h(x) can qualify: start there (edges decrease with g)
+    const hx = field.valueAt(x, y, z);
     let g = 0;
+    while (g < maxG && edge[g] > hx) g++;
     for (; g < maxG; g++) {
       const b = halfBox[g];
       if (edge[g] <= field.minOverBox(x - b, y - b, z - b, x + b, y + b, z + b)) break;
@@ -209,9 +213,12 @@ export function estimateTetCount(input: EstimateInput): EstimateResult {
   };
   // Split a cell while h varies over it by more than LEAF_H_VARIATION: compare the minimum over
   // the cell with the largest of h at the centre and the 8 corners (for one site, the largest h
-  // over a box is at a corner; a site at the centre of a big cell then still forces splitting).
+  // over a box is at a corner; a site at the centre of a big cell then still forces splitting),
+  // unless the cell is already smaller than half the smallest element wanted in it.
   const split = (l: readonly number[], u: readonly number[]): boolean => {
     const hmin = field.minOverBox(l[0], l[1], l[2], u[0], u[1], u[2]);
+    // a cell already smaller than the elements in it cannot resolve more of a step density
+    if (Math.max(u[0] - l[0], u[1] - l[1], u[2] - l[2]) < 0.5 * hmin) return false;
     let hhi = field.valueAt(0.5 * (l[0] + u[0]), 0.5 * (l[1] + u[1]), 0.5 * (l[2] + u[2]));
     for (let o = 0; o < 8 && hmin >= LEAF_H_VARIATION * hhi; o++) {
       const h = field.valueAt(o & 1 ? u[0] : l[0], o & 2 ? u[1] : l[1], o & 4 ? u[2] : l[2]);

@@ -228,48 +228,73 @@ class SiteGrid {
   }
 
   /**
-   * Smallest squared distance from the box to a site closer than R (Infinity when none).
+   * Smallest squared distance from the box [l, u] to a site closer than R (Infinity when none).
    * With `any`, returns as soon as one site closer than R is found.
+   *
+   * Grid search in Chebyshev rings of cells around the cells the box overlaps: every cell of ring
+   * k is at least (k − 1)·cell away from the box along some axis, so the search stops as soon as
+   * that bound reaches min(R, best so far). A query far from all sites then costs a few rings, not
+   * a scan of every site.
+   *
+   *        k=2 k=2 k=2 k=2 k=2
+   *        k=2 k=1 k=1 k=1 k=2
+   *        k=2 k=1 box k=1 k=2      (in 3D the rings are hollow cubes of cells)
+   *        k=2 k=1 k=1 k=1 k=2
+   *        k=2 k=2 k=2 k=2 k=2
    */
   minDist2(l0: number, l1: number, l2: number, u0: number, u1: number, u2: number, R: number, any: boolean): number {
-    const R2 = R * R;
-    let best = Infinity;
+    let best = R * R;
+    let found = false;
     const pos = this.pos;
-    if (this.useGrid) {
-      const i0 = this.clampCell(0, l0 - R), i1 = this.clampCell(0, u0 + R);
-      const j0 = this.clampCell(1, l1 - R), j1 = this.clampCell(1, u1 + R);
-      const k0 = this.clampCell(2, l2 - R), k1 = this.clampCell(2, u2 + R);
-      const cellsInRange = (i1 - i0 + 1) * (j1 - j0 + 1) * (k1 - k0 + 1);
-      if (cellsInRange < this.n) {
-        const dx = this.dims[0];
-        const dy = this.dims[1];
-        for (let k = k0; k <= k1; k++) {
-          for (let j = j0; j <= j1; j++) {
-            const row = dx * (j + dy * k);
-            for (let i = i0; i <= i1; i++) {
-              const c = row + i;
-              for (let s = this.start[c]; s < this.start[c + 1]; s++) {
-                const q = 3 * this.ids[s];
-                const d2 = boxDist2(pos[q], pos[q + 1], pos[q + 2], l0, l1, l2, u0, u1, u2);
-                if (d2 < R2 && d2 < best) {
-                  best = d2;
-                  if (any) return best;
-                }
+    if (!this.useGrid) {
+      for (let q = 0; q < pos.length; q += 3) {
+        const d2 = boxDist2(pos[q], pos[q + 1], pos[q + 2], l0, l1, l2, u0, u1, u2);
+        if (d2 < best) {
+          best = d2;
+          found = true;
+          if (any) return best;
+        }
+      }
+      return found ? best : Infinity;
+    }
+    const [dx, dy, dz] = this.dims;
+    const i0 = this.clampCell(0, l0), i1 = this.clampCell(0, u0);
+    const j0 = this.clampCell(1, l1), j1 = this.clampCell(1, u1);
+    const k0 = this.clampCell(2, l2), k1 = this.clampCell(2, u2);
+    const cell = 1 / this.inv;
+    const start = this.start;
+    const ids = this.ids;
+    const maxRing = Math.max(i0, dx - 1 - i1, j0, dy - 1 - j1, k0, dz - 1 - k1);
+    for (let ring = 0; ring <= maxRing; ring++) {
+      const gap = (ring - 1) * cell;
+      if (ring > 0 && gap > 0 && gap * gap >= best) break;
+      const a0 = i0 - ring, a1 = i1 + ring;
+      const b0 = j0 - ring, b1 = j1 + ring;
+      const c0 = k0 - ring, c1 = k1 + ring;
+      for (let k = Math.max(c0, 0); k <= Math.min(c1, dz - 1); k++) {
+        const kEdge = ring === 0 || k === c0 || k === c1; // ring 0 is the whole block
+        for (let j = Math.max(b0, 0); j <= Math.min(b1, dy - 1); j++) {
+          const jEdge = kEdge || j === b0 || j === b1;
+          const row = dx * (j + dy * k);
+          // inside the hollow ring only the two end cells of a row belong to it
+          const step = jEdge ? 1 : a1 - a0;
+          for (let i = a0; i <= a1; i += step) {
+            if (i < 0 || i >= dx) continue;
+            const c = row + i;
+            for (let s = start[c]; s < start[c + 1]; s++) {
+              const q = 3 * ids[s];
+              const d2 = boxDist2(pos[q], pos[q + 1], pos[q + 2], l0, l1, l2, u0, u1, u2);
+              if (d2 < best) {
+                best = d2;
+                found = true;
+                if (any) return best;
               }
             }
           }
         }
-        return best;
       }
     }
-    for (let q = 0; q < pos.length; q += 3) {
-      const d2 = boxDist2(pos[q], pos[q + 1], pos[q + 2], l0, l1, l2, u0, u1, u2);
-      if (d2 < R2 && d2 < best) {
-        best = d2;
-        if (any) return best;
-      }
-    }
-    return best;
+    return found ? best : Infinity;
   }
 }
 

@@ -126,6 +126,22 @@ describe('size field evaluation', () => {
     const f = new SizeField(specOf(many));
     const pts = [[-5, -5, -5], [10.3, 7.7, 12.1], [30, 30, 30], [1.5, 1.5, 1.5], [22, 0.5, 13]];
     for (const x of pts) expect(f.valueAt(x[0], x[1], x[2])).toBeCloseTo(hRef(x, many, beta, hmax), 12);
+
+    // boxes of all sizes inside, around and far outside the array: grid answer = exact minimum
+    // (h at the point of the box nearest each site, brute force over all 512 sites)
+    let seed = 7;
+    const next = () => (seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32; // LCG (Numerical Recipes constants)
+    for (let q = 0; q < 400; q++) {
+      const lo = [next() * 60 - 18, next() * 60 - 18, next() * 60 - 18];
+      const w = [next() ** 3 * 15, next() ** 3 * 15, next() ** 3 * 15];
+      const hb = f.minOverBox(lo[0], lo[1], lo[2], lo[0] + w[0], lo[1] + w[1], lo[2] + w[2]);
+      let exact = hmax;
+      for (const s of many) {
+        const p = [0, 1, 2].map((a) => Math.min(Math.max(s.p[a], lo[a]), lo[a] + w[a]));
+        exact = Math.min(exact, hRef(p, [s], beta, hmax));
+      }
+      expect(hb).toBeCloseTo(exact, 12);
+    }
   });
 
   it('a mesh refined to the size field meets it: longest edge ≤ min of h over every tet (checked at the vertices and the centroid)', () => {
