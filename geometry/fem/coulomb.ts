@@ -403,7 +403,7 @@ interface History {
   levels: LevelSummary[];
 }
 
-function budgetsFrom(h: History, pl: Plan, order: 1 | 2, design: Design): { sites: SiteEnergy[]; pairs: PairEnergy[]; rel: number } {
+function budgetsFrom(h: History, pl: Plan, order: 1 | 2): { sites: SiteEnergy[]; pairs: PairEnergy[]; rel: number } {
   const ev = COULOMB_EV_NM;
   const q = 2 * order;
   let rel = 0;
@@ -432,7 +432,6 @@ function budgetsFrom(h: History, pl: Plan, order: 1 | 2, design: Design): { site
     rel = Math.max(rel, err / Math.abs(v));
     return { a: p.a, b: p.b, distanceNm: p.distanceNm, vEv: v, vErrorEv: err, budget };
   });
-  void design;
   return { sites, pairs, rel };
 }
 
@@ -506,7 +505,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
       record(sol, meshes[l], Math.pow(sol.space.nDofs, -1 / 3));
       done += w[l];
     }
-    const b = budgetsFrom(h, pl, order, design);
+    const b = budgetsFrom(h, pl, order);
     meets = b.rel <= tol;
     if (!meets) {
       notes.push(
@@ -549,7 +548,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
       );
       const nT = mesh.tets.length / 4;
       record(sol, mesh, Math.pow(sol.space.nDofs, -1 / 3));
-      const b = budgetsFrom(h, pl, order, design);
+      const b = budgetsFrom(h, pl, order);
       // progress: how far the error has come down (on log axes) from the first mesh to the target
       if (firstRel === Infinity && Number.isFinite(b.rel)) firstRel = b.rel;
       if (Number.isFinite(b.rel) && firstRel > tol) base = Math.max(base, Math.min(0.99, Math.log(firstRel / b.rel) / Math.log(firstRel / tol)));
