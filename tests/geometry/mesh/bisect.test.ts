@@ -6,7 +6,7 @@
  * face by face (check.ts), not assumed.
  */
 import { describe, expect, it } from 'vitest';
-import { kuhnBox, refine, refineUniform, refineWithStats, toTetMesh, MeshError, type BisectionMesh } from '../../../geometry/mesh/index';
+import { kuhnBox, meshDesign, refine, refineUniform, refineWithStats, toTetMesh, MeshError, type BisectionMesh } from '../../../geometry/mesh/index';
 import { checkMesh, tetDet } from '../../../geometry/mesh/check';
 import { computeTetQuality } from '../../../geometry/mesh/quality';
 import { NO_PARENT } from '../../../geometry/mesh/types';
@@ -179,6 +179,37 @@ describe('uniform and local refinement with closure', () => {
       const onFace = (p: number) => [0, 1, 2].flatMap((ax) => [tm.coords[3 * p + ax] === 0 ? 2 * ax : -1, tm.coords[3 * p + ax] === 1 ? 2 * ax + 1 : -1]).filter((f) => f >= 0);
       const common = onFace(a).filter((f) => onFace(b).includes(f));
       expect(tm.boundaryVertex[v]).toBe(common.length > 0 ? 1 : 0);
+    }
+  });
+
+  it('a graded design mesh can be refined further by markers (the adaptive loop) and stays conforming', () => {
+    const r = meshDesign(
+      {
+        format: 'tetrawell-design',
+        version: 1,
+        name: 'adaptive continuation (invented)',
+        host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: 0.5431 },
+        sites: [{ id: 'd', species: 'P', position: [0.7, -0.3, 0.2], electrons: 1 }],
+        enclosure: { center: [0, 0, 0], halfExtentsNm: [12, 12, 12], boundary: { kind: 'grounded' } },
+        refinement: { order: 1, targetRelError: 0.05, maxElements: 500_000 },
+      },
+      { keepBisectionMesh: true },
+    );
+    const bm = r.bisectionMesh!;
+    expect(bm.nTets).toBe(r.mesh.tets.length / 4);
+    const box: Box = { min: [-12, -12, -12], max: [12, 12, 12] };
+    for (let round = 0; round < 3; round++) {
+      // mark the largest tenth by longest edge, ties by index (a stand-in for Dörfler marking)
+      const tm = toTetMesh(bm);
+      const q = computeTetQuality(tm);
+      const order = Array.from(q.longestEdge.keys()).sort((a, b) => q.longestEdge[b] - q.longestEdge[a] || a - b);
+      const marks = new Uint8Array(bm.nTets);
+      for (const t of order.slice(0, Math.ceil(bm.nTets / 10))) marks[t] = 1;
+      const before = bm.nTets;
+      refine(bm, marks);
+      expect(bm.nTets).toBeGreaterThan(before);
+      const c = checkMesh(toTetMesh(bm), { box });
+      expect(c.problems).toEqual([]);
     }
   });
 

@@ -93,6 +93,7 @@ describe('estimate against real meshes', () => {
     ['one P donor off-centre, P2, oblong box', design([{ position: [3.1, -2.2, 5.4] }], [30, 20, 25], 2, 1e-4)],
     ['donor pair 8 nm apart, P1', design([{ position: [-4, 0, 0] }, { position: [4, 0, 0] }], [30, 25, 25], 1, 1e-2)],
     ['row of five, Gaussian orbitals, P2', design([0, 1, 2, 3, 4].map((i) => ({ position: [6 * i - 12, 0.5, -0.5] as [number, number, number], orbital: { model: 'gaussian' as const, sigmaNm: 1.2 } })), [35, 20, 20], 2, 1e-3)],
+    ['4×4×3 donor array 5 nm apart, P1 (48 sites: the site-grid path)', design(Array.from({ length: 48 }, (_, i) => ({ position: [5 * (i % 4) - 7.5, 5 * (Math.floor(i / 4) % 4) - 7.5, 5 * Math.floor(i / 16) - 5] as [number, number, number] })), [30, 30, 30], 1, 0.1)],
     ['anisotropic orbital near a face, P1, small cap', design([{ position: [0, 0, 14], orbital: { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 } }], [20, 20, 18], 1, 3e-2)],
   ];
   for (const [name, d] of cases) {
