@@ -615,26 +615,41 @@ function refineEngine(m: BisectionMesh, marks: Uint8Array | null, tooLarge: TooL
  * vertex i is the midpoint of parents[2i], parents[2i+1].
  */
 export function refine(mesh: BisectionMesh, marked: Uint8Array, opts: RefineOptions = {}): BisectionMesh {
-  if (marked.length < mesh.nTets) {
-    throw new MeshError('bad-marker', `the marker array has ${marked.length} entries for ${mesh.nTets} tetrahedra`);
-  }
+  checkMarks(mesh, marked, opts);
   refineEngine(mesh, marked, null, opts);
   return mesh;
 }
 
-/** Like refine() but returns the statistics of the run. */
-export function refineWithStats(mesh: BisectionMesh, marked: Uint8Array, opts: RefineOptions = {}): RefineStats {
+/**
+ * Marker length, and a refusal before any change when the marked tets alone would pass maxTets
+ * (each marked tet adds one). The closure can still pass it later; then the error leaves the mesh
+ * part-refined (callers that must keep it intact refine a copy).
+ */
+function checkMarks(mesh: BisectionMesh, marked: Uint8Array, opts: RefineOptions): void {
   if (marked.length < mesh.nTets) {
     throw new MeshError('bad-marker', `the marker array has ${marked.length} entries for ${mesh.nTets} tetrahedra`);
   }
+  if (opts.maxTets !== undefined) {
+    let n = 0;
+    for (let t = 0; t < mesh.nTets; t++) if (marked[t]) n++;
+    if (mesh.nTets + n > opts.maxTets) {
+      throw new MeshError('too-many-elements', `refinement refused: bisecting ${n} marked tetrahedra would pass ${opts.maxTets}`, { limit: opts.maxTets, marked: n });
+    }
+  }
+}
+
+/** Like refine() but returns the statistics of the run. */
+export function refineWithStats(mesh: BisectionMesh, marked: Uint8Array, opts: RefineOptions = {}): RefineStats {
+  checkMarks(mesh, marked, opts);
   return refineEngine(mesh, marked, null, opts);
 }
 
 /** Bisect every tet `times` times (each round: mark all, refine with closure). */
 export function refineUniform(mesh: BisectionMesh, times: number, opts: RefineOptions = {}): BisectionMesh {
   for (let i = 0; i < times; i++) {
-    growTets(mesh, 2 * mesh.nTets);
     const marks = new Uint8Array(mesh.nTets).fill(1);
+    checkMarks(mesh, marks, opts);
+    growTets(mesh, 2 * mesh.nTets);
     refineEngine(mesh, marks, null, opts);
   }
   return mesh;

@@ -128,10 +128,10 @@ export function meshDesign(design: Design, options: MeshDesignOptions = {}): Mes
   // Arrays still double if a run needs more.
   const tetCap = Math.ceil(1.4 * estimate) + initialTets;
   const mesh = kuhnBox({ center, halfExtents: halfExtentsNm, cells, capacity: { tets: tetCap, vertices: Math.ceil(tetCap / 4) } });
-  // The running guard: the estimate may be low by its error margin; past twice the limit (or the
-  // hard cap) the run stops rather than exhaust memory.
+  // The running guard: the estimate may be a little low, so the refinement itself stops (with the
+  // same error code) rather than return a mesh above maxElements or the server cap.
   const refineStats = refineToSize(mesh, field.tooLarge, {
-    maxTets: Math.min(hardCap, Math.max(2 * maxElements, initialTets)),
+    maxTets: limit,
     expectedNewVertices: Math.ceil(estimate / 5),
   });
   const t2 = performance.now();

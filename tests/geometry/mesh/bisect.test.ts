@@ -227,7 +227,7 @@ describe('uniform and local refinement with closure', () => {
     }
   });
 
-  it('stops with too-many-elements when a refinement would pass maxTets', () => {
+  it('stops with too-many-elements when a refinement would pass maxTets; refuses untouched when the marks alone would', () => {
     const m = unitCubes(2);
     let err: unknown;
     try {
@@ -237,5 +237,11 @@ describe('uniform and local refinement with closure', () => {
     }
     expect(err).toBeInstanceOf(MeshError);
     expect((err as MeshError).code).toBe('too-many-elements');
+    expect(m.nTets).toBeLessThanOrEqual(200);
+
+    const n = unitCubes(2);
+    const before = toTetMesh(n);
+    expect(() => refine(n, new Uint8Array(n.nTets).fill(1), { maxTets: 60 })).toThrow(/would pass 60/);
+    expect(toTetMesh(n).tets).toEqual(before.tets);
   });
 });

@@ -124,6 +124,21 @@ describe('refusals', () => {
     expect(me.details.estimate).toBeGreaterThan(10_000);
   });
 
+  it('never returns a mesh above maxElements: the running guard catches an estimate that was low', () => {
+    const d = design([{ position: [0.4, 0.1, -0.3] }], [25, 25, 25], 1, 1e-2);
+    const free = meshDesign(d);
+    const limit = Math.floor((free.estimate + free.stats.tets) / 2);
+    const tight = { ...d, refinement: { ...d.refinement, maxElements: limit } };
+    if (free.estimate < free.stats.tets) {
+      // the estimate passes the limit check, the mesh itself would not
+      expect(() => meshDesign(tight)).toThrow(expect.objectContaining({ code: 'too-many-elements' }));
+    } else {
+      // the estimate is refused up front
+      expect(() => meshDesign(tight)).toThrow(expect.objectContaining({ code: 'too-many-elements' }));
+      expect(meshDesign({ ...d, refinement: { ...d.refinement, maxElements: Math.ceil(free.estimate) } }).stats.tets).toBeLessThanOrEqual(Math.ceil(free.estimate));
+    }
+  });
+
   it('refuses above the server-wide cap even when maxElements allows it', () => {
     const d = design([{ position: [0, 0, 0] }], [25, 25, 25], 1, 1e-3, 50_000_000);
     let err: unknown;
