@@ -10,7 +10,7 @@
 import type { FeSpace } from './space';
 import { type Csr, sparsityPattern, withValues } from './csr';
 import {
-  GEOM_SIZE, P2_STIFFNESS_TENSOR, SYM4_INDEX, type TetRule, mapBary, p2BasisBary, p2GradientsBary, tetGeometry,
+  GEOM_SIZE, P2_STIFFNESS_TENSOR, SYM4_INDEX, type TetRule, p2BasisBary, p2GradientsBary, tetGeometry,
   tetQuadrature,
 } from './reference';
 
@@ -103,6 +103,19 @@ export function basisAtRule(rule: TetRule, order: 1 | 2): Float64Array {
  * sorted CSR row, instead of a search per entry.
  */
 const order10 = new Int32Array(10);
+/**
+ * Physical coordinates of all quadrature points of element (a, b, c, d) into out (3 per point),
+ * without allocating: the load and integral loops call this once per element.
+ */
+function quadPoints(coords: Float64Array, a: number, b: number, c: number, d: number, rule: TetRule, out: Float64Array): void {
+  const l = rule.bary;
+  const ax = 3 * a, bx = 3 * b, cx = 3 * c, dx = 3 * d;
+  for (let q = 0; q < rule.n; q++) {
+    const l0 = l[4 * q], l1 = l[4 * q + 1], l2 = l[4 * q + 2], l3 = l[4 * q + 3];
+    for (let k = 0; k < 3; k++) out[3 * q + k] = l0 * coords[ax + k] + l1 * coords[bx + k] + l2 * coords[cx + k] + l3 * coords[dx + k];
+  }
+}
+
 function scatter(A: Csr, dofs: Uint32Array, base: number, nLoc: number, K: Float64Array): void {
   const ord = order10;
   for (let a = 0; a < nLoc; a++) {
@@ -151,7 +164,7 @@ export function assembleSystem(
   const K = new Float64Array(nLoc * nLoc);
   const rule = tetQuadrature(options.degree ?? 2 * order + 1);
   const phi = basisAtRule(rule, order);
-  const x = new Float64Array(3);
+  const x = new Float64Array(3 * rule.n);
   const tets = mesh.tets;
   for (let t = 0; t < nTets; t++) {
     const a = tets[4 * t], bb = tets[4 * t + 1], c = tets[4 * t + 2], d = tets[4 * t + 3];
@@ -160,9 +173,9 @@ export function assembleSystem(
     scatter(A, tetDofs, nLoc * t, nLoc, K);
     if (options.load) {
       const jac = 6 * g[12];
+      quadPoints(mesh.coords, a, bb, c, d, rule, x);
       for (let q = 0; q < rule.n; q++) {
-        mapBary(mesh.coords, a, bb, c, d, rule.bary.subarray(4 * q, 4 * q + 4), x);
-        const f = options.load(x[0], x[1], x[2], t) * rule.weights[q] * jac;
+        const f = options.load(x[3 * q], x[3 * q + 1], x[3 * q + 2], t) * rule.weights[q] * jac;
         if (f === 0) continue;
         for (let i = 0; i < nLoc; i++) b[tetDofs[nLoc * t + i]] += f * phi[nLoc * q + i];
       }
@@ -184,14 +197,14 @@ export function assembleLoad(space: FeSpace, f: PointFunction, degree?: number):
   const phi = basisAtRule(rule, order);
   const b = new Float64Array(space.nDofs);
   const g = new Float64Array(GEOM_SIZE);
-  const x = new Float64Array(3);
+  const x = new Float64Array(3 * rule.n);
   for (let t = 0; t < nTets; t++) {
     const a = mesh.tets[4 * t], bb = mesh.tets[4 * t + 1], c = mesh.tets[4 * t + 2], d = mesh.tets[4 * t + 3];
     tetGeometry(mesh.coords, a, bb, c, d, g);
     const jac = 6 * g[12];
+    quadPoints(mesh.coords, a, bb, c, d, rule, x);
     for (let q = 0; q < rule.n; q++) {
-      mapBary(mesh.coords, a, bb, c, d, rule.bary.subarray(4 * q, 4 * q + 4), x);
-      const w = f(x[0], x[1], x[2], t) * rule.weights[q] * jac;
+      const w = f(x[3 * q], x[3 * q + 1], x[3 * q + 2], t) * rule.weights[q] * jac;
       if (w === 0) continue;
       for (let i = 0; i < nLoc; i++) b[tetDofs[nLoc * t + i]] += w * phi[nLoc * q + i];
     }
@@ -211,18 +224,16 @@ export function assembleMass(space: FeSpace, weight?: PointFunction, degree?: nu
   const A = withValues(spacePattern(space), new Float64Array(spacePattern(space).cols.length));
   const g = new Float64Array(GEOM_SIZE);
   const K = new Float64Array(nLoc * nLoc);
-  const x = new Float64Array(3);
+  const x = new Float64Array(3 * rule.n);
   for (let t = 0; t < nTets; t++) {
     const a = mesh.tets[4 * t], bb = mesh.tets[4 * t + 1], c = mesh.tets[4 * t + 2], d = mesh.tets[4 * t + 3];
     tetGeometry(mesh.coords, a, bb, c, d, g);
     const jac = 6 * g[12];
     K.fill(0);
+    if (weight) quadPoints(mesh.coords, a, bb, c, d, rule, x);
     for (let q = 0; q < rule.n; q++) {
       let w = rule.weights[q] * jac;
-      if (weight) {
-        mapBary(mesh.coords, a, bb, c, d, rule.bary.subarray(4 * q, 4 * q + 4), x);
-        w *= weight(x[0], x[1], x[2], t);
-      }
+      if (weight) w *= weight(x[3 * q], x[3 * q + 1], x[3 * q + 2], t);
       for (let i = 0; i < nLoc; i++) {
         const wi = w * phi[nLoc * q + i];
         for (let j = 0; j < nLoc; j++) K[nLoc * i + j] += wi * phi[nLoc * q + j];
@@ -238,17 +249,15 @@ export function integrate(space: FeSpace, f: PointFunction, degree: number): num
   const { mesh, nTets } = space;
   const rule = tetQuadrature(degree);
   const g = new Float64Array(GEOM_SIZE);
-  const x = new Float64Array(3);
+  const x = new Float64Array(3 * rule.n);
   // Neumaier summation: millions of small positive terms
   let sum = 0, comp = 0;
   for (let t = 0; t < nTets; t++) {
     const a = mesh.tets[4 * t], bb = mesh.tets[4 * t + 1], c = mesh.tets[4 * t + 2], d = mesh.tets[4 * t + 3];
     tetGeometry(mesh.coords, a, bb, c, d, g);
     let s = 0;
-    for (let q = 0; q < rule.n; q++) {
-      mapBary(mesh.coords, a, bb, c, d, rule.bary.subarray(4 * q, 4 * q + 4), x);
-      s += f(x[0], x[1], x[2], t) * rule.weights[q];
-    }
+    quadPoints(mesh.coords, a, bb, c, d, rule, x);
+    for (let q = 0; q < rule.n; q++) s += f(x[3 * q], x[3 * q + 1], x[3 * q + 2], t) * rule.weights[q];
     const term = 6 * g[12] * s;
     const tsum = sum + term;
     comp += Math.abs(sum) >= Math.abs(term) ? sum - tsum + term : term - tsum + sum;
@@ -271,17 +280,18 @@ export function feIntegrate(
   const phi = basisAtRule(rule, order);
   const g = new Float64Array(GEOM_SIZE);
   const grad = new Float64Array(30);
-  const x = new Float64Array(3);
+  const l4 = new Float64Array(4);
+  const x = new Float64Array(3 * rule.n);
   let sum = 0, comp = 0;
   for (let t = 0; t < nTets; t++) {
     const a = mesh.tets[4 * t], bb = mesh.tets[4 * t + 1], c = mesh.tets[4 * t + 2], d = mesh.tets[4 * t + 3];
     tetGeometry(mesh.coords, a, bb, c, d, g);
     let s = 0;
+    quadPoints(mesh.coords, a, bb, c, d, rule, x);
+    if (order === 1) for (let k = 0; k < 12; k++) grad[k] = g[k];
     for (let q = 0; q < rule.n; q++) {
-      const l = rule.bary.subarray(4 * q, 4 * q + 4);
-      mapBary(mesh.coords, a, bb, c, d, l, x);
-      if (order === 1) grad.set(g.subarray(0, 12));
-      else p2GradientsBary(l, g, grad);
+      for (let k = 0; k < 4; k++) l4[k] = rule.bary[4 * q + k];
+      if (order === 2) p2GradientsBary(l4, g, grad);
       let uh = 0, gx = 0, gy = 0, gz = 0;
       for (let i = 0; i < nLoc; i++) {
         const ui = u[tetDofs[nLoc * t + i]];
@@ -290,7 +300,7 @@ export function feIntegrate(
         gy += ui * grad[3 * i + 1];
         gz += ui * grad[3 * i + 2];
       }
-      s += rule.weights[q] * fn(x[0], x[1], x[2], uh, gx, gy, gz, t);
+      s += rule.weights[q] * fn(x[3 * q], x[3 * q + 1], x[3 * q + 2], uh, gx, gy, gz, t);
     }
     const term = 6 * g[12] * s;
     const tsum = sum + term;
