@@ -109,7 +109,7 @@ export function toCoulombReadable(design: Design, r: CoulombResult): string {
   out.push(
     table([
       ['site', 'U (meV)', '± (meV)', 'discretisation', 'boundary', 'density cut', 'rate', 'charge in box'],
-      ...r.sites.map((s) => [s.id, meV(s.uEv), meVs(s.uErrorEv), meVs(s.budget.discretisationEv), meVs(s.budget.boundaryEv), meVs(s.budget.densityCutEv), `${s.budget.rate.toFixed(2)} ${s.budget.rateSource}`, s.charge.toFixed(8)]),
+      ...r.sites.map((s) => [s.id, meV(s.uEv), meVs(s.uErrorEv), meVs(s.budget.discretisationEv), meVs(s.budget.boundaryEv), meVs(s.budget.densityCutEv), `${s.budget.rate.toFixed(2)} ${s.budget.rateSource}, Fs ${s.budget.safetyFactor}`, s.charge.toFixed(8)]),
     ]),
   );
   if (r.pairs.length) {
