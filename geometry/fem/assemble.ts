@@ -347,3 +347,27 @@ export function applyDirichlet(
   }
   return { A: withValues(A, vals), b: out };
 }
+
+/**
+ * The right-hand side of applyDirichlet alone, for one more load on a matrix already lifted:
+ * pass the ORIGINAL (unlifted) matrix A. With many right-hand sides (one per site) this avoids
+ * copying the matrix values for each of them; the lifted matrix from the first call is reused.
+ */
+export function applyDirichletRhs(
+  A: Csr, b: Float64Array, boundaryDof: Uint8Array, g?: ArrayLike<number>,
+): Float64Array {
+  const out = b.slice();
+  const { n, rowPtr, cols, vals } = A;
+  for (let i = 0; i < n; i++) {
+    if (boundaryDof[i]) {
+      out[i] = g ? g[i] : 0;
+      continue;
+    }
+    if (!g) continue;
+    for (let k = rowPtr[i]; k < rowPtr[i + 1]; k++) {
+      const j = cols[k];
+      if (boundaryDof[j]) out[i] -= vals[k] * g[j];
+    }
+  }
+  return out;
+}

@@ -21,7 +21,8 @@ export type { Csr } from './csr';
 export { spmv } from './csr';
 export type { PointFunction, SystemOptions } from './assemble';
 export {
-  assembleStiffness, assembleSystem, assembleLoad, assembleMass, applyDirichlet, integrate, feIntegrate, interpolate,
+  assembleStiffness, assembleSystem, assembleLoad, assembleMass, applyDirichlet, applyDirichletRhs, integrate, feIntegrate,
+  interpolate,
 } from './assemble';
 export type { Preconditioner, PcgOptions, PcgResult } from './pcg';
 export { pcg, jacobi, SolveAbortedError } from './pcg';

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { uniformBox, gradedBox } from './multigrid-fixture';
 import { buildSpace } from '../../../geometry/fem/space';
 import {
-  applyDirichlet, assembleLoad, assembleMass, assembleStiffness, assembleSystem, feIntegrate, integrate, interpolate,
+  applyDirichlet, applyDirichletRhs, assembleLoad, assembleMass, assembleStiffness, assembleSystem, feIntegrate, integrate, interpolate,
 } from '../../../geometry/fem/assemble';
 import { asymmetry, diagonal, spmv } from '../../../geometry/fem/csr';
 import { pcg } from '../../../geometry/fem/pcg';
@@ -176,6 +176,9 @@ describe('Dirichlet lifting', () => {
     let worst = 0;
     for (let i = 0; i < space.nDofs; i++) if (!space.boundaryDof[i]) worst = Math.max(worst, Math.abs(Ax[i] - b[i]));
     expect(worst).toBeLessThan(1e-9 * Math.max(...b.map(Math.abs)));
+    // the right-hand-side-only lifting gives the same vector
+    const rhs = applyDirichletRhs(A, b, space.boundaryDof, g);
+    for (let i = 0; i < space.nDofs; i++) expect(rhs[i]).toBe(sys.b[i]);
   });
 });
 
