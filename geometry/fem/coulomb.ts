@@ -81,8 +81,12 @@ export interface CoulombOptions {
   startFactor?: number;
   /** sites asked for U (ids); default every site with electrons. A site without electrons here is an error. */
   siteIds?: string[];
-  /** which pairs get V: the far-field check's selection (all pairs up to 64 sites, else bond-graph neighbours; default), or none */
-  pairs?: 'auto' | 'none';
+  /**
+   * which pairs get V: 'auto' (default) all pairs up to 64 sites, bond-graph neighbours above
+   * (the far-field check's rule); 'all'; 'bond-graph' (nearest-neighbour bonds in the (001)
+   * plane, geometry/arrays); or 'none'
+   */
+  pairs?: 'auto' | 'all' | 'bond-graph' | 'none';
   /** number of nested a priori meshes (h0, 2h0, 4h0, …) for the discretisation estimate (default 3, at least 2) */
   levels?: number;
   /** extra options for the a priori mesh (e.g. h0Factor) */
@@ -380,7 +384,8 @@ interface Plan {
 
 function plan(design: Design, opts: CoulombOptions): Plan {
   const sites = activeSites(design, opts.siteIds);
-  const far = farFieldCheck(design);
+  const allPairsLimit = opts.pairs === 'all' ? Number.POSITIVE_INFINITY : opts.pairs === 'bond-graph' ? 0 : undefined;
+  const far = farFieldCheck(design, allPairsLimit === undefined ? {} : { allPairsLimit });
   const boundById = new Map(far.sites.map((s) => [s.id, s] as const));
   const siteBound: number[] = [];
   const siteCut: number[] = [];

@@ -1,5 +1,5 @@
 /**
- * `npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]… [--json]`:
+ * `npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]… [--pairs …] [--json]`:
  * on-site U and inter-site V of a design with error bars.
  *
  * With --json prints exactly one JSON object:
@@ -16,7 +16,7 @@ import type { Design } from '../../geometry/design/types';
 import { solveCoulomb, CoulombError, type CoulombResult } from '../../geometry/fem/coulomb';
 import { MeshError } from '../../geometry/mesh/index';
 
-const USAGE = 'usage: npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]... [--json]';
+const USAGE = 'usage: npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]... [--pairs auto|all|bond-graph|none] [--json]';
 
 export interface ParsedArgs {
   files: string[];
@@ -140,7 +140,7 @@ export function toCoulombReadable(design: Design, r: CoulombResult): string {
 }
 
 export async function run(argv: string[]): Promise<number> {
-  const args = parseArgs(argv, ['--order', '--site', '--theta'], ['--json', '--adaptive', '--help']);
+  const args = parseArgs(argv, ['--order', '--site', '--theta', '--pairs'], ['--json', '--adaptive', '--help']);
   if (args.flags.has('--help')) {
     console.log(USAGE);
     return 0;
@@ -160,6 +160,11 @@ export async function run(argv: string[]): Promise<number> {
     console.error(`--theta must be a number in (0, 1], not "${thetaArg}"`);
     return 2;
   }
+  const pairs = args.values.get('--pairs')?.at(-1) ?? 'auto';
+  if (!['auto', 'all', 'bond-graph', 'none'].includes(pairs)) {
+    console.error(`--pairs must be auto, all, bond-graph or none, not "${pairs}"`);
+    return 2;
+  }
   const json = args.flags.has('--json');
   const design = await readDesign(args.files[0], json);
   if (!design) return 1;
@@ -170,6 +175,7 @@ export async function run(argv: string[]): Promise<number> {
       adaptive: args.flags.has('--adaptive'),
       theta,
       siteIds: args.values.get('--site'),
+      pairs: pairs as 'auto' | 'all' | 'bond-graph' | 'none',
     });
   } catch (err) {
     const msg = refusalMessage(err);

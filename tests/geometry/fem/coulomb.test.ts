@@ -135,4 +135,18 @@ describe('solveCoulomb', () => {
     }
     expect(maxRel).toBeLessThan(1e-2);
   });
+
+  it('pairs: all pairs by default for small arrays, nearest-neighbour bonds on request', () => {
+    const base = oneSite({ model: 'gaussian', sigmaNm: 1 }, { half: 14, tol: 3e-2, order: 1 });
+    const chain: Design = {
+      ...base,
+      sites: [0, 1, 2].map((k) => ({ id: `c${k}`, species: 'P' as const, position: [(k - 1) * 4, 0, 0] as [number, number, number], electrons: 1, orbital: { model: 'gaussian' as const, sigmaNm: 1 } })),
+    };
+    const all = solveCoulomb(chain, { levels: 2 });
+    expect(all.pairs.map((p) => `${p.a}-${p.b}`)).toEqual(['c0-c1', 'c0-c2', 'c1-c2']);
+    const bonds = solveCoulomb(chain, { levels: 2, pairs: 'bond-graph' });
+    expect(bonds.pairs.map((p) => `${p.a}-${p.b}`)).toEqual(['c0-c1', 'c1-c2']);
+    const none = solveCoulomb(chain, { levels: 2, pairs: 'none' });
+    expect(none.pairs).toHaveLength(0);
+  });
 });
