@@ -28,7 +28,7 @@
  * when h varies by less than LEAF_H_VARIATION over it); tests validate it on an integrand with a
  * closed form and compare the estimate with real meshes.
  */
-import type { SizeField } from './sizefield';
+import type { SizeField, SizeFieldSpec } from './sizefield';
 import { kuhnBox, refineUniform } from './bisection';
 
 /**
@@ -229,4 +229,65 @@ export function estimateTetCount(input: EstimateInput): EstimateResult {
   const stop = input.stopAbove === undefined ? undefined : input.stopAbove / CLOSURE_ALLOWANCE;
   const r = adaptiveCubature(f, boxMin, boxMax, { cells, split, stopAbove: stop });
   return { tets: CLOSURE_ALLOWANCE * r.value, sizeDriven: r.value, leaves: r.leaves, aborted: r.aborted };
+}
+
+/**
+ * A quick lower bound on the size-driven count, for refusing huge designs before the cubature
+ * (which costs time in proportion to the number of sites). Within distance a of a site h = h0, so
+ * every voxel (side a/4) lying wholly inside such a ball and inside the box needs at least the
+ * ladder density at h0 (the first generation with edge ≤ h0). Distinct voxels are counted once,
+ * so close sites are not double counted; the largest class total (not the sum) keeps it a bound
+ * when classes overlap. Stops as soon as the bound passes `stopAbove`.
+ */
+export function coreLowerBound(
+  spec: SizeFieldSpec,
+  boxMin: readonly number[],
+  boxMax: readonly number[],
+  cells: readonly [number, number, number],
+  stopAbove = Infinity,
+): number {
+  const d0 = (boxMax[0] - boxMin[0]) / cells[0];
+  const d1 = (boxMax[1] - boxMin[1]) / cells[1];
+  const d2 = (boxMax[2] - boxMin[2]) / cells[2];
+  const ladder = cellLadderEdges([d0, d1, d2]);
+  const cellVolume = d0 * d1 * d2;
+  let best = 0;
+  for (const c of spec.classes) {
+    const h0 = Math.min(c.h0Nm, spec.hmaxNm);
+    let g = 0;
+    while (g < 255 && ladder[g % 3] / 2 ** Math.floor(g / 3) > h0) g++;
+    const density = (6 * 2 ** g) / cellVolume;
+    const a = c.coreRadiusNm;
+    const side = a / 4;
+    const perVoxel = side ** 3 * density;
+    const n = [0, 1, 2].map((ax) => Math.max(1, Math.ceil((boxMax[ax] - boxMin[ax]) / side)));
+    const seen = new Set<number>(); // membership only, never iterated
+    const p = c.positions;
+    const a2 = a * a;
+    for (let q = 0; q < p.length; q += 3) {
+      const x = p[q], y = p[q + 1], z = p[q + 2];
+      const lo = [x - a, y - a, z - a].map((v, ax) => Math.max(0, Math.floor((v - boxMin[ax]) / side)));
+      const hi = [x + a, y + a, z + a].map((v, ax) => Math.min(n[ax] - 1, Math.floor((v - boxMin[ax]) / side)));
+      for (let k = lo[2]; k <= hi[2]; k++) {
+        const z0 = boxMin[2] + k * side, z1 = z0 + side;
+        if (z1 > boxMax[2]) continue;
+        const dz = Math.max(Math.abs(z - z0), Math.abs(z - z1));
+        for (let j = lo[1]; j <= hi[1]; j++) {
+          const y0 = boxMin[1] + j * side, y1 = y0 + side;
+          if (y1 > boxMax[1]) continue;
+          const dy = Math.max(Math.abs(y - y0), Math.abs(y - y1));
+          for (let i = lo[0]; i <= hi[0]; i++) {
+            const x0 = boxMin[0] + i * side, x1 = x0 + side;
+            if (x1 > boxMax[0]) continue;
+            const dx = Math.max(Math.abs(x - x0), Math.abs(x - x1));
+            // the farthest corner of the voxel within a: the whole voxel is in the core
+            if (dx * dx + dy * dy + dz * dz <= a2) seen.add(i + n[0] * (j + n[1] * k));
+          }
+        }
+      }
+      if (seen.size * perVoxel > stopAbove) return seen.size * perVoxel;
+    }
+    best = Math.max(best, seen.size * perVoxel);
+  }
+  return best;
 }

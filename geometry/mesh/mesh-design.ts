@@ -4,14 +4,15 @@
  *   1. check the enclosure (degenerate → MeshError 'degenerate-box')
  *   2. size field from the sites and refinement.targetRelError (sizefield.ts)
  *   3. initial Kuhn cells: near-cubic, `initialCells` across the smallest axis
- *   4. estimate the tet count (estimate.ts); refuse above maxElements or the server cap
+ *   4. estimate the tet count (estimate.ts; a quick lower bound first); refuse above maxElements
+ *      or the server cap
  *   5. bisect to the size field with closure (bisection.ts), arrays pre-sized from the estimate
  *   6. toTetMesh (positively oriented copy)
  */
 import type { Design } from '../design/types';
 import { kuhnBox, refineToSize, toTetMesh, type BisectionMesh } from './bisection';
 import { MeshError } from './errors';
-import { estimateTetCount } from './estimate';
+import { CLOSURE_ALLOWANCE, coreLowerBound, estimateTetCount } from './estimate';
 import { SizeField, sizeFieldFromDesign, type SizeFieldOptions, type SizeFieldParams } from './sizefield';
 import type { TetMesh } from './types';
 
@@ -110,14 +111,19 @@ export function meshDesign(design: Design, options: MeshDesignOptions = {}): Mes
   const initialTets = 6 * cells[0] * cells[1] * cells[2];
 
   const t0 = performance.now();
-  const est = estimateTetCount({ field, boxMin, boxMax, cells, stopAbove: 1.5 * limit });
+  // a cheap lower bound first (milliseconds even for 10⁵ sites), then the cubature
+  const lower = CLOSURE_ALLOWANCE * coreLowerBound(spec, boxMin, boxMax, cells, limit / CLOSURE_ALLOWANCE);
+  const est =
+    lower > limit
+      ? { tets: lower, sizeDriven: lower / CLOSURE_ALLOWANCE, leaves: 0, aborted: true }
+      : estimateTetCount({ field, boxMin, boxMax, cells, stopAbove: 1.5 * limit });
   const estimate = Math.max(initialTets, est.tets);
   const t1 = performance.now();
   if (estimate > limit) {
     const which = maxElements <= hardCap ? `the design's maxElements (${maxElements})` : `the server cap (${hardCap})`;
     throw new MeshError(
       'too-many-elements',
-      `the size field needs about ${est.aborted ? 'more than ' : ''}${Math.round(estimate)} tetrahedra, more than ${which}; ` +
+      `the size field needs ${est.aborted ? 'at least' : 'about'} ${Math.round(estimate)} tetrahedra, more than ${which}; ` +
         'raise targetRelError, shrink the enclosure or raise maxElements',
       { estimate, limit, maxElements, hardCap },
     );

@@ -6,7 +6,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { meshDesign, kuhnBox, refineUniform, toTetMesh, MeshError, LADDER_MEAN_CONSTANT } from '../../../geometry/mesh/index';
-import { adaptiveCubature, cellLadderEdges, ladderDensity, ladderEdge, ladderVolume } from '../../../geometry/mesh/estimate';
+import { adaptiveCubature, cellLadderEdges, coreLowerBound, ladderDensity, ladderEdge, ladderVolume } from '../../../geometry/mesh/estimate';
+import { sizeFieldFromDesign, chooseInitialCells } from '../../../geometry/mesh/index';
 import { computeTetQuality } from '../../../geometry/mesh/quality';
 import type { Design, Site } from '../../../geometry/design/types';
 
@@ -104,6 +105,11 @@ describe('estimate against real meshes', () => {
       expect(ratio).toBeGreaterThan(0.7);
       expect(ratio).toBeLessThan(1.3);
       expect(r.stats.tets).toBe(r.mesh.tets.length / 4);
+      // the quick lower bound used for early refusals is a bound indeed, and not a trivial one
+      const h = d.enclosure.halfExtentsNm;
+      const lower = coreLowerBound(sizeFieldFromDesign(d).spec, h.map((x) => -x), h, chooseInitialCells(h, 2));
+      expect(lower).toBeLessThanOrEqual(r.stats.tets);
+      expect(lower).toBeGreaterThan(0);
     });
   }
 });
@@ -137,6 +143,20 @@ describe('refusals', () => {
       expect(() => meshDesign(tight)).toThrow(expect.objectContaining({ code: 'too-many-elements' }));
       expect(meshDesign({ ...d, refinement: { ...d.refinement, maxElements: Math.ceil(free.estimate) } }).stats.tets).toBeLessThanOrEqual(Math.ceil(free.estimate));
     }
+  });
+
+  it('refuses a large array (20 000 sites) from the quick lower bound, with the figures', () => {
+    const sites = Array.from({ length: 20_000 }, (_, i) => ({ position: [2 * (i % 50) - 49, 2 * (Math.floor(i / 50) % 50) - 49, 2 * Math.floor(i / 2500) - 7] as [number, number, number] }));
+    const d = design(sites, [60, 60, 20], 1, 1e-2, 2_000_000);
+    let err: unknown;
+    try {
+      meshDesign(d);
+    } catch (e) {
+      err = e;
+    }
+    expect((err as MeshError).code).toBe('too-many-elements');
+    expect((err as MeshError).message).toMatch(/needs at least \d+ tetrahedra/);
+    expect((err as MeshError).details.estimate).toBeGreaterThan(2_000_000);
   });
 
   it('refuses above the server-wide cap even when maxElements allows it', () => {
