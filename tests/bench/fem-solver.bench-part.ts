@@ -93,7 +93,7 @@ export function iterationTable(): void {
     { order: 1, h0: 0.03 }, { order: 1, h0: 0.011 }, { order: 1, h0: 0.005 },
     { order: 2, h0: 0.05 }, { order: 2, h0: 0.022 }, { order: 2, h0: 0.0095 },
   ];
-  console.log('order  unknowns   tets      levels  jacobi(it, s)      multigrid(it, setup s, solve s)  N^(1/3)');
+  console.log('order  unknowns   tets      levels  jacobi(it, s)      multigrid(it, setup s, solve s; wall and cpu)  N^(1/3)');
   const rows: { order: number; n: number; jac: number; mg: number }[] = [];
   const meshes = new Map<number, TetMesh>();
   for (const { order, h0 } of plan) {
@@ -113,12 +113,20 @@ export function iterationTable(): void {
     const space = buildSpace(mesh, order);
     const { A, b } = assembleSystem(space, [EPS], { load: density });
     const sys = applyDirichlet(A, b, space.boundaryDof);
+    const cpu = (): number => {
+      const u = process.cpuUsage();
+      return (u.user + u.system) / 1e6;
+    };
     let t = performance.now();
+    let c = cpu();
     const mg = multigridPreconditioner(space, sys.A, { epsByRegion: [EPS] });
     const setup = (performance.now() - t) / 1000;
+    const setupCpu = cpu() - c;
     t = performance.now();
+    c = cpu();
     const rm = pcg(sys.A, sys.b, null, { preconditioner: mg, tol: 1e-10 });
     const solve = (performance.now() - t) / 1000;
+    const solveCpu = cpu() - c;
     let jac = 'skipped';
     let jacIt = NaN;
     if (space.nDofs <= jacobiMax) {
@@ -130,8 +138,8 @@ export function iterationTable(): void {
     rows.push({ order, n: space.nDofs, jac: jacIt, mg: rm.iterations });
     console.log(
       `P${order}     ${String(space.nDofs).padEnd(10)} ${String(nT).padEnd(9)} ${String(mg.stats.levels).padEnd(7)} ` +
-        `${jac.padEnd(18)} ${String(rm.iterations).padEnd(3)} ${setup.toFixed(2).padStart(6)} ${solve.toFixed(2).padStart(8)}` +
-        `               ${Math.cbrt(space.nDofs).toFixed(0)}`,
+        `${jac.padEnd(18)} ${String(rm.iterations).padEnd(3)} ${setup.toFixed(2).padStart(6)} (${setupCpu.toFixed(2)} cpu) ` +
+        `${solve.toFixed(2).padStart(6)} (${solveCpu.toFixed(2)} cpu)   ${Math.cbrt(space.nDofs).toFixed(0)}`,
     );
   }
   // least-squares slope of log(iterations) against log(N), per order and method
