@@ -5,7 +5,7 @@
 import { describe, expect, it } from 'vitest';
 import { solveCoulomb, solveSitePotentials, richardson, observedRate, CoulombError, GCI_SAFETY_OBSERVED, GCI_SAFETY_THEORETICAL } from '../../../geometry/fem/coulomb';
 import { erf, selfEnergy, potentialAt } from '../../../geometry/density';
-import { meshDesign } from '../../../geometry/mesh/index';
+import { meshDesign, MeshError } from '../../../geometry/mesh/index';
 import { COULOMB_EV_NM, SI_LATTICE_CONSTANT_NM } from '../../../geometry/units';
 import type { Design } from '../../../geometry/design/types';
 import { oneSite } from './coulomb-fixtures';
@@ -80,7 +80,15 @@ describe('solveCoulomb', () => {
   it('an orbital far narrower than the budget can resolve: refused before meshing, with the numbers', () => {
     // a 0.01 nm orbital in a 40 nm box: the graded mesh needs ~5e3 tetrahedra, the budget allows 3e3
     const d = oneSite({ model: 'hydrogenic-1s', radiusNm: 0.01 }, { half: 40, tol: 1e-4, maxElements: 3000 });
-    expect(() => solveCoulomb(d)).toThrow(/needs about .* tetrahedra, more than the design's maxElements \(3000\)/);
+    let err: unknown = null;
+    try {
+      solveCoulomb(d);
+    } catch (e) {
+      err = e;
+    }
+    expect(err).toBeInstanceOf(MeshError);
+    expect((err as MeshError).code).toBe('too-many-elements');
+    expect((err as Error).message).toMatch(/tetrahedra, more than the design's maxElements \(3000\)/);
   });
 
   it('P1 and P2 on the same meshes agree to their error estimates', () => {
