@@ -33,6 +33,11 @@
  * edge ≈ 1.07a → C_2 ≈ 6e-4; our own reading of those numbers, to be re-calibrated by the FEM
  * convergence study) and a safety factor S = 4 because the graded far field and the closure share
  * the error budget with the core. Every parameter can be overridden.
+ *
+ * Reproducibility note: the marking compares distances with a·(L/h0)^{1/β}, computed with Math.pow,
+ * which ECMAScript does not require to be correctly rounded (sqrt and + − × ÷ are). Meshes are
+ * byte-identical on every run and machine with the same JavaScript engine (Node 20's V8); another
+ * engine could in principle flip a decision that sits within one rounding unit of its threshold.
  */
 import type { Design, Orbital } from '../design/types';
 import { resolveOrbital } from '../design/presets';
