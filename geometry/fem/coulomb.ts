@@ -639,19 +639,22 @@ export function energiesOnMesh(
  * Nodal potentials of every site with electrons on a given mesh (for writing into a .vtu):
  * one Float64Array per site holding φ_i at the mesh vertices (nm⁻¹, εr included; multiply by
  * COULOMB_EV_NM for volts per elementary charge… i.e. eV per unit test charge).
+ * `nodal` holds every degree of freedom of the space instead: the vertices, then for P2 the edge
+ * midpoints in the numbering of geometry/mesh/p2.ts, which is the node order of a quadratic .vtu.
  */
 export function solveSitePotentials(
   design: Design,
   mesh: TetMesh,
   order: 1 | 2 = design.refinement.order,
   opts: Pick<CoulombOptions, 'solverTol' | 'signal' | 'onProgress' | 'siteIds'> = {},
-): { siteIds: string[]; potentials: Float64Array[]; dofs: number; iterations: number } {
+): { siteIds: string[]; potentials: Float64Array[]; nodal: Float64Array[]; dofs: number; iterations: number } {
   const sites = activeSites(design, opts.siteIds);
   const nV = mesh.coords.length / 3;
   const sol = solveLevel(design, mesh, order, sites, new Int32Array(0), opts, (stage, f) => opts.onProgress?.({ stage, fraction: f }));
   return {
     siteIds: sites.map((s) => s.id),
     potentials: sol.phis.map((p) => p.slice(0, nV)),
+    nodal: sol.phis.map((p) => p.slice(0, sol.space.nDofs)),
     dofs: sol.space.nDofs,
     iterations: sol.iterations,
   };

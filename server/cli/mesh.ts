@@ -1,5 +1,5 @@
 /**
- * `npm run cli -- mesh <design.json> --out mesh.vtu [--order 1|2] [--format vtu|vtk|binary] [--json]`
+ * `npm run cli -- mesh <design.json> --out mesh.vtu [--order 1|2] [--format vtu|vtk|binary] [--solve] [--json]`
  *
  * Builds the graded bisection mesh of a design (geometry/mesh meshDesign), writes it and prints a
  * summary. With --json prints exactly one JSON object:
@@ -9,6 +9,9 @@
  * --order defaults to the design's refinement.order (it selects 4- or 10-node cells in the file
  * and the grading exponent); --format defaults to the --out extension (.vtu, .vtk, .twmesh/.bin),
  * else vtu.
+ * --solve also solves the Coulomb problem of every site with electrons on this mesh (geometry/fem)
+ * and writes its potential as PointData "Potential_<site id>" in V per elementary charge
+ * (φ·e²/4πε₀ in eV, i.e. volts), on all P2 nodes for order 2. Only for vtu and vtk.
  * Exit codes: 0 written, 1 invalid document, refused mesh or unwritable file, 2 usage.
  */
 import { readFile, writeFile } from 'node:fs/promises';
@@ -18,8 +21,10 @@ import { resolveOrbital } from '../../geometry/design/presets';
 import { MeshError, meshDesign, SizeField, sizeFieldFromDesign, orbitalLength } from '../../geometry/mesh/index';
 import { writeVtu, writeVtkLegacy, encodeMeshBinary } from '../../geometry/mesh/export/index';
 import { qualityReport, type ReportSite } from '../../geometry/mesh/quality';
+import { solveSitePotentials, CoulombError } from '../../geometry/fem/coulomb';
+import { COULOMB_EV_NM } from '../../geometry/units';
 
-const USAGE = 'usage: npm run cli -- mesh <design.json> --out <file> [--order 1|2] [--format vtu|vtk|binary] [--json]';
+const USAGE = 'usage: npm run cli -- mesh <design.json> --out <file> [--order 1|2] [--format vtu|vtk|binary] [--solve] [--json]';
 
 type Format = 'vtu' | 'vtk' | 'binary';
 
@@ -29,6 +34,7 @@ interface Args {
   order?: 1 | 2;
   format: Format;
   json: boolean;
+  solve: boolean;
 }
 
 function formatFromName(out: string): Format {
@@ -45,6 +51,7 @@ export function parseArgs(argv: string[]): Args | string {
   let order: 1 | 2 | undefined;
   let format: Format | undefined;
   let json = false;
+  let solve = false;
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     const value = (): string | undefined => {
@@ -57,6 +64,7 @@ export function parseArgs(argv: string[]): Args | string {
     };
     const name = a.split('=')[0];
     if (name === '--json') json = true;
+    else if (name === '--solve') solve = true;
     else if (name === '--out') {
       out = value();
       if (!out) return `--out needs a file name\n${USAGE}`;
@@ -73,7 +81,9 @@ export function parseArgs(argv: string[]): Args | string {
   }
   if (files.length !== 1) return files.length ? `one design file, please (got ${files.length})\n${USAGE}` : USAGE;
   if (!out) return `--out <file> is required\n${USAGE}`;
-  return { file: files[0], out, order, format: format ?? formatFromName(out), json };
+  const fmtOut = format ?? formatFromName(out);
+  if (solve && fmtOut === 'binary') return `--solve writes potentials as point data: use --format vtu or vtk\n${USAGE}`;
+  return { file: files[0], out, order, format: fmtOut, json, solve };
 }
 
 const fmt = (x: number, d = 4) => (Number.isFinite(x) ? x.toPrecision(d) : '—');
@@ -132,13 +142,32 @@ export async function run(argv: string[]): Promise<number> {
   const sizeField = new Float64Array(nV);
   for (let v = 0; v < nV; v++) sizeField[v] = field.valueAt(mesh.coords[3 * v], mesh.coords[3 * v + 1], mesh.coords[3 * v + 2]);
 
+  const pointData: { name: string; values: Float64Array }[] = [];
+  if (args.solve) {
+    try {
+      const solved = solveSitePotentials(design, mesh, order);
+      solved.siteIds.forEach((id, i) => {
+        const phi = solved.nodal[i];
+        const volts = new Float64Array(phi.length);
+        for (let k = 0; k < phi.length; k++) volts[k] = phi[k] * COULOMB_EV_NM;
+        pointData.push({ name: `Potential_${id}`, values: volts });
+      });
+    } catch (e) {
+      if (e instanceof CoulombError) {
+        console.error(`cannot solve on the mesh of ${args.file}: ${e.message}`);
+        return 1;
+      }
+      throw e;
+    }
+  }
+
   let bytes: Uint8Array;
   try {
     bytes =
       args.format === 'vtu'
-        ? writeVtu(mesh, { order, sizeField })
+        ? writeVtu(mesh, { order, sizeField, pointData })
         : args.format === 'vtk'
-          ? writeVtkLegacy(mesh, { order, sizeField })
+          ? writeVtkLegacy(mesh, { order, sizeField, pointData })
           : encodeMeshBinary(mesh);
   } catch (e) {
     console.error(`cannot write the mesh as ${args.format}: ${(e as Error).message}`);
