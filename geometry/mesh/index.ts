@@ -21,8 +21,8 @@ export { NO_PARENT } from './types';
  *       graded mesh of a design: size field from the sites (sizefield.ts), element-count estimate
  *       and refusal above maxElements / the server cap (estimate.ts), bisection to the size field.
  */
-export { meshDesign, chooseInitialCells, DEFAULT_HARD_CAP } from './mesh-design';
-export type { MeshDesignOptions, MeshDesignResult, MeshDesignStats } from './mesh-design';
+export { meshDesign, estimateDesignElements, chooseInitialCells, DEFAULT_HARD_CAP } from './mesh-design';
+export type { MeshDesignOptions, MeshDesignResult, MeshDesignStats, DesignEstimate } from './mesh-design';
 export { SizeField, sizeFieldFromDesign, gradingExponent, autoCoreSize, orbitalLength } from './sizefield';
 export type { SizeFieldSpec, SizeFieldParams, SizeFieldOptions, SizeClassSpec } from './sizefield';
 export { estimateTetCount, LADDER_MEAN_CONSTANT, CLOSURE_ALLOWANCE } from './estimate';

@@ -97,7 +97,28 @@ function checkEnclosure(design: Design): void {
   }
 }
 
-export function meshDesign(design: Design, options: MeshDesignOptions = {}): MeshDesignResult {
+export interface DesignEstimate {
+  /** estimated tetrahedra of the graded mesh (never below the initial Kuhn mesh) */
+  estimate: number;
+  /** true when the count passed the limit and integration stopped early (a lower bound then) */
+  aborted: boolean;
+  /** min(maxElements, hardCap) */
+  limit: number;
+  maxElements: number;
+  hardCap: number;
+  cells: [number, number, number];
+  initialTets: number;
+  leaves: number;
+  spec: ReturnType<typeof sizeFieldFromDesign>['spec'];
+  params: ReturnType<typeof sizeFieldFromDesign>['params'];
+  seconds: number;
+}
+
+/**
+ * The element count a design's graded mesh would have, from its size field, before any meshing
+ * (estimate.ts; within ±30 % by test). The far-field check calls it for recommended enclosures.
+ */
+export function estimateDesignElements(design: Design, options: MeshDesignOptions = {}): DesignEstimate {
   checkEnclosure(design);
   const { center, halfExtentsNm } = design.enclosure;
   const hardCap = options.hardCap ?? DEFAULT_HARD_CAP;
@@ -117,13 +138,31 @@ export function meshDesign(design: Design, options: MeshDesignOptions = {}): Mes
     lower > limit
       ? { tets: lower, sizeDriven: lower / CLOSURE_ALLOWANCE, leaves: 0, aborted: true }
       : estimateTetCount({ field, boxMin, boxMax, cells, stopAbove: 1.5 * limit });
-  const estimate = Math.max(initialTets, est.tets);
+  return {
+    estimate: Math.max(initialTets, est.tets),
+    aborted: est.aborted,
+    limit,
+    maxElements,
+    hardCap,
+    cells,
+    initialTets,
+    leaves: est.leaves,
+    spec,
+    params,
+    seconds: (performance.now() - t0) / 1000,
+  };
+}
+
+export function meshDesign(design: Design, options: MeshDesignOptions = {}): MeshDesignResult {
+  const { estimate, aborted, limit, maxElements, hardCap, cells, initialTets, leaves, spec, params, seconds } = estimateDesignElements(design, options);
+  const { center, halfExtentsNm } = design.enclosure;
+  const field = new SizeField(spec);
   const t1 = performance.now();
   if (estimate > limit) {
     const which = maxElements <= hardCap ? `the design's maxElements (${maxElements})` : `the server cap (${hardCap})`;
     throw new MeshError(
       'too-many-elements',
-      `the size field needs ${est.aborted ? 'at least' : 'about'} ${Math.round(estimate)} tetrahedra, more than ${which}; ` +
+      `the size field needs ${aborted ? 'at least' : 'about'} ${Math.round(estimate)} tetrahedra, more than ${which}; ` +
         'raise targetRelError, shrink the enclosure or raise maxElements',
       { estimate, limit, maxElements, hardCap },
     );
@@ -159,8 +198,8 @@ export function meshDesign(design: Design, options: MeshDesignOptions = {}): Mes
       closurePasses: refineStats.passes,
       workBytes: refineStats.workBytes,
       maxLevel,
-      estimateLeaves: est.leaves,
-      secondsEstimate: (t1 - t0) / 1000,
+      estimateLeaves: leaves,
+      secondsEstimate: seconds,
       secondsRefine: (t2 - t1) / 1000,
       secondsConvert: (t3 - t2) / 1000,
     },

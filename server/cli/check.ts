@@ -4,15 +4,17 @@
  * With --json prints exactly one JSON object:
  *   { boundary, tolerance, sites: [{ id, chargeOutside, uBoundEv, uRelBound }],
  *     pairs: [{ a, b, vBoundEv, vRelBound }], worstRelBound, recommendedHalfExtentsNm,
- *     warnings: [{ code, message, siteIds }] }
+ *     recommendedElements, warnings: [{ code, message, siteIds }] }
+ * where recommendedElements is the mesher's estimate of the graded mesh for the recommended box
+ * (null when no box size meets the tolerance).
  * (null stands for "no bound": a site outside the enclosure, or a box no size can fix).
  * Without it, a readable table with the model assumptions.
  * Exit codes: 0 checked, 1 invalid document or unreadable file, 2 usage.
  */
-import { readFile } from 'node:fs/promises';
-import { describeIssues, parseDesign } from '@contracts/design';
 import { farFieldCheck, type FarFieldReport } from '../../geometry/farfield';
 import type { Design } from '../../geometry/design/types';
+import { estimateDesignElements } from '../../geometry/mesh/index';
+import { readDesign } from './design-file';
 
 const USAGE = 'usage: npm run cli -- check <design.json> [--json]';
 
@@ -26,6 +28,7 @@ export function toCheckJson(r: FarFieldReport) {
     pairs: r.pairs.map((p) => ({ a: p.a, b: p.b, vBoundEv: num(p.vBoundEv), vRelBound: num(p.vRelBound) })),
     worstRelBound: num(r.worstRelBound),
     recommendedHalfExtentsNm: r.recommendedHalfExtentsNm.map(num),
+    recommendedElements: r.elementsEstimate,
     warnings: r.warnings.map((w) => ({ code: w.code, message: w.message, siteIds: w.siteIds })),
   };
 }
@@ -90,31 +93,14 @@ export async function run(argv: string[]): Promise<number> {
     return 2;
   }
   const json = flags.includes('--json');
-  let text: string;
-  try {
-    text = await readFile(files[0], 'utf8');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    console.error(`cannot read ${files[0]}: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a folder' : (e as Error).message}`);
-    return 1;
-  }
-  let doc: unknown;
-  try {
-    doc = JSON.parse(text);
-  } catch (e) {
-    console.error(`${files[0]} is not valid JSON: ${(e as Error).message}`);
-    return 1;
-  }
-  const parsed = parseDesign(doc);
-  if (!parsed.ok) {
-    console.error(`${files[0]} is not a valid design document:`);
-    for (const line of describeIssues(parsed.issues.slice(0, 50))) console.error(`  ${line}`);
-    if (parsed.issues.length > 50) console.error(`  … and ${parsed.issues.length - 50} more`);
-    if (json) console.log(JSON.stringify({ valid: false, issues: parsed.issues }));
-    return 1;
-  }
-  const design = parsed.design as Design;
-  const report = farFieldCheck(design);
+  const design = await readDesign(files[0], json);
+  if (!design) return 1;
+  // The element count the graded mesh would need for the recommended box (the mesher's estimate,
+  // within ±30 %); skipped for a box no size can fix.
+  const report = farFieldCheck(design, {
+    estimateElements: (halfExtentsNm) =>
+      Math.round(estimateDesignElements({ ...design, enclosure: { ...design.enclosure, halfExtentsNm } }, { maxElements: Infinity, hardCap: Infinity }).estimate),
+  });
   console.log(json ? JSON.stringify(toCheckJson(report), null, 2) : toReadable(design, report));
   return 0;
 }

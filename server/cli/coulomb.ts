@@ -10,8 +10,7 @@
  * Exit codes: 0 solved, 1 invalid document or a refusal (message on stderr, no numbers),
  * 2 usage, 3 adaptive refinement ran out of budget before the target (message, no numbers).
  */
-import { readFile } from 'node:fs/promises';
-import { describeIssues, parseDesign } from '@contracts/design';
+import { readDesign } from './design-file';
 import type { Design } from '../../geometry/design/types';
 import { solveCoulomb, CoulombError, type CoulombResult } from '../../geometry/fem/coulomb';
 import { MeshError } from '../../geometry/mesh/index';
@@ -43,33 +42,6 @@ export function parseArgs(argv: string[], withValue: string[], bare: string[]): 
     else out.errors.push(`unknown option ${a}`);
   }
   return out;
-}
-
-/** Read and validate a design file; prints plain-words problems and returns null on failure. */
-export async function readDesign(file: string, json: boolean): Promise<Design | null> {
-  let text: string;
-  try {
-    text = await readFile(file, 'utf8');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    console.error(`cannot read ${file}: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a folder' : (e as Error).message}`);
-    return null;
-  }
-  let doc: unknown;
-  try {
-    doc = JSON.parse(text);
-  } catch (e) {
-    console.error(`${file} is not valid JSON: ${(e as Error).message}`);
-    return null;
-  }
-  const parsed = parseDesign(doc);
-  if (!parsed.ok) {
-    console.error(`${file} is not a valid design document:`);
-    for (const line of describeIssues(parsed.issues.slice(0, 50))) console.error(`  ${line}`);
-    if (json) console.log(JSON.stringify({ valid: false, issues: parsed.issues }));
-    return null;
-  }
-  return parsed.design as Design;
 }
 
 /** The refusals the solver layer raises on purpose: shown as they are, never as a stack trace. */

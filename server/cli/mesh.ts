@@ -14,9 +14,8 @@
  * (φ·e²/4πε₀ in eV, i.e. volts), on all P2 nodes for order 2. Only for vtu and vtk.
  * Exit codes: 0 written, 1 invalid document, refused mesh or unwritable file, 2 usage.
  */
-import { readFile, writeFile } from 'node:fs/promises';
-import { describeIssues, parseDesign } from '@contracts/design';
-import type { Design } from '../../geometry/design/types';
+import { writeFile } from 'node:fs/promises';
+import { readDesign } from './design-file';
 import { resolveOrbital } from '../../geometry/design/presets';
 import { MeshError, meshDesign, SizeField, sizeFieldFromDesign, orbitalLength } from '../../geometry/mesh/index';
 import { writeVtu, writeVtkLegacy, encodeMeshBinary } from '../../geometry/mesh/export/index';
@@ -98,29 +97,8 @@ export async function run(argv: string[]): Promise<number> {
     console.error(args);
     return 2;
   }
-  let text: string;
-  try {
-    text = await readFile(args.file, 'utf8');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    console.error(`cannot read ${args.file}: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a folder' : (e as Error).message}`);
-    return 1;
-  }
-  let doc: unknown;
-  try {
-    doc = JSON.parse(text);
-  } catch (e) {
-    console.error(`${args.file} is not valid JSON: ${(e as Error).message}`);
-    return 1;
-  }
-  const parsed = parseDesign(doc);
-  if (!parsed.ok) {
-    console.error(`${args.file} is not a valid design document:`);
-    for (const line of describeIssues(parsed.issues.slice(0, 50))) console.error(`  ${line}`);
-    if (parsed.issues.length > 50) console.error(`  … and ${parsed.issues.length - 50} more`);
-    return 1;
-  }
-  const design = parsed.design as Design;
+  const design = await readDesign(args.file, false);
+  if (!design) return 1;
   const order = args.order ?? design.refinement.order;
 
   const t0 = performance.now();

@@ -8,7 +8,8 @@
  */
 import type { Design } from '../../geometry/design/types';
 import { runStudy, type StudyResult, type RefinementRow, type BoxRow } from '../../geometry/fem/study';
-import { parseArgs, readDesign, refusalMessage } from './coulomb';
+import { parseArgs, refusalMessage } from './coulomb';
+import { readDesign } from './design-file';
 
 const USAGE = 'usage: npm run cli -- study <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json]';
 
