@@ -1,11 +1,10 @@
 import { useState } from 'react';
 import { accountUpdateBodySchema, passwordChangeBodySchema, type User } from '@contracts/api';
-import { Button } from '../../components/Button';
 import { FormAlert, SubmitButton, TextField, formValues, useFormErrors } from '../../components/Form';
 import { PageHeader } from '../../components/PageHeader';
 import { Panel } from '../../components/Panel';
 import { Loading } from '../../components/QueryState';
-import { ApiError } from '../../lib/api';
+import { VersionedFormActions, useVersionedForm } from '../../components/VersionedForm';
 import { FIELDS_SUMMARY, formErrorsFromError, validateWith } from '../../lib/formErrors';
 import { useMe } from '../auth/me';
 import { useChangePassword } from './changePassword';
@@ -21,40 +20,22 @@ const PASSWORD_FIELDS = ['currentPassword', 'newPassword', 'repeatPassword'] as 
  */
 function DisplayNameForm({ user, onSaved, onLoadLatest }: { user: User; onSaved: () => void; onLoadLatest: () => void }) {
   const update = useUpdateAccount();
-  const [baseVersion] = useState(user.version);
-  const [stale, setStale] = useState(false);
-  const { errors, setErrors, clearErrors, formRef } = useFormErrors();
-
-  function onSubmit(e: React.FormEvent<HTMLFormElement>) {
-    e.preventDefault();
-    const checked = validateWith(accountUpdateBodySchema, { ...formValues(e.currentTarget), version: baseVersion }, NAME_FIELDS);
-    if (!checked.ok) return setErrors(checked.errors);
-    clearErrors();
-    update.mutate(checked.data, {
-      onSuccess: onSaved,
-      onError: (err) => {
-        if (err instanceof ApiError && err.isConflict) {
-          setStale(true);
-          setErrors({ fields: {}, form: 'Someone else changed your account details since you opened this page (perhaps you, in another tab). Nothing was saved. Load the latest, then make your change again.' });
-        } else setErrors(formErrorsFromError(err, NAME_FIELDS));
-      },
-    });
-  }
+  const { errors, formRef, stale, onSubmit } = useVersionedForm({
+    version: user.version,
+    schema: accountUpdateBodySchema,
+    fields: NAME_FIELDS,
+    conflictMessage: 'Someone else changed your account details since you opened this page (perhaps you, in another tab). Nothing was saved. Load the latest, then make your change again.',
+    save: update.mutate,
+    onSaved,
+  });
 
   return (
     <form ref={formRef} noValidate onSubmit={onSubmit} className="space-y-3" aria-label="Change display name">
       <FormAlert message={errors.form} />
       <TextField label="Display name" name="displayName" required maxLength={80} defaultValue={user.displayName} autoComplete="name" hint="Shown to your teammates in every project." error={errors.fields.displayName} />
-      <div className="flex flex-wrap gap-2">
-        <SubmitButton pending={update.isPending} pendingLabel="Saving…">
-          Save name
-        </SubmitButton>
-        {stale && (
-          <Button variant="secondary" onClick={onLoadLatest}>
-            Load the latest
-          </Button>
-        )}
-      </div>
+      <VersionedFormActions pending={update.isPending} stale={stale} onLoadLatest={onLoadLatest}>
+        Save name
+      </VersionedFormActions>
     </form>
   );
 }

@@ -2,10 +2,10 @@ import { useState } from 'react';
 import { useNavigate } from 'react-router';
 import { projectUpdateBodySchema, type Project } from '@contracts/api';
 import { Button } from '../../components/Button';
-import { FormAlert, SubmitButton, TextAreaField, TextField, formValues, useFormErrors } from '../../components/Form';
+import { FormAlert, TextAreaField, TextField } from '../../components/Form';
 import { Panel } from '../../components/Panel';
-import { ApiError } from '../../lib/api';
-import { formErrorsFromError, validateWith } from '../../lib/formErrors';
+import { VersionedFormActions, useVersionedForm } from '../../components/VersionedForm';
+import { formErrorsFromError } from '../../lib/formErrors';
 import { useDeleteProject } from './deleteProject';
 import { useUpdateProject } from './updateProject';
 
@@ -18,42 +18,24 @@ const FIELDS = ['name', 'description'] as const;
  */
 function RenameForm({ project, onSaved, onLoadLatest }: { project: Project; onSaved: () => void; onLoadLatest: () => void }) {
   const update = useUpdateProject(project.id);
-  const [baseVersion] = useState(project.version);
-  const [stale, setStale] = useState(false);
-  const { errors, setErrors, clearErrors, formRef } = useFormErrors();
-
-  function onSubmit(e: React.FormEvent<HTMLFormElement>) {
-    e.preventDefault();
-    const checked = validateWith(projectUpdateBodySchema, { ...formValues(e.currentTarget), version: baseVersion }, FIELDS);
-    if (!checked.ok) return setErrors(checked.errors);
-    clearErrors();
-    update.mutate(checked.data, {
-      // The hook's own onSettled has refetched the project by now, so a remount sees the new version.
-      onSuccess: onSaved,
-      onError: (err) => {
-        if (err instanceof ApiError && err.isConflict) {
-          setStale(true);
-          setErrors({ fields: {}, form: 'Someone else changed this project since you opened it. Your edits are still in the form; load the latest to see theirs before saving again.' });
-        } else setErrors(formErrorsFromError(err, FIELDS));
-      },
-    });
-  }
+  const { errors, formRef, stale, onSubmit } = useVersionedForm({
+    version: project.version,
+    schema: projectUpdateBodySchema,
+    fields: FIELDS,
+    conflictMessage: 'Someone else changed this project since you opened it. Your edits are still in the form; load the latest to see theirs before saving again.',
+    save: update.mutate,
+    // The hook's own onSettled has refetched the project by now, so a remount sees the new version.
+    onSaved,
+  });
 
   return (
     <form ref={formRef} noValidate onSubmit={onSubmit} className="space-y-3" aria-label="Rename project">
       <FormAlert message={errors.form} />
       <TextField label="Project name" name="name" required maxLength={120} defaultValue={project.name} error={errors.fields.name} />
       <TextAreaField label="Description" name="description" maxLength={2000} defaultValue={project.description} error={errors.fields.description} />
-      <div className="flex flex-wrap gap-2">
-        <SubmitButton pending={update.isPending} pendingLabel="Saving…">
-          Save changes
-        </SubmitButton>
-        {stale && (
-          <Button variant="secondary" onClick={onLoadLatest}>
-            Load the latest
-          </Button>
-        )}
-      </div>
+      <VersionedFormActions pending={update.isPending} stale={stale} onLoadLatest={onLoadLatest}>
+        Save changes
+      </VersionedFormActions>
     </form>
   );
 }
