@@ -7,35 +7,21 @@
  * (default 1.3e6) and TETRAWELL_BENCH_JACOBI_MAX_DOFS to skip slow Jacobi runs (default: no cap).
  */
 import { cpus, loadavg } from 'node:os';
-import { kuhnBox, refineToSize, refineUniform, toTetMesh } from '../../geometry/mesh';
 import type { TetMesh } from '../../geometry/mesh/types';
 import { buildSpace } from '../../geometry/fem/space';
 import { applyDirichlet, assembleSystem } from '../../geometry/fem/assemble';
 import { spmv, type Csr } from '../../geometry/fem/csr';
 import { pcg, jacobi } from '../../geometry/fem/pcg';
 import { multigridPreconditioner } from '../../geometry/fem/multigrid';
+import { gradedBox, uniformBox } from '../geometry/fem/multigrid-fixture';
 
 type V3 = [number, number, number];
 const SITE: V3 = [0.93, 1.07, 1.01];
 const EPS = 11.7; // silicon εr, common practice (geometry/units.ts)
 
+/** The box [0, 2]³ (2³ Kuhn cells) graded towards the site: element size h0 + 10·h0·r. */
 function gradedMesh(h0: number): TetMesh {
-  const m = kuhnBox({ center: [1, 1, 1], halfExtents: [1, 1, 1], cells: [2, 2, 2] });
-  const grade = 10 * h0; // element size h0 + grade·r around the site
-  refineToSize(m, (coords, tets, t) => {
-    let longest = 0;
-    let dmin = Infinity;
-    for (let i = 0; i < 4; i++) {
-      const a = 3 * tets[4 * t + i];
-      dmin = Math.min(dmin, Math.hypot(coords[a] - SITE[0], coords[a + 1] - SITE[1], coords[a + 2] - SITE[2]));
-      for (let j = i + 1; j < 4; j++) {
-        const b = 3 * tets[4 * t + j];
-        longest = Math.max(longest, Math.hypot(coords[a] - coords[b], coords[a + 1] - coords[b + 1], coords[a + 2] - coords[b + 2]));
-      }
-    }
-    return longest > h0 + grade * dmin;
-  });
-  return toTetMesh(m);
+  return gradedBox(2, 1, SITE, h0, 10 * h0);
 }
 
 const density = (x: number, y: number, z: number): number =>
@@ -52,9 +38,7 @@ export function spmvBandwidth(): void {
   // uniform meshes large enough that the matrix (~50–100 MB) is far outside the caches:
   // P1 after 15 bisection generations (274,625 unknowns), P2 after 12 (274,625 unknowns)
   for (const [order, times] of [[1, 15], [2, 12]] as const) {
-    const m = kuhnBox({ center: [1, 1, 1], halfExtents: [1, 1, 1], cells: [2, 2, 2] });
-    refineUniform(m, times);
-    const space = buildSpace(toTetMesh(m), order);
+    const space = buildSpace(uniformBox(2, 1, times), order);
     const A: Csr = assembleSystem(space, [EPS]).A;
     const n = A.n;
     const nnz = A.cols.length;
