@@ -7,6 +7,7 @@ import { pcg, jacobi } from '../../../geometry/fem/pcg';
 import { multigridPreconditioner, HierarchyError } from '../../../geometry/fem/multigrid';
 import type { TetMesh } from '../../../geometry/mesh/types';
 import { kuhnBox, refine, refineUniform, toTetMesh } from '../../../geometry/mesh';
+import { marksWhere } from '../mesh/marks.fixtures';
 
 const EPS_SI = 11.7; // silicon εr, common practice (geometry/units.ts)
 const site: [number, number, number] = [0.93, 1.07, 1.01];
@@ -117,18 +118,11 @@ describe('multigrid preconditioner on the bisection hierarchy', () => {
     const m = kuhnBox({ center: [0, 0, 0], halfExtents: [1, 1.5, 1], cells: [2, 3, 2] });
     refineUniform(m, 3);
     for (let round = 0; round < 12; round++) {
-      const marked = new Uint8Array(m.nTets);
-      for (let t = 0; t < m.nTets; t++) {
-        let cx = 0, cy = 0, cz = 0;
-        for (let i = 0; i < 4; i++) {
-          const v = m.tets[4 * t + i];
-          cx += m.coords[3 * v] / 4;
-          cy += m.coords[3 * v + 1] / 4;
-          cz += m.coords[3 * v + 2] / 4;
-        }
+      const radius = 0.6 / (round + 1);
+      const marked = marksWhere(m, (cx, cy, cz) => {
         const d = Math.min(Math.hypot(cx - 0.3, cy - 0.2, cz), Math.hypot(cx + 0.4, cy - 0.7, cz - 0.1), Math.abs(cy + 0.5) + Math.abs(cz - 0.2));
-        if (d < 0.6 / (round + 1)) marked[t] = 1;
-      }
+        return d < radius;
+      });
       refine(m, marked);
     }
     const mesh = toTetMesh(m);

@@ -10,6 +10,7 @@ import { kuhnBox, meshDesign, refine, refineUniform, refineWithStats, toTetMesh,
 import { checkMesh, tetDet } from '../../../geometry/mesh/check';
 import { computeTetQuality } from '../../../geometry/mesh/quality';
 import { NO_PARENT } from '../../../geometry/mesh/types';
+import { marksWhere } from './marks.fixtures';
 
 type Box = { min: [number, number, number]; max: [number, number, number] };
 const UNIT: Box = { min: [0, 0, 0], max: [1, 1, 1] };
@@ -20,18 +21,7 @@ function unitCubes(n: number): BisectionMesh {
 
 /** marks tets whose centroid lies within `radius` of p */
 function marksNear(m: BisectionMesh, p: number[], radius: number): Uint8Array {
-  const marks = new Uint8Array(m.nTets);
-  for (let t = 0; t < m.nTets; t++) {
-    let cx = 0, cy = 0, cz = 0;
-    for (let i = 0; i < 4; i++) {
-      const v = m.tets[4 * t + i];
-      cx += m.coords[3 * v] / 4;
-      cy += m.coords[3 * v + 1] / 4;
-      cz += m.coords[3 * v + 2] / 4;
-    }
-    if (Math.hypot(cx - p[0], cy - p[1], cz - p[2]) < radius) marks[t] = 1;
-  }
-  return marks;
+  return marksWhere(m, (cx, cy, cz) => Math.hypot(cx - p[0], cy - p[1], cz - p[2]) < radius);
 }
 
 /** number of distinct shapes: sorted squared edge lengths over the longest, to 1e-9 */
