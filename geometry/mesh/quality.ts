@@ -51,6 +51,24 @@ const EDGE_FACES: ReadonlyArray<readonly [number, number]> = TET_EDGES.map(([k, 
 
 const RAD2DEG = 180 / Math.PI;
 
+/** Copies the 4 vertex positions of tet t into p (12 entries: x, y, z per local vertex). */
+function gatherVertices(coords: Float64Array, tets: Uint32Array, t: number, p: Float64Array): void {
+  for (let i = 0; i < 4; i++) {
+    const v = 3 * tets[4 * t + i];
+    p[3 * i] = coords[v];
+    p[3 * i + 1] = coords[v + 1];
+    p[3 * i + 2] = coords[v + 2];
+  }
+}
+
+/**
+ * Mean ratio from volume V and the sum of squared edge lengths: 1 for the regular tet, 0 for
+ * a flat or inverted one. One function for both callers, so their values agree to the bit.
+ */
+function meanRatioOf(V: number, sumL2: number): number {
+  return V > 0 ? (12 * Math.cbrt(3 * V) ** 2) / sumL2 : 0;
+}
+
 /** Per-tet shape measures in one pass over the mesh (no per-tet allocation). */
 export function computeTetQuality(mesh: Pick<TetMesh, 'coords' | 'tets'>): TetQuality {
   const { coords, tets } = mesh;
@@ -72,12 +90,7 @@ export function computeTetQuality(mesh: Pick<TetMesh, 'coords' | 'tets'>): TetQu
   const ef0 = Int8Array.from(EDGE_FACES.map((f) => f[0]));
   const ef1 = Int8Array.from(EDGE_FACES.map((f) => f[1]));
   for (let t = 0; t < m; t++) {
-    for (let i = 0; i < 4; i++) {
-      const v = 3 * tets[4 * t + i];
-      p[3 * i] = coords[v];
-      p[3 * i + 1] = coords[v + 1];
-      p[3 * i + 2] = coords[v + 2];
-    }
+    gatherVertices(coords, tets, t, p);
     let sumL2 = 0;
     let maxL2 = 0;
     for (let e = 0; e < 6; e++) {
@@ -125,7 +138,7 @@ export function computeTetQuality(mesh: Pick<TetMesh, 'coords' | 'tets'>): TetQu
     const rCirc = Math.sqrt(Math.max(prod, 0)) / (24 * V);
     const rIn = det / areaSum2; // 3V/S = (det/2)/(areaSum2/2)
     radiusRatio[t] = V > 0 ? (3 * rIn) / rCirc : 0;
-    meanRatio[t] = V > 0 ? (12 * Math.cbrt(3 * V) ** 2) / sumL2 : 0;
+    meanRatio[t] = meanRatioOf(V, sumL2);
     minDihedralDeg[t] = dmin;
     maxDihedralDeg[t] = dmax;
     longestEdge[t] = Math.sqrt(maxL2);
@@ -145,20 +158,14 @@ export function computeMeanRatio(mesh: Pick<TetMesh, 'coords' | 'tets'>): Float6
   const e0 = Int8Array.from(TET_EDGES.map((e) => e[0]));
   const e1 = Int8Array.from(TET_EDGES.map((e) => e[1]));
   for (let t = 0; t < m; t++) {
-    for (let i = 0; i < 4; i++) {
-      const v = 3 * tets[4 * t + i];
-      p[3 * i] = coords[v];
-      p[3 * i + 1] = coords[v + 1];
-      p[3 * i + 2] = coords[v + 2];
-    }
+    gatherVertices(coords, tets, t, p);
     let sumL2 = 0;
     for (let e = 0; e < 6; e++) {
       const a = 3 * e0[e];
       const b = 3 * e1[e];
       sumL2 += (p[a] - p[b]) ** 2 + (p[a + 1] - p[b + 1]) ** 2 + (p[a + 2] - p[b + 2]) ** 2;
     }
-    const V = tetDet(coords, tets, t) / 6;
-    out[t] = V > 0 ? (12 * Math.cbrt(3 * V) ** 2) / sumL2 : 0;
+    out[t] = meanRatioOf(tetDet(coords, tets, t) / 6, sumL2);
   }
   return out;
 }
