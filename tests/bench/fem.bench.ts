@@ -66,7 +66,25 @@ function tetrawell(tol: number): Row {
   };
 }
 
-function dolfinx(target: number): { available: boolean; rows: { n: number; dofs: number; seconds: number; relErr: number }[]; note: string } {
+interface DolfinxRow {
+  n: number;
+  dofs: number;
+  seconds: number;
+  relErr: number;
+  signedRelErr?: number;
+}
+
+/**
+ * The first uniform mesh from which every finer one in the run meets the target: a single mesh
+ * below the target can be luck (the error of a cusp integrated on a uniform mesh is not monotone).
+ */
+export function firstReliable(rows: DolfinxRow[], target: number): DolfinxRow | undefined {
+  let first: DolfinxRow | undefined;
+  for (const row of rows) first = row.relErr < target ? (first ?? row) : undefined;
+  return first;
+}
+
+function dolfinx(target: number): { available: boolean; rows: DolfinxRow[]; note: string } {
   const probe = spawnSync('/usr/bin/python3', ['-c', 'import dolfinx'], { encoding: 'utf8' });
   if (probe.error || probe.status !== 0) {
     return {
@@ -83,7 +101,7 @@ function dolfinx(target: number): { available: boolean; rows: { n: number; dofs:
   const rows = (res.stdout ?? '')
     .split('\n')
     .filter((l) => l.startsWith('{'))
-    .map((l) => JSON.parse(l) as { n: number; dofs: number; seconds: number; relErr: number });
+    .map((l) => JSON.parse(l) as DolfinxRow);
   return { available: true, rows, note: res.status === 0 ? '' : `the dolfinx script failed: ${(res.stderr ?? '').split('\n').slice(-3).join(' ')}` };
 }
 
@@ -108,10 +126,10 @@ export async function run(): Promise<void> {
   if (!dx.available) {
     console.log(dx.note);
   } else {
-    for (const row of dx.rows) console.log(`  n=${row.n}  unknowns ${row.dofs}  ${row.seconds.toFixed(2)} s  rel. error ${row.relErr.toExponential(2)}`);
-    const hit = dx.rows.find((row) => row.relErr < 1e-3);
+    for (const row of dx.rows) console.log(`  n=${row.n}  unknowns ${row.dofs}  ${row.seconds.toFixed(2)} s  rel. error ${(row.signedRelErr ?? row.relErr).toExponential(2)}`);
+    const hit = firstReliable(dx.rows, 1e-3);
     if (hit) {
-      console.log(`dolfinx to 1e-3: ${hit.seconds.toFixed(2)} s with ${hit.dofs} unknowns; Tetrawell: ${rows[0].seconds.toFixed(2)} s with ${rows[0].dofs}; ratio ${(hit.seconds / rows[0].seconds).toFixed(1)}× (target ≥ 10×)`);
+      console.log(`dolfinx to 1e-3 (first mesh from which every finer one meets it): ${hit.seconds.toFixed(2)} s with ${hit.dofs} unknowns; Tetrawell: ${rows[0].seconds.toFixed(2)} s with ${rows[0].dofs}; ratio ${(hit.seconds / rows[0].seconds).toFixed(1)}× (target ≥ 10×)`);
     } else {
       console.log(`dolfinx did not reach 1e-3 within its size limit. ${dx.note}`);
     }
