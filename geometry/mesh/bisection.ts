@@ -391,6 +391,21 @@ export interface RefineStats {
 
 /** tets per block of the verification clock (see refineEngine) */
 const BLOCK_SHIFT = 6;
+const BLOCK_MASK = (1 << BLOCK_SHIFT) - 1;
+
+/**
+ * Records the clock at the start of block bi. Tets appended during the pass can outrun the
+ * block array: it then doubles (returned, so the caller keeps the grown array).
+ */
+function stampBlock(block: Uint32Array<ArrayBuffer>, bi: number, clock: number): Uint32Array<ArrayBuffer> {
+  if (bi >= block.length) {
+    const g = new Uint32Array(2 * block.length + 1);
+    g.set(block);
+    block = g;
+  }
+  block[bi] = clock;
+  return block;
+}
 
 /**
  * The refinement engine shared by refine() and refineToSize().
@@ -557,15 +572,7 @@ function refineEngine(m: BisectionMesh, marks: Uint8Array | null, tooLarge: TooL
       // pass 1: to size, verifying each tet against splits so far
       let block = new Uint32Array(((m.tetTag.length - 1) >> BLOCK_SHIFT) + 1);
       for (let t = 0; t < nt; t++) {
-        if ((t & ((1 << BLOCK_SHIFT) - 1)) === 0) {
-          const bi = t >> BLOCK_SHIFT;
-          if (bi >= block.length) {
-            const g = new Uint32Array(2 * block.length + 1);
-            g.set(block);
-            block = g;
-          }
-          block[bi] = clock;
-        }
+        if ((t & BLOCK_MASK) === 0) block = stampBlock(block, t >> BLOCK_SHIFT, clock);
         while (tooLarge(coords, tets, t) || hanging(t, 0)) bisect(t);
       }
       noteWork(block);
@@ -579,15 +586,7 @@ function refineEngine(m: BisectionMesh, marks: Uint8Array | null, tooLarge: TooL
       const before = bisections;
       let block = new Uint32Array(((Math.max(nt, 1) - 1) >> BLOCK_SHIFT) + 1);
       for (let t = 0; t < nt; t++) {
-        if ((t & ((1 << BLOCK_SHIFT) - 1)) === 0) {
-          const bi = t >> BLOCK_SHIFT;
-          if (bi >= block.length) {
-            const g = new Uint32Array(2 * block.length + 1);
-            g.set(block);
-            block = g;
-          }
-          block[bi] = clock;
-        }
+        if ((t & BLOCK_MASK) === 0) block = stampBlock(block, t >> BLOCK_SHIFT, clock);
         let since = t < prevEnd ? prevBlock[t >> BLOCK_SHIFT] : 0;
         while (hanging(t, since)) {
           bisect(t);
