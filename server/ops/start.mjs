@@ -27,6 +27,7 @@ Environment:
   HOST                       address the app listens on (default 127.0.0.1)
   PUBLIC_URL                 URL used in e-mailed links (default http://127.0.0.1:PORT)
   DATABASE_URL               use this PostgreSQL database instead of the private cluster in .data/pg
+                             (migrated; the demo is seeded there only with TETRAWELL_SEED_DEMO=1)
   TETRAWELL_PG_PORT          port of the private cluster on 127.0.0.1 (default 54329)
   TETRAWELL_FAKE_SMTP_PORT   port of the local fake SMTP server (default 2525)
   SESSION_SECRET             session signing secret (default: generated once, kept in .data/session.secret)
@@ -136,8 +137,11 @@ async function main() {
   let databaseUrl = process.env.DATABASE_URL;
   let info;
   if (databaseUrl) {
-    say('DATABASE_URL is set: using that database (no local cluster)');
-    info = await prepareDatabase({ databaseUrl, seed: true });
+    // A database of the user's own may be a real one: never plant demo accounts (with a published
+    // password and a site admin among them) there unless asked, and never in production.
+    const seed = process.env.TETRAWELL_SEED_DEMO === '1' && process.env.NODE_ENV !== 'production';
+    say(`DATABASE_URL is set: using that database (no local cluster${seed ? '; seeding the demo because TETRAWELL_SEED_DEMO=1' : ', no demo accounts'})`);
+    info = await prepareDatabase({ databaseUrl, seed });
   } else {
     const cluster = await startCluster({ name: 'pg', port: pgPort });
     cleanups.push(() => cluster.stop());
@@ -185,6 +189,9 @@ async function main() {
     const project = typeof info?.seeded?.projectName === 'string' ? ` (demo project "${info.seeded.projectName}")` : '';
     lines.push(`  Demo sign-in${project}:`);
     for (const l of logins) lines.push(`    ${l.email}  /  ${l.password}${l.role ? dim(`   (${l.role})`) : ''}`);
+  } else if (process.env.DATABASE_URL && process.env.TETRAWELL_SEED_DEMO !== '1') {
+    lines.push('  Demo sign-in: none (DATABASE_URL given: no demo accounts are created there). Sign up, or set');
+    lines.push('  TETRAWELL_SEED_DEMO=1 to seed the demo into an empty database of your own.');
   } else {
     lines.push('  Demo sign-in: none. This database already had accounts when the demo would have been seeded,');
     lines.push('  or the demo accounts were removed since; sign in with an account of your own or sign up.');
