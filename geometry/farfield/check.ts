@@ -250,7 +250,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
         if (pj[0] - pi[0] >= a) break;
         const R = dist(pi, pj);
         if (R < 1e-6) {
-          if (!coincide.includes(sites[i].id)) coincide.push(sites[i].id, sites[j].id);
+          coincide.push(sites[i].id, sites[j].id); // uniq() below removes repeats
         } else if (R < a && !(sites[i].cluster !== undefined && sites[i].cluster === sites[j].cluster)) overlap.push(sites[i].id, sites[j].id);
       }
     }
@@ -261,6 +261,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
   const rec: Vec3 = n === 0 ? [half[0], half[1], half[2]] : [0, 0, 0];
   const outside: string[] = [];
   const cut: string[] = [];
+  let worstCut = 0;
   const tooClose: string[] = [];
   const noElectrons: string[] = [];
   const offLattice: string[] = [];
@@ -289,7 +290,10 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
       worst = Math.max(worst, delta[i] / self[i]);
       if (delta[i] / self[i] > tol) tooClose.push(s.id);
     }
-    if (inside && co > tol / 10) cut.push(s.id);
+    if (inside && co > tol / 10) {
+      cut.push(s.id);
+      if (co > worstCut) worstCut = co;
+    }
     if (s.electrons === 0) noElectrons.push(s.id);
     if (orbitals[i].model === 'anisotropic-1s') aniso.push(s.id);
     const snapped = siteToNm(snapToLattice(s.position, a), a);
@@ -321,7 +325,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     warnings.push({
       code: 'density-cut',
       severity: 'warning',
-      message: `The enclosure cuts off more than ${pct(tol / 10)} of the density of ${cut.length} site(s) (largest ${pct(Math.max(...cut.map((id) => out.find((o) => o.id === id)!.chargeOutside)))}); the boundary bound assumes the density lies inside.`,
+      message: `The enclosure cuts off more than ${pct(tol / 10)} of the density of ${cut.length} site(s) (largest ${pct(worstCut)}); the boundary bound assumes the density lies inside.`,
       siteIds: cut,
     });
   if (coincide.length)
