@@ -16,7 +16,7 @@ import { projectsRepo } from '../repositories/projects';
 import { membershipsRepo } from '../repositories/memberships';
 import { designsRepo } from '../repositories/designs';
 import { auditRepo } from '../repositories/audit';
-import { SI_EPSILON_R, SI_LATTICE_NM } from '../services/designs';
+import { SI_EPSILON_R, SI_LATTICE_CONSTANT_NM } from '../../geometry/units';
 
 export interface DemoAccount {
   email: string;
@@ -57,7 +57,7 @@ export const DEMO_ACCOUNTS: DemoAccount[] = [
  * (a = 0.5431020511 nm, CODATA 2018).
  */
 export function demoDesign(): DesignDocument {
-  const a = SI_LATTICE_NM;
+  const a = SI_LATTICE_CONSTANT_NM;
   const steps = [-9, -3, 3, 9];
   return designSchema.parse({
     format: 'tetrawell-design',

@@ -10,10 +10,7 @@ import { AppError, staleWrite } from './errors';
 import { recordAudit } from './audit';
 import type { ServiceDeps } from './context';
 
-/** Silicon lattice constant a in nm (CODATA 2018, 22.5 °C). */
-export const SI_LATTICE_NM = 0.5431020511;
-/** Static relative permittivity of Si: 11.7 (common practice; from memory, some handbooks give 11.9). */
-export const SI_EPSILON_R = 11.7;
+import { SI_EPSILON_R, SI_LATTICE_CONSTANT_NM } from '../../geometry/units';
 
 /**
  * The design a new project starts with: silicon host, no sites yet, a 40 nm box with a
@@ -24,7 +21,7 @@ export function emptyDesign(name: string): DesignDocument {
     format: 'tetrawell-design',
     version: 1,
     name: name.slice(0, 200) || 'Untitled design',
-    host: { material: 'Si', epsilonR: SI_EPSILON_R, latticeConstantNm: SI_LATTICE_NM },
+    host: { material: 'Si', epsilonR: SI_EPSILON_R, latticeConstantNm: SI_LATTICE_CONSTANT_NM },
     sites: [],
     enclosure: { center: [0, 0, 0], halfExtentsNm: [20, 20, 20], boundary: { kind: 'multipole', order: 2 } },
     refinement: { order: 2, targetRelError: 0.01, maxElements: 500_000 },
