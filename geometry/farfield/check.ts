@@ -33,7 +33,7 @@ import { chargeOutsideBox, orbitalScale, pairEnergy, radialTail, selfEnergy } fr
 import { bondGraph, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
 import { snapToLattice, siteToNm } from '../lattice';
 import { clearanceFor, neglectedEnvelope, type Envelope } from './envelope';
-import { combinedMoments } from './moments';
+import { combinedMoments, orbitalMoments } from './moments';
 
 /** Stable warning codes: the UI and scripts may key on them; never rename, only add. */
 export const WARNING_CODES = [
@@ -93,8 +93,12 @@ export interface FarFieldReport {
   /** element count the refinement would need for the recommended box, when an estimator is given */
   elementsEstimate: number | null;
   warnings: FarFieldWarning[];
-  /** moments of the array (weights = electrons) about the enclosure centre, when asked for */
-  moments?: { center: Vec3; order: number; values: number[] };
+  /**
+   * Multipole moments Q_lm (l ≤ 4, real solid harmonics in Racah normalisation, the order of
+   * geometry/farfield/harmonics.ts) about `center`, when asked for: of each site's unit density
+   * and of the whole array (weights = electrons).
+   */
+  moments?: { center: Vec3; order: number; values: number[]; sites: { id: string; values: number[] }[] };
   assumptions: string[];
 }
 
@@ -105,8 +109,10 @@ export interface FarFieldOptions {
   shellFactor?: number;
   /** hook for the mesh issue: the element count the refinement would need for given half-extents */
   estimateElements?: (halfExtentsNm: Vec3) => number;
-  /** include the array's multipole moments up to order 4 about the enclosure centre */
+  /** include the multipole moments up to order 4 of every site and of the array */
   moments?: boolean;
+  /** the centre the moments are taken about (default: the enclosure centre) */
+  momentsCenter?: Vec3;
 }
 
 export const ALL_PAIRS_LIMIT = 64;
@@ -371,12 +377,18 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     assumptions: MODEL_ASSUMPTIONS,
   };
   if (options.moments) {
+    const c: Vec3 = options.momentsCenter ? [...options.momentsCenter] : [center[0], center[1], center[2]];
     const vals = combinedMoments(
       sites.map((s, i) => ({ orbital: orbitals[i], position: s.position, weight: s.electrons })),
-      center,
+      c,
       4,
     );
-    report.moments = { center: [center[0], center[1], center[2]], order: 4, values: Array.from(vals) };
+    report.moments = {
+      center: c,
+      order: 4,
+      values: Array.from(vals),
+      sites: sites.map((s, i) => ({ id: s.id, values: Array.from(orbitalMoments(orbitals[i], s.position, c, 4)) })),
+    };
   }
   return report;
 }

@@ -8,6 +8,8 @@
  * where recommendedElements is the mesher's estimate of the graded mesh for the recommended box
  * (null when no box size meets the tolerance).
  * (null stands for "no bound": a site outside the enclosure, or a box no size can fix).
+ * --moments adds the multipole moments to order 4 of every site's unit density and of the array
+ * (weights = electrons) about the enclosure centre: a `moments` key in the JSON, a table otherwise.
  * Without it, a readable table with the model assumptions.
  * Exit codes: 0 checked, 1 invalid document or unreadable file, 2 usage.
  */
@@ -16,7 +18,7 @@ import type { Design } from '../../geometry/design/types';
 import { estimateDesignElements } from '../../geometry/mesh/index';
 import { readDesign } from './design-file';
 
-const USAGE = 'usage: npm run cli -- check <design.json> [--json]';
+const USAGE = 'usage: npm run cli -- check <design.json> [--json] [--moments]';
 
 const num = (x: number | null) => (x === null || !Number.isFinite(x) ? null : x);
 
@@ -69,6 +71,13 @@ export function toReadable(design: Design, r: FarFieldReport): string {
   out.push(`worst relative bound: ${pct(r.worstRelBound)} (target ${pct(r.tolerance)})`);
   out.push(`smallest half-extents meeting the target: ${r.recommendedHalfExtentsNm.map((x) => g(x, 4)).join(' × ')} nm`);
   if (r.elementsEstimate !== null) out.push(`elements the refinement would need: about ${r.elementsEstimate}`);
+  if (r.moments) {
+    const names = ['q', 'p_y', 'p_z', 'p_x'];
+    const row = (label: string, v: number[]) => [label, ...v.slice(0, 4).map((x) => g(x, 4)), g(Math.hypot(...v.slice(4, 9)), 4), g(Math.hypot(...v.slice(9, 16)), 4), g(Math.hypot(...v.slice(16, 25)), 4)];
+    out.push('');
+    out.push(`multipole moments about (${r.moments.center.join(', ')}) nm, in e·nm^l (real solid harmonics, Racah normalisation; |Q_l| = norm over m):`);
+    out.push(table([['', ...names, '|Q_2|', '|Q_3|', '|Q_4|'], ...r.moments.sites.slice(0, 40).map((m) => row(m.id, m.values)), row('array', r.moments.values)]));
+  }
   if (r.warnings.length) {
     out.push('');
     out.push('warnings:');
@@ -83,7 +92,7 @@ export function toReadable(design: Design, r: FarFieldReport): string {
 export async function run(argv: string[]): Promise<number> {
   const flags = argv.filter((a) => a.startsWith('--'));
   const files = argv.filter((a) => !a.startsWith('--'));
-  const unknown = flags.filter((f) => f !== '--json' && f !== '--help');
+  const unknown = flags.filter((f) => f !== '--json' && f !== '--help' && f !== '--moments');
   if (flags.includes('--help')) {
     console.log(USAGE);
     return 0;
@@ -97,10 +106,13 @@ export async function run(argv: string[]): Promise<number> {
   if (!design) return 1;
   // The element count the graded mesh would need for the recommended box (the mesher's estimate,
   // within ±30 %); skipped for a box no size can fix.
+  const moments = flags.includes('--moments');
   const report = farFieldCheck(design, {
+    moments,
     estimateElements: (halfExtentsNm) =>
       Math.round(estimateDesignElements({ ...design, enclosure: { ...design.enclosure, halfExtentsNm } }, { maxElements: Infinity, hardCap: Infinity }).estimate),
   });
-  console.log(json ? JSON.stringify(toCheckJson(report), null, 2) : toReadable(design, report));
+  const body = json ? JSON.stringify(moments ? { ...toCheckJson(report), moments: report.moments } : toCheckJson(report), null, 2) : toReadable(design, report);
+  console.log(body);
   return 0;
 }

@@ -47,6 +47,18 @@ describe('npm run cli -- check', () => {
     expect(Math.abs(j.sites[0].uBoundEv / (COULOMB_EV_NM / (11.7 * d)) - 1)).toBeLessThan(1e-5);
     expect(j.warnings.map((w: { code: string }) => w.code)).toContain('boundary-too-close');
   });
+  it('--moments adds each site\'s and the array\'s moments to order 4 (monopole = electrons; Racah addition theorem Σ_m Q_2m² = d⁴ for a point charge)', () => {
+    const j = JSON.parse(cli(fixture, '--json', '--moments').out);
+    const doc = JSON.parse(readFileSync(fixture, 'utf8'));
+    expect(j.moments.sites).toHaveLength(doc.sites.length);
+    const electrons = doc.sites.reduce((n: number, s: { electrons: number }) => n + s.electrons, 0);
+    expect(j.moments.values[0]).toBeCloseTo(electrons, 10);
+    // a spherical (hydrogenic) site acts as a point charge at its position (shell theorem)
+    const d2 = doc.sites[0].position.reduce((t: number, x: number) => t + x * x, 0);
+    const q2 = j.moments.sites[0].values.slice(4, 9).reduce((t: number, x: number) => t + x * x, 0);
+    expect(q2).toBeCloseTo(d2 * d2, 8);
+    expect(cli(fixture, '--moments').out).toMatch(/multipole moments about/);
+  });
   it('the readable table states the assumptions and that figures are estimates', () => {
     const r = cli(fixture);
     expect(r.code).toBe(0);

@@ -262,4 +262,30 @@ describe('far-field check', () => {
     const x: Vec3 = [20, 5, 30];
     expect(Math.abs(multipolePotential(Q, 4, [0, 0, 0], ...x) / potentialAt(A, [0, 0, 0], ...x) - 1)).toBeLessThan(1e-6);
   });
+  it('reports per-site and array moments to order 4 about a chosen centre: spherical densities have point-charge moments', () => {
+    // Newton's shell theorem (any electrostatics text, e.g. Jackson ch. 4): outside itself a spherically
+    // symmetric charge acts as a point charge at its centre, so its moments about c are those of a
+    // point charge at d = site − c: Q_10 = d_z, Q_11c = d_x, Q_20 = (3d_z² − d²)/2 (Racah-normalised
+    // real solid harmonics, standard table; from memory).
+    const sites: Design['sites'] = [
+      { id: 'g', species: 'P', position: [1.5, -2, 0.5], electrons: 2, orbital: { model: 'gaussian', sigmaNm: 1.1 } },
+      { id: 'h', species: 'As', position: [-3, 1, -1], electrons: 1, orbital: { model: 'hydrogenic-1s', radiusNm: 2.2 } },
+    ];
+    const c: Vec3 = [0.5, 0.5, -0.5];
+    const r = farFieldCheck(design(sites, [30, 30, 30], { kind: 'multipole', order: 2 }), { moments: true, momentsCenter: c });
+    expect(r.moments?.center).toEqual(c);
+    expect(r.moments?.sites.map((m) => m.id)).toEqual(['g', 'h']);
+    for (const [k, s] of sites.entries()) {
+      const q = r.moments!.sites[k].values;
+      expect(q).toHaveLength(25);
+      const [dx, dy, dz] = [0, 1, 2].map((i) => s.position[i] - c[i]);
+      expect(q[0]).toBeCloseTo(1, 12); // unit charge
+      expect(q[1]).toBeCloseTo(dy, 12);
+      expect(q[2]).toBeCloseTo(dz, 12);
+      expect(q[3]).toBeCloseTo(dx, 12);
+      expect(q[6]).toBeCloseTo((3 * dz * dz - (dx * dx + dy * dy + dz * dz)) / 2, 12);
+    }
+    // the array's moments are the electron-weighted sum of the sites'
+    for (let i = 0; i < 25; i++) expect(r.moments!.values[i]).toBeCloseTo(2 * r.moments!.sites[0].values[i] + r.moments!.sites[1].values[i], 10);
+  });
 });
