@@ -36,6 +36,26 @@ describe('richardson / observedRate', () => {
     expect(mixed.rateSource).toBe('theoretical');
     expect(richardson([0.1], [1], 2).error).toBe(Infinity);
   });
+  it('a rate above theory is capped and keeps the small factor; a slow rate or mixed signs get 3 and the larger step (Roache 1994)', () => {
+    const s = [0.4, 0.2, 0.1];
+    // E = 1 + s^6 with theory 4: capped at 4, already conservative, so F_s = 1.25
+    const e = s.map((x) => 1 + x ** 6);
+    const fast = richardson(s, e, 4);
+    expect(fast.safetyFactor).toBe(GCI_SAFETY_OBSERVED);
+    expect(fast.error).toBeCloseTo((GCI_SAFETY_OBSERVED * Math.abs(e[2] - e[1])) / (2 ** 4 - 1), 14);
+    // the capped bar still covers the true error |E_finest − 1| = 0.1^6
+    expect(fast.error).toBeGreaterThanOrEqual(0.1 ** 6);
+    // E = 1 + s^2 with theory 4: observed 2 < 0.75·4, so F_s = 3 at the observed rate
+    const slow = richardson(s, s.map((x) => 1 + x ** 2), 4);
+    expect(slow.safetyFactor).toBe(GCI_SAFETY_THEORETICAL);
+    expect(slow.rate).toBeCloseTo(2, 8);
+    // within 25 % below theory: the asymptotic range, 1.25
+    expect(richardson(s, s.map((x) => 1 + x ** 3.5), 4).safetyFactor).toBe(GCI_SAFETY_OBSERVED);
+    // differences +0.1 then −0.05: the larger one (0.1) sets the bar, at the theoretical rate with F_s = 3
+    const mixed = richardson(s, [1, 1.1, 1.05], 2);
+    expect(mixed.safetyFactor).toBe(GCI_SAFETY_THEORETICAL);
+    expect(mixed.error).toBeCloseTo((GCI_SAFETY_THEORETICAL * 0.1) / (2 ** 2 - 1), 12);
+  });
 });
 
 function twoGaussians(R: number, sigma: number, half: number, tol: number): Design {
