@@ -2,13 +2,16 @@
  * `npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]… [--pairs …] [--json]`:
  * on-site U and inter-site V of a design with error bars.
  *
- * With --json prints exactly one JSON object:
+ * With --json prints exactly one JSON object, the issue's keys first and in order:
  *   { order, elements, dofs, iterations, sites: [{ id, uEv, uErrorEv }],
- *     pairs: [{ a, b, distanceNm, vEv, vErrorEv }], seconds }
+ *     pairs: [{ a, b, distanceNm, vEv, vErrorEv }], seconds,
+ *     meetsTarget, estimatedRelError, notes: [string] }
  * Without it, a readable table with the error budget of each number, the model assumptions and
  * the reminder that these are estimates.
- * Exit codes: 0 solved, 1 invalid document or a refusal (message on stderr, no numbers),
- * 2 usage, 3 adaptive refinement ran out of budget before the target (message, no numbers).
+ * Exit codes: 0 solved and the estimated error meets refinement.targetRelError; 1 invalid
+ * document or a refusal (message on stderr, no numbers); 2 usage; 3 the target was not met:
+ * graded mode prints the numbers (meetsTarget false) and a one-line warning on stderr, adaptive
+ * mode ran out of budget before the target (message, no numbers).
  */
 import { readDesign } from './design-file';
 import type { Design } from '../../geometry/design/types';
@@ -59,6 +62,9 @@ export function toCoulombJson(r: CoulombResult) {
     sites: r.sites.map((s) => ({ id: s.id, uEv: s.uEv, uErrorEv: s.uErrorEv })),
     pairs: r.pairs.map((p) => ({ a: p.a, b: p.b, distanceNm: p.distanceNm, vEv: p.vEv, vErrorEv: p.vErrorEv })),
     seconds: r.seconds,
+    meetsTarget: r.meetsTarget,
+    estimatedRelError: r.estimatedRelError,
+    notes: r.notes,
   };
 }
 
@@ -160,5 +166,11 @@ export async function run(argv: string[]): Promise<number> {
     return 3;
   }
   console.log(json ? JSON.stringify(toCoulombJson(result), null, 2) : toCoulombReadable(design, result));
+  if (!result.meetsTarget) {
+    console.error(
+      `warning: the estimated relative error ${result.estimatedRelError.toExponential(2)} does not meet targetRelError ${result.targetRelError}; the numbers above do not have the accuracy asked for (exit code 3)`,
+    );
+    return 3;
+  }
   return 0;
 }

@@ -24,8 +24,11 @@ function capture() {
 afterEach(() => vi.restoreAllMocks());
 
 const base = oneSite({ model: 'gaussian', sigmaNm: 1 }, { half: 10, order: 2, tol: 1e-2 });
+// target 5e-2: the command now exits 3 when the estimate misses the target, and on these small
+// meshes only two nested levels exist, so the bar uses Roache's factor 3 (about 2 % here)
 const twoSites = {
   ...base,
+  refinement: { ...base.refinement, targetRelError: 5e-2 },
   sites: [
     { id: 'a', species: 'P', position: [-1.5, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: 1 } },
     { id: 'b', species: 'P', position: [1.5, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: 1 } },
@@ -34,12 +37,18 @@ const twoSites = {
 };
 
 describe('coulomb command', () => {
-  it('--json prints exactly { order, elements, dofs, iterations, sites, pairs, seconds }', async () => {
+  it('--json prints { order, elements, dofs, iterations, sites, pairs, seconds } first and in order, then meetsTarget, estimatedRelError, notes', async () => {
     const io = capture();
     const code = await coulomb([designFile('two.json', twoSites), '--json']);
     expect(code).toBe(0);
     const j = JSON.parse(io.out.join('\n'));
-    expect(Object.keys(j).sort()).toEqual(['dofs', 'elements', 'iterations', 'order', 'pairs', 'seconds', 'sites']);
+    expect(Object.keys(j).slice(0, 7).sort()).toEqual(['dofs', 'elements', 'iterations', 'order', 'pairs', 'seconds', 'sites']);
+    expect(Object.keys(j)).toEqual(['order', 'elements', 'dofs', 'iterations', 'sites', 'pairs', 'seconds', 'meetsTarget', 'estimatedRelError', 'notes']);
+    expect(j.meetsTarget).toBe(true);
+    expect(j.estimatedRelError).toBeLessThanOrEqual(twoSites.refinement.targetRelError);
+    expect(Array.isArray(j.notes)).toBe(true);
+    expect(j.notes.join(' ')).toMatch(/c/); // the site without electrons is named in a note
+    expect(io.err).toHaveLength(0);
     expect(j.order).toBe(2);
     expect(j.sites.map((s: { id: string }) => s.id)).toEqual(['a', 'b']);
     for (const s of j.sites) expect(Object.keys(s).sort()).toEqual(['id', 'uErrorEv', 'uEv']);
@@ -73,6 +82,22 @@ describe('coulomb command', () => {
     expect(code).toBe(3);
     expect(io.err.join('\n')).toMatch(/budget .* spent/);
     expect(io.out).toHaveLength(0);
+  });
+
+  it('graded mode missing the target: numbers with meetsTarget false and notes, a one-line warning, exit 3', async () => {
+    const io = capture();
+    // a grounded box of half-width 10σ: the boundary shifts U by roughly 1/(εr L) against
+    // U = 1/(εr σ√π) (standard Gaussian self-energy), i.e. about 18 %, far above 1e-2
+    const grounded = oneSite({ model: 'gaussian', sigmaNm: 1 }, { half: 10, order: 2, tol: 1e-2, boundary: { kind: 'grounded' } });
+    const code = await coulomb([designFile('grounded.json', grounded), '--json']);
+    expect(code).toBe(3);
+    const j = JSON.parse(io.out.join('\n'));
+    expect(j.meetsTarget).toBe(false);
+    expect(j.estimatedRelError).toBeGreaterThan(1e-2);
+    expect(j.notes.join(' ')).toMatch(/does not meet targetRelError/);
+    expect(io.err).toHaveLength(1);
+    expect(io.err[0]).toMatch(/^warning: .*does not meet targetRelError/);
+    expect(io.err[0]).not.toMatch(/\n/);
   });
 
   it('usage errors exit 2; invalid documents exit 1 with field paths', async () => {
