@@ -390,7 +390,7 @@ function activeSites(design: Design, siteIds?: string[]): ActiveSite[] {
 interface Plan {
   sites: ActiveSite[];
   pairIdx: Int32Array;
-  pairInfo: { a: string; b: string; distanceNm: number; boundEv: number }[];
+  pairInfo: { a: string; b: string; distanceNm: number; boundEv: number; relBound: number }[];
   siteBound: number[];
   siteCut: number[];
   far: FarFieldReport;
@@ -419,10 +419,36 @@ function plan(design: Design, opts: CoulombOptions): Plan {
       const i = local.get(p.a), j = local.get(p.b);
       if (i === undefined || j === undefined) continue;
       pi.push(i, j);
-      pairInfo.push({ a: p.a, b: p.b, distanceNm: p.distanceNm, boundEv: p.vBoundEv ?? Infinity });
+      pairInfo.push({ a: p.a, b: p.b, distanceNm: p.distanceNm, boundEv: p.vBoundEv ?? Infinity, relBound: p.vRelBound ?? Infinity });
     }
   }
   return { sites, pairIdx: Int32Array.from(pi), pairInfo, siteBound, siteCut, far };
+}
+
+/**
+ * The part of each number's relative error that refinement cannot reduce: the boundary bound
+ * plus the density cut by the box (the same terms budgetsFrom adds: 2c for U, c_i + c_j for V).
+ * Returns the largest over sites and pairs and which number it belongs to.
+ */
+export function irreducibleRelError(pl: Pick<Plan, 'sites' | 'siteCut' | 'pairIdx' | 'pairInfo' | 'far'>): { rel: number; what: string } {
+  const boundById = new Map(pl.far.sites.map((s) => [s.id, s.uRelBound ?? Infinity] as const));
+  let rel = 0;
+  let what = 'no number';
+  pl.sites.forEach((site, k) => {
+    const r = (boundById.get(site.id) ?? Infinity) + 2 * pl.siteCut[k];
+    if (r > rel) {
+      rel = r;
+      what = `U of ${site.id}`;
+    }
+  });
+  pl.pairInfo.forEach((p, k) => {
+    const r = p.relBound + pl.siteCut[pl.pairIdx[2 * k]] + pl.siteCut[pl.pairIdx[2 * k + 1]];
+    if (r > rel) {
+      rel = r;
+      what = `V of ${p.a}–${p.b}`;
+    }
+  });
+  return { rel, what };
 }
 
 interface History {
@@ -547,6 +573,16 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
   // ---- adaptive
   mode = 'adaptive';
   const theta = opts.theta ?? DEFAULT_THETA;
+  // The boundary bound and the density cut by the box do not shrink with refinement: refuse at
+  // once, before any meshing, when they alone exceed the target for some site or pair.
+  const floor = irreducibleRelError(pl);
+  if (floor.rel > tol) {
+    throw new CoulombError(
+      'not-converged',
+      `${floor.what}: the enclosure's boundary error bound plus the density cut by the box is already ${floor.rel.toExponential(2)} relative, above targetRelError ${tol}; no refinement can fix that. ` +
+        'Enlarge the box (the check command recommends half-extents) or use a multipole boundary.',
+    );
+  }
   const startTol = Math.min(0.2, (opts.startFactor ?? 4) * tol);
   // the starting mesh: graded for a looser tolerance; looser still when the budget asks for it
   let md: ReturnType<typeof meshDesign> | null = null;
@@ -556,15 +592,6 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
     } catch (err) {
       if (!(err instanceof MeshError && err.code === 'too-many-elements') || t >= 0.5) throw err;
     }
-  }
-  // The boundary bound does not shrink with refinement: refuse at once when it alone exceeds the target.
-  const worstBoundary = Math.max(0, ...pl.far.sites.filter((s) => pl.sites.some((a) => a.id === s.id)).map((s) => s.uRelBound ?? Infinity));
-  if (worstBoundary > tol) {
-    throw new CoulombError(
-      'not-converged',
-      `the enclosure's boundary error bound alone is ${worstBoundary.toExponential(2)} relative, above targetRelError ${tol}; no refinement can fix that. ` +
-        'Enlarge the box (the check command recommends half-extents) or use a multipole boundary.',
-    );
   }
   const eps = epsArray(design);
   let firstRel = Infinity;

@@ -8,7 +8,8 @@ import { erf, selfEnergy, potentialAt } from '../../../geometry/density';
 import { meshDesign, MeshError } from '../../../geometry/mesh/index';
 import { COULOMB_EV_NM, SI_LATTICE_CONSTANT_NM } from '../../../geometry/units';
 import type { Design } from '../../../geometry/design/types';
-import { oneSite } from './coulomb-fixtures';
+import { oneSite, withSites } from './coulomb-fixtures';
+import { farFieldCheck } from '../../../geometry/farfield';
 
 const EPS = 11.7;
 // e²/(4πε0) = 1.439964547 eV·nm (CODATA 2018), held in geometry/units.ts
@@ -109,6 +110,37 @@ describe('solveCoulomb', () => {
     expect(err).toBeInstanceOf(MeshError);
     expect((err as MeshError).code).toBe('too-many-elements');
     expect((err as Error).message).toMatch(/tetrahedra, more than the design's maxElements \(3000\)/);
+  });
+
+  it('adaptive mode refuses at once a target below the boundary bound plus the density cut, for sites and for pairs', () => {
+    const g = { model: 'gaussian', sigmaNm: 1 } as const;
+    // one Gaussian in a multipole box of half-width 3.5σ: the boundary bound alone is below the
+    // target, but the density cut by the box (first-order effect 2c·U, common practice) is not
+    const tight = oneSite(g, { half: 3.5, order: 2, tol: 1e-3 });
+    const f = farFieldCheck(tight).sites[0];
+    expect(f.uRelBound!).toBeLessThan(1e-3);
+    expect(f.uRelBound! + 2 * f.chargeOutside).toBeGreaterThan(1e-3);
+    const events: unknown[] = [];
+    expect(() => solveCoulomb(tight, { adaptive: true, onProgress: (p) => events.push(p) })).toThrow(/U of d1: .*boundary error bound plus the density cut/);
+    expect(events).toHaveLength(0); // refused before any mesh or solve
+    // two Gaussians 6 nm apart in a grounded box: U's bound is below 0.3, V's relative bound is not
+    const base = oneSite(g, { half: 12, order: 2, tol: 0.3, boundary: { kind: 'grounded' } });
+    const pair = withSites(base, [
+      { id: 'a', species: 'P', position: [-3, 0, 0], electrons: 1, orbital: g },
+      { id: 'b', species: 'P', position: [3, 0, 0], electrons: 1, orbital: g },
+    ]);
+    const fp = farFieldCheck(pair);
+    for (const s of fp.sites) expect(s.uRelBound! + 2 * s.chargeOutside).toBeLessThan(0.3);
+    expect(fp.pairs[0].vRelBound!).toBeGreaterThan(0.3);
+    let err: unknown = null;
+    try {
+      solveCoulomb(pair, { adaptive: true });
+    } catch (e) {
+      err = e;
+    }
+    expect(err).toBeInstanceOf(CoulombError);
+    expect((err as CoulombError).code).toBe('not-converged');
+    expect((err as Error).message).toMatch(/V of a–b/);
   });
 
   it('P1 and P2 on the same meshes agree to their error estimates', () => {
