@@ -19,12 +19,18 @@
  *
  *  2. Under-resolved elements. Where the mesh is coarse compared with the density's decay
  *     length (ℓ = a/2 for exp(−2r/a), σ for a Gaussian) the fixed-degree rule is not accurate
- *     enough for a charge that must add up to 1 within 1e-6. A degree-d rule errs by about
- *     |f^(d+1)| R^(d+1)/(d+1)! × volume on a piece of radius R (Taylor remainder), and the
- *     density's derivatives are ≈ ρ/ℓ^(d+1), so a piece is split while
- *         ρ_max(ball) · volume · (R/ℓ)^(d+1)/(d+1)!  >  PIECE_TOLERANCE.
- *     The estimate is pessimistic (the rule's own constant is far below one), so the graded
- *     meshes rarely trigger it; a coarse uniform mesh does.
+ *     enough for a charge that must add up to 1 within 1e-6. The integrand is ρ·v_j with v_j a
+ *     polynomial of degree p (the element order), so a rule exact to degree d integrates the
+ *     density's Taylor polynomial only to degree m − 1 = d − p: it errs by about
+ *     |ρ^(m)| R^m/m! × volume on a piece of radius R, m = d − p + 1, and the density's
+ *     derivatives are ≈ ρ/ℓ^m, so a piece at depth k (volume 2^−k of its element) is split while
+ *         ρ_max(ball) · volume · (R/ℓ)^m/m!  >  PIECE_TOLERANCE · 2^−k.
+ *     Scaling the tolerance by the piece's volume fraction keeps the estimated error of a whole
+ *     element below PIECE_TOLERANCE however many pieces it is cut into (an absolute tolerance
+ *     per piece would let the total grow with the number of pieces). The graded meshes do
+ *     trigger it: near a site nearly every element that carries charge is subdivided (the
+ *     `subdivided` count of the result shows how many), so this is the common path, not a
+ *     rare fallback.
  * Elements whose whole bounding ball sees a density below NEGLIGIBLE (absolute: charge per
  * element) use a 4-point rule: they carry nothing the energies can notice, and they are most of
  * a graded mesh.
@@ -42,8 +48,8 @@ import type { FeSpace } from './space';
 
 /** Pieces containing the nucleus are split until their radius is below this × ℓ. */
 export const CUSP_RADIUS_FRACTION = 1 / 256;
-/** Pieces whose pessimistic quadrature-error estimate (see header) exceeds this are split. */
-export const PIECE_TOLERANCE = 1e-7;
+/** Pieces whose pessimistic quadrature-error estimate (see header) exceeds this × their volume fraction are split. */
+export const PIECE_TOLERANCE = 3e-6;
 /** An element whose largest possible charge is below this uses the cheap rule (absolute). */
 export const NEGLIGIBLE = 1e-15;
 /** Safety stop on the recursion depth (each level halves the volume). */
@@ -54,7 +60,7 @@ export interface DensityLoadOptions {
    *  still integrates the density's Taylor expansion to third order, and the resolution criterion
    *  splits the pieces where that is not enough) */
   degree?: number;
-  /** per-piece quadrature tolerance of the resolution criterion (default PIECE_TOLERANCE; Infinity switches it off) */
+  /** per-element quadrature tolerance of the resolution criterion, shared by its pieces by volume (default PIECE_TOLERANCE; Infinity switches it off) */
   pieceTolerance?: number;
 }
 
@@ -109,8 +115,10 @@ export function densityLoad(space: FeSpace, orbital: Orbital, center: Vec3, opti
   const cheap: TetRule = tetQuadrature(2);
   const { ell, ellMax, cusp, peak } = densityScale(orbital);
   const pieceTol = options.pieceTolerance ?? PIECE_TOLERANCE;
+  // Taylor order m of the remainder: the rule is exact for ρ's polynomial part up to degree − order
+  const m = Math.max(1, base.degree - order + 1);
   let fact = 1;
-  for (let k = 2; k <= base.degree + 1; k++) fact *= k;
+  for (let k = 2; k <= m; k++) fact *= k;
   const errScale = 1 / fact;
   const cuspR = CUSP_RADIUS_FRACTION * ell;
   const cx = center[0], cy = center[1], cz = center[2];
@@ -173,6 +181,7 @@ export function densityLoad(space: FeSpace, orbital: Orbital, center: Vec3, opti
     ballR = Math.sqrt(r2);
   };
 
+  let elementVol = 1;
   /** 0: leaf with the cheap rule, 1: leaf with the base rule, 2: split */
   const classify = (vol: number, depth: number): number => {
     const dx = ballX - cx, dy = ballY - cy, dz = ballZ - cz;
@@ -181,7 +190,8 @@ export function densityLoad(space: FeSpace, orbital: Orbital, center: Vec3, opti
     if (bound < NEGLIGIBLE) return 0;
     if (depth >= MAX_DEPTH) return 1;
     if (cusp && d <= ballR && ballR > cuspR) return 2;
-    if (bound * Math.pow(ballR / ell, base.degree + 1) * errScale > pieceTol) return 2;
+    // vol / elementVol is the piece's volume fraction 2^−depth (see header)
+    if (bound * Math.pow(ballR / ell, m) * errScale > pieceTol * (vol / elementVol)) return 2;
     return 1;
   };
 
@@ -229,6 +239,7 @@ export function densityLoad(space: FeSpace, orbital: Orbital, center: Vec3, opti
     const vx = p[6] - p[0], vy = p[7] - p[1], vz = p[8] - p[2];
     const wx = p[9] - p[0], wy = p[10] - p[1], wz = p[11] - p[2];
     const vol = Math.abs(ux * (vy * wz - vz * wy) - uy * (vx * wz - vz * wx) + uz * (vx * wy - vy * wx)) / 6;
+    elementVol = vol;
     local.fill(0);
     // the element itself is piece 0 with the identity barycentric vertices
     stackB.fill(0, 0, 16);

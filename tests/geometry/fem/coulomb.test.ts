@@ -4,7 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { solveCoulomb, solveSitePotentials, richardson, observedRate, CoulombError, GCI_SAFETY_OBSERVED, GCI_SAFETY_THEORETICAL } from '../../../geometry/fem/coulomb';
-import { erf, selfEnergy, potentialAt } from '../../../geometry/density';
+import { erf, selfEnergy, potentialAt, chargeOutsideBox } from '../../../geometry/density';
 import { meshDesign, MeshError } from '../../../geometry/mesh/index';
 import { COULOMB_EV_NM, SI_LATTICE_CONSTANT_NM } from '../../../geometry/units';
 import type { Design } from '../../../geometry/design/types';
@@ -141,6 +141,20 @@ describe('solveCoulomb', () => {
     expect(err).toBeInstanceOf(CoulombError);
     expect((err as CoulombError).code).toBe('not-converged');
     expect((err as Error).message).toMatch(/V of a–b/);
+  });
+
+  it('says so in a note when the discrete charge misses the charge inside the box by more than 1e-6', () => {
+    const orbital = { model: 'hydrogenic-1s', radiusNm: 2.5 } as const;
+    const d = oneSite(orbital, { half: 30, order: 1, tol: 5e-2 });
+    // the charge inside the box: 1 minus the analytic tail outside it (geometry/density)
+    const inside = 1 - chargeOutsideBox(orbital, [0, 0, 0], [0, 0, 0], [30, 30, 30]);
+    const good = solveCoulomb(d, { levels: 2 });
+    expect(Math.abs(good.sites[0].charge - inside)).toBeLessThan(1e-6);
+    expect(good.notes.join(' ')).not.toMatch(/discrete charge/);
+    // a crude one-point-like rule without subdivision: the cusp is missed
+    const crude = solveCoulomb(d, { levels: 2, load: { degree: 1, pieceTolerance: Infinity } });
+    expect(Math.abs(crude.sites[0].charge - inside)).toBeGreaterThan(1e-6);
+    expect(crude.notes.join(' ')).toMatch(/Site d1: the discrete charge .* differs from the charge inside the box/);
   });
 
   it('P1 and P2 on the same meshes agree to their error estimates', () => {

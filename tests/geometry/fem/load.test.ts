@@ -52,6 +52,26 @@ describe('densityLoad', () => {
     expect(good.subdivided).toBeGreaterThan(0);
   });
 
+  it('P2 loads carry the second moment: Σ_j f_j (x_j − x0)² = ∫ρ (x − x0)² = a² for a 1s density', () => {
+    // P2 reproduces quadratics, Σ_j (x_j − x0)² v_j = (x − x0)², so the loads must integrate ρ
+    // times a quadratic, not only ρ: the quadrature criterion counts the basis degree. For the
+    // hydrogen-like 1s density ⟨r²⟩ = 3a², so ⟨(x − x0)²⟩ = a² (standard, any quantum-mechanics text).
+    const a = 2.5;
+    const orbital: Orbital = { model: 'hydrogenic-1s', radiusNm: a };
+    const position: Vec3 = [0.13, -0.27, 0.41];
+    const d = oneSite(orbital, { half: 30, order: 2, tol: 1e-3, position });
+    const { mesh } = meshDesign(d);
+    const space = buildSpace(mesh, 2);
+    const L = densityLoad(space, orbital, position);
+    let m2 = 0;
+    for (let j = 0; j < space.nDofs; j++) {
+      const dx = space.dofCoords[3 * j] - position[0];
+      m2 += L.load[j] * dx * dx;
+    }
+    // the box (half-width 12a) cuts a tail of relative size below 1e-7 of the second moment
+    expect(Math.abs(m2 - a * a) / (a * a)).toBeLessThan(1e-5);
+  });
+
   it('is deterministic: same input, identical bytes', () => {
     const orbital: Orbital = { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 };
     const d = oneSite(orbital, { half: 20, order: 2, tol: 1e-2 });
