@@ -27,6 +27,12 @@ export interface CoulombPoolOptions {
   maxThreads?: number;
   /** ms an idle worker stays alive (default 30 s) */
   idleTimeout?: number;
+  /**
+   * another worker module (absolute path, .ts or .js) whose default export takes a WorkerTask;
+   * default: worker.ts/worker.js beside this file. Tests use it to add synthetic jobs that must
+   * not exist in the product.
+   */
+  workerFile?: string;
 }
 
 export interface RunOptions {
@@ -34,21 +40,22 @@ export interface RunOptions {
   signal?: AbortSignal;
 }
 
-export interface CoulombPool {
-  run<T = unknown>(job: CoulombJob, options?: RunOptions): Promise<T>;
+export interface CoulombPool<J = CoulombJob> {
+  run<T = unknown>(job: J, options?: RunOptions): Promise<T>;
   destroy(): Promise<void>;
   readonly threads: number;
 }
 
-function workerFile(): { filename: string; execArgv: string[] } {
+function workerFile(custom?: string): { filename: string; execArgv: string[] } {
+  if (custom) return { filename: custom, execArgv: custom.endsWith('.ts') ? ['--import', 'tsx'] : [] };
   const ts = fileURLToPath(new URL('./worker.ts', import.meta.url));
   const js = fileURLToPath(new URL('./worker.js', import.meta.url));
   if (import.meta.url.endsWith('.ts') || !existsSync(js)) return { filename: ts, execArgv: ['--import', 'tsx'] };
   return { filename: js, execArgv: [] };
 }
 
-export function createCoulombPool(options: CoulombPoolOptions = {}): CoulombPool {
-  const { filename, execArgv } = workerFile();
+export function createCoulombPool<J = CoulombJob>(options: CoulombPoolOptions = {}): CoulombPool<J> {
+  const { filename, execArgv } = workerFile(options.workerFile);
   const pool = new Piscina({
     filename,
     execArgv,
@@ -60,7 +67,7 @@ export function createCoulombPool(options: CoulombPoolOptions = {}): CoulombPool
     get threads() {
       return pool.threads.length;
     },
-    async run<T>(job: CoulombJob, runOptions: RunOptions = {}): Promise<T> {
+    async run<T>(job: J, runOptions: RunOptions = {}): Promise<T> {
       const { port1, port2 } = new MessageChannel();
       if (runOptions.onProgress) port1.on('message', (p: Progress) => runOptions.onProgress!(p));
       try {

@@ -5,6 +5,9 @@
  * posted on the port at most every PROGRESS_INTERVAL_MS so a fast solve does not flood the
  * main thread. Cancellation is piscina's: aborting the task's signal terminates this thread
  * (the solve is synchronous CPU work, so terminating is the only prompt way to stop it).
+ * Tests of the pool itself run their synthetic jobs in a worker module of their own that
+ * delegates the real kinds to runJob (createCoulombPool's `workerFile` option), so nothing
+ * test-only lives here.
  */
 import type { MessagePort } from 'node:worker_threads';
 import type { Design } from '../design/types';
@@ -17,9 +20,7 @@ export const PROGRESS_INTERVAL_MS = 50;
 export type CoulombJob =
   | { kind: 'coulomb'; design: Design; options?: Omit<CoulombOptions, 'onProgress' | 'signal'> }
   | { kind: 'study'; design: Design; options: Omit<StudyOptions, 'onProgress' | 'signal'> }
-  | { kind: 'potentials'; design: Design; mesh: TetMesh; order?: 1 | 2 }
-  /** a synthetic job for tests of the pool itself: reports progress for `ms`, then returns */
-  | { kind: 'sleep'; ms: number };
+  | { kind: 'potentials'; design: Design; mesh: TetMesh; order?: 1 | 2 };
 
 export interface WorkerTask {
   job: CoulombJob;
@@ -51,17 +52,6 @@ export default function runJob(task: WorkerTask): unknown {
       case 'potentials': {
         const r = solveSitePotentials(job.design, job.mesh, job.order ?? job.design.refinement.order, { onProgress });
         return r;
-      }
-      case 'sleep': {
-        const t0 = performance.now();
-        let k = 0;
-        while (performance.now() - t0 < job.ms) {
-          // busy work, like a solve: the thread cannot take messages while it runs
-          for (let i = 0; i < 1e5; i++) k += Math.sqrt(i);
-          onProgress({ stage: 'sleep', fraction: Math.min(1, (performance.now() - t0) / job.ms) });
-        }
-        onProgress({ stage: 'sleep', fraction: 1 });
-        return { slept: job.ms, k: k > 0 };
       }
     }
   } finally {
