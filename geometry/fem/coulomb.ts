@@ -46,7 +46,7 @@ import { densityAt, chargeOutsideBox } from '../density';
 import { meshDesign, MeshError, refineUniform, toTetMesh, type MeshDesignOptions } from '../mesh/index';
 import type { TetMesh } from '../mesh/types';
 import { buildSpace, type FeSpace } from './space';
-import { assembleStiffness, applyDirichlet } from './assemble';
+import { assembleStiffness, applyDirichlet, applyDirichletRhs } from './assemble';
 import { multigridPreconditioner } from './multigrid';
 import { pcg, jacobi, SolveAbortedError, type Preconditioner } from './pcg';
 import type { Csr } from './csr';
@@ -252,12 +252,17 @@ function solveLevel(
     const b = new Float64Array(n);
     for (let k = 0; k < n; k++) b[k] = 4 * Math.PI * L.load[k];
     const g = boundaryValues(design.enclosure.boundary, site.orbital, site.position, design.host.epsilonR, space.dofCoords, space.boundaryDof);
-    const sys = applyDirichlet(K, b, space.boundaryDof, g);
+    // the lifted matrix is the same for every site: lift it once, then only the right-hand side
+    let rhs: Float64Array;
     if (!A) {
+      const sys = applyDirichlet(K, b, space.boundaryDof, g);
       A = sys.A;
+      rhs = sys.b;
       M = opts.preconditioner === 'jacobi' ? jacobi(A) : multigridPreconditioner(space, A, { epsByRegion: eps });
+    } else {
+      rhs = applyDirichletRhs(K, b, space.boundaryDof, g);
     }
-    const res = pcg(A, sys.b, null, {
+    const res = pcg(A, rhs, null, {
       preconditioner: M!,
       tol: opts.solverTol ?? 1e-10,
       maxIter: 5000,
