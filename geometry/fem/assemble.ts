@@ -9,6 +9,7 @@
  */
 import type { FeSpace } from './space';
 import { type Csr, sparsityPattern, withValues } from './csr';
+import { NeumaierSum } from '../mesh/check';
 import {
   GEOM_SIZE, P2_STIFFNESS_TENSOR, SYM4_INDEX, type TetRule, p2BasisBary, p2GradientsBary, tetGeometry,
   tetQuadrature,
@@ -250,20 +251,16 @@ export function integrate(space: FeSpace, f: PointFunction, degree: number): num
   const rule = tetQuadrature(degree);
   const g = new Float64Array(GEOM_SIZE);
   const x = new Float64Array(3 * rule.n);
-  // Neumaier summation: millions of small positive terms
-  let sum = 0, comp = 0;
+  const sum = new NeumaierSum(); // millions of small positive terms
   for (let t = 0; t < nTets; t++) {
     const a = mesh.tets[4 * t], bb = mesh.tets[4 * t + 1], c = mesh.tets[4 * t + 2], d = mesh.tets[4 * t + 3];
     tetGeometry(mesh.coords, a, bb, c, d, g);
     let s = 0;
     quadPoints(mesh.coords, a, bb, c, d, rule, x);
     for (let q = 0; q < rule.n; q++) s += f(x[3 * q], x[3 * q + 1], x[3 * q + 2], t) * rule.weights[q];
-    const term = 6 * g[12] * s;
-    const tsum = sum + term;
-    comp += Math.abs(sum) >= Math.abs(term) ? sum - tsum + term : term - tsum + sum;
-    sum = tsum;
+    sum.add(6 * g[12] * s);
   }
-  return sum + comp;
+  return sum.value;
 }
 
 /**
@@ -282,7 +279,7 @@ export function feIntegrate(
   const grad = new Float64Array(30);
   const l4 = new Float64Array(4);
   const x = new Float64Array(3 * rule.n);
-  let sum = 0, comp = 0;
+  const sum = new NeumaierSum();
   for (let t = 0; t < nTets; t++) {
     const a = mesh.tets[4 * t], bb = mesh.tets[4 * t + 1], c = mesh.tets[4 * t + 2], d = mesh.tets[4 * t + 3];
     tetGeometry(mesh.coords, a, bb, c, d, g);
@@ -302,12 +299,9 @@ export function feIntegrate(
       }
       s += rule.weights[q] * fn(x[3 * q], x[3 * q + 1], x[3 * q + 2], uh, gx, gy, gz, t);
     }
-    const term = 6 * g[12] * s;
-    const tsum = sum + term;
-    comp += Math.abs(sum) >= Math.abs(term) ? sum - tsum + term : term - tsum + sum;
-    sum = tsum;
+    sum.add(6 * g[12] * s);
   }
-  return sum + comp;
+  return sum.value;
 }
 
 /** Nodal interpolant of f: its value at every dof node. */
