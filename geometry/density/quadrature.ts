@@ -19,37 +19,27 @@ export function gaussLegendre(n: number): Rule {
   for (let i = 0; i < n; i++) {
     // Chebyshev-like starting guess for the i-th root (descending order)
     let x = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
-    let dp = 0;
     for (let it = 0; it < 100; it++) {
-      let p0 = 1;
-      let p1 = x;
-      for (let k = 2; k <= n; k++) {
-        const p2 = ((2 * k - 1) * x * p1 - (k - 1) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-      }
-      const pn = n === 1 ? x : p1;
-      const pnm1 = n === 1 ? 1 : p0;
-      dp = (n * (x * pn - pnm1)) / (x * x - 1);
-      const dx = pn / dp;
+      const dx = legendreP(n, x) / legendreDP(n, x);
       x -= dx;
       if (Math.abs(dx) < 1e-16) break;
     }
-    // recompute derivative at the converged root for the weight
-    let p0 = 1;
-    let p1 = x;
-    for (let k = 2; k <= n; k++) {
-      const p2 = ((2 * k - 1) * x * p1 - (k - 1) * p0) / k;
-      p0 = p1;
-      p1 = p2;
-    }
-    dp = n === 1 ? 1 : (n * (x * p1 - p0)) / (x * x - 1);
+    // derivative at the converged root for the weight
+    const dp = legendreDP(n, x);
     nodes[n - 1 - i] = x;
     weights[n - 1 - i] = 2 / ((1 - x * x) * dp * dp);
   }
   const rule = { nodes, weights };
   cache.set(n, rule);
   return rule;
+}
+
+/**
+ * P_n'(x) = n (x P_n − P_{n−1}) / (x² − 1), |x| < 1: the derivative identity of the Legendre
+ * polynomials (Abramowitz & Stegun ch. 22, section number from memory).
+ */
+function legendreDP(n: number, x: number): number {
+  return (n * (x * legendreP(n, x) - legendreP(n - 1, x))) / (x * x - 1);
 }
 
 /** Legendre polynomial P_l(x) by the three-term recurrence (Bonnet). */

@@ -18,6 +18,7 @@
  * A tetrahedron (p0, p1, p2, p3) is positively oriented when det[p1−p0, p2−p0, p3−p0] > 0,
  * as the reference one is.
  */
+import { gaussLegendre } from '../density/quadrature';
 
 /** Reference vertex coordinates, 3 per vertex. */
 export const REF_VERTICES = new Float64Array([0, 0, 0, 1, 0, 0, 0, 1, 0, 0, 0, 1]);
@@ -256,42 +257,17 @@ function ruleFromPoints(degree: number, pts: number[][], w: number[]): TetRule {
 }
 
 /**
- * Gauss–Legendre nodes and weights on [0, 1], n points, exact for degree 2n − 1.
- * Newton's method on the three-term Legendre recurrence from the classic initial guess
- * cos(π (i − 1/4)/(n + 1/2)) (Abramowitz & Stegun 25.4.29; the standard "gauleg" routine).
+ * Gauss–Legendre nodes and weights on [0, 1], n points, exact for degree 2n − 1: the rule on
+ * [−1, 1] (geometry/density/quadrature.ts) mapped by x = (1 − t)/2, which halves the weights.
+ * Nodes ascend in x.
  */
 export function gaussLegendre01(n: number): { x: Float64Array; w: Float64Array } {
+  const { nodes, weights } = gaussLegendre(n); // t ascending, so x descends: read it backwards
   const x = new Float64Array(n);
   const w = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    let t = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
-    let dp = 0;
-    for (let it = 0; it < 100; it++) {
-      let p0 = 1;
-      let p1 = t;
-      for (let k = 2; k <= n; k++) {
-        const p2 = ((2 * k - 1) * t * p1 - (k - 1) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-      }
-      dp = (n * (t * p1 - p0)) / (t * t - 1);
-      const dt = p1 / dp;
-      t -= dt;
-      if (Math.abs(dt) < 1e-16) break;
-    }
-    // recompute derivative at the converged node for the weight
-    let p0 = 1;
-    let p1 = t;
-    for (let k = 2; k <= n; k++) {
-      const p2 = ((2 * k - 1) * t * p1 - (k - 1) * p0) / k;
-      p0 = p1;
-      p1 = p2;
-    }
-    dp = (n * (t * p1 - p0)) / (t * t - 1);
-    // map [−1, 1] → [0, 1]: t descends with i, so x = (1 − t)/2 ascends; the weight
-    // 2/((1 − t²) P_n'(t)²) on [−1, 1] is halved by the map
-    x[i] = 0.5 * (1 - t);
-    w[i] = 1 / ((1 - t * t) * dp * dp);
+    x[i] = 0.5 * (1 - nodes[n - 1 - i]);
+    w[i] = 0.5 * weights[n - 1 - i];
   }
   return { x, w };
 }
