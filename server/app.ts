@@ -154,6 +154,9 @@ export function createApp(deps: AppDeps): Express {
       signIn: limiter(deps.rateLimits.signIn, 'sign-in'),
       signUp: limiter(deps.rateLimits.signUp, 'sign-up'),
       passwordReset: limiter(deps.rateLimits.passwordReset, 'password-reset'),
+      verifyEmail: limiter(deps.rateLimits.verifyEmail, 'confirmation'),
+      resetConfirm: limiter(deps.rateLimits.resetConfirm, 'password-reset'),
+      passwordChange: limiter(deps.rateLimits.passwordChange, 'password-change'),
     },
     logger,
   };

@@ -38,6 +38,12 @@ export interface RateLimits {
   signUp: RateLimitRule;
   /** password-reset requests: each one may send an e-mail */
   passwordReset: RateLimitRule;
+  /** e-mail confirmation (POST /api/auth/verify): guessing link tokens */
+  verifyEmail: RateLimitRule;
+  /** setting a new password with a reset link (POST /api/auth/password-reset/confirm) */
+  resetConfirm: RateLimitRule;
+  /** password change while signed in (POST /api/account/password): guessing the current password */
+  passwordChange: RateLimitRule;
 }
 
 export interface ServerOptions {
@@ -67,6 +73,8 @@ export interface ServerOptions {
   bcryptRounds?: number;
   invitationTtlHours?: number;
   passwordResetTtlMinutes?: number;
+  /** how long a sign-up confirmation link works */
+  emailVerificationTtlHours?: number;
   /** session lifetime */
   sessionMaxAgeMs?: number;
 }
@@ -77,6 +85,7 @@ export interface ResolvedConfig {
   bcryptRounds: number;
   invitationTtlMs: number;
   passwordResetTtlMs: number;
+  emailVerificationTtlMs: number;
 }
 
 // Defaults: common practice for a small internal tool, not from a standard.
@@ -84,14 +93,54 @@ export const DEFAULT_RATE_LIMITS: RateLimits = {
   signIn: { windowMs: 15 * 60_000, limit: 20 },
   signUp: { windowMs: 60 * 60_000, limit: 20 },
   passwordReset: { windowMs: 60 * 60_000, limit: 10 },
+  verifyEmail: { windowMs: 15 * 60_000, limit: 20 },
+  resetConfirm: { windowMs: 15 * 60_000, limit: 20 },
+  passwordChange: { windowMs: 15 * 60_000, limit: 20 },
 };
 
+export interface RateLimitEnv {
+  NODE_ENV?: string;
+  TETRAWELL_RATE_LIMIT_SIGN_IN?: number;
+  TETRAWELL_RATE_LIMIT_SIGN_UP?: number;
+  TETRAWELL_RATE_LIMIT_RESET?: number;
+  TETRAWELL_RATE_LIMIT_VERIFY?: number;
+  TETRAWELL_RATE_LIMIT_RESET_CONFIRM?: number;
+  TETRAWELL_RATE_LIMIT_PASSWORD_CHANGE?: number;
+}
+
 /** Limits from the environment; NODE_ENV=test lifts the defaults (not explicit settings) to 1000. */
-export function rateLimitsFromEnv(env: { NODE_ENV?: string; TETRAWELL_RATE_LIMIT_SIGN_IN?: number; TETRAWELL_RATE_LIMIT_SIGN_UP?: number; TETRAWELL_RATE_LIMIT_RESET?: number }): RateLimits {
+export function rateLimitsFromEnv(env: RateLimitEnv): RateLimits {
   const base = (limit: number) => (env.NODE_ENV === 'test' ? Math.max(limit, 1000) : limit);
+  const rule = (key: keyof RateLimits, explicit: number | undefined): RateLimitRule => ({
+    ...DEFAULT_RATE_LIMITS[key],
+    limit: explicit ?? base(DEFAULT_RATE_LIMITS[key].limit),
+  });
   return {
-    signIn: { ...DEFAULT_RATE_LIMITS.signIn, limit: env.TETRAWELL_RATE_LIMIT_SIGN_IN ?? base(DEFAULT_RATE_LIMITS.signIn.limit) },
-    signUp: { ...DEFAULT_RATE_LIMITS.signUp, limit: env.TETRAWELL_RATE_LIMIT_SIGN_UP ?? base(DEFAULT_RATE_LIMITS.signUp.limit) },
-    passwordReset: { ...DEFAULT_RATE_LIMITS.passwordReset, limit: env.TETRAWELL_RATE_LIMIT_RESET ?? base(DEFAULT_RATE_LIMITS.passwordReset.limit) },
+    signIn: rule('signIn', env.TETRAWELL_RATE_LIMIT_SIGN_IN),
+    signUp: rule('signUp', env.TETRAWELL_RATE_LIMIT_SIGN_UP),
+    passwordReset: rule('passwordReset', env.TETRAWELL_RATE_LIMIT_RESET),
+    verifyEmail: rule('verifyEmail', env.TETRAWELL_RATE_LIMIT_VERIFY),
+    resetConfirm: rule('resetConfirm', env.TETRAWELL_RATE_LIMIT_RESET_CONFIRM),
+    passwordChange: rule('passwordChange', env.TETRAWELL_RATE_LIMIT_PASSWORD_CHANGE),
   };
+}
+
+/** Where outgoing mail goes, decided from the environment by server/main.ts. */
+export type MailPlan = { kind: 'smtp' } | { kind: 'fake'; port: number } | { kind: 'none' };
+
+/**
+ * A real SMTP_HOST wins; otherwise the loopback mail sink when a port is given. Production
+ * refuses the sink (it would swallow every sign-up confirmation and reset link) and refuses
+ * to run without a real SMTP server: the Error's message tells the operator what to set.
+ */
+export function planMail(env: { NODE_ENV?: string; SMTP_HOST?: string; TETRAWELL_FAKE_SMTP_PORT?: number }): MailPlan {
+  if (env.SMTP_HOST) return { kind: 'smtp' };
+  if (env.NODE_ENV === 'production') {
+    throw new Error(
+      env.TETRAWELL_FAKE_SMTP_PORT !== undefined
+        ? 'NODE_ENV=production does not run the development mail sink (TETRAWELL_FAKE_SMTP_PORT): set SMTP_HOST (and SMTP_PORT, SMTP_USER, SMTP_PASS, MAIL_FROM) to a real SMTP server.'
+        : 'NODE_ENV=production needs a real SMTP server for sign-up confirmations and password resets: set SMTP_HOST (and SMTP_PORT, SMTP_USER, SMTP_PASS, MAIL_FROM).',
+    );
+  }
+  return env.TETRAWELL_FAKE_SMTP_PORT !== undefined ? { kind: 'fake', port: env.TETRAWELL_FAKE_SMTP_PORT } : { kind: 'none' };
 }

@@ -59,6 +59,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     bcryptRounds: opts.bcryptRounds ?? 12,
     invitationTtlMs: (opts.invitationTtlHours ?? 7 * 24) * 3_600_000,
     passwordResetTtlMs: (opts.passwordResetTtlMinutes ?? 60) * 60_000,
+    emailVerificationTtlMs: (opts.emailVerificationTtlHours ?? 48) * 3_600_000,
   };
   const mailer = createMailer(opts.smtp, config.mailFrom, logger);
   const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() });

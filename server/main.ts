@@ -9,19 +9,20 @@
  *   PUBLIC_URL                base of links in e-mails (default: the listening URL)
  *   SMTP_HOST, SMTP_PORT, SMTP_SECURE, SMTP_USER, SMTP_PASS, MAIL_FROM   a real SMTP server
  *   TETRAWELL_FAKE_SMTP_PORT  without SMTP_HOST: run the loopback mail sink on this port and send there
+ *                             (refused under NODE_ENV=production, which needs SMTP_HOST)
  *   TRUST_PROXY               Express "trust proxy" (e.g. 1, loopback) when behind a TLS proxy
  *   COOKIE_SECURE             true | false | auto (default auto: Secure whenever the request came over HTTPS)
- *   TETRAWELL_RATE_LIMIT_SIGN_IN / _SIGN_UP / _RESET   attempts per window and client address
+ *   TETRAWELL_RATE_LIMIT_SIGN_IN / _SIGN_UP / _RESET / _VERIFY / _RESET_CONFIRM / _PASSWORD_CHANGE
+ *                             attempts per window and client address
  *                             (defaults in server/config.ts; NODE_ENV=test raises them to 1000 so browser tests
  *                             that sign up many people from one address are not throttled)
- *   NODE_ENV=production       refuses to start without SESSION_SECRET
+ *   NODE_ENV=production       refuses to start without SESSION_SECRET or without SMTP_HOST
  */
 import { z } from 'zod';
 import { start, type RunningServer } from './index';
 import { startFakeSmtp, type FakeSmtp } from './mail/fakeSmtp';
 import { createKnex } from './db/config';
-import { rateLimitsFromEnv, type SmtpConfig } from './config';
-
+import { planMail, rateLimitsFromEnv, type MailPlan, type SmtpConfig } from './config';
 
 const bool = z.enum(['true', 'false', '1', '0', 'yes', 'no']).transform((v) => v === 'true' || v === '1' || v === 'yes');
 const port = z.coerce.number().int().min(0).max(65535);
@@ -44,6 +45,9 @@ const envSchema = z.object({
   TETRAWELL_RATE_LIMIT_SIGN_IN: z.coerce.number().int().positive().optional(),
   TETRAWELL_RATE_LIMIT_SIGN_UP: z.coerce.number().int().positive().optional(),
   TETRAWELL_RATE_LIMIT_RESET: z.coerce.number().int().positive().optional(),
+  TETRAWELL_RATE_LIMIT_VERIFY: z.coerce.number().int().positive().optional(),
+  TETRAWELL_RATE_LIMIT_RESET_CONFIRM: z.coerce.number().int().positive().optional(),
+  TETRAWELL_RATE_LIMIT_PASSWORD_CHANGE: z.coerce.number().int().positive().optional(),
   NODE_ENV: z.string().optional(),
 });
 
@@ -65,15 +69,23 @@ async function main(): Promise<void> {
     process.exit(2);
   }
 
+  let mailPlan: MailPlan;
+  try {
+    mailPlan = planMail(env);
+  } catch (err) {
+    console.error(`Configuration: ${err instanceof Error ? err.message : String(err)}`);
+    process.exit(2);
+  }
+
   let fake: FakeSmtp | null = null;
   let fakeKnex: ReturnType<typeof createKnex> | null = null;
   let smtp: SmtpConfig | undefined;
-  if (env.SMTP_HOST) {
+  if (mailPlan.kind === 'smtp' && env.SMTP_HOST) {
     smtp = { host: env.SMTP_HOST, port: env.SMTP_PORT, secure: env.SMTP_SECURE, user: env.SMTP_USER, pass: env.SMTP_PASS };
-  } else if (env.TETRAWELL_FAKE_SMTP_PORT !== undefined) {
+  } else if (mailPlan.kind === 'fake') {
     fakeKnex = createKnex(env.DATABASE_URL, { poolMax: 2 });
     try {
-      fake = await startFakeSmtp({ port: env.TETRAWELL_FAKE_SMTP_PORT, knex: fakeKnex });
+      fake = await startFakeSmtp({ port: mailPlan.port, knex: fakeKnex });
     } catch (err) {
       const busy = (err as { code?: string }).code === 'EADDRINUSE';
       console.error(

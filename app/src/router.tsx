@@ -8,19 +8,22 @@ import { ResetConfirmPage } from './features/auth/ResetConfirmPage';
 import { ResetRequestPage } from './features/auth/ResetRequestPage';
 import { SignInPage } from './features/auth/SignInPage';
 import { SignUpPage } from './features/auth/SignUpPage';
+import { VerifyEmailPage } from './features/auth/VerifyEmailPage';
 import { AcceptInvitationPage } from './features/invitations/AcceptInvitationPage';
 import { ProjectListPage } from './features/projects/ProjectListPage';
 import { ProjectPage } from './features/projects/ProjectPage';
 
 /**
- * Routes. The paths /invite/:token and /reset/:token are also written into e-mails by the
- * server, so they must not change without changing the mail templates.
+ * Routes. The paths /invite/:token, /reset/:token, /verify/:token, /sign-in and /reset are also
+ * written into e-mails by the server, so they must not change without changing the mail templates.
  */
 export const router = createBrowserRouter([
   { path: '/sign-in', element: <SignInPage /> },
   { path: '/sign-up', element: <SignUpPage /> },
   { path: '/reset', element: <ResetRequestPage /> },
   { path: '/reset/:token', element: <ResetConfirmPage /> },
+  // The e-mailed sign-up confirmation link: signs in, then returns to where sign-up started.
+  { path: '/verify/:token', element: <VerifyEmailPage /> },
   // Readable signed out: the page itself offers sign-in or sign-up and comes back.
   { path: '/invite/:token', element: <AcceptInvitationPage /> },
   {

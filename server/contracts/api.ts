@@ -61,6 +61,14 @@ export const healthSchema = z.object({ ok: z.boolean(), database: z.enum(['up', 
 // ---------- auth ----------
 export const csrfResponseSchema = z.object({ csrfToken: z.string() });
 export const signUpBodySchema = z.object({ email: emailSchema, password: passwordSchema, displayName: displayNameSchema });
+/**
+ * Answer to a sign-up: the same for a new address and for one that already has an account
+ * (the e-mail sent tells the owner of the address which it was), so it reveals nothing.
+ */
+export const signUpResponseSchema = z.object({ status: z.literal('check-email') });
+export type SignUpResponse = z.infer<typeof signUpResponseSchema>;
+/** The token from the `/verify/<token>` link of the confirmation e-mail. */
+export const verifyEmailBodySchema = z.object({ token: z.string().min(16).max(200) });
 export const signInBodySchema = z.object({ email: emailSchema, password: z.string().min(1).max(200) });
 export const meResponseSchema = z.object({ user: userSchema });
 export const resetRequestBodySchema = z.object({ email: emailSchema });

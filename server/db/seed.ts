@@ -79,7 +79,7 @@ export async function seedDemoIfEmpty(knex: Knex, opts: { bcryptRounds?: number 
     const ids: number[] = [];
     for (const acc of DEMO_ACCOUNTS) {
       const passwordHash = await bcrypt.hash(acc.password, rounds);
-      const u = await usersRepo(trx).insert({ email: acc.email, passwordHash, displayName: acc.displayName, siteRole: acc.siteRole });
+      const u = await usersRepo(trx).insert({ email: acc.email, passwordHash, displayName: acc.displayName, siteRole: acc.siteRole, emailVerifiedAt: new Date() });
       if (!u) throw new Error(`demo user ${acc.email} already exists`);
       ids.push(u.id);
     }

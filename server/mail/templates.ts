@@ -39,3 +39,38 @@ export function passwordResetMail(p: { link: string; displayName: string; expire
     ].join('\n'),
   };
 }
+
+export function emailVerificationMail(p: { link: string; displayName: string; expiresAt: Date }) {
+  return {
+    subject: 'Confirm your e-mail address for Tetrawell',
+    text: [
+      `Hello ${p.displayName},`,
+      '',
+      'Someone (hopefully you) created a Tetrawell account with this e-mail address. Open this link to confirm the address and sign in:',
+      p.link,
+      '',
+      `The link works once and expires on ${p.expiresAt.toUTCString()}.`,
+      'If you did not sign up, ignore this message: the account stays unusable without this link.',
+    ].join('\n'),
+  };
+}
+
+/** Sent to the owner of an address that already has an account when someone signs up with it again. */
+export function signUpAttemptMail(p: { signInLink: string; resetLink: string; displayName: string }) {
+  return {
+    subject: 'Someone tried to create a Tetrawell account with your address',
+    text: [
+      `Hello ${p.displayName},`,
+      '',
+      'Someone (perhaps you) just tried to create a Tetrawell account with this e-mail address, which already has one. No second account was made and nothing about yours changed.',
+      '',
+      'To use your account, sign in here:',
+      p.signInLink,
+      '',
+      'Forgotten the password? Ask for a reset link here:',
+      p.resetLink,
+      '',
+      'If it was not you, you can ignore this message.',
+    ].join('\n'),
+  };
+}

@@ -1,5 +1,5 @@
 import type { SiteRole } from '@contracts/roles';
-import { type Db, iso, isUniqueViolation } from './db';
+import { type Db, iso, isoOrNull } from './db';
 
 export interface UserRecord {
   id: number;
@@ -9,6 +9,8 @@ export interface UserRecord {
   version: number;
   passwordHash: string;
   createdAt: string;
+  /** null until the owner of the address followed the confirmation link (such an account cannot sign in) */
+  emailVerifiedAt: string | null;
 }
 
 interface UserRow {
@@ -19,6 +21,7 @@ interface UserRow {
   version: number;
   password_hash: string;
   created_at: Date;
+  email_verified_at: Date | null;
 }
 
 const toUser = (r: UserRow): UserRecord => ({
@@ -29,6 +32,7 @@ const toUser = (r: UserRow): UserRecord => ({
   version: r.version,
   passwordHash: r.password_hash,
   createdAt: iso(r.created_at),
+  emailVerifiedAt: isoOrNull(r.email_verified_at),
 });
 
 export function usersRepo(db: Db) {
@@ -41,17 +45,39 @@ export function usersRepo(db: Db) {
       const r = await db<UserRow>('users').whereRaw('lower(email) = lower(?)', [email]).first();
       return r ? toUser(r) : null;
     },
-    /** null when the e-mail address is already taken */
-    async insert(u: { email: string; passwordHash: string; displayName: string; siteRole: SiteRole }): Promise<UserRecord | null> {
-      try {
-        const [r] = await db<UserRow>('users')
-          .insert({ email: u.email, password_hash: u.passwordHash, display_name: u.displayName, site_role: u.siteRole })
-          .returning('*');
-        return toUser(r as UserRow);
-      } catch (err) {
-        if (isUniqueViolation(err)) return null;
-        throw err;
-      }
+    /**
+     * null when the e-mail address is already taken. ON CONFLICT … DO NOTHING rather than
+     * catching the unique violation: an error would abort the caller's transaction.
+     */
+    async insert(u: { email: string; passwordHash: string; displayName: string; siteRole: SiteRole; emailVerifiedAt: Date | null }): Promise<UserRecord | null> {
+      const r = await db.raw<{ rows: UserRow[] }>(
+        `INSERT INTO users (email, password_hash, display_name, site_role, email_verified_at)
+         VALUES (?, ?, ?, ?, ?)
+         ON CONFLICT ((lower(email))) DO NOTHING
+         RETURNING *`,
+        [u.email, u.passwordHash, u.displayName, u.siteRole, u.emailVerifiedAt],
+      );
+      const row = r.rows[0];
+      return row ? toUser(row) : null;
+    },
+    /** the row locked until the transaction ends (sign-up decides on it) */
+    async findByEmailForUpdate(email: string): Promise<UserRecord | null> {
+      const r = await db<UserRow>('users').whereRaw('lower(email) = lower(?)', [email]).forUpdate().first();
+      return r ? toUser(r) : null;
+    },
+    /**
+     * A repeated sign-up of a not yet confirmed address: the newest form's password and name
+     * replace the earlier ones (whoever confirms from the mailbox gets the newest sign-up).
+     */
+    async replaceUnverified(id: number, passwordHash: string, displayName: string): Promise<void> {
+      await db('users')
+        .where({ id })
+        .whereNull('email_verified_at')
+        .update({ password_hash: passwordHash, display_name: displayName, version: db.raw('version + 1'), updated_at: db.fn.now() } as never);
+    },
+    /** marks the address confirmed (no change when it already was) */
+    async markEmailVerified(id: number, at: Date): Promise<void> {
+      await db('users').where({ id }).whereNull('email_verified_at').update({ email_verified_at: at, updated_at: db.fn.now() });
     },
     /** null when `version` is not the current version (or the user is gone) */
     async updateDisplayName(id: number, displayName: string, version: number): Promise<UserRecord | null> {

@@ -1,8 +1,9 @@
 /**
- * Sign-up, sign-in, sign-out, "who am I", password reset, and the CSRF token.
+ * Sign-up, e-mail confirmation, sign-in, sign-out, "who am I", password reset, and the CSRF token.
  *
- * Sessions are regenerated at sign-in and sign-out (passport ≥ 0.6 does it in req.login /
- * req.logout), which also drops the CSRF token: the client fetches a new one afterwards.
+ * Sessions are regenerated at sign-in, at e-mail confirmation (which signs in) and at sign-out
+ * (passport ≥ 0.6 does it in req.login / req.logout), which also drops the CSRF token: the
+ * client fetches a new one afterwards.
  */
 import type { Request } from 'express';
 import {
@@ -10,6 +11,8 @@ import {
   resetRequestBodySchema,
   signInBodySchema,
   signUpBodySchema,
+  verifyEmailBodySchema,
+  type SignUpResponse,
   type User,
 } from '@contracts/api';
 import { AppError, parseOr422 } from '../services/errors';
@@ -34,9 +37,23 @@ export const authRoutes: RouteModule = (router, deps) => {
 
   router.post('/auth/sign-up', limiters.signUp, async (req, res) => {
     const body = parseOr422(signUpBodySchema, req.body, 'sign-up form');
-    const user = await services.auth.signUp(body);
+    const mail = await services.auth.signUp(body);
+    // One answer whether the address is new or already has an account; the e-mail (a
+    // confirmation link, or a note to the owner) goes out after it, so its timing tells nothing.
+    const answer: SignUpResponse = { status: 'check-email' };
+    res.status(202).json(answer);
+    setImmediate(() => {
+      services.auth.deliver(mail).catch((err: unknown) => deps.logger.error('sign-up mail failed:', err));
+    });
+  });
+
+  router.post('/auth/verify', limiters.verifyEmail, async (req, res) => {
+    const { token } = parseOr422(verifyEmailBodySchema, req.body, 'confirmation link');
+    const user = await services.auth.verifyEmail(token);
+    // a new session id, as at sign-in (session fixation)
     await logIn(req, user);
-    res.status(201).json({ user });
+    await services.auth.recordSignIn(user.id);
+    res.json({ user });
   });
 
   router.post('/auth/sign-in', limiters.signIn, async (req, res) => {
@@ -68,7 +85,7 @@ export const authRoutes: RouteModule = (router, deps) => {
     res.status(202).json({ ok: true });
   });
 
-  router.post('/auth/password-reset/confirm', async (req, res) => {
+  router.post('/auth/password-reset/confirm', limiters.resetConfirm, async (req, res) => {
     const { token, password } = parseOr422(resetConfirmBodySchema, req.body, 'reset form');
     await services.auth.confirmPasswordReset(token, password);
     res.json({ ok: true });

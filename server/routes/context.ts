@@ -12,7 +12,7 @@ export interface RouteDeps {
   authenticateLocal: (req: Request, res: Response) => Promise<User | false>;
   /** csrf-sync's token generator (stores the token in the session) */
   generateCsrfToken: (req: Parameters<RequestHandler>[0], overwrite?: boolean) => string;
-  limiters: { signIn: RequestHandler; signUp: RequestHandler; passwordReset: RequestHandler };
+  limiters: Record<'signIn' | 'signUp' | 'passwordReset' | 'verifyEmail' | 'resetConfirm' | 'passwordChange', RequestHandler>;
   logger: Logger;
 }
 

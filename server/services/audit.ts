@@ -7,6 +7,9 @@ import { auditRepo, type AuditInput, type AuditRecord } from '../repositories/au
 
 export const AUDIT_ACTIONS = [
   'auth.sign_up',
+  /** someone signed up with the address of a confirmed account (actor unknown; detail.userId is the account) */
+  'auth.sign_up_existing',
+  'auth.email_verify',
   'auth.sign_in',
   'account.password_change',
   'account.password_reset',

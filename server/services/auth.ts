@@ -1,22 +1,38 @@
 /**
- * Accounts: sign-up, credential checks, password reset and password change.
+ * Accounts: sign-up with e-mail confirmation, credential checks, password reset and change.
  *
- * Sign-in failures say the same thing whether or not the account exists, and take about
- * the same time: an unknown e-mail is still checked against a dummy bcrypt hash.
+ * Nothing here tells a caller whether an address has an account (OWASP Authentication cheat
+ * sheet, "account enumeration"):
+ * - sign-up gives one answer for a new and for a known address, after the same work (one
+ *   bcrypt hash, one short transaction); the difference only shows in the e-mail, which
+ *   reaches the owner of the address alone: a confirmation link for a new account, a
+ *   "someone tried to sign up with your address" note for an existing one;
+ * - sign-in failures say the same thing whether the account is unknown, the password wrong
+ *   or the address not yet confirmed, and take about the same time: an unknown e-mail is
+ *   still checked against a dummy bcrypt hash.
+ *
+ * An unconfirmed account is refused at sign-in with that same generic text (rather than a
+ * distinct "confirm your address first" answer): simplest, and it leaks nothing; the text
+ * itself reminds people who have just signed up to open the link.
  */
 import bcrypt from 'bcryptjs';
 import { randomBytes } from 'node:crypto';
 import type { User } from '@contracts/api';
 import { usersRepo, type UserRecord } from '../repositories/users';
 import { passwordResetsRepo } from '../repositories/passwordResets';
+import { emailVerificationsRepo } from '../repositories/emailVerifications';
 import { sessionsRepo } from '../repositories/sessions';
-import { AppError, conflict, staleWrite, unauthenticated } from './errors';
+import { AppError, staleWrite, unauthenticated } from './errors';
 import { recordAudit } from './audit';
 import { hashToken, newToken } from './tokens';
-import { passwordResetMail } from '../mail/templates';
+import { emailVerificationMail, passwordResetMail, signUpAttemptMail } from '../mail/templates';
+import type { OutgoingMail } from '../mail/mailer';
 import type { ServiceDeps } from './context';
 
-export const SIGN_IN_FAILED = 'The e-mail address or password is not right.';
+export const SIGN_IN_FAILED =
+  'The e-mail address or password is not right. If you have just created the account, open the confirmation link we e-mailed you first.';
+
+export const VERIFY_LINK_FAILED = 'This confirmation link is not valid any more.';
 
 export function toPublicUser(u: UserRecord): User {
   return { id: u.id, email: u.email, displayName: u.displayName, siteRole: u.siteRole, version: u.version };
@@ -34,14 +50,70 @@ export function authService(deps: ServiceDeps) {
       return bcrypt.hash(password, config.bcryptRounds);
     },
 
-    async signUp(input: { email: string; password: string; displayName: string }): Promise<User> {
+    /**
+     * Records a sign-up and returns the one e-mail to send (after answering, so the answer's
+     * timing does not depend on the SMTP server). The caller answers the same in every case.
+     *
+     * - new address: an unconfirmed account and a confirmation link;
+     * - address of an unconfirmed account: that sign-up's password and name are replaced by
+     *   this one's, older links are spent, and a new link goes out (people lose mails);
+     * - address of a confirmed account: nothing changes; its owner is told someone tried.
+     */
+    async signUp(input: { email: string; password: string; displayName: string }): Promise<OutgoingMail> {
+      // hashed in every case, so a known address costs the same time as a new one
       const passwordHash = await bcrypt.hash(input.password, config.bcryptRounds);
+      const now = deps.now();
       return db.transaction(async (trx) => {
-        const user = await usersRepo(trx).insert({ email: input.email, passwordHash, displayName: input.displayName, siteRole: 'member' });
-        if (!user) {
-          throw conflict('An account cannot be created with this e-mail address. If it is yours, sign in or reset the password.');
+        const users = usersRepo(trx);
+        const created = await users.insert({ email: input.email, passwordHash, displayName: input.displayName, siteRole: 'member', emailVerifiedAt: null });
+        const user = created ?? (await users.findByEmailForUpdate(input.email));
+        if (!user) throw new Error('sign-up: the address is taken but its account cannot be read');
+
+        if (!created && user.emailVerifiedAt) {
+          await recordAudit(trx, { projectId: null, actorId: null, action: 'auth.sign_up_existing', detail: { userId: user.id } });
+          return {
+            to: user.email,
+            ...signUpAttemptMail({ signInLink: `${config.publicUrl}/sign-in`, resetLink: `${config.publicUrl}/reset`, displayName: user.displayName }),
+          };
         }
-        await recordAudit(trx, { projectId: null, actorId: user.id, action: 'auth.sign_up', detail: {} });
+
+        const verifications = emailVerificationsRepo(trx);
+        if (!created) {
+          await users.replaceUnverified(user.id, passwordHash, input.displayName);
+          await verifications.spendAllForUser(user.id, now);
+        }
+        const { token, hash } = newToken();
+        const expiresAt = new Date(now.getTime() + config.emailVerificationTtlMs);
+        await verifications.insert({ userId: user.id, tokenHash: hash, expiresAt });
+        await recordAudit(trx, { projectId: null, actorId: user.id, action: 'auth.sign_up', detail: created ? {} : { repeated: true } });
+        return {
+          to: user.email,
+          ...emailVerificationMail({ link: `${config.publicUrl}/verify/${token}`, displayName: input.displayName, expiresAt }),
+        };
+      });
+    },
+
+    /** Sends a mail from signUp; failures are logged (the answer went out already). */
+    async deliver(mail: OutgoingMail): Promise<void> {
+      await deps.mailer.send(mail);
+    },
+
+    /** Confirms the address behind a link token: the user to sign in, or a 422 for a bad, used or expired link. */
+    async verifyEmail(token: string): Promise<User> {
+      return db.transaction(async (trx) => {
+        const now = deps.now();
+        const verifications = emailVerificationsRepo(trx);
+        const found = await verifications.findUsable(hashToken(token), now);
+        if (!found) {
+          throw new AppError('unprocessable', VERIFY_LINK_FAILED, [
+            { path: ['token'], message: 'The link has expired or was already used. Sign up again with the same address to get a new one, or sign in.' },
+          ]);
+        }
+        await usersRepo(trx).markEmailVerified(found.userId, now);
+        await verifications.spendAllForUser(found.userId, now);
+        await recordAudit(trx, { projectId: null, actorId: found.userId, action: 'auth.email_verify', detail: {} });
+        const user = await usersRepo(trx).findById(found.userId);
+        if (!user) throw new Error('verify: the account vanished');
         return toPublicUser(user);
       });
     },
@@ -53,7 +125,9 @@ export function authService(deps: ServiceDeps) {
         await bcrypt.compare(password, await getDummyHash());
         return null;
       }
-      return (await bcrypt.compare(password, user.passwordHash)) ? toPublicUser(user) : null;
+      const matches = await bcrypt.compare(password, user.passwordHash);
+      // an unconfirmed account gets the same refusal as a wrong password (see the header comment)
+      return matches && user.emailVerifiedAt ? toPublicUser(user) : null;
     },
 
     async recordSignIn(userId: number): Promise<void> {
@@ -90,6 +164,8 @@ export function authService(deps: ServiceDeps) {
           ]);
         }
         await usersRepo(trx).updatePasswordHash(reset.userId, passwordHash);
+        // the reset link came through the mailbox: that confirms the address too
+        await usersRepo(trx).markEmailVerified(reset.userId, now);
         await passwordResetsRepo(trx).spendAllForUser(reset.userId, now);
         // whoever held the old password is signed out everywhere
         await sessionsRepo(trx).deleteForUser(reset.userId);

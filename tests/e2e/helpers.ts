@@ -24,13 +24,28 @@ export async function closeTestDb(): Promise<void> {
   db = null;
 }
 
-/** Sign up through the real form and wait until the project list shows. */
-export async function signUp(page: Page, opts: { email: string; name: string; password?: string }): Promise<void> {
-  await page.goto('/sign-up');
+/** Fill and send the sign-up form on the current page, and wait for the "check your e-mail" answer. */
+export async function submitSignUpForm(page: Page, opts: { email?: string; name: string; password?: string }): Promise<void> {
   await page.getByLabel('Display name').fill(opts.name);
-  await page.getByLabel('E-mail address').fill(opts.email);
+  if (opts.email !== undefined) await page.getByLabel('E-mail address').fill(opts.email);
   await page.getByLabel('Password', { exact: true }).fill(opts.password ?? PASSWORD);
   await page.getByRole('button', { name: 'Create account' }).click();
+  await expect(page.getByRole('heading', { level: 1, name: 'Check your e-mail' })).toBeVisible();
+}
+
+/** Follow the newest confirmation link e-mailed to `email` in this page (signs in). */
+export async function confirmEmail(page: Page, email: string): Promise<void> {
+  await page.goto(await mailedLinkFor(email, 'verify'));
+}
+
+/**
+ * Sign up through the real form, follow the confirmation link from the e-mail (read from the
+ * fake SMTP server's captured_mail) and wait until the project list shows.
+ */
+export async function signUp(page: Page, opts: { email: string; name: string; password?: string }): Promise<void> {
+  await page.goto('/sign-up');
+  await submitSignUpForm(page, opts);
+  await confirmEmail(page, opts.email);
   await expect(page.getByRole('heading', { level: 1, name: 'Projects', exact: true })).toBeVisible();
 }
 
@@ -56,7 +71,7 @@ export async function createProject(page: Page, name: string, description = ''):
 }
 
 /** The newest `/<kind>/<token>` link e-mailed to `to`, as caught by the fake SMTP server. */
-export async function mailedLinkFor(to: string, kind: 'invite' | 'reset'): Promise<string> {
+export async function mailedLinkFor(to: string, kind: 'invite' | 'reset' | 'verify'): Promise<string> {
   const pattern = new RegExp(`https?://\\S+/${kind}/[A-Za-z0-9_-]+`);
   let link: string | null = null;
   await expect

@@ -6,7 +6,7 @@
  */
 import { expect, test } from '@playwright/test';
 import { can } from '../../server/contracts/roles';
-import { closeTestDb, createProject, invitationLinkFor, signUp, uniqueEmail } from './helpers';
+import { closeTestDb, confirmEmail, createProject, invitationLinkFor, signUp, submitSignUpForm, uniqueEmail } from './helpers';
 
 test.afterAll(closeTestDb);
 
@@ -36,9 +36,9 @@ test('a new user signs up, creates a project and invites a teammate by e-mail', 
   await mate.getByRole('link', { name: 'Create an account' }).click();
   // The invitation's address is carried over to the sign-up form.
   await expect(mate.getByLabel('E-mail address')).toHaveValue(mateEmail);
-  await mate.getByLabel('Display name').fill('Kofi Brandt');
-  await mate.getByLabel('Password', { exact: true }).fill('another-long-passphrase');
-  await mate.getByRole('button', { name: 'Create account' }).click();
+  await submitSignUpForm(mate, { name: 'Kofi Brandt', password: 'another-long-passphrase' });
+  // The confirmation link from the e-mail signs in and leads back to the invitation page.
+  await confirmEmail(mate, mateEmail);
 
   // Back on the invitation page, now signed in with the invited address.
   await mate.getByRole('button', { name: 'Accept and open the project' }).click();

@@ -1,13 +1,15 @@
 /**
- * Accounts and sessions: sign-up / sign-in / sign-out, session fixation, CSRF, cookie flags,
- * generic sign-in errors. Expectations follow the OWASP Session Management and CSRF
- * Prevention cheat sheets (session id renewed at privilege change; synchronizer token on
- * state-changing requests; HttpOnly + SameSite cookies) and RFC 6265bis for cookie attributes.
+ * Accounts and sessions: sign-up with e-mail confirmation / sign-in / sign-out, session
+ * fixation, CSRF, cookie flags, generic sign-in errors. Expectations follow the OWASP
+ * Session Management and CSRF Prevention cheat sheets (session id renewed at privilege
+ * change; synchronizer token on state-changing requests; HttpOnly + SameSite cookies), the
+ * OWASP Authentication cheat sheet on account enumeration (sign-up and sign-in answer alike
+ * whether or not an account exists) and RFC 6265bis for cookie attributes.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import supertest from 'supertest';
-import { errorBodySchema, meResponseSchema } from '@contracts/api';
-import { sessionCookie, startTestEnv, TEST_PASSWORD, uniqueEmail, type TestEnv } from './helpers';
+import { errorBodySchema, meResponseSchema, signUpResponseSchema } from '@contracts/api';
+import { lastMailId, linkToken, sessionCookie, startTestEnv, TEST_PASSWORD, uniqueEmail, VERIFY_SUBJECT, waitForMail, type TestEnv } from './helpers';
 
 let env: TestEnv;
 beforeAll(async () => {
@@ -18,15 +20,23 @@ afterAll(async () => {
 });
 
 describe('sign-up, sign-in, sign-out', () => {
-  it('signs up (signed in at once), signs out, signs back in', async () => {
+  it('signs up (confirmed by the e-mailed link, which signs in), signs out, signs back in', async () => {
     const c = env.client();
     const email = uniqueEmail('flow');
+    const sinceId = await lastMailId(env.knex);
     const signUp = await c.post('/api/auth/sign-up', { email: `  ${email.toUpperCase()} `, password: TEST_PASSWORD, displayName: 'Ada Flow' });
-    expect(signUp.status).toBe(201);
-    // zod contract: e-mail trimmed and lower-cased
-    expect(signUp.body.user.email).toBe(email);
-    expect(signUp.body.user.siteRole).toBe('member');
-    expect(signUp.body.user).not.toHaveProperty('passwordHash');
+    expect(signUp.status).toBe(202);
+    expect(signUpResponseSchema.parse(signUp.body)).toEqual({ status: 'check-email' });
+    // not signed in until the address is confirmed
+    expect((await c.get('/api/auth/me')).status).toBe(401);
+
+    // zod contract: e-mail trimmed and lower-cased (the mail goes to the normalised address)
+    const mail = await waitForMail(env.knex, email, VERIFY_SUBJECT, { sinceId });
+    const verified = await c.post('/api/auth/verify', { token: linkToken(mail.text, env.mailBase, 'verify') });
+    expect(verified.status).toBe(200);
+    expect(verified.body.user.email).toBe(email);
+    expect(verified.body.user.siteRole).toBe('member');
+    expect(verified.body.user).not.toHaveProperty('passwordHash');
 
     await c.refreshCsrf();
     const me = await c.get('/api/auth/me');
@@ -41,7 +51,8 @@ describe('sign-up, sign-in, sign-out', () => {
     expect((await c.get('/api/auth/me')).status).toBe(200);
 
     const audit = await env.knex('audit_events').where({ actor_id: user.id }).orderBy('id').pluck('action');
-    expect(audit).toEqual(['auth.sign_up', 'auth.sign_in']);
+    // confirming the address signs in, so it counts as a sign-in too
+    expect(audit).toEqual(['auth.sign_up', 'auth.email_verify', 'auth.sign_in', 'auth.sign_in']);
   });
 
   it('stores a bcrypt hash, never the password', async () => {
@@ -54,15 +65,18 @@ describe('sign-up, sign-in, sign-out', () => {
     expect(row.password_hash).toMatch(/^\$2[aby]\$\d{2}\$[./A-Za-z0-9]{53}$/);
   });
 
-  it('refuses a second account with the same e-mail (409)', async () => {
+  it('makes no second account with the same e-mail, and answers as for a new one', async () => {
     const email = uniqueEmail('dup');
     await env.client().signUp(email);
     const before = await env.knex('users').whereRaw('lower(email) = ?', [email]).count<{ n: string }[]>({ n: '*' });
     const r = await env.client().post('/api/auth/sign-up', { email: email.toUpperCase(), password: TEST_PASSWORD, displayName: 'Twin' });
-    expect(r.status).toBe(409);
-    expect(r.body.error.code).toBe('conflict');
+    expect(r.status).toBe(202);
+    expect(r.body).toEqual({ status: 'check-email' });
     const after = await env.knex('users').whereRaw('lower(email) = ?', [email]).count<{ n: string }[]>({ n: '*' });
     expect(after[0].n).toBe(before[0].n);
+    // the existing account is untouched: its name and password stay
+    const row = await env.knex('users').where({ email }).first();
+    expect(row.display_name).not.toBe('Twin');
   });
 
   it('gives the same answer for an unknown account and a wrong password', async () => {

@@ -27,6 +27,9 @@ export const RELAXED_LIMITS: RateLimits = {
   signIn: { windowMs: 60_000, limit: 100_000 },
   signUp: { windowMs: 60_000, limit: 100_000 },
   passwordReset: { windowMs: 60_000, limit: 100_000 },
+  verifyEmail: { windowMs: 60_000, limit: 100_000 },
+  resetConfirm: { windowMs: 60_000, limit: 100_000 },
+  passwordChange: { windowMs: 60_000, limit: 100_000 },
 };
 
 /** Server errors are printed (a 500 in a test run is worth seeing); the rest stays quiet. */
@@ -38,6 +41,8 @@ export interface TestEnv {
   /** the test's own connection, for setup rows and counting */
   knex: Knex;
   url: string;
+  /** base of the links in e-mails (PUBLIC_URL, or the server's URL when none was given) */
+  mailBase: string;
   client(): TestClient;
   stop(): Promise<void>;
 }
@@ -59,12 +64,14 @@ export async function startTestEnv(opts: Partial<ServerOptions> = {}): Promise<T
     logger: testLogger,
     ...opts,
   });
+  const mailBase = (opts.publicUrl ?? server.url).replace(/\/+$/, '');
   return {
     server,
     smtp,
     knex,
     url: server.url,
-    client: () => new TestClient(server.url),
+    mailBase,
+    client: () => new TestClient(server.url, { knex, mailBase }),
     async stop() {
       await server.stop();
       await smtp.stop();
@@ -91,7 +98,11 @@ export class TestClient {
   csrf: string | null = null;
   user: User | null = null;
 
-  constructor(readonly url: string) {
+  constructor(
+    readonly url: string,
+    /** where the client reads its e-mail (the fake SMTP server's captured_mail) and the links' base */
+    readonly mailbox: { knex: Knex; mailBase: string } | null = null,
+  ) {
     this.agent = supertest.agent(url);
   }
 
@@ -128,9 +139,25 @@ export class TestClient {
     return this.request('delete', path);
   }
 
+  /**
+   * The whole sign-up as a person does it: the form (202 "check your e-mail"), the
+   * confirmation mail read from the fake SMTP server, the link's token posted to
+   * /api/auth/verify, which signs in. Resolves to the signed-in user.
+   */
   async signUp(email = uniqueEmail(), password = TEST_PASSWORD, displayName = `Tester ${email.slice(0, 12)}`): Promise<User> {
+    if (!this.mailbox) throw new Error('signUp needs a client with a mailbox (TestEnv.client())');
+    const { knex, mailBase } = this.mailbox;
+    const sinceId = await lastMailId(knex);
     const r = await this.post('/api/auth/sign-up', { email, password, displayName });
-    if (r.status !== 201) throw new Error(`sign-up failed: ${r.status} ${JSON.stringify(r.body)}`);
+    if (r.status !== 202) throw new Error(`sign-up failed: ${r.status} ${JSON.stringify(r.body)}`);
+    const mail = await waitForMail(knex, email, VERIFY_SUBJECT, { sinceId });
+    return this.verify(linkToken(mail.text, mailBase, 'verify'));
+  }
+
+  /** Post a confirmation token (signs in on success); throws unless 200. */
+  async verify(token: string): Promise<User> {
+    const r = await this.post('/api/auth/verify', { token });
+    if (r.status !== 200) throw new Error(`verify failed: ${r.status} ${JSON.stringify(r.body)}`);
     this.user = r.body.user as User;
     await this.refreshCsrf();
     return this.user;
@@ -167,17 +194,37 @@ export interface CapturedMailRow {
   text: string;
 }
 
-/** Wait (up to `timeoutMs`) for a captured message to `to` whose subject matches; newest first. */
-export async function waitForMail(knex: Knex, to: string, subject: RegExp, timeoutMs = 8_000): Promise<CapturedMailRow> {
+/** Subject of the sign-up confirmation mail (server/mail/templates.ts). */
+export const VERIFY_SUBJECT = /Confirm your e-mail address/;
+
+/** Id of the newest captured message (0 when none): pass as `sinceId` to wait only for later mail. */
+export async function lastMailId(knex: Knex): Promise<number> {
+  const r = await knex('captured_mail').max<{ m: number | null }[]>({ m: 'id' });
+  return Number(r[0]?.m ?? 0);
+}
+
+/**
+ * Wait (up to `timeoutMs`) for a captured message to `to` whose subject matches; newest first.
+ * `sinceId` skips messages up to that id (mail sent before the step under test).
+ */
+export async function waitForMail(
+  knex: Knex,
+  to: string,
+  subject: RegExp,
+  opts: number | { timeoutMs?: number; sinceId?: number } = {},
+): Promise<CapturedMailRow> {
+  const { timeoutMs = 8_000, sinceId = 0 } = typeof opts === 'number' ? { timeoutMs: opts } : opts;
   const until = Date.now() + timeoutMs;
   for (;;) {
     const rows = (await knex('captured_mail')
       .whereRaw('recipients @> ?::jsonb', [JSON.stringify([to.toLowerCase()])])
+      .where('id', '>', sinceId)
       .orderBy('id', 'desc')) as CapturedMailRow[];
     const hit = rows.find((r) => subject.test(r.subject));
     if (hit) return hit;
     if (Date.now() > until) throw new Error(`no mail to ${to} matching ${subject} within ${timeoutMs} ms`);
-    await new Promise((r) => setTimeout(r, 100));
+    // mail leaves after the HTTP answer: poll briefly rather than sleep long
+    await new Promise((r) => setTimeout(r, 25));
   }
 }
 
@@ -187,7 +234,7 @@ export async function countMail(knex: Knex, to: string): Promise<number> {
 }
 
 /** The token at the end of a `${PUBLIC_URL}/<kind>/<token>` link in a mail body. */
-export function linkToken(text: string, baseUrl: string, kind: 'invite' | 'reset'): string {
+export function linkToken(text: string, baseUrl: string, kind: 'invite' | 'reset' | 'verify'): string {
   const escaped = baseUrl.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
   const m = new RegExp(`${escaped}/${kind}/([A-Za-z0-9_-]+)`).exec(text);
   if (!m) throw new Error(`no ${kind} link to ${baseUrl} in mail:\n${text}`);

@@ -1,11 +1,12 @@
 /**
- * Rate limiting on sign-in, sign-up and password-reset requests (OWASP Authentication
- * cheat sheet: throttle credential guessing). Limits are configured small here so the
- * test reaches them; the production defaults live in server/config.ts.
+ * Rate limiting on sign-in, sign-up, password-reset requests, e-mail confirmation,
+ * password-reset confirmation and password change (OWASP Authentication cheat sheet:
+ * throttle credential and token guessing). Limits are configured small here so the test
+ * reaches them; the production defaults live in server/config.ts.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { errorBodySchema } from '@contracts/api';
-import { startTestEnv, TEST_PASSWORD, uniqueEmail, type TestEnv } from './helpers';
+import { newUser, RELAXED_LIMITS, startTestEnv, TEST_PASSWORD, uniqueEmail, type TestEnv } from './helpers';
 
 const SIGN_IN_LIMIT = 3;
 const SIGN_UP_LIMIT = 2;
@@ -44,7 +45,7 @@ describe('rate limits', () => {
   it(`answers 429 after ${SIGN_UP_LIMIT} sign-ups and creates no account`, async () => {
     // the first test used one sign-up slot; use the rest
     const used = 1;
-    for (let i = used; i < SIGN_UP_LIMIT; i++) expect((await env.client().post('/api/auth/sign-up', { email: uniqueEmail('rlsu'), password: TEST_PASSWORD, displayName: 'R' })).status).toBe(201);
+    for (let i = used; i < SIGN_UP_LIMIT; i++) expect((await env.client().post('/api/auth/sign-up', { email: uniqueEmail('rlsu'), password: TEST_PASSWORD, displayName: 'R' })).status).toBe(202);
     const email = uniqueEmail('rlblocked');
     const r = await env.client().post('/api/auth/sign-up', { email, password: TEST_PASSWORD, displayName: 'Blocked' });
     expect(r.status).toBe(429);
@@ -54,5 +55,65 @@ describe('rate limits', () => {
   it(`answers 429 after ${RESET_LIMIT} password-reset requests`, async () => {
     for (let i = 0; i < RESET_LIMIT; i++) expect((await env.client().post('/api/auth/password-reset/request', { email: uniqueEmail('rr') })).status).toBe(202);
     expect((await env.client().post('/api/auth/password-reset/request', { email: uniqueEmail('rr') })).status).toBe(429);
+  });
+});
+
+const TOKEN_LIMIT = 3;
+
+describe('rate limits on confirmation links, reset confirmation and password change', () => {
+  let tight: TestEnv;
+  beforeAll(async () => {
+    tight = await startTestEnv({
+      rateLimits: {
+        ...RELAXED_LIMITS,
+        verifyEmail: { windowMs: 60_000, limit: TOKEN_LIMIT },
+        resetConfirm: { windowMs: 60_000, limit: TOKEN_LIMIT },
+        passwordChange: { windowMs: 60_000, limit: TOKEN_LIMIT },
+      },
+    });
+  });
+  afterAll(async () => {
+    await tight?.stop();
+  });
+
+  /** `TOKEN_LIMIT` refused guesses, then a 429 even for a request that would otherwise be answered differently */
+  async function exhaust(call: (i: number) => Promise<{ status: number; body: unknown }>, refusedWith: number) {
+    const statuses: number[] = [];
+    for (let i = 0; i < TOKEN_LIMIT; i++) statuses.push((await call(i)).status);
+    expect(statuses).toEqual(Array(TOKEN_LIMIT).fill(refusedWith));
+    const blocked = await call(TOKEN_LIMIT);
+    expect(blocked.status).toBe(429);
+    expect(errorBodySchema.parse(blocked.body).error.code).toBe('rate_limited');
+  }
+
+  it(`POST /api/auth/password-reset/confirm answers 429 after ${TOKEN_LIMIT} attempts`, async () => {
+    const c = tight.client();
+    await exhaust((i) => c.post('/api/auth/password-reset/confirm', { token: `guess-${i}-`.padEnd(43, 'x'), password: 'some-new-passphrase' }), 422);
+  });
+
+  it(`POST /api/account/password answers 429 after ${TOKEN_LIMIT} attempts, even with the right current password`, async () => {
+    const u = await newUser(tight, 'rlpw');
+    await exhaust(
+      (i) =>
+        u.client.post('/api/account/password', {
+          currentPassword: i < TOKEN_LIMIT ? `wrong-guess-${i}` : TEST_PASSWORD,
+          newPassword: 'another-passphrase-9',
+        }),
+      422,
+    );
+    // the password did not change
+    expect((await tight.client().post('/api/auth/sign-in', { email: u.email, password: TEST_PASSWORD })).status).toBe(200);
+  });
+
+  // last: newUser above confirmed its address through this route once, which counts against the limit
+  it(`POST /api/auth/verify answers 429 after ${TOKEN_LIMIT} attempts`, async () => {
+    const c = tight.client();
+    const used = 1;
+    const statuses: number[] = [];
+    for (let i = used; i < TOKEN_LIMIT; i++) statuses.push((await c.post('/api/auth/verify', { token: `guess-${i}-`.padEnd(43, 'x') })).status);
+    expect(statuses).toEqual(Array(TOKEN_LIMIT - used).fill(422));
+    const blocked = await c.post('/api/auth/verify', { token: 'y'.repeat(43) });
+    expect(blocked.status).toBe(429);
+    expect(errorBodySchema.parse(blocked.body).error.code).toBe('rate_limited');
   });
 });

@@ -28,10 +28,23 @@ import {
   projectDesignSchema,
   projectListSchema,
   projectSchema,
+  signUpResponseSchema,
   type User,
 } from '@contracts/api';
 import type { z } from 'zod';
-import { addMember, linkToken, newUser, startTestEnv, TEST_PASSWORD, uniqueEmail, waitForMail, type TestClient, type TestEnv } from './helpers';
+import {
+  addMember,
+  lastMailId,
+  linkToken,
+  newUser,
+  startTestEnv,
+  TEST_PASSWORD,
+  uniqueEmail,
+  VERIFY_SUBJECT,
+  waitForMail,
+  type TestClient,
+  type TestEnv,
+} from './helpers';
 import { emptyDesign } from '../../server/services/designs';
 
 type Who = 'signed out' | ProjectRole;
@@ -48,6 +61,8 @@ interface Fixture {
   ownInviteToken: string | null;
   /** a fresh password-reset token for a throwaway account */
   resetToken: string;
+  /** a fresh sign-up confirmation token for a throwaway (unconfirmed) account */
+  verifyToken: string;
 }
 
 interface RouteCase {
@@ -58,7 +73,7 @@ interface RouteCase {
   url(f: Fixture): string;
   body?(f: Fixture, c: TestClient): unknown | Promise<unknown>;
   /** extra set-up the case needs (kept out of the other cases) */
-  needs?: { ownInvite?: boolean; reset?: boolean; openInvitation?: boolean };
+  needs?: { ownInvite?: boolean; reset?: boolean; openInvitation?: boolean; verify?: boolean };
   /** the contract the success body must match (server/contracts/api.ts) */
   schema?: z.ZodType;
   /** undo after the call so the shared role users stay usable */
@@ -74,10 +89,20 @@ const ROUTES: RouteCase[] = [
     method: 'post',
     path: '/auth/sign-up',
     rule: { kind: 'public' },
-    success: 201,
+    success: 202,
     url: () => '/api/auth/sign-up',
-    schema: meResponseSchema,
+    schema: signUpResponseSchema,
     body: () => ({ email: uniqueEmail('matrix-su'), password: TEST_PASSWORD, displayName: 'Matrix' }),
+  },
+  {
+    method: 'post',
+    path: '/auth/verify',
+    rule: { kind: 'public' },
+    success: 200,
+    url: () => '/api/auth/verify',
+    schema: meResponseSchema,
+    needs: { verify: true },
+    body: (f) => ({ token: f.verifyToken }),
   },
   {
     method: 'post',
@@ -280,7 +305,14 @@ async function buildFixture(route: RouteCase, who: Who): Promise<Fixture> {
     const mail = await waitForMail(env.knex, throwaway.email, /Reset/);
     resetToken = linkToken(mail.text, env.url, 'reset');
   }
-  return { projectId, users: roleUsers, invitationId, ownInviteToken, resetToken };
+  let verifyToken = 'x'.repeat(43);
+  if (route.needs?.verify) {
+    const email = uniqueEmail('matrix-verify');
+    const sinceId = await lastMailId(env.knex);
+    expect((await env.client().post('/api/auth/sign-up', { email, password: TEST_PASSWORD, displayName: 'Matrix verify' })).status).toBe(202);
+    verifyToken = linkToken((await waitForMail(env.knex, email, VERIFY_SUBJECT, { sinceId })).text, env.mailBase, 'verify');
+  }
+  return { projectId, users: roleUsers, invitationId, ownInviteToken, resetToken, verifyToken };
 }
 
 describe('role-by-route matrix', () => {

@@ -18,3 +18,36 @@ export function withNext(path: string, next: string | null | undefined, extra: R
   const q = params.toString();
   return q ? `${path}?${q}` : path;
 }
+
+/**
+ * Where to go once the e-mailed confirmation link is followed. The link itself carries only
+ * the token, so the sign-up page remembers `next` (e.g. the invitation page that sent the
+ * person to sign up) in this browser; the confirmation page reads it back. Only a path that
+ * passes `safeNextPath` is stored, and it is checked again when read.
+ */
+const AFTER_CONFIRM_KEY = 'tetrawell.afterConfirm';
+
+function storage(): Storage | null {
+  try {
+    return typeof localStorage === 'undefined' ? null : localStorage;
+  } catch {
+    return null; // storage disabled: fall back to the project list
+  }
+}
+
+export function rememberNextAfterConfirm(next: string | null | undefined): void {
+  const safe = safeNextPath(next, '');
+  const s = storage();
+  if (!s) return;
+  if (safe) s.setItem(AFTER_CONFIRM_KEY, safe);
+  else s.removeItem(AFTER_CONFIRM_KEY);
+}
+
+/** The remembered path (validated again), or the fallback; does not forget it (see `forgetNextAfterConfirm`). */
+export function nextAfterConfirm(fallback = '/projects'): string {
+  return safeNextPath(storage()?.getItem(AFTER_CONFIRM_KEY), fallback);
+}
+
+export function forgetNextAfterConfirm(): void {
+  storage()?.removeItem(AFTER_CONFIRM_KEY);
+}
