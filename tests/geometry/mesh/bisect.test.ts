@@ -11,6 +11,7 @@ import { checkMesh, tetDet } from '../../../geometry/mesh/check';
 import { computeTetQuality } from '../../../geometry/mesh/quality';
 import { NO_PARENT } from '../../../geometry/mesh/types';
 import { marksWhere } from './marks.fixtures';
+import { siliconDesign } from '../design-fixtures';
 
 type Box = { min: [number, number, number]; max: [number, number, number] };
 const UNIT: Box = { min: [0, 0, 0], max: [1, 1, 1] };
@@ -174,15 +175,13 @@ describe('uniform and local refinement with closure', () => {
 
   it('a graded design mesh can be refined further by markers (the adaptive loop) and stays conforming', () => {
     const r = meshDesign(
-      {
-        format: 'tetrawell-design',
-        version: 1,
+      siliconDesign({
         name: 'adaptive continuation (invented)',
-        host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: 0.5431 },
+        host: { latticeConstantNm: 0.5431 },
         sites: [{ id: 'd', species: 'P', position: [0.7, -0.3, 0.2], electrons: 1 }],
         enclosure: { center: [0, 0, 0], halfExtentsNm: [12, 12, 12], boundary: { kind: 'grounded' } },
         refinement: { order: 1, targetRelError: 0.05, maxElements: 500_000 },
-      },
+      }),
       { keepBisectionMesh: true },
     );
     const bm = r.bisectionMesh!;

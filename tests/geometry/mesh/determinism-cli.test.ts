@@ -7,22 +7,21 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it, vi } from 'vitest';
 import { run } from '../../../server/cli/mesh';
+import { siliconDesign } from '../design-fixtures';
 
 const dir = mkdtempSync(join(tmpdir(), 'tw-mesh-cli-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-const design = {
-  format: 'tetrawell-design',
-  version: 1,
+const design = siliconDesign({
   name: 'CLI determinism (invented: two donors)',
-  host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: 0.5431 },
+  host: { latticeConstantNm: 0.5431 },
   sites: [
     { id: 'left', species: 'P', position: [-3, 0.2, 0], electrons: 1 },
     { id: 'right', species: 'Bi', position: [3.5, -0.1, 0.4], electrons: 1 },
   ],
   enclosure: { center: [0, 0, 0], halfExtentsNm: [20, 16, 16], boundary: { kind: 'grounded' } },
   refinement: { order: 1, targetRelError: 0.02, maxElements: 500_000 },
-};
+});
 
 async function capture(argv: string[]): Promise<{ code: number; out: string; err: string }> {
   const out: string[] = [];

@@ -7,12 +7,11 @@ import { describe, expect, it } from 'vitest';
 import { meshDesign, kuhnBox, refine, toTetMesh } from '../../../geometry/mesh/index';
 import type { TetMesh } from '../../../geometry/mesh/types';
 import type { Design } from '../../../geometry/design/types';
+import { siliconDesign } from '../design-fixtures';
 
-const DESIGN: Design = {
-  format: 'tetrawell-design',
-  version: 1,
+const DESIGN: Design = siliconDesign({
   name: 'determinism (invented: three donors in a bent row)',
-  host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: 0.5431 },
+  host: { latticeConstantNm: 0.5431 },
   sites: [
     { id: 'a', species: 'P', position: [-3.2, 0.4, 0.1], electrons: 1 },
     { id: 'b', species: 'As', position: [1.1, -0.6, 0.3], electrons: 1 },
@@ -20,7 +19,7 @@ const DESIGN: Design = {
   ],
   enclosure: { center: [0.5, 0, 0], halfExtentsNm: [22, 18, 18], boundary: { kind: 'grounded' } },
   refinement: { order: 2, targetRelError: 1e-4, maxElements: 2_000_000 },
-};
+});
 
 function digest(mesh: TetMesh): Record<string, string> {
   const out: Record<string, string> = {};

@@ -10,17 +10,10 @@ import { adaptiveCubature, cellLadderEdges, coreLowerBound, ladderDensity, ladde
 import { sizeFieldFromDesign, chooseInitialCells } from '../../../geometry/mesh/index';
 import { computeTetQuality } from '../../../geometry/mesh/quality';
 import type { Design, Site } from '../../../geometry/design/types';
+import { boxDesign } from '../design-fixtures';
 
 function design(sites: Partial<Site>[], half: [number, number, number], order: 1 | 2, tol: number, maxElements = 5_000_000): Design {
-  return {
-    format: 'tetrawell-design',
-    version: 1,
-    name: 'estimate test (invented)',
-    host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: 0.5431 },
-    sites: sites.map((s, i) => ({ id: `s${i}`, species: 'P', position: [0, 0, 0], electrons: 1, ...s })),
-    enclosure: { center: [0, 0, 0], halfExtentsNm: half, boundary: { kind: 'grounded' } },
-    refinement: { order, targetRelError: tol, maxElements },
-  };
+  return boxDesign('estimate test (invented)', sites, half, order, tol, maxElements);
 }
 
 describe('Kuhn bisection ladder', () => {

@@ -15,16 +15,14 @@ import { checkMesh } from '../../../geometry/mesh/check';
 import { qualityReport } from '../../../geometry/mesh/quality';
 import { encodeMeshBinary, writeVtkLegacy, writeVtu } from '../../../geometry/mesh/export/index';
 import type { Design } from '../../../geometry/design/types';
+import { siliconDesign } from '../design-fixtures';
 
 const PYTHON = '/usr/bin/python3';
 const READER = fileURLToPath(new URL('./read_vtu.py', import.meta.url));
 
 // invented demo scenario: three donors in a bent row, 4.4 nm and ~4 nm apart
-const design: Design = {
-  format: 'tetrawell-design',
-  version: 1,
+const design: Design = siliconDesign({
   name: 'Bent triad (demo)',
-  host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: 0.5431020511 },
   sites: [
     { id: 'D1', species: 'P', position: [-2.2, 0, 0], electrons: 1 },
     { id: 'D2', species: 'P', position: [2.2, 0, 0], electrons: 1 },
@@ -32,7 +30,7 @@ const design: Design = {
   ],
   enclosure: { center: [0, 1, 0], halfExtentsNm: [12, 12, 10], boundary: { kind: 'grounded' } },
   refinement: { order: 2, targetRelError: 0.01, maxElements: 400000 },
-};
+});
 const box = { min: [-12, -11, -10] as [number, number, number], max: [12, 13, 10] as [number, number, number] };
 const boxVolume = 24 * 24 * 20;
 

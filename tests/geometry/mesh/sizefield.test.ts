@@ -9,17 +9,10 @@ import { describe, expect, it } from 'vitest';
 import { SizeField, sizeFieldFromDesign, gradingExponent, autoCoreSize, orbitalLength, meshDesign, kuhnBox, refineToSize, toTetMesh, MeshError } from '../../../geometry/mesh/index';
 import { checkMesh } from '../../../geometry/mesh/check';
 import type { Design, Site } from '../../../geometry/design/types';
+import { boxDesign } from '../design-fixtures';
 
 function design(sites: Partial<Site>[], half: [number, number, number], order: 1 | 2, tol: number): Design {
-  return {
-    format: 'tetrawell-design',
-    version: 1,
-    name: 'size-field test (invented)',
-    host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: 0.5431 },
-    sites: sites.map((s, i) => ({ id: `s${i}`, species: 'P', position: [0, 0, 0], electrons: 1, ...s })),
-    enclosure: { center: [0, 0, 0], halfExtentsNm: half, boundary: { kind: 'grounded' } },
-    refinement: { order, targetRelError: tol, maxElements: 5_000_000 },
-  };
+  return boxDesign('size-field test (invented)', sites, half, order, tol);
 }
 
 /** h by the defining formula, brute force over sites */
