@@ -6,18 +6,16 @@ import { generateArray } from '../../geometry/arrays';
 import { farFieldCheck } from '../../geometry/farfield';
 import type { Design, Orbital } from '../../geometry/design/types';
 import { SI_LATTICE_CONSTANT_NM } from '../../geometry/units';
+import { siliconDesign } from '../geometry/design-fixtures';
 
 function designOf(nx: number, ny: number, boundary: Design['enclosure']['boundary'], orbital?: Orbital): Design {
   const sites = generateArray({ kind: 'triangular', nx, ny, spacingNm: 4.5, latticeConstantNm: SI_LATTICE_CONSTANT_NM, orbital });
-  return {
-    format: 'tetrawell-design',
-    version: 1,
+  return siliconDesign({
     name: 'bench',
-    host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: SI_LATTICE_CONSTANT_NM },
     sites,
     enclosure: { center: [0, 0, 0], halfExtentsNm: [4.5 * nx, 4.5 * ny, 40], boundary },
     refinement: { order: 2, targetRelError: 1e-3, maxElements: 2_000_000 },
-  };
+  });
 }
 
 function time(label: string, d: Design, reps: number, options = {}): void {

@@ -14,21 +14,19 @@ import { anisotropicNeglected } from '../../../geometry/farfield/envelope';
 import { axialMoment, densityAt, orbitalScale, radialTail, gaussLegendre, legendreP, potentialAt, radialPotential, selfEnergy } from '../../../geometry/density';
 import { mulberry32 } from '../../../geometry/arrays';
 import { COULOMB_EV_NM, SI_LATTICE_CONSTANT_NM } from '../../../geometry/units';
+import { siliconDesign } from '../design-fixtures';
 
 const H: Orbital = { model: 'hydrogenic-1s', radiusNm: 2.5 };
 const A: Orbital = { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 };
 const G: Orbital = { model: 'gaussian', sigmaNm: 1.5 };
 
 function design(sites: Design['sites'], half: Vec3, boundary: Design['enclosure']['boundary'], tol = 1e-3): Design {
-  return {
-    format: 'tetrawell-design',
-    version: 1,
+  return siliconDesign({
     name: 'test',
-    host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: SI_LATTICE_CONSTANT_NM },
     sites,
     enclosure: { center: [0, 0, 0], halfExtentsNm: half, boundary },
     refinement: { order: 2, targetRelError: tol, maxElements: 2_000_000 },
-  };
+  });
 }
 
 /** ∫ρ f by cubature in spherical coordinates about the site (independent of the moment code). */
