@@ -17,6 +17,7 @@ import { farFieldCheck, type FarFieldReport } from '../../geometry/farfield';
 import type { Design } from '../../geometry/design/types';
 import { estimateDesignElements } from '../../geometry/mesh/index';
 import { readDesign } from './design-file';
+import { notesAndAssumptions, table } from './text';
 
 const USAGE = 'usage: npm run cli -- check <design.json> [--json] [--moments]';
 
@@ -39,10 +40,6 @@ const g = (x: number | null, digits = 3) => (x === null || !Number.isFinite(x) ?
 const pct = (x: number | null) => (x === null || !Number.isFinite(x) ? '—' : `${(100 * x).toPrecision(3)}%`);
 const meV = (x: number | null) => (x === null || !Number.isFinite(x) ? '—' : (1000 * x).toPrecision(3));
 
-function table(rows: string[][]): string {
-  const w = rows[0].map((_, c) => Math.max(...rows.map((r) => r[c].length)));
-  return rows.map((r) => r.map((cell, c) => (c === 0 ? cell.padEnd(w[c]) : cell.padStart(w[c]))).join('  ')).join('\n');
-}
 
 export function toReadable(design: Design, r: FarFieldReport): string {
   const out: string[] = [];
@@ -53,9 +50,10 @@ export function toReadable(design: Design, r: FarFieldReport): string {
   out.push(
     table([
       ['site', 'U model (meV)', 'clearance (nm)', 'density outside', '|ΔU| bound (meV)', 'relative'],
-      ...r.sites.map((s) => [s.id, meV(s.uEv), g(s.clearanceNm, 4), g(s.chargeOutside, 2), meV(s.uBoundEv), pct(s.uRelBound)]),
+      ...r.sites.slice(0, 200).map((s) => [s.id, meV(s.uEv), g(s.clearanceNm, 4), g(s.chargeOutside, 2), meV(s.uBoundEv), pct(s.uRelBound)]),
     ]),
   );
+  if (r.sites.length > 200) out.push(`… ${r.sites.length - 200} more sites (use --json for all)`);
   if (r.pairs.length) {
     out.push('');
     const shown = r.pairs.slice(0, 40);
@@ -83,9 +81,7 @@ export function toReadable(design: Design, r: FarFieldReport): string {
     out.push('warnings:');
     for (const w of r.warnings) out.push(`  [${w.severity}] ${w.code}: ${w.message}${w.siteIds.length ? ` (${w.siteIds.slice(0, 12).join(', ')}${w.siteIds.length > 12 ? ', …' : ''})` : ''}`);
   }
-  out.push('');
-  out.push('Model assumptions:');
-  for (const a of r.assumptions) out.push(`  - ${a}`);
+  out.push(...notesAndAssumptions([], r.assumptions));
   return out.join('\n');
 }
 

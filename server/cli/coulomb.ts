@@ -14,6 +14,7 @@
  * mode ran out of budget before the target (message, no numbers).
  */
 import { readDesign } from './design-file';
+import { notesAndAssumptions, table } from './text';
 import type { Design } from '../../geometry/design/types';
 import { solveCoulomb, CoulombError, type CoulombResult } from '../../geometry/fem/coulomb';
 import { MeshError } from '../../geometry/mesh/index';
@@ -71,10 +72,6 @@ export function toCoulombJson(r: CoulombResult) {
 const meV = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(6) : '—');
 const meVs = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(2) : '—');
 
-function table(rows: string[][]): string {
-  const w = rows[0].map((_, c) => Math.max(...rows.map((r) => r[c].length)));
-  return rows.map((r) => r.map((cell, c) => (c === 0 ? cell.padEnd(w[c]) : cell.padStart(w[c]))).join('  ')).join('\n');
-}
 
 export function toCoulombReadable(design: Design, r: CoulombResult): string {
   const out: string[] = [];
@@ -106,14 +103,7 @@ export function toCoulombReadable(design: Design, r: CoulombResult): string {
     `estimated relative error ${r.estimatedRelError.toExponential(2)}, target ${r.targetRelError} — ${r.meetsTarget ? 'met' : 'NOT met'}` +
       ' (error columns: grid-convergence-index bar from nested meshes; maximum-principle boundary bound; density outside the box)',
   );
-  if (r.notes.length) {
-    out.push('');
-    out.push('notes:');
-    for (const n of r.notes) out.push(`  - ${n}`);
-  }
-  out.push('');
-  out.push('Model assumptions:');
-  for (const a of r.assumptions) out.push(`  - ${a}`);
+  out.push(...notesAndAssumptions(r.notes, r.assumptions));
   return out.join('\n');
 }
 

@@ -10,15 +10,12 @@ import type { Design } from '../../geometry/design/types';
 import { runStudy, type StudyResult, type RefinementRow, type BoxRow } from '../../geometry/fem/study';
 import { parseArgs, refusalMessage } from './coulomb';
 import { readDesign } from './design-file';
+import { notesAndAssumptions, table } from './text';
 
 const USAGE = 'usage: npm run cli -- study <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json]';
 
 const meV = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(6) : '—');
 
-function table(rows: string[][]): string {
-  const w = rows[0].map((_, c) => Math.max(...rows.map((r) => r[c].length)));
-  return rows.map((r) => r.map((cell, c) => (c === 0 ? cell.padEnd(w[c]) : cell.padStart(w[c]))).join('  ')).join('\n');
-}
 
 export function toStudyJson(r: StudyResult) {
   return {
@@ -57,14 +54,7 @@ export function toStudyReadable(design: Design, r: StudyResult): string {
       ]),
     );
   }
-  if (r.notes.length) {
-    out.push('');
-    out.push('notes:');
-    for (const n of r.notes) out.push(`  - ${n}`);
-  }
-  out.push('');
-  out.push('Model assumptions:');
-  for (const a of r.assumptions) out.push(`  - ${a}`);
+  out.push(...notesAndAssumptions(r.notes, r.assumptions));
   return out.join('\n');
 }
 

@@ -1,23 +1,5 @@
 import type { Db } from './db';
+import { singleUseTokensRepo } from './singleUseTokens';
 
-export function passwordResetsRepo(db: Db) {
-  return {
-    async insert(r: { userId: number; tokenHash: string; expiresAt: Date }): Promise<void> {
-      await db('password_resets').insert({ user_id: r.userId, token_hash: r.tokenHash, expires_at: r.expiresAt });
-    },
-    /** the user id behind an unused, unexpired token (row locked until the transaction ends) */
-    async findUsable(tokenHash: string, now: Date): Promise<{ id: number; userId: number } | null> {
-      const r = await db('password_resets')
-        .where({ token_hash: tokenHash })
-        .whereNull('used_at')
-        .where('expires_at', '>', now)
-        .forUpdate()
-        .first('id', 'user_id');
-      return r ? { id: r.id as number, userId: r.user_id as number } : null;
-    },
-    /** mark every open token of the user used: one reset spends all earlier links */
-    async spendAllForUser(userId: number, now: Date): Promise<void> {
-      await db('password_resets').where({ user_id: userId }).whereNull('used_at').update({ used_at: now });
-    },
-  };
-}
+/** Tokens of the password-reset links (stored hashed, expiring, single use; one reset spends all earlier links). */
+export const passwordResetsRepo = (db: Db) => singleUseTokensRepo(db, 'password_resets');

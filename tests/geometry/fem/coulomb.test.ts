@@ -37,13 +37,16 @@ describe('richardson / observedRate', () => {
     expect(mixed.rateSource).toBe('theoretical');
     expect(richardson([0.1], [1], 2).error).toBe(Infinity);
   });
-  it('a rate above theory is capped and keeps the small factor; a slow rate or mixed signs get 3 and the larger step (Roache 1994)', () => {
+  it('only a rate within 25 % of theory keeps the small factor; a rate far above or below it, or mixed signs, get 3 and the larger step (Roache 1994)', () => {
     const s = [0.4, 0.2, 0.1];
-    // E = 1 + s^6 with theory 4: capped at 4, already conservative, so F_s = 1.25
+    // E = 1 + s^6 with theory 4: outside the asymptotic range (Roache's criterion), capped at 4, F_s = 3
     const e = s.map((x) => 1 + x ** 6);
     const fast = richardson(s, e, 4);
-    expect(fast.safetyFactor).toBe(GCI_SAFETY_OBSERVED);
-    expect(fast.error).toBeCloseTo((GCI_SAFETY_OBSERVED * Math.abs(e[2] - e[1])) / (2 ** 4 - 1), 14);
+    expect(fast.rate).toBe(4);
+    expect(fast.safetyFactor).toBe(GCI_SAFETY_THEORETICAL);
+    expect(fast.error).toBeCloseTo((GCI_SAFETY_THEORETICAL * Math.abs(e[2] - e[1])) / (2 ** 4 - 1), 14);
+    // within 25 % above theory: still the asymptotic range, 1.25
+    expect(richardson(s, s.map((x) => 1 + x ** 4.8), 4).safetyFactor).toBe(GCI_SAFETY_OBSERVED);
     // the capped bar still covers the true error |E_finest − 1| = 0.1^6
     expect(fast.error).toBeGreaterThanOrEqual(0.1 ** 6);
     // E = 1 + s^2 with theory 4: observed 2 < 0.75·4, so F_s = 3 at the observed rate
