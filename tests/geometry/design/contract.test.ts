@@ -17,6 +17,8 @@ import { farFieldCheck } from '../../../geometry/farfield';
 
 const fixture = fileURLToPath(new URL('../../fixtures/designs/plaquette.json', import.meta.url));
 const schemaFile = fileURLToPath(new URL('../../../server/contracts/design.schema.json', import.meta.url));
+// Untyped on purpose: the tests write deliberately malformed values (null, strings, NaN) into it.
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
 const example = () => JSON.parse(readFileSync(fixture, 'utf8')) as Record<string, any>;
 
 function issuesOf(doc: unknown): DesignIssue[] {
