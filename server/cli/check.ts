@@ -11,7 +11,9 @@
  * --moments adds the multipole moments to order 4 of every site's unit density and of the array
  * (weights = electrons) about the enclosure centre: a `moments` key in the JSON, a table otherwise.
  * Without it, a readable table with the model assumptions.
- * Exit codes: 0 checked, 1 invalid document or unreadable file, 2 usage.
+ * Exit codes: 0 checked, 1 invalid document or unreadable file, 2 usage, 3 checked but the report
+ * holds an error-level warning (a site outside the enclosure, sites at the same position): the
+ * numbers are printed, and scripts can still tell that the design is not fit to mesh.
  */
 import { farFieldCheck, type FarFieldReport } from '../../geometry/farfield';
 import type { Design } from '../../geometry/design/types';
@@ -110,5 +112,5 @@ export async function run(argv: string[]): Promise<number> {
   });
   const body = json ? JSON.stringify(moments ? { ...toCheckJson(report), moments: report.moments } : toCheckJson(report), null, 2) : toReadable(design, report);
   console.log(body);
-  return 0;
+  return report.warnings.some((w) => w.severity === 'error') ? 3 : 0;
 }

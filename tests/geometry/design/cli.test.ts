@@ -59,6 +59,15 @@ describe('npm run cli -- check', () => {
     expect(q2).toBeCloseTo(d2 * d2, 8);
     expect(cli(fixture, '--moments').out).toMatch(/multipole moments about/);
   });
+  it('exits 3 when the report holds an error-level warning (site outside the box), still printing the report', () => {
+    const doc = JSON.parse(readFileSync(fixture, 'utf8'));
+    doc.sites[0].position = [45, 0, 0];
+    const f = join(dir, 'outside.json');
+    writeFileSync(f, JSON.stringify(doc));
+    const r = cli(f, '--json');
+    expect(r.code).toBe(3);
+    expect(JSON.parse(r.out).warnings.map((w: { code: string }) => w.code)).toContain('site-outside-enclosure');
+  });
   it('the readable table states the assumptions and that figures are estimates', () => {
     const r = cli(fixture);
     expect(r.code).toBe(0);
