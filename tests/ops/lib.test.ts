@@ -12,10 +12,6 @@ import path from 'node:path';
 import { ESLint } from 'eslint';
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-
-// Fixture text for the report readers' skip counts: a skipped test in a generated file, spelt so that
-// searches for skipped tests in this repository do not mistake the fixture for one of ours.
-const SKIPPED = ['test', 'skip'].join('.');
 import {
   compareVersions,
   countTscErrors,
@@ -33,6 +29,10 @@ import {
   shQuote,
   sourcesFingerprint,
 } from '../../server/ops/lib.mjs';
+
+// Fixture text for the report readers' skip counts: a skipped test in a generated file, spelt so that
+// searches for skipped tests in this repository do not mistake the fixture for one of ours.
+const SKIPPED = ['test', 'skip'].join('.');
 
 const ROOT = path.resolve(__dirname, '..', '..');
 const NODE = process.execPath;
