@@ -3,7 +3,7 @@ import type { ProjectRole } from '@contracts/roles';
 /** What each project role means, in the words the team screens use. */
 export const ROLE_LABELS: Record<ProjectRole, { label: string; summary: string }> = {
   owner: { label: 'Owner', summary: 'manages the team, the project and its designs' },
-  editor: { label: 'Editor', summary: 'changes designs and runs studies' },
+  editor: { label: 'Editor', summary: 'changes designs and the project details' },
   viewer: { label: 'Viewer', summary: 'reads and exports' },
 };
 
