@@ -69,11 +69,11 @@ function DesignBody({ design }: { design: DesignDocument }) {
               <tr>
                 <th scope="col" className="px-3 py-2 font-semibold">Site</th>
                 <th scope="col" className="px-3 py-2 font-semibold">Species</th>
-                <th scope="col" className="px-3 py-2 text-right font-semibold">x (nm)</th>
-                <th scope="col" className="px-3 py-2 text-right font-semibold">y (nm)</th>
-                <th scope="col" className="px-3 py-2 text-right font-semibold">z (nm)</th>
+                <th scope="col" className="px-3 py-2 text-right font-semibold">x <span className="normal-case">(nm)</span></th>
+                <th scope="col" className="px-3 py-2 text-right font-semibold">y <span className="normal-case">(nm)</span></th>
+                <th scope="col" className="px-3 py-2 text-right font-semibold">z <span className="normal-case">(nm)</span></th>
                 <th scope="col" className="px-3 py-2 text-right font-semibold">Electrons</th>
-                <th scope="col" className="px-3 py-2 text-right font-semibold">Nearest site (nm)</th>
+                <th scope="col" className="px-3 py-2 text-right font-semibold">Nearest site <span className="normal-case">(nm)</span></th>
                 <th scope="col" className="px-3 py-2 font-semibold">Orbital</th>
               </tr>
             </thead>
