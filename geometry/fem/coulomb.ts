@@ -56,7 +56,7 @@ import { residualIndicator, runAdaptive, DEFAULT_THETA } from './adaptive';
 
 /** A clear refusal with a stable code, for the CLI and the server to show as it is. */
 export class CoulombError extends Error {
-  readonly code: 'no-electrons' | 'no-sites' | 'unknown-site' | 'site-outside' | 'not-converged' | 'solver-failed';
+  readonly code: 'no-electrons' | 'no-sites' | 'unknown-site' | 'site-outside' | 'sites-coincide' | 'not-converged' | 'solver-failed';
   constructor(code: CoulombError['code'], message: string) {
     super(message);
     this.name = 'CoulombError';
@@ -418,6 +418,13 @@ function plan(design: Design, opts: CoulombOptions): Plan {
   const sites = activeSites(design, opts.siteIds);
   const allPairsLimit = opts.pairs === 'all' ? Number.POSITIVE_INFINITY : opts.pairs === 'bond-graph' ? 0 : undefined;
   const far = farFieldCheck(design, allPairsLimit === undefined ? {} : { allPairsLimit });
+  // Two sites at one position have no pair distance: V would be the self-energy of a shared
+  // density, not an inter-site energy, and the pair drops out of the bond graph. Refuse rather
+  // than print a table that silently lacks it.
+  const coincide = far.warnings.find((w) => w.code === 'sites-coincide');
+  if (coincide) {
+    throw new CoulombError('sites-coincide', `sites ${coincide.siteIds.map((id) => `"${id}"`).join(', ')} sit at the same position: give each its own lattice site`);
+  }
   const boundById = new Map(far.sites.map((s) => [s.id, s] as const));
   const siteBound: number[] = [];
   const siteCut: number[] = [];

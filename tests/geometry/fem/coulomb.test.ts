@@ -101,6 +101,21 @@ describe('solveCoulomb', () => {
     expect(() => solveCoulomb(d, { siteIds: ['nope'] })).toThrow(/no site "nope"/);
   });
 
+  it('two sites at one position: refused with their ids, no table silently missing the pair', () => {
+    const d = twoGaussians(3, 1, 16, 1e-2);
+    d.sites[1] = { ...d.sites[1], position: [...d.sites[0].position], electrons: 1 };
+    let err: unknown;
+    try {
+      solveCoulomb(d);
+    } catch (e) {
+      err = e;
+    }
+    expect(err).toBeInstanceOf(CoulombError);
+    expect((err as CoulombError).code).toBe('sites-coincide');
+    expect((err as Error).message).toContain(`"${d.sites[0].id}"`);
+    expect((err as Error).message).toContain(`"${d.sites[1].id}"`);
+  });
+
   it('an orbital far narrower than the budget can resolve: refused before meshing, with the numbers', () => {
     // a 0.01 nm orbital in a 40 nm box: the graded mesh needs ~5e3 tetrahedra, the budget allows 3e3
     const d = oneSite({ model: 'hydrogenic-1s', radiusNm: 0.01 }, { half: 40, tol: 1e-4, maxElements: 3000 });
