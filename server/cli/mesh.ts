@@ -100,6 +100,14 @@ export async function run(argv: string[]): Promise<number> {
   const design = await readDesign(args.file, false);
   if (!design) return 1;
   const order = args.order ?? design.refinement.order;
+  // A site outside the enclosure is allowed (a design may be mid-edit) but gets no grading, and
+  // nothing computed on this mesh will include it: say so rather than mesh silently.
+  const { center, halfExtentsNm } = design.enclosure;
+  const outside = design.sites.filter((s) => s.position.some((x, k) => Math.abs(x - center[k]) >= halfExtentsNm[k]));
+  if (outside.length) {
+    const ids = outside.slice(0, 12).map((s) => s.id).join(', ') + (outside.length > 12 ? ', …' : '');
+    console.error(`warning: ${outside.length} site(s) outside the enclosure (${ids}): the mesh is not graded around them; enlarge the box or move them`);
+  }
 
   const t0 = performance.now();
   let result;

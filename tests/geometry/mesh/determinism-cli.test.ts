@@ -67,6 +67,16 @@ describe('npm run cli -- mesh', () => {
     expect(j.p2Nodes).toBeGreaterThan(j.vertices);
   });
 
+  it('a site outside the enclosure: the mesh is written, with a warning that names the site', async () => {
+    const outsideFile = join(dir, 'outside.json');
+    writeFileSync(outsideFile, JSON.stringify({ ...design, sites: [design.sites[0], { ...design.sites[1], position: [25, 0, 0] }] }));
+    const r = await capture([outsideFile, '--out', join(dir, 'outside.vtu')]);
+    expect(r.code).toBe(0);
+    expect(r.err).toMatch(/1 site\(s\) outside the enclosure \(right\)/);
+    const inside = await capture([file, '--out', join(dir, 'inside.vtu')]);
+    expect(inside.err).not.toMatch(/outside the enclosure/);
+  });
+
   it('bad input: plain words, no stack trace, non-zero exit', async () => {
     const missing = await capture([join(dir, 'nope.json'), '--out', join(dir, 'x.vtu')]);
     expect(missing.code).toBe(1);
