@@ -19,6 +19,8 @@ export type { FeSpace } from './space';
 export { buildSpace } from './space';
 export type { Csr } from './csr';
 export { spmv } from './csr';
+export type { PreparedSpmv } from './spmv-wasm';
+export { prepareSpmv, wasmSpmvAvailable } from './spmv-wasm';
 export type { PointFunction, SystemOptions } from './assemble';
 export {
   assembleStiffness, assembleSystem, assembleLoad, assembleMass, applyDirichlet, applyDirichletRhs, integrate, feIntegrate,

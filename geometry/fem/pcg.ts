@@ -5,8 +5,11 @@
  * (checked against a true residual at the end). Progress is reported as (stage, fraction) with the
  * fraction log(‖r₀‖/‖r‖)/log(1/tol), which moves evenly for a steadily converging solve.
  * Cancellation: an AbortSignal (or any { aborted: boolean }) is checked every iteration.
+ * The products A·p run on the WebAssembly SIMD kernel where available (spmv-wasm.ts), which gives
+ * the same bits as the JS spmv, so a solve is reproducible whichever kernel runs it.
  */
-import { type Csr, spmv, diagonal } from './csr';
+import { type Csr, diagonal } from './csr';
+import { prepareSpmv } from './spmv-wasm';
 
 /** z = B r for an SPD approximation B of A⁻¹. */
 export interface Preconditioner {
@@ -24,6 +27,8 @@ export interface PcgOptions {
   signal?: { readonly aborted: boolean };
   /** stage name given to onProgress (default "solve") */
   stage?: string;
+  /** product kernel: 'auto' (WebAssembly SIMD where available, the default) or 'js'; same bits either way */
+  spmvKernel?: 'auto' | 'js';
 }
 
 export interface PcgResult {
@@ -85,7 +90,9 @@ export function pcg(A: Csr, b: Float64Array, x0: Float64Array | null, options: P
     x.fill(0);
     return { x, iterations: 0, relResidual: 0, converged: true, history: new Float64Array([0]) };
   }
-  spmv(A, x, q);
+  // the matrix is copied into the kernel's memory once per solve: about one product's traffic
+  const spmv = prepareSpmv(A, { kernel: options.spmvKernel ?? 'auto' });
+  spmv(x, q);
   for (let i = 0; i < n; i++) r[i] = b[i] - q[i];
   let rel = Math.sqrt(dot(r, r)) / bnorm;
   const rel0 = rel;
@@ -105,7 +112,7 @@ export function pcg(A: Csr, b: Float64Array, x0: Float64Array | null, options: P
   let it = 0;
   while (rel > tol && it < maxIter) {
     if (options.signal?.aborted) throw new SolveAbortedError();
-    spmv(A, p, q);
+    spmv(p, q);
     const pq = dot(p, q);
     if (!(pq > 0)) throw new Error('conjugate gradients broke down: the matrix or preconditioner is not positive definite');
     const alpha = rz / pq;
@@ -129,7 +136,7 @@ export function pcg(A: Csr, b: Float64Array, x0: Float64Array | null, options: P
     for (let i = 0; i < n; i++) p[i] = z[i] + beta * p[i];
   }
   // the true residual, so the caller never reports a drifted recursive one
-  spmv(A, x, q);
+  spmv(x, q);
   let tr = 0;
   for (let i = 0; i < n; i++) {
     const d = b[i] - q[i];

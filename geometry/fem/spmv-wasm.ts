@@ -1,0 +1,260 @@
+/**
+ * y = A x with a WebAssembly SIMD kernel, for the solver's inner loop.
+ *
+ * Why: the product is bound by memory traffic (12 bytes per nonzero), and plain JS loses time on
+ * bounds checks and scalar loads of the values. The kernel loads two values at once (one v128
+ * load) and multiplies them by the two gathered x entries in one f64x2 multiply.
+ *
+ * Same bits as the JS spmv (geometry/fem/csr.ts), on purpose: lane 0 of the accumulator is the JS
+ * accumulator s0 (entries rowPtr[i], rowPtr[i]+2, …, plus the odd tail), lane 1 is s1 (entries
+ * rowPtr[i]+1, +3, …), and y[i] = lane0 + lane1. WebAssembly never fuses a multiply into an add,
+ * so every rounding step matches; results do not depend on which kernel ran.
+ *
+ * Memory: the matrix lives inside one WebAssembly memory (the arena), copied in once by
+ * prepareSpmv. The arena is shared by all prepared matrices of this thread and belongs to the
+ * most recently prepared one; calling an older one copies its matrix back in first (correct,
+ * just slower). The arena grows to the largest matrix seen and is kept for reuse (a memory
+ * cannot shrink); a matrix that does not fit (4 GB limit of wasm32) uses the JS kernel.
+ *
+ *   arena layout (byte offsets, each part 16-byte aligned)
+ *   ┌──────────────┬────────────┬────────────┬─────────┬─────────┐
+ *   │ rowPtr u32   │ cols u32   │ vals f64   │ x f64   │ y f64   │
+ *   │ 4(n+1)       │ 4 nnz      │ 8 nnz      │ 8 n     │ 8 n     │
+ *   └──────────────┴────────────┴────────────┴─────────┴─────────┘
+ *
+ * Where WebAssembly or its SIMD extension is missing, prepareSpmv returns the JS kernel.
+ * The module is assembled below from a handful of opcodes (no binary is shipped).
+ */
+import { type Csr, spmv } from './csr';
+
+/** A prepared product y = A x, bound to one matrix. `kernel` says which code runs it. */
+export type PreparedSpmv = ((x: Float64Array, y: Float64Array) => void) & { readonly kernel: 'wasm-simd' | 'js' };
+
+// ---- a tiny WebAssembly emitter: just the opcodes the kernel needs --------------------------
+
+/** unsigned LEB128 */
+function uleb(v: number): number[] {
+  const out: number[] = [];
+  do {
+    let b = v & 0x7f;
+    v >>>= 7;
+    if (v !== 0) b |= 0x80;
+    out.push(b);
+  } while (v !== 0);
+  return out;
+}
+
+/** signed LEB128 (for i32.const) */
+function sleb(v: number): number[] {
+  const out: number[] = [];
+  for (;;) {
+    const b = v & 0x7f;
+    v >>= 7;
+    if ((v === 0 && (b & 0x40) === 0) || (v === -1 && (b & 0x40) !== 0)) {
+      out.push(b);
+      return out;
+    }
+    out.push(b | 0x80);
+  }
+}
+
+const section = (id: number, body: number[]): number[] => [id, ...uleb(body.length), ...body];
+const name = (s: string): number[] => [...uleb(s.length), ...Array.from(s, (c) => c.charCodeAt(0))];
+
+const I32 = 0x7f;
+const V128 = 0x7b;
+const EMPTY = 0x40; // block type: no result
+const get = (l: number): number[] => [0x20, ...uleb(l)];
+const set = (l: number): number[] => [0x21, ...uleb(l)];
+const tee = (l: number): number[] => [0x22, ...uleb(l)];
+const i32c = (v: number): number[] => [0x41, ...sleb(v)];
+const I32_ADD = 0x6a;
+const I32_SHL = 0x74;
+const I32_LT_U = 0x49;
+const I32_GE_U = 0x4f;
+const F64_ADD = 0xa0;
+const F64_MUL = 0xa2;
+/** memory access with alignment log2 and constant offset */
+const i32load = (offset = 0): number[] => [0x28, 2, ...uleb(offset)];
+const f64load = (offset = 0): number[] => [0x2b, 3, ...uleb(offset)];
+const f64store = (offset = 0): number[] => [0x39, 3, ...uleb(offset)];
+const block = [0x02, EMPTY];
+const loop = [0x03, EMPTY];
+const ifThen = [0x04, EMPTY];
+const END = 0x0b;
+const br = (d: number): number[] => [0x0c, ...uleb(d)];
+const brIf = (d: number): number[] => [0x0d, ...uleb(d)];
+/** SIMD instructions: prefix 0xfd, then the LEB128 opcode */
+const simd = (op: number, ...imm: number[]): number[] => [0xfd, ...uleb(op), ...imm];
+const v128load = (offset = 0): number[] => simd(0x00, 3, ...uleb(offset)); // alignment hint 8 bytes
+const v128zero = simd(0x0c, ...new Array<number>(16).fill(0));
+const f64x2splat = simd(0x14);
+const f64x2extract = (lane: number): number[] => simd(0x21, lane);
+const f64x2replace = (lane: number): number[] => simd(0x22, lane);
+const f64x2add = simd(0xf0);
+const f64x2mul = simd(0xf2);
+
+/**
+ * The kernel, in pseudo-code (locals: pr = &rowPtr[i], pc = &cols[k], pv = &vals[k],
+ * pe = &cols[rowPtr[i+1]], py = &y[i], acc = (s0, s1)):
+ *
+ *   spmv(n, rowPtrOff, colsOff, valsOff, xOff, yOff)
+ *     if n == 0 return
+ *     k0 = rowPtr[0]; pc = colsOff + 4 k0; pv = valsOff + 8 k0; pr = rowPtrOff; py = yOff
+ *     do {
+ *       pe = colsOff + 4 rowPtr[i+1]; acc = (0, 0)
+ *       while (pc + 4 < pe) {                       // two entries left: k + 1 < end
+ *         acc += v128(vals[k], vals[k+1]) * (x[cols[k]], x[cols[k+1]])
+ *         pc += 8; pv += 16
+ *       }
+ *       if (pc < pe) { s0 += vals[k] * x[cols[k]]; pc += 4; pv += 8 }   // odd tail, as in JS
+ *       y[i] = s0 + s1; pr += 4; py += 8
+ *     } while (py < yOff + 8 n)
+ */
+function kernelBody(): number[] {
+  // params 0..5: n, rowPtrOff, colsOff, valsOff, xOff, yOff; locals 6..10 i32: pr, pc, pv, pe, yEnd; 11 v128: acc
+  const [N, RP, CP, VP, XP, YP] = [0, 1, 2, 3, 4, 5];
+  const [PR, PC, PV, PE, YEND] = [6, 7, 8, 9, 10];
+  const ACC = 11;
+  /** f64 x[cols at address pc + off] on the stack */
+  const gatherX = (off: number): number[] => [...get(XP), ...get(PC), ...i32load(off), ...i32c(3), I32_SHL, I32_ADD, ...f64load()];
+  const code: number[] = [
+    ...block,
+    ...get(N), ...i32c(0), 0x46 /* i32.eq */, ...brIf(0),
+    // pc = colsOff + 4·rowPtr[0]; pv = valsOff + 8·rowPtr[0]
+    ...get(CP), ...get(RP), ...i32load(), ...i32c(2), I32_SHL, I32_ADD, ...set(PC),
+    ...get(VP), ...get(RP), ...i32load(), ...i32c(3), I32_SHL, I32_ADD, ...set(PV),
+    ...get(RP), ...set(PR),
+    ...get(YP), ...get(N), ...i32c(3), I32_SHL, I32_ADD, ...set(YEND),
+    ...loop, // rows
+    // pe = colsOff + 4·rowPtr[i+1]
+    ...get(CP), ...get(PR), ...i32load(4), ...i32c(2), I32_SHL, I32_ADD, ...set(PE),
+    ...v128zero, ...set(ACC),
+    ...block, ...loop, // pairs
+    ...get(PC), ...i32c(4), I32_ADD, ...get(PE), I32_GE_U, ...brIf(1),
+    ...get(ACC),
+    ...get(PV), ...v128load(),
+    ...gatherX(0), ...f64x2splat, ...gatherX(4), ...f64x2replace(1),
+    ...f64x2mul, ...f64x2add, ...set(ACC),
+    ...get(PC), ...i32c(8), I32_ADD, ...set(PC),
+    ...get(PV), ...i32c(16), I32_ADD, ...set(PV),
+    ...br(0),
+    END, END,
+    // odd tail into lane 0
+    ...get(PC), ...get(PE), I32_LT_U, ...ifThen,
+    ...get(ACC),
+    ...get(ACC), ...f64x2extract(0), ...get(PV), ...f64load(), ...gatherX(0), F64_MUL, F64_ADD,
+    ...f64x2replace(0), ...set(ACC),
+    ...get(PC), ...i32c(4), I32_ADD, ...set(PC),
+    ...get(PV), ...i32c(8), I32_ADD, ...set(PV),
+    END,
+    // y[i] = s0 + s1
+    ...get(YP), ...get(ACC), ...f64x2extract(0), ...get(ACC), ...f64x2extract(1), F64_ADD, ...f64store(),
+    ...get(PR), ...i32c(4), I32_ADD, ...set(PR),
+    ...get(YP), ...i32c(8), I32_ADD, ...tee(YP), ...get(YEND), I32_LT_U, ...brIf(0),
+    END, // rows
+    END, // outer block
+    END, // function
+  ];
+  const locals = [2, ...uleb(5), I32, 1, V128];
+  const body = [...locals, ...code];
+  return [...uleb(body.length), ...body];
+}
+
+/** The module: imports memory env.mem, exports spmv(n, rowPtrOff, colsOff, valsOff, xOff, yOff). */
+export function spmvModuleBytes(): Uint8Array<ArrayBuffer> {
+  const bytes = [
+    0x00, 0x61, 0x73, 0x6d, 0x01, 0x00, 0x00, 0x00, // "\0asm", version 1
+    ...section(1, [1, 0x60, 6, I32, I32, I32, I32, I32, I32, 0]), // type 0: (i32 ×6) → ()
+    ...section(2, [1, ...name('env'), ...name('mem'), 0x02, 0x00, 1]), // import memory, min 1 page
+    ...section(3, [1, 0]), // one function of type 0
+    ...section(7, [1, ...name('spmv'), 0x00, 0]), // export it
+    ...section(10, [1, ...kernelBody()]),
+  ];
+  return new Uint8Array(bytes);
+}
+
+// ---- the arena --------------------------------------------------------------------------------
+
+type Kernel = (n: number, rp: number, cp: number, vp: number, xp: number, yp: number) => void;
+
+interface Arena {
+  memory: WebAssembly.Memory;
+  kernel: Kernel;
+  /** the prepared matrix that currently occupies the arena */
+  owner: object | null;
+}
+
+const PAGE = 65536;
+const MAX_PAGES = 65536; // wasm32: 4 GB
+let arena: Arena | null | undefined; // undefined: not tried yet; null: unavailable
+
+function getArena(): Arena | null {
+  if (arena !== undefined) return arena;
+  arena = null;
+  try {
+    if (typeof WebAssembly === 'undefined') return null;
+    const bytes = spmvModuleBytes();
+    if (!WebAssembly.validate(bytes)) return null; // no SIMD
+    const memory = new WebAssembly.Memory({ initial: 1 });
+    // synchronous compilation is fine here: the module is a few hundred bytes
+    const instance = new WebAssembly.Instance(new WebAssembly.Module(bytes), { env: { mem: memory } });
+    arena = { memory, kernel: instance.exports.spmv as Kernel, owner: null };
+  } catch {
+    arena = null;
+  }
+  return arena;
+}
+
+/** True when this runtime runs the WebAssembly SIMD kernel. */
+export function wasmSpmvAvailable(): boolean {
+  return getArena() !== null;
+}
+
+const align16 = (v: number): number => Math.ceil(v / 16) * 16;
+
+/**
+ * Bind y = A x to the matrix A: its arrays are copied into the arena now, and each call copies
+ * x in and y out (16 bytes per row, small next to 12 per nonzero). A must not change afterwards
+ * (prepare again after changing its values). Identical bits to spmv(A, x, y).
+ */
+export function prepareSpmv(A: Csr, options: { kernel?: 'auto' | 'js' } = {}): PreparedSpmv {
+  const js = Object.assign((x: Float64Array, y: Float64Array) => spmv(A, x, y), { kernel: 'js' as const });
+  const a = options.kernel === 'js' ? null : getArena();
+  const n = A.n;
+  const nnz = A.rowPtr[n] - A.rowPtr[0];
+  if (!a || n === 0) return js;
+  const rp = 0;
+  const cp = align16(rp + 4 * (n + 1));
+  const vp = align16(cp + 4 * A.cols.length);
+  const xp = align16(vp + 8 * A.vals.length);
+  const yp = align16(xp + 8 * n);
+  const size = align16(yp + 8 * n);
+  if (size > MAX_PAGES * PAGE || nnz > A.cols.length) return js;
+  const have = a.memory.buffer.byteLength / PAGE;
+  const need = Math.ceil(size / PAGE);
+  if (need > have) {
+    try {
+      a.memory.grow(need - have);
+    } catch {
+      return js; // the runtime refused the memory: stay on the JS kernel
+    }
+  }
+  const token = {};
+  const load = (): void => {
+    const buf = a.memory.buffer;
+    new Uint32Array(buf, rp, n + 1).set(A.rowPtr);
+    new Uint32Array(buf, cp, A.cols.length).set(A.cols);
+    new Float64Array(buf, vp, A.vals.length).set(A.vals);
+    a.owner = token;
+  };
+  load();
+  const run = (x: Float64Array, y: Float64Array): void => {
+    if (a.owner !== token) load(); // another matrix took the arena meanwhile
+    const buf = a.memory.buffer;
+    new Float64Array(buf, xp, n).set(x.subarray(0, n));
+    a.kernel(n, rp, cp, vp, xp, yp);
+    y.set(new Float64Array(buf, yp, n));
+  };
+  return Object.assign(run, { kernel: 'wasm-simd' as const });
+}
