@@ -7,10 +7,10 @@
  * cheat sheet: renew the id at a privilege change).
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import supertest from 'supertest';
 import { errorBodySchema, signUpResponseSchema } from '@contracts/api';
 import {
   countMail,
+  expectSessionRotated,
   lastMailId,
   linkToken,
   newUser,
@@ -153,10 +153,7 @@ describe('POST /api/auth/verify', () => {
     expect(after).not.toBeNull();
     expect(after).not.toBe(before);
 
-    const replay = await supertest(env.url).get('/api/auth/me').set('Cookie', `tetrawell.sid=${before}`);
-    expect(replay.status).toBe(401);
-    const legit = await supertest(env.url).get('/api/auth/me').set('Cookie', `tetrawell.sid=${after}`);
-    expect(legit.status).toBe(200);
+    const legit = await expectSessionRotated(env.url, before, after);
     expect(legit.body.user.email).toBe(email);
 
     const row = await env.knex('users').where({ email }).first();

@@ -8,6 +8,7 @@
  */
 import { randomBytes } from 'node:crypto';
 import supertest from 'supertest';
+import { expect } from 'vitest';
 import type { Knex } from 'knex';
 import type { User } from '@contracts/api';
 import { start, type RunningServer } from '../../server/index';
@@ -256,4 +257,19 @@ export function sessionCookie(setCookie: string[] | string | undefined): string 
   const list = Array.isArray(setCookie) ? setCookie : setCookie ? [setCookie] : [];
   const c = list.find((s) => s.startsWith('tetrawell.sid='));
   return c ? c.split(';')[0].slice('tetrawell.sid='.length) : null;
+}
+
+/**
+ * Session fixation defence (OWASP Session Management): after a sign-in the id the client held
+ * before is dead and the new one is live. Returns the /api/auth/me answer for the new id.
+ */
+export async function expectSessionRotated(url: string, before: string | null, after: string | null): Promise<supertest.Response> {
+  expect(before).not.toBeNull();
+  expect(after).not.toBeNull();
+  expect(after).not.toBe(before);
+  const replay = await supertest(url).get('/api/auth/me').set('Cookie', `tetrawell.sid=${before}`);
+  expect(replay.status).toBe(401);
+  const legit = await supertest(url).get('/api/auth/me').set('Cookie', `tetrawell.sid=${after}`);
+  expect(legit.status).toBe(200);
+  return legit;
 }
