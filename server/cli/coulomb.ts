@@ -72,7 +72,6 @@ export function toCoulombJson(r: CoulombResult) {
 const meV = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(6) : '—');
 const meVs = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(2) : '—');
 
-
 export function toCoulombReadable(design: Design, r: CoulombResult): string {
   const out: string[] = [];
   out.push(`Coulomb energies: ${design.name}`);
@@ -83,7 +82,7 @@ export function toCoulombReadable(design: Design, r: CoulombResult): string {
   out.push('');
   out.push(
     table([
-      ['site', 'U (meV)', '± (meV)', 'discretisation', 'boundary', 'density cut', 'rate', 'charge in box'],
+      ['site', 'U (meV)', '± (meV)', 'discretisation (meV)', 'boundary (meV)', 'density cut (meV)', 'rate', 'charge in box'],
       ...r.sites.map((s) => [s.id, meV(s.uEv), meVs(s.uErrorEv), meVs(s.budget.discretisationEv), meVs(s.budget.boundaryEv), meVs(s.budget.densityCutEv), `${s.budget.rate.toFixed(2)} ${s.budget.rateSource}, Fs ${s.budget.safetyFactor}`, s.charge.toFixed(8)]),
     ]),
   );
@@ -92,7 +91,7 @@ export function toCoulombReadable(design: Design, r: CoulombResult): string {
     const shown = r.pairs.slice(0, 40);
     out.push(
       table([
-        ['pair', 'R (nm)', 'V (meV)', '± (meV)', 'discretisation', 'boundary', 'density cut'],
+        ['pair', 'R (nm)', 'V (meV)', '± (meV)', 'discretisation (meV)', 'boundary (meV)', 'density cut (meV)'],
         ...shown.map((p) => [`${p.a}–${p.b}`, p.distanceNm.toPrecision(4), meV(p.vEv), meVs(p.vErrorEv), meVs(p.budget.discretisationEv), meVs(p.budget.boundaryEv), meVs(p.budget.densityCutEv)]),
       ]),
     );
