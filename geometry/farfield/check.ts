@@ -77,7 +77,10 @@ export interface PairBound {
   a: string;
   b: string;
   distanceNm: number;
+  /** the pair's V in this model (eV): the closed-form overlap integral where one exists, else e²/(4πε R) */
   vEv: number;
+  /** which of the two vEv is: exact for two Gaussians or two equal 1s densities, a point-charge value otherwise */
+  vModel: 'closed-form' | 'point-charge';
   vBoundEv: number | null;
   vRelBound: number | null;
 }
@@ -237,10 +240,11 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
       coincide.push(si.id, sj.id);
       continue;
     }
-    const v = pairEnergy(orbitals[i], orbitals[j], R) ?? 1 / R;
+    const exact = pairEnergy(orbitals[i], orbitals[j], R);
+    const v = exact ?? 1 / R;
     const dl = boundary.kind === 'grounded' ? Math.min(delta[i], delta[j]) : Math.max(delta[i], delta[j]);
     const bounded = Number.isFinite(dl);
-    pairs.push({ a: si.id, b: sj.id, distanceNm: R, vEv: ev * v, vBoundEv: bounded ? ev * dl : null, vRelBound: bounded ? dl / v : null });
+    pairs.push({ a: si.id, b: sj.id, distanceNm: R, vEv: ev * v, vModel: exact === null ? 'point-charge' : 'closed-form', vBoundEv: bounded ? ev * dl : null, vRelBound: bounded ? dl / v : null });
     target[i] = Math.min(target[i], tol * v);
     target[j] = Math.min(target[j], tol * v);
   }

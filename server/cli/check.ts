@@ -62,9 +62,11 @@ export function toReadable(design: Design, r: FarFieldReport): string {
     out.push(
       table([
         ['pair', 'R (nm)', 'V model (meV)', '|ΔV| bound (meV)', 'relative'],
-        ...shown.map((p) => [`${p.a}–${p.b}`, g(p.distanceNm, 4), meV(p.vEv), meV(p.vBoundEv), pct(p.vRelBound)]),
+        ...shown.map((p) => [`${p.a}–${p.b}`, g(p.distanceNm, 4), `${meV(p.vEv)}${p.vModel === 'point-charge' ? '*' : ''}`, meV(p.vBoundEv), pct(p.vRelBound)]),
       ]),
     );
+    if (shown.some((p) => p.vModel === 'point-charge'))
+      out.push('* point-charge value e²/(4πε R): no closed form for this pair of orbitals (closed forms: two Gaussians, two equal 1s)');
     if (r.pairs.length > shown.length) out.push(`… ${r.pairs.length - shown.length} more pairs (use --json for all)`);
   }
   out.push('');

@@ -286,4 +286,31 @@ describe('far-field check', () => {
     // the array's moments are the electron-weighted sum of the sites'
     for (let i = 0; i < 25; i++) expect(r.moments!.values[i]).toBeCloseTo(2 * r.moments!.sites[0].values[i] + r.moments!.sites[1].values[i], 10);
   });
+  it('says which pair values are closed forms and which are point-charge values', () => {
+    // Two equal 1s densities at R: J = (1/R)[1 − e^{−2w}(1 + 11w/8 + 3w²/4 + w³/6)], w = R/a (the
+    // hydrogen-molecule Coulomb integral, any quantum-chemistry text); no closed form is used for
+    // the anisotropic envelope, so its V is the point-charge e²/(4πε R). e²/4πε0 from CODATA 2018.
+    const H: Orbital = { model: 'hydrogenic-1s', radiusNm: 2.5 };
+    const R = 4.4;
+    const r = farFieldCheck(
+      design(
+        [
+          { id: 'h1', species: 'P', position: [-R / 2, 0, 0], electrons: 1, orbital: H },
+          { id: 'h2', species: 'P', position: [R / 2, 0, 0], electrons: 1, orbital: H },
+          { id: 'x', species: 'P', position: [0, 6, 0], electrons: 1, orbital: A },
+        ],
+        [30, 30, 30],
+        { kind: 'multipole', order: 2 },
+      ),
+    );
+    const byPair = new Map(r.pairs.map((p) => [`${p.a}-${p.b}`, p]));
+    const hh = byPair.get('h1-h2')!;
+    const w = R / 2.5;
+    const J = (1 - Math.exp(-2 * w) * (1 + (11 * w) / 8 + (3 * w * w) / 4 + (w * w * w) / 6)) / R;
+    expect(hh.vModel).toBe('closed-form');
+    expect(hh.vEv).toBeCloseTo((1.439964547 / 11.7) * J, 12);
+    const hx = byPair.get('h1-x')!;
+    expect(hx.vModel).toBe('point-charge');
+    expect(hx.vEv).toBeCloseTo(1.439964547 / 11.7 / hx.distanceNm, 12);
+  });
 });
