@@ -124,6 +124,7 @@ export const MODEL_ASSUMPTIONS = [
   'Homogeneous host with the design\'s relative permittivity; no interfaces, gates or screening.',
   'Each site is a fixed, normalised model density (hydrogenic, anisotropic single-valley or Gaussian envelope); species defaults are model assumptions you can override.',
   'Bounds cover only the boundary condition (maximum principle); discretisation error and density cut by the boundary are reported separately.',
+  'Every site carries a like unit charge: for a boron acceptor (a hole) the sign of V with a donor electron is reversed, and its envelope is the donor one, a placeholder.',
   'All figures are estimates to be confirmed by your group\'s own validated methods before any fabrication or design decision.',
 ];
 

@@ -169,6 +169,7 @@ export const COULOMB_ASSUMPTIONS = [
   'Homogeneous host with the design\'s relative permittivity; no interfaces, gates or screening.',
   'Each site is a fixed, unit-normalised model density (hydrogenic, anisotropic single-valley or Gaussian envelope); U and V are the classical Coulomb integrals of these densities, without exchange or correlation.',
   'Error bars combine discretisation (Richardson on nested meshes), the boundary bound (maximum principle) and the density cut by the box; they are estimates, not guarantees.',
+  'Every site carries a like unit charge: for a boron acceptor (a hole) the sign of V with a donor electron is reversed, and its envelope is the donor one, a placeholder.',
   'All figures are estimates to be confirmed by your group\'s own validated methods before any fabrication or design decision.',
 ];
 
