@@ -5,7 +5,7 @@
  */
 import { z } from 'zod';
 import { capabilities, projectRoleSchema, siteRoleSchema } from './roles';
-import { designSchema } from './design';
+import { designSchema, siteSchema } from './design';
 
 // ---------- errors ----------
 export const errorCodeSchema = z.enum([
@@ -30,6 +30,8 @@ export const errorBodySchema = z.object({
     code: errorCodeSchema,
     message: z.string(),
     details: z.array(fieldIssueSchema).optional(),
+    /** on a 409 `stale_write` of a design: who saved the version that is now current, and when */
+    current: z.object({ version: z.number().int(), updatedAt: z.string(), updatedBy: z.string().nullable() }).optional(),
   }),
 });
 export type ErrorBody = z.infer<typeof errorBodySchema>;
@@ -138,6 +140,64 @@ export const invitationAcceptResponseSchema = z.object({ project: projectSchema 
 // ---------- design of a project ----------
 export const projectDesignSchema = z.object({ design: designSchema, version: z.number().int(), updatedAt: z.string() });
 export const projectDesignUpdateBodySchema = z.object({ design: designSchema, version: versionSchema });
+
+// ---------- designs (many per project, every save kept as a design version) ----------
+// Route and field names are a public contract (scripts outside the repository use them).
+export const designParamsSchema = z.object({ projectId: idSchema, designId: idSchema });
+export const designVersionParamsSchema = z.object({ projectId: idSchema, designId: idSchema, version: idSchema });
+/** The design's name; kept equal to the document's `name` (a PUT with `name` sets both). */
+export const designNameSchema = z.string().trim().min(1).max(200);
+
+export const designSummarySchema = z.object({
+  id: z.number().int(),
+  name: z.string(),
+  siteCount: z.number().int(),
+  version: z.number().int(),
+  updatedAt: z.string(),
+  /** display name of who saved last; null when unknown (account deleted, seeded rows) */
+  updatedBy: z.string().nullable(),
+  /** worst relative boundary bound (U or V) of the far-field check, computed at save; null with no sites */
+  worstRelBound: z.number().nullable(),
+});
+export type DesignSummary = z.infer<typeof designSummarySchema>;
+export const designListSchema = z.object({ designs: z.array(designSummarySchema) });
+
+export const designDetailSchema = z.object({
+  id: z.number().int(),
+  name: z.string(),
+  document: designSchema,
+  version: z.number().int(),
+  updatedAt: z.string(),
+  updatedBy: z.string().nullable(),
+});
+export type DesignDetail = z.infer<typeof designDetailSchema>;
+export const designResponseSchema = z.object({ design: designDetailSchema });
+
+/** `{ name, document? }` starts a design (an empty one without `document`); `{ name, copyOf }` duplicates one of the project. */
+export const designCreateBodySchema = z.union([
+  z.object({ name: designNameSchema, copyOf: idSchema }).strict(),
+  z.object({ name: designNameSchema, document: designSchema.optional() }).strict(),
+]);
+export const designUpdateBodySchema = z.object({ document: designSchema, version: versionSchema, name: designNameSchema.optional() });
+
+export const designVersionSummarySchema = z.object({
+  version: z.number().int(),
+  name: z.string(),
+  siteCount: z.number().int(),
+  /** sha256 (hex) of the canonical JSON of the document (keys sorted, no spaces) */
+  sha256: z.string(),
+  createdAt: z.string(),
+  createdBy: z.string().nullable(),
+});
+export const designVersionListSchema = z.object({ versions: z.array(designVersionSummarySchema) });
+export const designVersionResponseSchema = z.object({ version: designVersionSummarySchema.extend({ document: designSchema }) });
+
+/** Imports parse and validate a whole file and write nothing; `line` is 1-based in the uploaded file. */
+export const importErrorSchema = z.object({ line: z.number().int(), message: z.string() });
+export const designImportResponseSchema = z.object({ sites: z.array(siteSchema), errors: z.array(importErrorSchema) });
+export type DesignImportResponse = z.infer<typeof designImportResponseSchema>;
+export const designExportFormats = ['json', 'csv', 'xyz', 'placement'] as const;
+export const designExportQuerySchema = z.object({ format: z.enum(designExportFormats) });
 
 // ---------- audit ----------
 export const auditEntrySchema = z.object({
