@@ -225,3 +225,96 @@ export const capturedMailSchema = z.object({
 });
 export type CapturedMail = z.infer<typeof capturedMailSchema>;
 export const capturedMailListSchema = z.object({ messages: z.array(capturedMailSchema) });
+
+// ---------- jobs (meshes and solves run by workers from a queue) ----------
+// Route and field names are a public contract (scripts outside the repository use them).
+export const jobKinds = ['mesh', 'coulomb', 'convergence'] as const;
+export const jobKindSchema = z.enum(jobKinds);
+export type JobKind = z.infer<typeof jobKindSchema>;
+export const jobStates = ['queued', 'running', 'succeeded', 'failed', 'cancelled'] as const;
+export const jobStateSchema = z.enum(jobStates);
+export type JobState = z.infer<typeof jobStateSchema>;
+
+export const jobOptionsSchema = z
+  .object({
+    order: z.union([z.literal(1), z.literal(2)]).optional(),
+    adaptive: z.boolean().optional(),
+    sweep: z.enum(['refinement', 'box']).optional(),
+  })
+  .strict();
+export type JobOptions = z.infer<typeof jobOptionsSchema>;
+export const jobCreateBodySchema = z.object({ kind: jobKindSchema, options: jobOptionsSchema.default({}) }).strict();
+export const jobParamsSchema = z.object({ projectId: idSchema, jobId: idSchema });
+
+/** Structured progress: the phase (e.g. "estimate", "mesh", "assemble", "solve", "encode", "store"), optional level and site, and a fraction 0..1. */
+export const jobProgressSchema = z.object({
+  phase: z.string(),
+  fraction: z.number().min(0).max(1),
+  level: z.number().int().optional(),
+  site: z.string().optional(),
+});
+export type JobProgress = z.infer<typeof jobProgressSchema>;
+
+export const jobSchema = z.object({
+  id: z.number().int(),
+  kind: jobKindSchema,
+  designId: z.number().int(),
+  designVersion: z.number().int(),
+  options: jobOptionsSchema,
+  state: jobStateSchema,
+  progress: jobProgressSchema,
+  revisionId: z.number().int().nullable(),
+  /** why a failed job failed, in words */
+  error: z.string().nullable(),
+  /** true on the answer to a POST that found an existing revision for the same content and options */
+  reused: z.boolean().optional(),
+  createdAt: z.string(),
+  startedAt: z.string().nullable(),
+  finishedAt: z.string().nullable(),
+  createdBy: z.string().nullable(),
+});
+export type Job = z.infer<typeof jobSchema>;
+export const jobResponseSchema = z.object({ job: jobSchema });
+export const jobListSchema = z.object({ jobs: z.array(jobSchema) });
+
+// ---------- revisions (immutable results of finished jobs) ----------
+export const revisionParamsSchema = z.object({ projectId: idSchema, revisionId: idSchema });
+export const revisionFileNames = ['mesh.vtu', 'mesh.vtk', 'mesh.twmesh', 'results.json', 'results.csv'] as const;
+export const revisionFileParamsSchema = z.object({ projectId: idSchema, revisionId: idSchema, name: z.enum(revisionFileNames) });
+export const revisionSchema = z.object({
+  id: z.number().int(),
+  kind: jobKindSchema,
+  jobId: z.number().int().nullable(),
+  designId: z.number().int(),
+  designVersion: z.number().int(),
+  /** sha256 of the canonical JSON of the design version the job read */
+  designSha256: z.string(),
+  options: jobOptionsSchema,
+  /** package version and git commit (when known) of the software that computed it */
+  software: z.object({ version: z.string(), commit: z.string().nullable() }),
+  timings: z.record(z.string(), z.number()),
+  /** exactly the keys the CLI's --json prints for the same command */
+  summary: z.record(z.string(), z.unknown()),
+  /** files that can be downloaded from .../files/:name */
+  files: z.array(z.object({ name: z.enum(revisionFileNames), bytes: z.number().int(), contentType: z.string() })),
+  createdAt: z.string(),
+  createdBy: z.string().nullable(),
+});
+export type Revision = z.infer<typeof revisionSchema>;
+export const revisionResponseSchema = z.object({ revision: revisionSchema });
+export const revisionListSchema = z.object({ revisions: z.array(revisionSchema.omit({ summary: true })) });
+export const revisionListQuerySchema = z.object({ designId: idSchema.optional() });
+
+// ---------- personal API tokens ----------
+export const apiTokenCreateBodySchema = z.object({ name: z.string().trim().min(1).max(80) }).strict();
+export const apiTokenParamsSchema = z.object({ tokenId: idSchema });
+export const apiTokenSchema = z.object({
+  id: z.number().int(),
+  name: z.string(),
+  /** first characters of the token, to tell tokens apart; the token itself is shown once, at creation */
+  prefix: z.string(),
+  createdAt: z.string(),
+  lastUsedAt: z.string().nullable(),
+});
+export const apiTokenListSchema = z.object({ tokens: z.array(apiTokenSchema) });
+export const apiTokenCreatedSchema = z.object({ token: apiTokenSchema, secret: z.string() });
