@@ -72,7 +72,10 @@ export const designRoutes: RouteModule = (router, { services, access }) => {
   });
 
   router.post(base, access.requireCapability('design.edit'), async (req, res) => {
-    const body = parseOr422(designCreateBodySchema, req.body, 'design form');
+    // parse with the branch the body means, so field errors carry their paths (a failed union would not)
+    const [copyBranch, documentBranch] = designCreateBodySchema.options;
+    const isCopy = typeof req.body === 'object' && req.body !== null && 'copyOf' in req.body;
+    const body = parseOr422(isCopy ? copyBranch : documentBranch, req.body, 'design form');
     res.status(201).json({ design: await services.designs.create(projectAccess(res).projectId, body, currentUser(req).id) });
   });
 

@@ -111,6 +111,15 @@ describe('create', () => {
     expect(copy.document).toEqual({ ...src.document, name: 'Copy of original' });
   });
 
+  it('field errors of a create name their field (name, document path)', async () => {
+    const { owner, base } = await project('dz-bad');
+    const r = await owner.client.post(base, { name: '  ' });
+    expect(r.status).toBe(422);
+    expect(errorBodySchema.parse(r.body).error.details?.map((d) => d.path)).toEqual([['name']]);
+    const doc = await owner.client.post(base, { name: 'x', document: { ...twoDonors('x'), sites: [{ id: 'a', species: 'Kr', position: [0, 0, 0], electrons: 1 }] } });
+    expect(doc.body.error.details.map((d: { path: unknown[] }) => d.path.join('.'))).toEqual(['document.sites.0.species']);
+  });
+
   it('refuses a copy of a design of another project (422 on copyOf) and both shapes at once', async () => {
     const a = await project('dz-copyA');
     const b = await project('dz-copyB');
