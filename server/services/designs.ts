@@ -18,7 +18,7 @@ import { AppError, notFound, staleWrite } from './errors';
 import { recordAudit } from './audit';
 import type { ServiceDeps } from './context';
 import { computeFigures, figureComputer } from '../workers/designFigures';
-import { importSites, ImportRefused, writeCsv, writePlacement, writeXyz, type ImportIssue, type Site } from '../formats';
+import { ImportRefused, writeCsv, writePlacement, writeXyz, type ImportIssue, type Site } from '../formats';
 
 import { SI_EPSILON_R, SI_LATTICE_CONSTANT_NM } from '../../geometry/units';
 
@@ -186,7 +186,7 @@ export function designService(deps: ServiceDeps) {
     async importFile(projectId: number, designId: number, file: { bytes: Uint8Array; name: string }): Promise<{ sites: Site[]; errors: ImportIssue[] }> {
       const doc = storedDocument(await mustGet(projectId, designId));
       try {
-        const { sites, errors } = importSites(file.bytes, file.name, { enclosure: doc.enclosure, latticeConstantNm: doc.host.latticeConstantNm });
+        const { sites, errors } = await figures.importSites(file.bytes, file.name, { enclosure: doc.enclosure, latticeConstantNm: doc.host.latticeConstantNm });
         return { sites, errors };
       } catch (e) {
         if (e instanceof ImportRefused) throw new AppError('unprocessable', e.message);

@@ -5,6 +5,7 @@
 import { createHash } from 'node:crypto';
 import { afterAll, describe, expect, it } from 'vitest';
 import { computeFigures, figureComputer } from '../../server/workers/designFigures';
+import { importSites, ImportRefused, writeCsv } from '../../server/formats';
 import { emptyDesign } from '../../server/services/designs';
 import { generateArray } from '../../geometry/arrays';
 import { farFieldCheck } from '../../geometry/farfield';
@@ -21,7 +22,7 @@ function square(n: number): DesignDocument {
   return { ...emptyDesign(`Square ${n}×${n}`), sites, enclosure: { center: [0, 0, 0], halfExtentsNm: [half, half, 40], boundary: { kind: 'multipole', order: 2 } } };
 }
 
-const computer = figureComputer({ threshold: 1 });
+const computer = figureComputer({ threshold: 1, thresholdBytes: 0 });
 afterAll(async () => {
   await computer.close();
 });
@@ -36,6 +37,17 @@ describe('design figures', () => {
     expect(inPlace.worstRelBound).toBeGreaterThan(0);
     // FIPS 180-4 SHA-256 via node:crypto of canonical JSON built independently
     expect(inPlace.sha256).toBe(createHash('sha256').update(canonical(doc)).digest('hex'));
+  });
+
+  it('an import read in the worker equals the one read in place; a refusal comes back as ImportRefused', async () => {
+    const doc = square(12);
+    const ctx = { enclosure: doc.enclosure, latticeConstantNm: A };
+    const bytes = new TextEncoder().encode(`${writeCsv(doc.sites)}bad,P,x,0,0,1\n`);
+    const there = await computer.importSites(bytes, 'sq.csv', ctx);
+    expect(there).toEqual(importSites(bytes, 'sq.csv', ctx));
+    expect(there.sites).toEqual(doc.sites);
+    expect(there.errors).toEqual([{ line: doc.sites.length + 2, message: 'column x_nm holds "x", not a number' }]);
+    await expect(computer.importSites(new Uint8Array([0x61, 0, 0x62]), 'bin.csv', ctx)).rejects.toBeInstanceOf(ImportRefused);
   });
 
   it('no sites, or a site outside the box: no bound (null)', () => {
