@@ -25,7 +25,11 @@ import {
   memberSchema,
   meResponseSchema,
   okResponseSchema,
-  projectDesignSchema,
+  designListSchema,
+  designResponseSchema,
+  designVersionListSchema,
+  designVersionResponseSchema,
+  designImportResponseSchema,
   projectListSchema,
   projectSchema,
   signUpResponseSchema,
@@ -55,6 +59,8 @@ type Rule = { kind: 'public' } | { kind: 'user' } | { kind: 'project'; capabilit
 
 interface Fixture {
   projectId: number;
+  /** the project's starting design (version 1) */
+  designId: number;
   users: Record<ProjectRole | 'target' | 'host', { user: User; email: string }>;
   invitationId: number;
   /** an open invitation to the acting user's own address, into a project they are not in */
@@ -72,6 +78,8 @@ interface RouteCase {
   success: number;
   url(f: Fixture): string;
   body?(f: Fixture, c: TestClient): unknown | Promise<unknown>;
+  /** send this file as multipart/form-data field `file` instead of a JSON body */
+  file?: { name: string; content: string };
   /** extra set-up the case needs (kept out of the other cases) */
   needs?: { ownInvite?: boolean; reset?: boolean; openInvitation?: boolean; verify?: boolean };
   /** the contract the success body must match (server/contracts/api.ts) */
@@ -81,6 +89,7 @@ interface RouteCase {
 }
 
 const p = (f: Fixture) => `/api/projects/${f.projectId}`;
+const d = (f: Fixture) => `/api/projects/${f.projectId}/designs/${f.designId}`;
 
 const ROUTES: RouteCase[] = [
   { method: 'get', path: '/health', rule: { kind: 'public' }, success: 200, url: () => '/api/health', schema: healthSchema },
@@ -224,15 +233,58 @@ const ROUTES: RouteCase[] = [
     url: (f) => `/api/invitations/${f.ownInviteToken}/accept`,
     schema: invitationAcceptResponseSchema,
   },
-  { method: 'get', path: '/projects/:projectId/design', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: (f) => `${p(f)}/design`, schema: projectDesignSchema },
+  { method: 'get', path: '/projects/:projectId/designs', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: (f) => `${p(f)}/designs`, schema: designListSchema },
+  {
+    method: 'post',
+    path: '/projects/:projectId/designs',
+    rule: { kind: 'project', capability: 'design.edit' },
+    success: 201,
+    url: (f) => `${p(f)}/designs`,
+    body: () => ({ name: 'Matrix second design' }),
+    schema: designResponseSchema,
+  },
+  { method: 'get', path: '/projects/:projectId/designs/:designId', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: d, schema: designResponseSchema },
   {
     method: 'put',
-    path: '/projects/:projectId/design',
+    path: '/projects/:projectId/designs/:designId',
     rule: { kind: 'project', capability: 'design.edit' },
     success: 200,
-    url: (f) => `${p(f)}/design`,
-    body: () => ({ design: emptyDesign('Matrix design'), version: 1 }),
-    schema: projectDesignSchema,
+    url: d,
+    body: () => ({ document: emptyDesign('Matrix design'), version: 1 }),
+    schema: designResponseSchema,
+  },
+  { method: 'delete', path: '/projects/:projectId/designs/:designId', rule: { kind: 'project', capability: 'design.edit' }, success: 204, url: d },
+  {
+    method: 'get',
+    path: '/projects/:projectId/designs/:designId/versions',
+    rule: { kind: 'project', capability: 'project.read' },
+    success: 200,
+    url: (f) => `${d(f)}/versions`,
+    schema: designVersionListSchema,
+  },
+  {
+    method: 'get',
+    path: '/projects/:projectId/designs/:designId/versions/:version',
+    rule: { kind: 'project', capability: 'project.read' },
+    success: 200,
+    url: (f) => `${d(f)}/versions/1`,
+    schema: designVersionResponseSchema,
+  },
+  {
+    method: 'post',
+    path: '/projects/:projectId/designs/:designId/imports',
+    rule: { kind: 'project', capability: 'design.edit' },
+    success: 200,
+    url: (f) => `${d(f)}/imports`,
+    file: { name: 'two.csv', content: 'id,species,x_nm,y_nm,z_nm\na,P,0,0,0\nb,As,1.08620410,1.08620410,0\n' },
+    schema: designImportResponseSchema,
+  },
+  {
+    method: 'get',
+    path: '/projects/:projectId/designs/:designId/export',
+    rule: { kind: 'project', capability: 'project.export' },
+    success: 200,
+    url: (f) => `${d(f)}/export?format=placement`,
   },
   { method: 'get', path: '/projects/:projectId/audit', rule: { kind: 'project', capability: 'audit.read' }, success: 200, url: (f) => `${p(f)}/audit`, schema: auditListSchema },
   // the role users are ordinary site members, so the admin route refuses all of them
@@ -312,7 +364,8 @@ async function buildFixture(route: RouteCase, who: Who): Promise<Fixture> {
     expect((await env.client().post('/api/auth/sign-up', { email, password: TEST_PASSWORD, displayName: 'Matrix verify' })).status).toBe(202);
     verifyToken = linkToken((await waitForMail(env.knex, email, VERIFY_SUBJECT, { sinceId })).text, env.mailBase, 'verify');
   }
-  return { projectId, users: roleUsers, invitationId, ownInviteToken, resetToken, verifyToken };
+  const designId = (await env.knex('designs').where({ project_id: projectId }).first('id')).id as number;
+  return { projectId, designId, users: roleUsers, invitationId, ownInviteToken, resetToken, verifyToken };
 }
 
 describe('role-by-route matrix', () => {
@@ -323,7 +376,12 @@ describe('role-by-route matrix', () => {
         const f = await buildFixture(route, who);
         const c = await signedInClient(who);
         const body = route.body ? await route.body(f, c) : undefined;
-        const r = await c.request(route.method, route.url(f), body);
+        const r = route.file
+          ? await c.agent
+              .post(route.url(f))
+              .set('x-csrf-token', c.csrf ?? (await c.refreshCsrf()))
+              .attach('file', Buffer.from(route.file.content), route.file.name)
+          : await c.request(route.method, route.url(f), body);
         expect(r.status, JSON.stringify(r.body)).toBe(want);
         if (want >= 400) expect(r.body.error).toBeDefined();
         if (r.status === route.success && route.schema) route.schema.parse(r.body);

@@ -44,7 +44,7 @@ describe('migrations', () => {
     expect(await migrateLatestWith(knex)).toEqual(files);
     expect(await migrateLatestWith(knex)).toEqual([]);
     const tables = (await knex.raw(`select table_name from information_schema.tables where table_schema = ? order by 1`, [schema])).rows.map((r: { table_name: string }) => r.table_name);
-    for (const t of ['users', 'sessions', 'projects', 'memberships', 'invitations', 'password_resets', 'designs', 'audit_events', 'captured_mail']) expect(tables).toContain(t);
+    for (const t of ['users', 'sessions', 'projects', 'memberships', 'invitations', 'password_resets', 'designs', 'design_versions', 'audit_events', 'captured_mail']) expect(tables).toContain(t);
 
     await knex.migrate.rollback({ migrationSource: migrationSource() }, true);
     const after = (await knex.raw(`select count(*)::int as n from information_schema.tables where table_schema = ? and table_name = 'users'`, [schema])).rows[0].n;
@@ -74,7 +74,7 @@ describe('demo seed', () => {
   });
 
   it('stores a valid four-donor chain along [110], sites on diamond lattice points ~4.6 nm apart', async () => {
-    const doc = designSchema.parse((await knex('designs').first()).document);
+    const doc = designSchema.parse((await knex('designs').orderBy('id').first()).document);
     expect(doc.sites).toHaveLength(4);
     expect(doc.host.latticeConstantNm).toBe(A_SI);
     const q = A_SI / 4;
@@ -103,6 +103,35 @@ describe('demo seed', () => {
     }
   });
 
+  it('holds three designs: the four-donor chain, a six-donor chain in two versions and a 3 × 3 square at 8a', async () => {
+    const designs = await knex('designs').orderBy('id');
+    expect(designs.map((d) => [d.site_count, d.version])).toEqual([
+      [4, 1],
+      [6, 2],
+      [9, 1],
+    ]);
+    for (const d of designs) {
+      const doc = designSchema.parse(d.document);
+      expect(d.name).toBe(doc.name);
+      // every seeded design is inside its box, so the far-field check gives a finite bound
+      expect(d.worst_rel_bound).toBeGreaterThan(0);
+      expect(d.worst_rel_bound).toBeLessThan(1);
+    }
+    const chain = designSchema.parse(designs[1].document);
+    const gaps = chain.sites.slice(1).map((s, i) => Math.hypot(...s.position.map((x, k) => x - chain.sites[i].position[k])));
+    // snapping moves each site by at most the covering radius of the lattice, ≤ a/2 (that of its FCC
+    // sublattice alone: the octahedral hole; from memory), so each step is within a of 4 nm
+    for (const g of gaps) expect(Math.abs(g - 4)).toBeLessThan(A_SI);
+    const square = designSchema.parse(designs[2].document);
+    const xs = [...new Set(square.sites.map((s) => s.position[0].toFixed(9)))].map(Number).sort((a, b) => a - b);
+    expect(xs).toHaveLength(3);
+    expect(xs[1] - xs[0]).toBeCloseTo(8 * A_SI, 9);
+    const versions = await knex('design_versions').where({ design_id: designs[1].id }).orderBy('version');
+    expect(versions.map((v) => v.version)).toEqual([1, 2]);
+    expect(versions[0].document.enclosure.halfExtentsNm).toEqual([15, 15, 15]);
+    expect(versions[1].document.enclosure.halfExtentsNm).toEqual([30, 30, 30]);
+  });
+
   it('lets the printed demo account sign in to the real server', async () => {
     let server: RunningServer | null = null;
     try {
@@ -113,7 +142,9 @@ describe('demo seed', () => {
       const projects = (await c.get('/api/projects')).body.projects;
       expect(projects).toHaveLength(1);
       expect(projects[0].role).toBe('owner');
-      expect((await c.get(`/api/projects/${projects[0].id}/design`)).body.design.sites).toHaveLength(4);
+      const designs = (await c.get(`/api/projects/${projects[0].id}/designs`)).body.designs;
+      expect(designs.map((d: { siteCount: number }) => d.siteCount)).toEqual([4, 6, 9]);
+      expect((await c.get(`/api/projects/${projects[0].id}/designs/${designs[0].id}`)).body.design.document.sites).toHaveLength(4);
     } finally {
       await server?.stop();
     }
