@@ -22,6 +22,7 @@ import type { Logger, RateLimits, RateLimitRule } from './config';
 import type { Services } from './services';
 import { accessControl } from './http/access';
 import { apiNotFound, errorHandler, sendError } from './http/errors';
+import { refuseUnstorableText } from './http/wellFormed';
 import { routeModules } from './routes';
 import './http/types';
 
@@ -96,16 +97,10 @@ export function createApp(deps: AppDeps): Express {
       strictTransportSecurity: behindHttps ? { maxAge: 31_536_000, includeSubDomains: true } : false,
     }),
   );
-  app.use(
-    express.json({
-      limit: deps.bodyLimit,
-      // PostgreSQL text and jsonb cannot hold U+0000; refuse it at the door (400) rather than fail in the database (500)
-      reviver: (_key, value: unknown) => {
-        if (typeof value === 'string' && value.includes('\u0000')) throw new SyntaxError('NUL character in a string');
-        return value;
-      },
-    }),
-  );
+  app.use(express.json({ limit: deps.bodyLimit }));
+  // PostgreSQL text and jsonb cannot hold U+0000 or a lone surrogate: refuse them at the door (400 / 422 naming
+  // the field) rather than fail in the database (500) or be changed silently (jsonb stores U+FFFD)
+  app.use(refuseUnstorableText);
 
   app.use(
     session({
@@ -141,6 +136,12 @@ export function createApp(deps: AppDeps): Express {
   });
 
   const api = express.Router();
+  // API answers hold account and project data: no browser or proxy cache may keep them (OWASP Session
+  // Management cheat sheet, "Web content caching")
+  api.use((_req, res, next) => {
+    res.setHeader('Cache-Control', 'no-store');
+    next();
+  });
   api.use(csrfSynchronisedProtection);
   const routeDeps = {
     services,

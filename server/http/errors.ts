@@ -19,6 +19,7 @@ export const STATUS_BY_CODE: Record<ErrorCode, number> = {
   stale_write: 409,
   rate_limited: 429,
   payload_too_large: 413,
+  unavailable: 503,
   internal: 500,
 };
 
