@@ -16,7 +16,7 @@ import session, { type Store } from 'express-session';
 import passport from 'passport';
 import { Strategy as LocalStrategy } from 'passport-local';
 import { csrfSync } from 'csrf-sync';
-import { rateLimit } from 'express-rate-limit';
+import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
 import type { User } from '@contracts/api';
 import type { Logger, RateLimits, RateLimitRule } from './config';
 import type { Services } from './services';
@@ -48,16 +48,38 @@ export interface ApiRoute {
 
 export const SESSION_COOKIE = 'tetrawell.sid';
 
-function limiter(rule: RateLimitRule, what: string): RequestHandler {
+function limiter(
+  rule: RateLimitRule,
+  what: string,
+  opts: { failuresOnly?: boolean; keyGenerator?: (req: express.Request) => string; message?: string } = {},
+): RequestHandler {
   return rateLimit({
     windowMs: rule.windowMs,
     limit: rule.limit,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
+    // answers below 400 give their slot back: only failures count
+    skipSuccessfulRequests: opts.failuresOnly ?? false,
+    ...(opts.keyGenerator ? { keyGenerator: opts.keyGenerator } : {}),
     handler: (_req, res) => {
-      sendError(res, 'rate_limited', `Too many ${what} attempts from this address. Wait a few minutes, then try again.`);
+      sendError(res, 'rate_limited', opts.message ?? `Too many ${what} attempts from this address. Wait a few minutes, then try again.`);
     },
   });
+}
+
+/** Both handlers in turn (the second only when the first let the request through). */
+function both(a: RequestHandler, b: RequestHandler): RequestHandler {
+  return (req, res, next) => {
+    void a(req, res, (err?: unknown) => (err ? next(err) : void b(req, res, next)));
+  };
+}
+
+/** Sign-in limits key on the account typed and the client address together (issue 8, item 4). */
+function accountAndAddress(req: express.Request): string {
+  const body = req.body as { email?: unknown } | undefined;
+  const email = typeof body?.email === 'string' ? body.email.trim().toLowerCase() : '';
+  // ipKeyGenerator groups an IPv6 client's /56, as express-rate-limit's default key does
+  return `${ipKeyGenerator(req.ip ?? '')}|${email}`;
 }
 
 /** The (method, path) pairs registered on the API router: lets tests prove they cover every route. */
@@ -152,7 +174,17 @@ export function createApp(deps: AppDeps): Express {
       }),
     generateCsrfToken: (req: express.Request, overwrite?: boolean) => generateToken(req, overwrite),
     limiters: {
-      signIn: limiter(deps.rateLimits.signIn, 'sign-in'),
+      signIn: both(
+        limiter(deps.rateLimits.signInAddress, 'sign-in', {
+          failuresOnly: true,
+          message: 'Too many failed sign-ins from this address. Wait a few minutes, then try again.',
+        }),
+        limiter(deps.rateLimits.signIn, 'sign-in', {
+          failuresOnly: true,
+          keyGenerator: accountAndAddress,
+          message: 'Too many failed sign-ins for this account from this address. Wait a few minutes, or reset the password.',
+        }),
+      ),
       signUp: limiter(deps.rateLimits.signUp, 'sign-up'),
       passwordReset: limiter(deps.rateLimits.passwordReset, 'password-reset'),
       verifyEmail: limiter(deps.rateLimits.verifyEmail, 'confirmation'),

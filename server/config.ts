@@ -29,12 +29,18 @@ export interface SmtpConfig {
 
 export interface RateLimitRule {
   windowMs: number;
-  /** requests per window per client address */
+  /** requests per window per key (the client address unless the rule says otherwise) */
   limit: number;
 }
 
 export interface RateLimits {
+  /**
+   * failed sign-ins per account (the e-mail typed) and client address: one person's typos lock out only that
+   * account from that address, never colleagues behind the same address; successful sign-ins do not count
+   */
   signIn: RateLimitRule;
+  /** failed sign-ins per client address over all accounts: a looser ceiling against password spraying */
+  signInAddress: RateLimitRule;
   signUp: RateLimitRule;
   /** password-reset requests: each one may send an e-mail */
   passwordReset: RateLimitRule;
@@ -90,7 +96,8 @@ export interface ResolvedConfig {
 
 // Defaults: common practice for a small internal tool, not from a standard.
 export const DEFAULT_RATE_LIMITS: RateLimits = {
-  signIn: { windowMs: 15 * 60_000, limit: 20 },
+  signIn: { windowMs: 15 * 60_000, limit: 10 },
+  signInAddress: { windowMs: 15 * 60_000, limit: 100 },
   signUp: { windowMs: 60 * 60_000, limit: 20 },
   passwordReset: { windowMs: 60 * 60_000, limit: 10 },
   verifyEmail: { windowMs: 15 * 60_000, limit: 20 },
@@ -101,6 +108,7 @@ export const DEFAULT_RATE_LIMITS: RateLimits = {
 export interface RateLimitEnv {
   NODE_ENV?: string;
   TETRAWELL_RATE_LIMIT_SIGN_IN?: number;
+  TETRAWELL_RATE_LIMIT_SIGN_IN_ADDRESS?: number;
   TETRAWELL_RATE_LIMIT_SIGN_UP?: number;
   TETRAWELL_RATE_LIMIT_RESET?: number;
   TETRAWELL_RATE_LIMIT_VERIFY?: number;
@@ -117,6 +125,7 @@ export function rateLimitsFromEnv(env: RateLimitEnv): RateLimits {
   });
   return {
     signIn: rule('signIn', env.TETRAWELL_RATE_LIMIT_SIGN_IN),
+    signInAddress: rule('signInAddress', env.TETRAWELL_RATE_LIMIT_SIGN_IN_ADDRESS),
     signUp: rule('signUp', env.TETRAWELL_RATE_LIMIT_SIGN_UP),
     passwordReset: rule('passwordReset', env.TETRAWELL_RATE_LIMIT_RESET),
     verifyEmail: rule('verifyEmail', env.TETRAWELL_RATE_LIMIT_VERIFY),
