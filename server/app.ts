@@ -30,7 +30,10 @@ export interface AppDeps {
   services: Services;
   sessionStore: Store;
   sessionSecret: string;
+  /** lifetime of a signed-in session (cookie and stored row), counted from sign-in */
   sessionMaxAgeMs: number;
+  /** lifetime of a session that holds only a CSRF secret (nobody signed in): short, so loops of anonymous requests leave little behind */
+  anonymousSessionMaxAgeMs: number;
   cookieSecure: boolean | 'auto';
   trustProxy: boolean | number | string;
   rateLimits: RateLimits;
@@ -149,6 +152,16 @@ export function createApp(deps: AppDeps): Express {
   });
   app.use(pass.initialize());
   app.use(pass.session());
+  // Nobody signed in: the session, if it is stored at all (saveUninitialized: false; csrf-sync keeps its secret in
+  // it), lives `anonymousSessionMaxAgeMs`. Sign-in regenerates the session, which brings back the full lifetime.
+  // originalMaxAge too: express-session resets maxAge to it before saving.
+  app.use((req, _res, next) => {
+    if (!req.user && req.session) {
+      req.session.cookie.originalMaxAge = deps.anonymousSessionMaxAgeMs;
+      req.session.cookie.maxAge = deps.anonymousSessionMaxAgeMs;
+    }
+    next();
+  });
 
   const { generateToken, csrfSynchronisedProtection } = csrfSync({
     getTokenFromRequest: (req) => {

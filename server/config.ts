@@ -81,8 +81,12 @@ export interface ServerOptions {
   passwordResetTtlMinutes?: number;
   /** how long a sign-up confirmation link works */
   emailVerificationTtlHours?: number;
-  /** session lifetime */
+  /** lifetime of a signed-in session, from sign-in (7 days) */
   sessionMaxAgeMs?: number;
+  /** lifetime of a session nobody has signed in to (it holds only the CSRF secret): 1 hour */
+  anonymousSessionMaxAgeMs?: number;
+  /** how often expired session rows are deleted (5 minutes) */
+  sessionPruneIntervalSeconds?: number;
 }
 
 export interface ResolvedConfig {
