@@ -36,7 +36,12 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   const logger = opts.logger ?? consoleLogger;
   const host = opts.host ?? '127.0.0.1';
   const knex = createKnex(opts.databaseUrl, { logger });
-  const sessionPool = new pg.Pool({ connectionString: opts.databaseUrl, max: 5 });
+  // Every pool needs an 'error' listener: when PostgreSQL stops (pg_ctl -m fast sends 57P01 to every backend) an
+  // idle client emits 'error', and an EventEmitter without a listener throws, which ended the process
+  // (issue 8, item 1). The pool drops that client and connects afresh once the database is back. Knex's pool
+  // listens on its own connections already (dialects/postgres: connection.on('error')).
+  const sessionPool = new pg.Pool({ connectionString: opts.databaseUrl, max: 5, connectionTimeoutMillis: 5_000 });
+  sessionPool.on('error', (err) => logger.warn('session store: an idle database connection ended:', err.message));
   const PgStore = connectPgSimple(session);
   const sessionStore = new PgStore({
     pool: sessionPool,
