@@ -23,6 +23,8 @@ import type { Services } from './services';
 import { accessControl } from './http/access';
 import { apiNotFound, errorHandler, sendError } from './http/errors';
 import { refuseUnstorableText } from './http/wellFormed';
+import { jsonBodies, parseByteSize } from './http/bodies';
+import type { DesignBodyReader } from './http/designBody';
 import { routeModules } from './routes';
 import './http/types';
 
@@ -39,7 +41,11 @@ export interface AppDeps {
   rateLimits: RateLimits;
   /** folder holding the built client's index.html, or null */
   staticDir: string | null;
+  /** largest JSON body, taken by design saves only; other routes take at most min(this, 1 MB) */
   bodyLimit: string;
+  /** design bodies larger than this are parsed and validated in a worker thread */
+  offThreadBodyBytes: number;
+  designBodies: DesignBodyReader;
   logger: Logger;
 }
 
@@ -122,7 +128,7 @@ export function createApp(deps: AppDeps): Express {
       strictTransportSecurity: behindHttps ? { maxAge: 31_536_000, includeSubDomains: true } : false,
     }),
   );
-  app.use(express.json({ limit: deps.bodyLimit }));
+  app.use(jsonBodies({ designLimit: parseByteSize(deps.bodyLimit), offThreadBytes: deps.offThreadBodyBytes }));
   // PostgreSQL text and jsonb cannot hold U+0000 or a lone surrogate: refuse them at the door (400 / 422 naming
   // the field) rather than fail in the database (500) or be changed silently (jsonb stores U+FFFD)
   app.use(refuseUnstorableText);
@@ -180,6 +186,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(csrfSynchronisedProtection);
   const routeDeps = {
     services,
+    designBodies: deps.designBodies,
     access: accessControl(services),
     authenticateLocal: (req: express.Request, res: express.Response) =>
       new Promise<User | false>((resolve, reject) => {

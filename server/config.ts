@@ -73,8 +73,10 @@ export interface ServerOptions {
   /** folder of the built client; null disables static serving; default dist/app */
   staticDir?: string | null;
   logger?: Logger;
-  /** JSON body size limit (express.json syntax) */
+  /** largest JSON body (express.json syntax), taken by design saves; other routes take at most min(this, 1 MB) */
   bodyLimit?: string;
+  /** design bodies above this many bytes are parsed and validated in a worker thread (256 KiB) */
+  offThreadBodyBytes?: number;
   /** bcrypt cost factor; 12 by default (OWASP password storage guidance recommends ≥10; common practice) */
   bcryptRounds?: number;
   invitationTtlHours?: number;
@@ -88,6 +90,12 @@ export interface ServerOptions {
   /** how often expired session rows are deleted (5 minutes) */
   sessionPruneIntervalSeconds?: number;
 }
+
+/**
+ * Sized for MAX_SITES (100,000) sites: such a document with every optional field at typical lengths is ~17 MB of
+ * compact JSON (measured by tests/bench/load.bench.ts); 40 MB leaves room for long ids and labels.
+ */
+export const DEFAULT_BODY_LIMIT = '40mb';
 
 export interface ResolvedConfig {
   publicUrl: string;

@@ -16,7 +16,8 @@ import { createKnex } from './db/config';
 import { createMailer } from './mail/mailer';
 import { createServices, type Services } from './services';
 import { createApp } from './app';
-import { consoleLogger, DEFAULT_RATE_LIMITS, type ServerOptions } from './config';
+import { createDesignBodyReader } from './http/designBody';
+import { consoleLogger, DEFAULT_BODY_LIMIT, DEFAULT_RATE_LIMITS, type ServerOptions } from './config';
 
 export type { ServerOptions } from './config';
 
@@ -73,6 +74,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   const mailer = createMailer(opts.smtp, config.mailFrom, logger);
   const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() });
 
+  const designBodies = createDesignBodyReader();
   const app = createApp({
     services,
     sessionStore,
@@ -83,7 +85,9 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     trustProxy: opts.trustProxy ?? false,
     rateLimits: { ...DEFAULT_RATE_LIMITS, ...opts.rateLimits },
     staticDir: opts.staticDir === undefined ? DEFAULT_STATIC_DIR : opts.staticDir,
-    bodyLimit: opts.bodyLimit ?? '5mb',
+    bodyLimit: opts.bodyLimit ?? DEFAULT_BODY_LIMIT,
+    offThreadBodyBytes: opts.offThreadBodyBytes ?? 256 * 1024,
+    designBodies,
     logger,
   });
 
@@ -98,7 +102,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     });
   } catch (err) {
     sessionStore.close();
-    await Promise.allSettled([knex.destroy(), sessionPool.end()]);
+    await Promise.allSettled([knex.destroy(), sessionPool.end(), designBodies.destroy()]);
     mailer.close();
     throw err;
   }
@@ -119,7 +123,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
       });
       sessionStore.close();
       mailer.close();
-      await Promise.allSettled([knex.destroy(), sessionPool.end()]);
+      await Promise.allSettled([knex.destroy(), sessionPool.end(), designBodies.destroy()]);
     })());
 
   return { url, port, app, knex, services, stop };

@@ -12,6 +12,7 @@
  */
 import type { RequestHandler } from 'express';
 import { sendError } from './errors';
+import type { FieldIssue } from '../services/errors';
 
 export interface TextProblem {
   path: (string | number)[];
@@ -65,23 +66,28 @@ const MESSAGE: Record<TextProblem['kind'], string> = {
   nul: 'holds a NUL character, which the server does not store.',
 };
 
+/** The answer for found problems: 400 for NUL, 422 naming the fields for lone surrogates (shared with the worker). */
+export function textProblemsAnswer(problems: TextProblem[]): { code: 'bad_request' | 'validation_failed'; message: string; details?: FieldIssue[] } {
+  if (problems.some((p) => p.kind === 'nul')) {
+    return { code: 'bad_request', message: 'The request body is not valid JSON (or holds a NUL character, which the server does not store).' };
+  }
+  return {
+    code: 'validation_failed',
+    message: 'Some text holds a broken character (a lone UTF-16 surrogate) and was not saved.',
+    details: problems.map((p) => ({ path: p.path, message: `This text ${MESSAGE[p.kind]}` })),
+  };
+}
+
 /** After body parsing: 400 for NUL, 422 naming the fields for lone surrogates; otherwise on to the routes. */
 export const refuseUnstorableText: RequestHandler = (req, res, next) => {
   const problems = [
-    ...findTextProblems(req.body),
+    // a Buffer is a large body kept raw for an off-thread parser, which checks it there
+    ...(Buffer.isBuffer(req.body) ? [] : findTextProblems(req.body)),
     ...findTextProblems(req.query, ['query']),
     // route parameters need no walk: Express decodes them as UTF-8, and the UTF-8 form of a lone surrogate
     // (%ED%A0%80) is invalid, so such a path is refused with 400 before any route runs
   ];
   if (problems.length === 0) return next();
-  if (problems.some((p) => p.kind === 'nul')) {
-    sendError(res, 'bad_request', 'The request body is not valid JSON (or holds a NUL character, which the server does not store).');
-    return;
-  }
-  sendError(
-    res,
-    'validation_failed',
-    'Some text holds a broken character (a lone UTF-16 surrogate) and was not saved.',
-    problems.map((p) => ({ path: p.path, message: `This text ${MESSAGE[p.kind]}` })),
-  );
+  const a = textProblemsAnswer(problems);
+  sendError(res, a.code, a.message, a.details);
 };

@@ -29,13 +29,21 @@ export function designsRepo(db: Db) {
         .returning('*');
       return toDesign(r as DesignRow);
     },
-    /** null when `version` is stale */
-    async update(projectId: number, document: DesignDocument, version: number, userId: number): Promise<DesignRecord | null> {
+    /** does the project have its design row? (reads no document: a big one costs a long parse) */
+    async exists(projectId: number): Promise<boolean> {
+      return (await db('designs').where({ project_id: projectId }).first('project_id')) != null;
+    },
+    /**
+     * null when `version` is stale. `document` may be JSON text already (validated off the request thread);
+     * the answer carries no document, so a large one is not read back and parsed on the request thread.
+     */
+    async update(projectId: number, document: DesignDocument | { json: string }, version: number, userId: number): Promise<{ version: number; updatedAt: string } | null> {
+      const json = 'json' in document && typeof document.json === 'string' ? document.json : JSON.stringify(document);
       const [r] = await db('designs')
         .where({ project_id: projectId, version })
-        .update({ document: JSON.stringify(document), version: db.raw('version + 1'), updated_by: userId, updated_at: db.fn.now() })
-        .returning('*');
-      return r ? toDesign(r as DesignRow) : null;
+        .update({ document: json, version: db.raw('version + 1'), updated_by: userId, updated_at: db.fn.now() } as never)
+        .returning(['version', 'updated_at']);
+      return r ? { version: (r as DesignRow).version, updatedAt: iso((r as DesignRow).updated_at) } : null;
     },
   };
 }

@@ -35,6 +35,33 @@ export interface ProjectDesign {
 }
 
 export function designService(deps: ServiceDeps) {
+  /**
+   * The save itself, for a document validated already: either the object, or its JSON text as the off-thread
+   * validator (server/http/designBody.ts) returns it for large documents, so the request thread never builds or
+   * serialises a 100,000-site object.
+   */
+  async function putValidated(
+    projectId: number,
+    doc: { document: DesignDocument | { json: string }; name: string; siteCount: number },
+    version: number,
+    userId: number,
+  ): Promise<{ version: number; updatedAt: string }> {
+    return deps.db.transaction(async (trx) => {
+      const designs = designsRepo(trx);
+      if (!(await designs.exists(projectId))) await designs.insert(projectId, emptyDesign(doc.name), userId);
+      const rec = await designs.update(projectId, doc.document, version, userId);
+      if (!rec) throw staleWrite('The design');
+      await projectsRepo(trx).touch(projectId);
+      await recordAudit(trx, {
+        projectId,
+        actorId: userId,
+        action: 'design.update',
+        detail: { version: rec.version, sites: doc.siteCount, name: doc.name },
+      });
+      return rec;
+    });
+  }
+
   return {
     /** create the starting design inside the project-creation transaction */
     async createFor(trx: Db, projectId: number, name: string, userId: number): Promise<void> {
@@ -54,21 +81,11 @@ export function designService(deps: ServiceDeps) {
     },
 
     async put(projectId: number, design: DesignDocument, version: number, userId: number): Promise<ProjectDesign> {
-      return deps.db.transaction(async (trx) => {
-        const designs = designsRepo(trx);
-        if (!(await designs.get(projectId))) await designs.insert(projectId, emptyDesign(design.name), userId);
-        const rec = await designs.update(projectId, design, version, userId);
-        if (!rec) throw staleWrite('The design');
-        await projectsRepo(trx).touch(projectId);
-        await recordAudit(trx, {
-          projectId,
-          actorId: userId,
-          action: 'design.update',
-          detail: { version: rec.version, sites: design.sites.length, name: design.name },
-        });
-        return { design, version: rec.version, updatedAt: rec.updatedAt };
-      });
+      const saved = await putValidated(projectId, { document: design, name: design.name, siteCount: design.sites.length }, version, userId);
+      return { design, ...saved };
     },
+
+    putValidated,
   };
 }
 export type DesignService = ReturnType<typeof designService>;
