@@ -106,6 +106,9 @@ export function createApp(deps: AppDeps): Express {
   const { services, logger } = deps;
   const app = express();
   app.disable('x-powered-by');
+  // API answers are no-store (nothing may revalidate them), so Express's ETag, a SHA-1 over every JSON body on the
+  // request thread, only cost time (tens of ms for a large design); express.static keeps its own validators
+  app.set('etag', false);
   app.set('trust proxy', deps.trustProxy);
 
   const behindHttps = deps.cookieSecure === true || deps.trustProxy !== false;
