@@ -16,12 +16,15 @@ import session, { type Store } from 'express-session';
 import passport from 'passport';
 import { Strategy as LocalStrategy } from 'passport-local';
 import { csrfSync } from 'csrf-sync';
-import { rateLimit } from 'express-rate-limit';
+import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
 import type { User } from '@contracts/api';
 import type { Logger, RateLimits, RateLimitRule } from './config';
 import type { Services } from './services';
 import { accessControl } from './http/access';
 import { apiNotFound, errorHandler, sendError } from './http/errors';
+import { refuseUnstorableText } from './http/wellFormed';
+import { jsonBodies, parseByteSize } from './http/bodies';
+import type { DesignBodyReader } from './http/designBody';
 import { routeModules } from './routes';
 import './http/types';
 
@@ -29,13 +32,20 @@ export interface AppDeps {
   services: Services;
   sessionStore: Store;
   sessionSecret: string;
+  /** lifetime of a signed-in session (cookie and stored row), counted from sign-in */
   sessionMaxAgeMs: number;
+  /** lifetime of a session that holds only a CSRF secret (nobody signed in): short, so loops of anonymous requests leave little behind */
+  anonymousSessionMaxAgeMs: number;
   cookieSecure: boolean | 'auto';
   trustProxy: boolean | number | string;
   rateLimits: RateLimits;
   /** folder holding the built client's index.html, or null */
   staticDir: string | null;
+  /** largest JSON body, taken by design saves only; other routes take at most min(this, 1 MB) */
   bodyLimit: string;
+  /** design bodies larger than this are parsed and validated in a worker thread */
+  offThreadBodyBytes: number;
+  designBodies: DesignBodyReader;
   logger: Logger;
 }
 
@@ -47,16 +57,38 @@ export interface ApiRoute {
 
 export const SESSION_COOKIE = 'tetrawell.sid';
 
-function limiter(rule: RateLimitRule, what: string): RequestHandler {
+function limiter(
+  rule: RateLimitRule,
+  what: string,
+  opts: { failuresOnly?: boolean; keyGenerator?: (req: express.Request) => string; message?: string } = {},
+): RequestHandler {
   return rateLimit({
     windowMs: rule.windowMs,
     limit: rule.limit,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
+    // answers below 400 give their slot back: only failures count
+    skipSuccessfulRequests: opts.failuresOnly ?? false,
+    ...(opts.keyGenerator ? { keyGenerator: opts.keyGenerator } : {}),
     handler: (_req, res) => {
-      sendError(res, 'rate_limited', `Too many ${what} attempts from this address. Wait a few minutes, then try again.`);
+      sendError(res, 'rate_limited', opts.message ?? `Too many ${what} attempts from this address. Wait a few minutes, then try again.`);
     },
   });
+}
+
+/** Both handlers in turn (the second only when the first let the request through). */
+function both(a: RequestHandler, b: RequestHandler): RequestHandler {
+  return (req, res, next) => {
+    void a(req, res, (err?: unknown) => (err ? next(err) : void b(req, res, next)));
+  };
+}
+
+/** Sign-in limits key on the account typed and the client address together (issue 8, item 4). */
+function accountAndAddress(req: express.Request): string {
+  const body = req.body as { email?: unknown } | undefined;
+  const email = typeof body?.email === 'string' ? body.email.trim().toLowerCase() : '';
+  // ipKeyGenerator groups an IPv6 client's /56, as express-rate-limit's default key does
+  return `${ipKeyGenerator(req.ip ?? '')}|${email}`;
 }
 
 /** The (method, path) pairs registered on the API router: lets tests prove they cover every route. */
@@ -74,6 +106,9 @@ export function createApp(deps: AppDeps): Express {
   const { services, logger } = deps;
   const app = express();
   app.disable('x-powered-by');
+  // API answers are no-store (nothing may revalidate them), so Express's ETag, a SHA-1 over every JSON body on the
+  // request thread, only cost time (tens of ms for a large design); express.static keeps its own validators
+  app.set('etag', false);
   app.set('trust proxy', deps.trustProxy);
 
   const behindHttps = deps.cookieSecure === true || deps.trustProxy !== false;
@@ -96,16 +131,10 @@ export function createApp(deps: AppDeps): Express {
       strictTransportSecurity: behindHttps ? { maxAge: 31_536_000, includeSubDomains: true } : false,
     }),
   );
-  app.use(
-    express.json({
-      limit: deps.bodyLimit,
-      // PostgreSQL text and jsonb cannot hold U+0000; refuse it at the door (400) rather than fail in the database (500)
-      reviver: (_key, value: unknown) => {
-        if (typeof value === 'string' && value.includes('\u0000')) throw new SyntaxError('NUL character in a string');
-        return value;
-      },
-    }),
-  );
+  app.use(jsonBodies({ designLimit: parseByteSize(deps.bodyLimit), offThreadBytes: deps.offThreadBodyBytes }));
+  // PostgreSQL text and jsonb cannot hold U+0000 or a lone surrogate: refuse them at the door (400 / 422 naming
+  // the field) rather than fail in the database (500) or be changed silently (jsonb stores U+FFFD)
+  app.use(refuseUnstorableText);
 
   app.use(
     session({
@@ -132,6 +161,16 @@ export function createApp(deps: AppDeps): Express {
   });
   app.use(pass.initialize());
   app.use(pass.session());
+  // Nobody signed in: the session, if it is stored at all (saveUninitialized: false; csrf-sync keeps its secret in
+  // it), lives `anonymousSessionMaxAgeMs`. Sign-in regenerates the session, which brings back the full lifetime.
+  // originalMaxAge too: express-session resets maxAge to it before saving.
+  app.use((req, _res, next) => {
+    if (!req.user && req.session) {
+      req.session.cookie.originalMaxAge = deps.anonymousSessionMaxAgeMs;
+      req.session.cookie.maxAge = deps.anonymousSessionMaxAgeMs;
+    }
+    next();
+  });
 
   const { generateToken, csrfSynchronisedProtection } = csrfSync({
     getTokenFromRequest: (req) => {
@@ -141,9 +180,16 @@ export function createApp(deps: AppDeps): Express {
   });
 
   const api = express.Router();
+  // API answers hold account and project data: no browser or proxy cache may keep them (OWASP Session
+  // Management cheat sheet, "Web content caching")
+  api.use((_req, res, next) => {
+    res.setHeader('Cache-Control', 'no-store');
+    next();
+  });
   api.use(csrfSynchronisedProtection);
   const routeDeps = {
     services,
+    designBodies: deps.designBodies,
     access: accessControl(services),
     authenticateLocal: (req: express.Request, res: express.Response) =>
       new Promise<User | false>((resolve, reject) => {
@@ -151,7 +197,17 @@ export function createApp(deps: AppDeps): Express {
       }),
     generateCsrfToken: (req: express.Request, overwrite?: boolean) => generateToken(req, overwrite),
     limiters: {
-      signIn: limiter(deps.rateLimits.signIn, 'sign-in'),
+      signIn: both(
+        limiter(deps.rateLimits.signInAddress, 'sign-in', {
+          failuresOnly: true,
+          message: 'Too many failed sign-ins from this address. Wait a few minutes, then try again.',
+        }),
+        limiter(deps.rateLimits.signIn, 'sign-in', {
+          failuresOnly: true,
+          keyGenerator: accountAndAddress,
+          message: 'Too many failed sign-ins for this account from this address. Wait a few minutes, or reset the password.',
+        }),
+      ),
       signUp: limiter(deps.rateLimits.signUp, 'sign-up'),
       passwordReset: limiter(deps.rateLimits.passwordReset, 'password-reset'),
       verifyEmail: limiter(deps.rateLimits.verifyEmail, 'confirmation'),

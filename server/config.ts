@@ -29,12 +29,18 @@ export interface SmtpConfig {
 
 export interface RateLimitRule {
   windowMs: number;
-  /** requests per window per client address */
+  /** requests per window per key (the client address unless the rule says otherwise) */
   limit: number;
 }
 
 export interface RateLimits {
+  /**
+   * failed sign-ins per account (the e-mail typed) and client address: one person's typos lock out only that
+   * account from that address, never colleagues behind the same address; successful sign-ins do not count
+   */
   signIn: RateLimitRule;
+  /** failed sign-ins per client address over all accounts: a looser ceiling against password spraying */
+  signInAddress: RateLimitRule;
   signUp: RateLimitRule;
   /** password-reset requests: each one may send an e-mail */
   passwordReset: RateLimitRule;
@@ -67,17 +73,29 @@ export interface ServerOptions {
   /** folder of the built client; null disables static serving; default dist/app */
   staticDir?: string | null;
   logger?: Logger;
-  /** JSON body size limit (express.json syntax) */
+  /** largest JSON body (express.json syntax), taken by design saves; other routes take at most min(this, 1 MB) */
   bodyLimit?: string;
+  /** design bodies above this many bytes are parsed and validated in a worker thread (256 KiB) */
+  offThreadBodyBytes?: number;
   /** bcrypt cost factor; 12 by default (OWASP password storage guidance recommends ≥10; common practice) */
   bcryptRounds?: number;
   invitationTtlHours?: number;
   passwordResetTtlMinutes?: number;
   /** how long a sign-up confirmation link works */
   emailVerificationTtlHours?: number;
-  /** session lifetime */
+  /** lifetime of a signed-in session, from sign-in (7 days) */
   sessionMaxAgeMs?: number;
+  /** lifetime of a session nobody has signed in to (it holds only the CSRF secret): 1 hour */
+  anonymousSessionMaxAgeMs?: number;
+  /** how often expired session rows are deleted (5 minutes) */
+  sessionPruneIntervalSeconds?: number;
 }
+
+/**
+ * Sized for MAX_SITES (100,000) sites: such a document with every optional field at typical lengths is ~17 MB of
+ * compact JSON (measured by tests/bench/load.bench.ts); 40 MB leaves room for long ids and labels.
+ */
+export const DEFAULT_BODY_LIMIT = '40mb';
 
 export interface ResolvedConfig {
   publicUrl: string;
@@ -90,7 +108,8 @@ export interface ResolvedConfig {
 
 // Defaults: common practice for a small internal tool, not from a standard.
 export const DEFAULT_RATE_LIMITS: RateLimits = {
-  signIn: { windowMs: 15 * 60_000, limit: 20 },
+  signIn: { windowMs: 15 * 60_000, limit: 10 },
+  signInAddress: { windowMs: 15 * 60_000, limit: 100 },
   signUp: { windowMs: 60 * 60_000, limit: 20 },
   passwordReset: { windowMs: 60 * 60_000, limit: 10 },
   verifyEmail: { windowMs: 15 * 60_000, limit: 20 },
@@ -101,6 +120,7 @@ export const DEFAULT_RATE_LIMITS: RateLimits = {
 export interface RateLimitEnv {
   NODE_ENV?: string;
   TETRAWELL_RATE_LIMIT_SIGN_IN?: number;
+  TETRAWELL_RATE_LIMIT_SIGN_IN_ADDRESS?: number;
   TETRAWELL_RATE_LIMIT_SIGN_UP?: number;
   TETRAWELL_RATE_LIMIT_RESET?: number;
   TETRAWELL_RATE_LIMIT_VERIFY?: number;
@@ -117,6 +137,7 @@ export function rateLimitsFromEnv(env: RateLimitEnv): RateLimits {
   });
   return {
     signIn: rule('signIn', env.TETRAWELL_RATE_LIMIT_SIGN_IN),
+    signInAddress: rule('signInAddress', env.TETRAWELL_RATE_LIMIT_SIGN_IN_ADDRESS),
     signUp: rule('signUp', env.TETRAWELL_RATE_LIMIT_SIGN_UP),
     passwordReset: rule('passwordReset', env.TETRAWELL_RATE_LIMIT_RESET),
     verifyEmail: rule('verifyEmail', env.TETRAWELL_RATE_LIMIT_VERIFY),

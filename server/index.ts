@@ -16,7 +16,8 @@ import { createKnex } from './db/config';
 import { createMailer } from './mail/mailer';
 import { createServices, type Services } from './services';
 import { createApp } from './app';
-import { consoleLogger, DEFAULT_RATE_LIMITS, type ServerOptions } from './config';
+import { createDesignBodyReader } from './http/designBody';
+import { consoleLogger, DEFAULT_BODY_LIMIT, DEFAULT_RATE_LIMITS, type ServerOptions } from './config';
 
 export type { ServerOptions } from './config';
 
@@ -36,13 +37,22 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   const logger = opts.logger ?? consoleLogger;
   const host = opts.host ?? '127.0.0.1';
   const knex = createKnex(opts.databaseUrl, { logger });
-  const sessionPool = new pg.Pool({ connectionString: opts.databaseUrl, max: 5 });
+  // Every pool needs an 'error' listener: when PostgreSQL stops (pg_ctl -m fast sends 57P01 to every backend) an
+  // idle client emits 'error', and an EventEmitter without a listener throws, which ended the process
+  // (issue 8, item 1). The pool drops that client and connects afresh once the database is back. Knex's pool
+  // listens on its own connections already (dialects/postgres: connection.on('error')).
+  const sessionPool = new pg.Pool({ connectionString: opts.databaseUrl, max: 5, connectionTimeoutMillis: 5_000 });
+  sessionPool.on('error', (err) => logger.warn('session store: an idle database connection ended:', err.message));
   const PgStore = connectPgSimple(session);
   const sessionStore = new PgStore({
     pool: sessionPool,
     tableName: 'sessions',
     createTableIfMissing: false,
-    pruneSessionInterval: 15 * 60,
+    // expired rows (mostly short anonymous sessions) are deleted this often (±50 %, randomised by the store)
+    pruneSessionInterval: opts.sessionPruneIntervalSeconds ?? 5 * 60,
+    // No UPDATE of the row's expiry on every request: the browser's cookie is not renewed either (rolling: false),
+    // so a sign-in lasts sessionMaxAgeMs from sign-in whatever the store does; the write per request only cost time.
+    disableTouch: true,
     errorLog: (...args: unknown[]) => logger.error('session store:', ...args),
   });
 
@@ -64,16 +74,20 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   const mailer = createMailer(opts.smtp, config.mailFrom, logger);
   const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() });
 
+  const designBodies = createDesignBodyReader();
   const app = createApp({
     services,
     sessionStore,
     sessionSecret,
     sessionMaxAgeMs: opts.sessionMaxAgeMs ?? 7 * 24 * 3_600_000,
+    anonymousSessionMaxAgeMs: opts.anonymousSessionMaxAgeMs ?? 60 * 60_000,
     cookieSecure: opts.cookieSecure ?? 'auto',
     trustProxy: opts.trustProxy ?? false,
     rateLimits: { ...DEFAULT_RATE_LIMITS, ...opts.rateLimits },
     staticDir: opts.staticDir === undefined ? DEFAULT_STATIC_DIR : opts.staticDir,
-    bodyLimit: opts.bodyLimit ?? '5mb',
+    bodyLimit: opts.bodyLimit ?? DEFAULT_BODY_LIMIT,
+    offThreadBodyBytes: opts.offThreadBodyBytes ?? 256 * 1024,
+    designBodies,
     logger,
   });
 
@@ -88,7 +102,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     });
   } catch (err) {
     sessionStore.close();
-    await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close()]);
+    await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), designBodies.destroy()]);
     mailer.close();
     throw err;
   }
@@ -109,7 +123,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
       });
       sessionStore.close();
       mailer.close();
-      await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close()]);
+      await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), designBodies.destroy()]);
     })());
 
   return { url, port, app, knex, services, stop };

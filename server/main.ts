@@ -13,7 +13,8 @@
  *   TRUST_PROXY               Express "trust proxy" (e.g. 1, loopback) when behind a TLS proxy
  *   COOKIE_SECURE             true | false | auto (default auto: Secure whenever the request came over HTTPS)
  *   TETRAWELL_RATE_LIMIT_SIGN_IN / _SIGN_UP / _RESET / _VERIFY / _RESET_CONFIRM / _PASSWORD_CHANGE
- *                             attempts per window and client address
+ *                             attempts per window and client address (sign-in: failures per account and
+ *                             address; TETRAWELL_RATE_LIMIT_SIGN_IN_ADDRESS: failures per address, any account)
  *                             (defaults in server/config.ts; NODE_ENV=test raises them to 1000 so browser tests
  *                             that sign up many people from one address are not throttled)
  *   NODE_ENV=production       refuses to start without SESSION_SECRET or without SMTP_HOST
@@ -43,6 +44,7 @@ const envSchema = z.object({
   TRUST_PROXY: z.string().optional(),
   COOKIE_SECURE: z.enum(['true', 'false', 'auto']).default('auto'),
   TETRAWELL_RATE_LIMIT_SIGN_IN: z.coerce.number().int().positive().optional(),
+  TETRAWELL_RATE_LIMIT_SIGN_IN_ADDRESS: z.coerce.number().int().positive().optional(),
   TETRAWELL_RATE_LIMIT_SIGN_UP: z.coerce.number().int().positive().optional(),
   TETRAWELL_RATE_LIMIT_RESET: z.coerce.number().int().positive().optional(),
   TETRAWELL_RATE_LIMIT_VERIFY: z.coerce.number().int().positive().optional(),

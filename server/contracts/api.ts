@@ -20,6 +20,8 @@ export const errorCodeSchema = z.enum([
   'csrf_failed',
   'unprocessable',
   'payload_too_large',
+  /** the database is out of reach (restarting, down): try again shortly; nothing was written */
+  'unavailable',
   'internal',
 ]);
 export type ErrorCode = z.infer<typeof errorCodeSchema>;
@@ -39,7 +41,15 @@ export type ErrorBody = z.infer<typeof errorBodySchema>;
 // ---------- shared ----------
 /** Largest PostgreSQL `integer` (2^31 − 1): ids and versions are stored in that type. */
 export const PG_INT_MAX = 2_147_483_647;
-export const idSchema = z.coerce.number().int().positive().max(PG_INT_MAX);
+/**
+ * A row id from a URL segment, a query string or a JSON body. Strings must be plain decimal digits:
+ * `z.coerce` (Number()) would also read `0x10`, `9.0`, `1e1` or ` 7` as ids, so one resource would have many
+ * addresses. JSON numbers stay numbers (a JSON `9.0` is the number 9 by the JSON grammar).
+ */
+export const decimalIntSchema = z
+  .union([z.number(), z.string().regex(/^(0|[1-9][0-9]{0,15})$/, 'Use a whole number written in decimal digits, like 12.').transform(Number)])
+  .pipe(z.number().int());
+export const idSchema = decimalIntSchema.pipe(z.number().positive().max(PG_INT_MAX));
 export const emailSchema = z.string().trim().toLowerCase().email().max(254);
 export const passwordSchema = z.string().min(10, 'Use at least 10 characters.').max(200);
 export const displayNameSchema = z.string().trim().min(1).max(80);
@@ -212,8 +222,8 @@ export const auditEntrySchema = z.object({
 export const auditListSchema = z.object({ entries: z.array(auditEntrySchema) });
 /** Newest first; `before` pages backwards by entry id. */
 export const auditQuerySchema = z.object({
-  limit: z.coerce.number().int().min(1).max(500).default(100),
-  before: z.coerce.number().int().positive().optional(),
+  limit: decimalIntSchema.pipe(z.number().min(1).max(500)).default(100),
+  before: idSchema.optional(),
 });
 
 // ---------- admin: captured mail ----------

@@ -20,6 +20,8 @@ export function knexConfig(databaseUrl: string, options: DbOptions = {}): Knex.C
     client: 'pg',
     connection: databaseUrl,
     pool: { min: 0, max: options.poolMax ?? 10 },
+    // while the database is away a request waits at most this long for a connection, then answers 503
+    acquireConnectionTimeout: 10_000,
     migrations: { tableName: 'knex_migrations' },
     ...(options.logger
       ? {

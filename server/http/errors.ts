@@ -19,6 +19,7 @@ export const STATUS_BY_CODE: Record<ErrorCode, number> = {
   stale_write: 409,
   rate_limited: 429,
   payload_too_large: 413,
+  unavailable: 503,
   internal: 500,
 };
 
@@ -31,6 +32,31 @@ export function sendError(res: Parameters<RequestHandler>[1], code: ErrorCode, m
 export const apiNotFound: RequestHandler = (req, res) => {
   sendError(res, 'not_found', `No API route for ${req.method} ${req.path}.`);
 };
+
+/**
+ * Errors that mean "the database is out of reach", not "this request is wrong": the server answers 503
+ * `unavailable` and recovers by itself when PostgreSQL is back (pools make new connections).
+ * SQLSTATE classes from the PostgreSQL manual, appendix A "PostgreSQL Error Codes": 08 connection exception,
+ * 57P01 admin_shutdown (pg_ctl -m fast), 57P02 crash_shutdown, 57P03 cannot_connect_now (starting or stopping),
+ * 53300 too_many_connections. The rest are Node socket errors, knex's pool timeout and node-postgres's own
+ * words for a connection that ended under it.
+ */
+const UNAVAILABLE_SOCKET_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'EPIPE', 'ETIMEDOUT', 'EHOSTUNREACH', 'ENETUNREACH', 'EAI_AGAIN', 'ENOTFOUND']);
+const UNAVAILABLE_SQLSTATES = new Set(['57P01', '57P02', '57P03', '53300']);
+const UNAVAILABLE_WORDS = /Connection terminated|Connection ended unexpectedly|connection error|timeout exceeded when trying to connect|Knex: Timeout acquiring a connection|Client was closed/i;
+
+export function isDatabaseUnavailable(err: unknown, depth = 0): boolean {
+  if (err == null || typeof err !== 'object' || depth > 4) return false;
+  const e = err as { code?: unknown; name?: unknown; message?: unknown; cause?: unknown; errors?: unknown };
+  if (typeof e.code === 'string' && (UNAVAILABLE_SOCKET_CODES.has(e.code) || UNAVAILABLE_SQLSTATES.has(e.code) || /^08[0-9A-Z]{3}$/.test(e.code))) return true;
+  if (e.name === 'KnexTimeoutError') return true;
+  if (typeof e.message === 'string' && UNAVAILABLE_WORDS.test(e.message)) return true;
+  // Node wraps the attempts of a multi-address connect in an AggregateError; drivers wrap with `cause`
+  if (Array.isArray(e.errors) && e.errors.some((x) => isDatabaseUnavailable(x, depth + 1))) return true;
+  return isDatabaseUnavailable(e.cause, depth + 1);
+}
+
+export const UNAVAILABLE_MESSAGE = 'The database is not reachable just now (it may be restarting). Nothing was saved; try again in a moment.';
 
 interface HttpishError {
   status?: number;
@@ -62,6 +88,11 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
     // csrf-sync raises an http-error with this code
     if (e.code === 'EBADCSRFTOKEN') {
       sendError(res, 'csrf_failed', 'The form token is missing or out of date. Reload the page and try again.');
+      return;
+    }
+    if (isDatabaseUnavailable(err)) {
+      logger.warn(`[${req.method} ${req.originalUrl}] database unavailable:`, (err as Error).message ?? err);
+      sendError(res, 'unavailable', UNAVAILABLE_MESSAGE);
       return;
     }
     const status = e.status ?? e.statusCode;

@@ -40,7 +40,18 @@ export function passwordResetMail(p: { link: string; displayName: string; expire
   };
 }
 
-export function emailVerificationMail(p: { link: string; displayName: string; expiresAt: Date }) {
+/**
+ * `repeatOf`: the address already had an unconfirmed account from an earlier sign-up. The link then confirms
+ * that account as it is (its first password and name); the mail says so and where to set a password of one's own.
+ */
+export function emailVerificationMail(p: { link: string; displayName: string; expiresAt: Date; repeatOf?: { resetLink: string } }) {
+  const repeat = p.repeatOf
+    ? [
+        '',
+        'This address already had an account waiting for confirmation from an earlier sign-up. The link confirms that account with the password chosen at the first sign-up; a later sign-up changes nothing.',
+        `If that password is not yours (or you have forgotten it), open the link and then ask for a password reset here: ${p.repeatOf.resetLink}`,
+      ]
+    : [];
   return {
     subject: 'Confirm your e-mail address for Tetrawell',
     text: [
@@ -48,6 +59,7 @@ export function emailVerificationMail(p: { link: string; displayName: string; ex
       '',
       'Someone (hopefully you) created a Tetrawell account with this e-mail address. Open this link to confirm the address and sign in:',
       p.link,
+      ...repeat,
       '',
       `The link works once and expires on ${p.expiresAt.toUTCString()}.`,
       'If you did not sign up, ignore this message: the account stays unusable without this link.',

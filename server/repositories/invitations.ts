@@ -13,6 +13,8 @@ export interface InvitationRecord {
 
 export interface InvitationByToken extends InvitationRecord {
   projectName: string;
+  /** the inviting account; null when it was deleted */
+  inviterId: number | null;
   /** accepted, revoked or expired invitations are not usable */
   usable: boolean;
 }
@@ -23,6 +25,7 @@ interface InvitationRow {
   email: string;
   role: ProjectRole;
   inviter_name: string | null;
+  inviter_id: number | null;
   created_at: Date;
   expires_at: Date;
   accepted_at: Date | null;
@@ -44,7 +47,7 @@ export function invitationsRepo(db: Db) {
   const base = () =>
     db<InvitationRow>('invitations as i')
       .leftJoin('users as u', 'u.id', 'i.invited_by')
-      .select('i.id', 'i.project_id', 'i.email', 'i.role', 'u.display_name as inviter_name', 'i.created_at', 'i.expires_at', 'i.accepted_at', 'i.revoked_at');
+      .select('i.id', 'i.project_id', 'i.email', 'i.role', 'u.display_name as inviter_name', 'i.invited_by as inviter_id', 'i.created_at', 'i.expires_at', 'i.accepted_at', 'i.revoked_at');
   const pending = (now: Date) => base().whereNull('i.accepted_at').whereNull('i.revoked_at').where('i.expires_at', '>', now);
   return {
     async listPending(projectId: number, now: Date): Promise<InvitationRecord[]> {
@@ -84,7 +87,7 @@ export function invitationsRepo(db: Db) {
       const r = await q.first();
       if (!r) return null;
       const usable = r.accepted_at == null && r.revoked_at == null && r.expires_at.getTime() > now.getTime();
-      return { ...toInvitation(r), projectName: r.project_name ?? '', usable };
+      return { ...toInvitation(r), projectName: r.project_name ?? '', inviterId: r.inviter_id ?? null, usable };
     },
     async markAccepted(invitationId: number, userId: number, now: Date): Promise<void> {
       await db('invitations').where({ id: invitationId }).update({ accepted_at: now, accepted_by: userId });

@@ -65,16 +65,6 @@ export function usersRepo(db: Db) {
       const r = await db<UserRow>('users').whereRaw('lower(email) = lower(?)', [email]).forUpdate().first();
       return r ? toUser(r) : null;
     },
-    /**
-     * A repeated sign-up of a not yet confirmed address: the newest form's password and name
-     * replace the earlier ones (whoever confirms from the mailbox gets the newest sign-up).
-     */
-    async replaceUnverified(id: number, passwordHash: string, displayName: string): Promise<void> {
-      await db('users')
-        .where({ id })
-        .whereNull('email_verified_at')
-        .update({ password_hash: passwordHash, display_name: displayName, version: db.raw('version + 1'), updated_at: db.fn.now() } as never);
-    },
     /** marks the address confirmed (no change when it already was) */
     async markEmailVerified(id: number, at: Date): Promise<void> {
       await db('users').where({ id }).whereNull('email_verified_at').update({ email_verified_at: at, updated_at: db.fn.now() });

@@ -31,8 +31,12 @@ function logOut(req: Request): Promise<void> {
 export const authRoutes: RouteModule = (router, deps) => {
   const { services, limiters, generateCsrfToken } = deps;
 
-  router.get('/auth/csrf', (req, res) => {
-    res.json({ csrfToken: generateCsrfToken(req) });
+  router.get('/auth/csrf', async (req, res) => {
+    const csrfToken = generateCsrfToken(req);
+    // Stored before answering: express-session would otherwise save after the route and still send the 200 when
+    // that save fails (database away), handing out a token no session holds. A failed save answers 503 instead.
+    await new Promise<void>((resolve, reject) => req.session.save((err) => (err ? reject(err) : resolve())));
+    res.json({ csrfToken });
   });
 
   router.post('/auth/sign-up', limiters.signUp, async (req, res) => {

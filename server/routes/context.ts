@@ -3,10 +3,13 @@ import type { User } from '@contracts/api';
 import type { Services } from '../services';
 import type { AccessControl } from '../http/access';
 import type { Logger } from '../config';
+import type { DesignBodyReader } from '../http/designBody';
 
 /** What route modules receive: services to call and the HTTP-level guards. */
 export interface RouteDeps {
   services: Services;
+  /** reads a design update body, off the request thread when it is large */
+  designBodies: DesignBodyReader;
   access: AccessControl;
   /** run passport-local on the (already parsed) body: the user, or false on bad credentials */
   authenticateLocal: (req: Request, res: Response) => Promise<User | false>;

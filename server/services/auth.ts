@@ -55,8 +55,10 @@ export function authService(deps: ServiceDeps) {
      * timing does not depend on the SMTP server). The caller answers the same in every case.
      *
      * - new address: an unconfirmed account and a confirmation link;
-     * - address of an unconfirmed account: that sign-up's password and name are replaced by
-     *   this one's, older links are spent, and a new link goes out (people lose mails);
+     * - address of an unconfirmed account: nothing about the account changes (its first password and name
+     *   stay, earlier links keep working) and one more link goes out (people lose mails). A later sign-up
+     *   must not replace the password: whoever signed up second would otherwise take over the account the
+     *   moment the owner of the mailbox opens any link (issue 8, item 2). Links set only "confirmed";
      * - address of a confirmed account: nothing changes; its owner is told someone tried.
      */
     async signUp(input: { email: string; password: string; displayName: string }): Promise<OutgoingMail> {
@@ -78,17 +80,18 @@ export function authService(deps: ServiceDeps) {
         }
 
         const verifications = emailVerificationsRepo(trx);
-        if (!created) {
-          await users.replaceUnverified(user.id, passwordHash, input.displayName);
-          await verifications.spendAllForUser(user.id, now);
-        }
         const { token, hash } = newToken();
         const expiresAt = new Date(now.getTime() + config.emailVerificationTtlMs);
         await verifications.insert({ userId: user.id, tokenHash: hash, expiresAt });
         await recordAudit(trx, { projectId: null, actorId: user.id, action: 'auth.sign_up', detail: created ? {} : { repeated: true } });
         return {
           to: user.email,
-          ...emailVerificationMail({ link: `${config.publicUrl}/verify/${token}`, displayName: input.displayName, expiresAt }),
+          ...emailVerificationMail({
+            link: `${config.publicUrl}/verify/${token}`,
+            displayName: user.displayName,
+            expiresAt,
+            repeatOf: created ? undefined : { resetLink: `${config.publicUrl}/reset` },
+          }),
         };
       });
     },

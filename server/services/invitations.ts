@@ -5,8 +5,9 @@
  * SMTP server never leaves a half-made invitation behind.
  */
 import type { Invitation, Project } from '@contracts/api';
-import type { ProjectRole } from '@contracts/roles';
-import { invitationsRepo, type InvitationRecord } from '../repositories/invitations';
+import { can, type ProjectRole } from '@contracts/roles';
+import { invitationsRepo, type InvitationByToken, type InvitationRecord } from '../repositories/invitations';
+import type { Db } from '../repositories/db';
 import { membershipsRepo } from '../repositories/memberships';
 import { projectsRepo } from '../repositories/projects';
 import { usersRepo } from '../repositories/users';
@@ -78,7 +79,7 @@ export function invitationService(deps: ServiceDeps) {
 
     async preview(token: string): Promise<{ projectName: string; role: ProjectRole; email: string; invitedBy: string }> {
       const inv = await invitationsRepo(db).findByTokenHash(hashToken(token), deps.now());
-      if (!inv || !inv.usable) throw notFoundLink();
+      if (!inv || !inv.usable || !(await inviterMayStillInvite(db, inv))) throw notFoundLink();
       return { projectName: inv.projectName, role: inv.role, email: inv.email, invitedBy: inv.invitedBy };
     },
 
@@ -86,7 +87,7 @@ export function invitationService(deps: ServiceDeps) {
       const projectId = await db.transaction(async (trx) => {
         const now = deps.now();
         const inv = await invitationsRepo(trx).findByTokenHash(hashToken(token), now, { lock: true });
-        if (!inv || !inv.usable) throw notFoundLink();
+        if (!inv || !inv.usable || !(await inviterMayStillInvite(trx, inv))) throw notFoundLink();
         if (inv.email.toLowerCase() !== user.email.toLowerCase()) {
           throw forbidden(`This invitation was sent to ${inv.email}. Sign in with that address to accept it.`);
         }
@@ -110,4 +111,15 @@ export function invitationService(deps: ServiceDeps) {
 }
 
 const notFoundLink = () => new AppError('not_found', LINK_INVALID);
+
+/**
+ * An invitation carries the inviter's authority, so it is only as good as the inviter's role today: an owner who
+ * invited someone as owner and was then demoted, removed or deleted no longer vouches for it (issue 8, item 6).
+ * Checked at preview and acceptance rather than revoking on every role change, so no path that changes roles
+ * (the API, a script, a future feature) can forget it.
+ */
+async function inviterMayStillInvite(db: Db, inv: InvitationByToken): Promise<boolean> {
+  if (inv.inviterId == null) return false;
+  return can(await membershipsRepo(db).roleOf(inv.projectId, inv.inviterId), 'members.invite');
+}
 export type InvitationService = ReturnType<typeof invitationService>;

@@ -15,6 +15,10 @@ describe('rateLimitsFromEnv', () => {
     const r = rateLimitsFromEnv({ NODE_ENV: 'test', TETRAWELL_RATE_LIMIT_SIGN_IN: 3, TETRAWELL_RATE_LIMIT_RESET: 4 });
     expect([r.signIn.limit, r.passwordReset.limit]).toEqual([3, 4]);
   });
+  it('reads the per-address sign-in ceiling, which stays looser than the per-account limit by default', () => {
+    expect(rateLimitsFromEnv({ NODE_ENV: 'production', TETRAWELL_RATE_LIMIT_SIGN_IN_ADDRESS: 9 }).signInAddress.limit).toBe(9);
+    expect(DEFAULT_RATE_LIMITS.signInAddress.limit).toBeGreaterThan(DEFAULT_RATE_LIMITS.signIn.limit);
+  });
 });
 
 describe('rateLimitsFromEnv: confirmation, reset confirm and password change', () => {

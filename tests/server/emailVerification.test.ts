@@ -112,17 +112,41 @@ describe('an unconfirmed account', () => {
     expect(JSON.stringify(right.body)).not.toMatch(/unverified|not confirmed|exist|unknown/i);
   });
 
-  it('a repeated sign-up sends a new link that carries the newest password; the older link is spent', async () => {
+  // issue 8, item 2: B signing up with A's unconfirmed address must not take the account over
+  it('a repeated sign-up changes neither the password nor the name, and the first link still works', async () => {
     const email = uniqueEmail('again');
     const first = await pendingSignUp(email, TEST_PASSWORD, 'First Try');
     const second = await pendingSignUp(email, 'second-try-passphrase', 'Second Try');
     expect(await env.knex('users').whereRaw('lower(email) = ?', [email]).count<{ n: string }[]>({ n: '*' })).toEqual([{ n: '1' }]);
-    expect((await env.client().post('/api/auth/verify', { token: first })).status).toBe(422);
+    // the first link was not spent by the second sign-up
     const c = env.client();
-    const user = await c.verify(second);
-    expect(user.displayName).toBe('Second Try');
-    expect((await env.client().post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(401);
-    expect((await env.client().post('/api/auth/sign-in', { email, password: 'second-try-passphrase' })).status).toBe(200);
+    const user = await c.verify(first);
+    expect(user.displayName).toBe('First Try');
+    expect((await env.client().post('/api/auth/sign-in', { email, password: 'second-try-passphrase' })).status).toBe(401);
+    expect((await env.client().post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(200);
+    // the address is confirmed now: the second link is spent, and could not have set the second password anyway
+    expect((await env.client().post('/api/auth/verify', { token: second })).status).toBe(422);
+  });
+
+  it('the newest link confirms the account as the first sign-up made it (only "confirmed" changes)', async () => {
+    const email = uniqueEmail('newest');
+    await pendingSignUp(email, TEST_PASSWORD, 'Owner');
+    const before = await env.knex('users').whereRaw('lower(email) = ?', [email]).first();
+    const sinceId = await lastMailId(env.knex);
+    const second = await pendingSignUp(email, 'intruder-passphrase', 'Intruder');
+    // the second mail tells the mailbox owner what the link does and where to reset the password
+    const mail = await waitForMail(env.knex, email, VERIFY_SUBJECT, { sinceId });
+    expect(mail.text).toContain('earlier sign-up');
+    expect(mail.text).toContain('https://tetrawell.lab.test/reset');
+    expect(mail.text).not.toContain('Intruder');
+    const user = await env.client().verify(second);
+    expect(user.displayName).toBe('Owner');
+    const after = await env.knex('users').whereRaw('lower(email) = ?', [email]).first();
+    expect(after.password_hash).toBe(before.password_hash);
+    expect(after.display_name).toBe(before.display_name);
+    expect(after.email_verified_at).not.toBeNull();
+    expect((await env.client().post('/api/auth/sign-in', { email, password: 'intruder-passphrase' })).status).toBe(401);
+    expect((await env.client().post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(200);
   });
 
   it('a password reset confirms the address too (the link came through the same mailbox)', async () => {

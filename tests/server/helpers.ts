@@ -26,6 +26,7 @@ export function testDatabaseUrl(): string {
 /** Generous limits so ordinary tests never trip them; the rate-limit test sets small ones. */
 export const RELAXED_LIMITS: RateLimits = {
   signIn: { windowMs: 60_000, limit: 100_000 },
+  signInAddress: { windowMs: 60_000, limit: 100_000 },
   signUp: { windowMs: 60_000, limit: 100_000 },
   passwordReset: { windowMs: 60_000, limit: 100_000 },
   verifyEmail: { windowMs: 60_000, limit: 100_000 },

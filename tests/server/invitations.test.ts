@@ -122,3 +122,55 @@ describe('invitation by e-mail', () => {
     expect(r.status).toBe(409);
   });
 });
+
+// issue 8, item 6: an invitation is only as good as the inviter's role when it is used
+describe('invitations outlive no inviter role', () => {
+  async function invitedByCoOwner() {
+    const { owner, projectId } = await ownerWithProject('Co-owned');
+    const co = await newUser(env, 'inv-coowner');
+    // set-up: a second owner, added directly (not the behaviour under test)
+    await env.knex('memberships').insert({ project_id: projectId, user_id: co.user.id, role: 'owner' });
+    const inviteeEmail = uniqueEmail('inv-late');
+    const created = await co.client.post(`/api/projects/${projectId}/invitations`, { email: inviteeEmail, role: 'owner' });
+    expect(created.status).toBe(201);
+    const mail = await waitForMail(env.knex, inviteeEmail, /Invitation to "Co-owned"/);
+    const token = linkToken(mail.text, 'https://tetrawell.lab.test', 'invite');
+    return { owner, co, projectId, inviteeEmail, token };
+  }
+
+  async function coMember(owner: { client: { get(p: string): Promise<{ body: unknown }> } }, projectId: number, userId: number) {
+    const members = memberListSchema.parse((await owner.client.get(`/api/projects/${projectId}/members`)).body).members;
+    return members.find((m) => m.userId === userId)!;
+  }
+
+  it('an owner demoted to viewer: the invitation they sent can no longer be previewed or accepted', async () => {
+    const { owner, co, projectId, inviteeEmail, token } = await invitedByCoOwner();
+    const m = await coMember(owner, projectId, co.user.id);
+    expect((await owner.client.patch(`/api/projects/${projectId}/members/${co.user.id}`, { role: 'viewer', version: m.version })).status).toBe(200);
+
+    const invitee = env.client();
+    await invitee.signUp(inviteeEmail);
+    expect((await invitee.get(`/api/invitations/${token}`)).status).toBe(404);
+    const r = await invitee.post(`/api/invitations/${token}/accept`);
+    expect(r.status).toBe(404);
+    expect(await env.knex('memberships').where({ project_id: projectId, user_id: invitee.user!.id }).first()).toBeUndefined();
+  });
+
+  it('an owner removed from the project: their invitation is dead too', async () => {
+    const { owner, co, projectId, inviteeEmail, token } = await invitedByCoOwner();
+    expect((await owner.client.delete(`/api/projects/${projectId}/members/${co.user.id}`)).status).toBe(204);
+    const invitee = env.client();
+    await invitee.signUp(inviteeEmail);
+    expect((await invitee.post(`/api/invitations/${token}/accept`)).status).toBe(404);
+    expect(await env.knex('memberships').where({ project_id: projectId, user_id: invitee.user!.id }).first()).toBeUndefined();
+  });
+
+  it('an inviter who is still an owner: the invitation works (control)', async () => {
+    const { projectId, inviteeEmail, token } = await invitedByCoOwner();
+    const invitee = env.client();
+    await invitee.signUp(inviteeEmail);
+    const r = await invitee.post(`/api/invitations/${token}/accept`);
+    expect(r.status).toBe(200);
+    expect(r.body.project).toMatchObject({ id: projectId, role: 'owner' });
+  });
+});

@@ -17,6 +17,7 @@ beforeAll(async () => {
   env = await startTestEnv({
     rateLimits: {
       signIn: { windowMs: 60_000, limit: SIGN_IN_LIMIT },
+      signInAddress: { windowMs: 60_000, limit: 50 },
       signUp: { windowMs: 60_000, limit: SIGN_UP_LIMIT },
       passwordReset: { windowMs: 60_000, limit: RESET_LIMIT },
     },
@@ -27,7 +28,7 @@ afterAll(async () => {
 });
 
 describe('rate limits', () => {
-  it(`answers 429 after ${SIGN_IN_LIMIT} sign-in attempts, even with the right password`, async () => {
+  it(`answers 429 after ${SIGN_IN_LIMIT} failed sign-ins to one account, even with the right password`, async () => {
     const email = uniqueEmail('rl');
     const owner = env.client();
     await owner.signUp(email); // one sign-up of the SIGN_UP_LIMIT
@@ -42,10 +43,23 @@ describe('rate limits', () => {
     expect(blocked.headers['ratelimit-policy']).toContain(`q=${SIGN_IN_LIMIT}`);
   });
 
+  // issue 8, item 4: one person's typos behind a shared address must not lock out the lab
+  it('successful sign-ins do not count, and another account from the same address is not locked out', async () => {
+    const email = uniqueEmail('rlok');
+    await env.client().signUp(email); // the second sign-up of the SIGN_UP_LIMIT
+    for (let i = 0; i < SIGN_IN_LIMIT + 3; i++) {
+      expect((await env.client().post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(200);
+    }
+    // a colleague's failures (on another account, from this same address) leave this account alone
+    const c = env.client();
+    for (let i = 0; i < SIGN_IN_LIMIT + 1; i++) await c.post('/api/auth/sign-in', { email: uniqueEmail('typo'), password: 'wrong-' + i });
+    for (let i = 0; i < SIGN_IN_LIMIT; i++) expect((await c.post('/api/auth/sign-in', { email, password: 'wrong-again-' + i })).status).toBe(401);
+    // failures on this account are counted per account, case and spaces aside
+    expect((await c.post('/api/auth/sign-in', { email: ` ${email.toUpperCase()} `, password: TEST_PASSWORD })).status).toBe(429);
+  });
+
   it(`answers 429 after ${SIGN_UP_LIMIT} sign-ups and creates no account`, async () => {
-    // the first test used one sign-up slot; use the rest
-    const used = 1;
-    for (let i = used; i < SIGN_UP_LIMIT; i++) expect((await env.client().post('/api/auth/sign-up', { email: uniqueEmail('rlsu'), password: TEST_PASSWORD, displayName: 'R' })).status).toBe(202);
+    // the first two tests used both sign-up slots
     const email = uniqueEmail('rlblocked');
     const r = await env.client().post('/api/auth/sign-up', { email, password: TEST_PASSWORD, displayName: 'Blocked' });
     expect(r.status).toBe(429);
@@ -55,6 +69,32 @@ describe('rate limits', () => {
   it(`answers 429 after ${RESET_LIMIT} password-reset requests`, async () => {
     for (let i = 0; i < RESET_LIMIT; i++) expect((await env.client().post('/api/auth/password-reset/request', { email: uniqueEmail('rr') })).status).toBe(202);
     expect((await env.client().post('/api/auth/password-reset/request', { email: uniqueEmail('rr') })).status).toBe(429);
+  });
+});
+
+describe('per-address ceiling on failed sign-ins (password spraying)', () => {
+  const ADDRESS_LIMIT = 4;
+  let spray: TestEnv;
+  beforeAll(async () => {
+    spray = await startTestEnv({
+      rateLimits: { ...RELAXED_LIMITS, signIn: { windowMs: 60_000, limit: 100 }, signInAddress: { windowMs: 60_000, limit: ADDRESS_LIMIT } },
+    });
+  });
+  afterAll(async () => {
+    await spray?.stop();
+  });
+
+  it(`answers 429 after ${ADDRESS_LIMIT} failures on as many different accounts from one address`, async () => {
+    const victim = uniqueEmail('sprayed');
+    await spray.client().signUp(victim);
+    // a success does not use up the ceiling
+    expect((await spray.client().post('/api/auth/sign-in', { email: victim, password: TEST_PASSWORD })).status).toBe(200);
+    const c = spray.client();
+    for (let i = 0; i < ADDRESS_LIMIT; i++) expect((await c.post('/api/auth/sign-in', { email: uniqueEmail('spray'), password: 'Summer2026!' })).status).toBe(401);
+    const blocked = await c.post('/api/auth/sign-in', { email: uniqueEmail('spray'), password: 'Summer2026!' });
+    expect(blocked.status).toBe(429);
+    expect(errorBodySchema.parse(blocked.body).error.code).toBe('rate_limited');
+    expect(blocked.headers['ratelimit-policy']).toContain(`q=${ADDRESS_LIMIT}`);
   });
 });
 

@@ -76,12 +76,13 @@ describe('no client built', () => {
 });
 
 describe('unexpected failures', () => {
-  it('answer 500 internal, in the error shape, without a stack trace', async () => {
+  // issue 8, item 1: an unreachable database is not an internal error but a temporary one (503 unavailable)
+  it('an unreachable database answers 503 unavailable, in the error shape, without a stack trace', async () => {
     // a public read that has to ask the database
     const r = await supertest(broken.url).get('/api/invitations/abcdefghijklmnopqrstuvwxyz012345');
-    expect(r.status).toBe(500);
+    expect(r.status).toBe(503);
     const e = errorBodySchema.parse(r.body).error;
-    expect(e.code).toBe('internal');
+    expect(e.code).toBe('unavailable');
     expect(r.text).not.toMatch(/ECONNREFUSED|\bat .+:\d+:\d+|node_modules/);
   });
 });

@@ -1,0 +1,45 @@
+/**
+ * JSON request bodies, sized per route (issue 8, item 7):
+ *
+ *   design saves (PUT /api/projects/:id/design)   up to `designLimit` (40 MB by default: a 100,000-site document
+ *                                                  with every optional field is ~17 MB, see tests/bench/load.bench.ts);
+ *                                                  above `offThreadBytes` the body stays a raw Buffer for the
+ *                                                  off-thread reader (server/http/designBody.ts)
+ *   every other route                              up to min(designLimit, 1 MB): no other field takes more than a
+ *                                                  few kilobytes, so a larger body is refused with 413 before parsing
+ */
+import express, { type Request, type RequestHandler } from 'express';
+
+/** "40mb", "64kb", "512b" or a number of bytes (body-parser's units, 1 kb = 1024 b). */
+export function parseByteSize(size: string | number): number {
+  if (typeof size === 'number') return size;
+  const m = /^\s*(\d+(?:\.\d+)?)\s*(b|kb|mb|gb)?\s*$/i.exec(size);
+  if (!m) throw new Error(`not a byte size: ${size}`);
+  const unit = { b: 1, kb: 1024, mb: 1024 ** 2, gb: 1024 ** 3 }[(m[2] ?? 'b').toLowerCase() as 'b' | 'kb' | 'mb' | 'gb'];
+  return Math.floor(Number(m[1]) * unit);
+}
+
+export const OTHER_BODY_LIMIT_BYTES = 1024 * 1024;
+
+/** Routes that take whole design documents. */
+export function isDesignBodyRoute(req: Request): boolean {
+  return req.method === 'PUT' && /^\/api\/projects\/[^/]+\/design\/?$/.test(req.path);
+}
+
+function isJson(req: Request): boolean {
+  return /^application\/json\s*(;|$)/i.test(String(req.headers['content-type'] ?? ''));
+}
+
+export function jsonBodies(opts: { designLimit: number; offThreadBytes: number }): RequestHandler[] {
+  const otherLimit = Math.min(opts.designLimit, OTHER_BODY_LIMIT_BYTES);
+  const large = (req: Request) => {
+    if (!isDesignBodyRoute(req) || !isJson(req)) return false;
+    const len = Number(req.headers['content-length']);
+    // a chunked body has no length: treat it as large (its size is only known once read)
+    return !Number.isFinite(len) || len > opts.offThreadBytes;
+  };
+  const raw = express.raw({ type: (req) => large(req as Request), limit: opts.designLimit });
+  const designJson = express.json({ limit: opts.designLimit });
+  const otherJson = express.json({ limit: otherLimit });
+  return [raw, (req, res, next) => (isDesignBodyRoute(req) ? designJson : otherJson)(req, res, next)];
+}

@@ -1,0 +1,211 @@
+/**
+ * Load benchmark (issue 8): `npm run bench -- load`. Prints figures, asserts nothing.
+ *
+ * 1. A signed-in read, GET /api/projects (5 projects), from 20 concurrent clients for 10 s with autocannon:
+ *    requests per second and latency p50 / p99. Target: p99 under 100 ms on the 2-core machine.
+ * 2. GET /api/health latency, polled every 20 ms from a separate process, while rounds of 4 concurrent
+ *    100,000-site design PUTs (~17 MB each) run. Target: health under 100 ms throughout.
+ *
+ * Database: TETRAWELL_BENCH_DATABASE_URL when set (a throwaway database: rows are added), otherwise a private
+ * cluster `.data/pg-bench` on a free port, made and started with the same server/ops helpers as the test cluster,
+ * with a fresh database, stopped at the end. The server runs in a child process (tests/bench/load-server.ts).
+ * All traffic goes to 127.0.0.1; every loop is bounded (a fixed duration or a fixed number of rounds).
+ * TETRAWELL_BENCH_LOAD_PARTS=reads (or health) runs one part only.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import { fileURLToPath } from 'node:url';
+import path from 'node:path';
+import autocannon from 'autocannon';
+import bcrypt from 'bcryptjs';
+import { startCluster, type Cluster } from '../../server/ops/postgres.mjs';
+import { prepareDatabase } from '../../server/ops/setup.mjs';
+import { freePort } from '../../server/ops/sys.mjs';
+import { createKnex } from '../../server/db/config';
+import { MAX_SITES } from '../../server/contracts/design';
+
+const here = path.dirname(fileURLToPath(import.meta.url));
+const root = path.resolve(here, '..', '..');
+const READ_SECONDS = 10;
+const CONNECTIONS = 20;
+const PUT_ROUNDS = 2;
+const PUTS_PER_ROUND = 4;
+/** silicon lattice constant, nm (CODATA 2018) */
+const A = 0.5431020511;
+
+async function database(): Promise<{ url: string; cluster: Cluster | null }> {
+  if (process.env.TETRAWELL_BENCH_DATABASE_URL) return { url: process.env.TETRAWELL_BENCH_DATABASE_URL, cluster: null };
+  const cluster = await startCluster({ name: 'pg-bench', port: await freePort(), disposable: true });
+  const url = cluster.url('tetrawell_bench');
+  await prepareDatabase({ databaseUrl: url, adminUrl: cluster.url('postgres'), recreate: true });
+  return { url, cluster };
+}
+
+function startServer(databaseUrl: string): Promise<{ child: ChildProcess; url: string }> {
+  const child = spawn(process.execPath, ['--import', 'tsx', path.join(here, 'load-server.ts')], {
+    cwd: root,
+    env: { ...process.env, TETRAWELL_BENCH_DATABASE_URL: databaseUrl, NODE_ENV: 'production' },
+    stdio: ['ignore', 'pipe', 'inherit'],
+  });
+  return new Promise((resolve, reject) => {
+    let out = '';
+    child.stdout!.on('data', (d: Buffer) => {
+      out += d.toString();
+      const m = /LISTENING (\S+)/.exec(out);
+      if (m) resolve({ child, url: m[1] });
+    });
+    child.once('exit', (code) => reject(new Error(`the bench server exited with ${code}`)));
+  });
+}
+
+/** One browser-like session: the cookie jar is a single cookie, the CSRF token is refetched after sign-in. */
+class Session {
+  cookie = '';
+  csrf = '';
+  constructor(readonly url: string) {}
+  private keep(r: Response) {
+    const c = r.headers.getSetCookie().find((s) => s.startsWith('tetrawell.sid='));
+    if (c) this.cookie = c.split(';')[0];
+  }
+  async refreshCsrf() {
+    const r = await fetch(`${this.url}/api/auth/csrf`, { headers: { cookie: this.cookie } });
+    this.keep(r);
+    this.csrf = ((await r.json()) as { csrfToken: string }).csrfToken;
+  }
+  async send(method: string, p: string, body?: string): Promise<Response> {
+    const r = await fetch(`${this.url}${p}`, {
+      method,
+      headers: { cookie: this.cookie, 'x-csrf-token': this.csrf, 'content-type': 'application/json' },
+      body,
+    });
+    this.keep(r);
+    return r;
+  }
+}
+
+function bigDesignBody(name: string, version: number): string {
+  const sites: unknown[] = [];
+  for (let i = 0; i < MAX_SITES; i++) {
+    sites.push({
+      id: `site-${i}`,
+      species: 'P',
+      position: [((i % 100) - 50) * A, ((Math.floor(i / 100) % 100) - 50) * A, Math.floor(i / 10_000) * A],
+      electrons: 1,
+      orbital: { model: 'hydrogenic-1s', radiusNm: 2.5 },
+      cluster: `c${i % 50}`,
+    });
+  }
+  const design = {
+    format: 'tetrawell-design',
+    version: 1,
+    name,
+    host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: A },
+    sites,
+    enclosure: { center: [0, 0, 0], halfExtentsNm: [60, 60, 60], boundary: { kind: 'multipole', order: 2 } },
+    refinement: { order: 2, targetRelError: 0.01, maxElements: 500_000 },
+  };
+  return JSON.stringify({ design, version });
+}
+
+/**
+ * Polls /api/health every 20 ms from its own process (so this process's JSON work does not delay the polls)
+ * until stop() or `maxMs`, whichever comes first; resolves to the latencies in ms.
+ */
+function healthPoller(url: string, maxMs: number): { stop(): Promise<number[]> } {
+  const script = `
+    const lat = []; const end = Date.now() + ${maxMs}; let stop = false;
+    process.stdin.on('data', () => { stop = true; }); process.stdin.resume();
+    (async () => {
+      while (!stop && Date.now() < end) {
+        const t = performance.now();
+        const r = await fetch(${JSON.stringify(url)} + '/api/health');
+        await r.arrayBuffer();
+        lat.push(performance.now() - t);
+        await new Promise((res) => setTimeout(res, 20));
+      }
+      process.stdout.write(JSON.stringify(lat));
+      process.exit(0);
+    })();`;
+  const child = spawn(process.execPath, ['-e', script], { stdio: ['pipe', 'pipe', 'inherit'] });
+  let out = '';
+  child.stdout.on('data', (d: Buffer) => (out += d.toString()));
+  const done = new Promise<number[]>((resolve) => child.once('exit', () => resolve(JSON.parse(out || '[]') as number[])));
+  return {
+    stop() {
+      child.stdin.end('stop\n');
+      return done;
+    },
+  };
+}
+
+function pct(xs: number[], p: number): number {
+  const s = [...xs].sort((a, b) => a - b);
+  return s.length ? s[Math.min(s.length - 1, Math.floor((p / 100) * s.length))] : NaN;
+}
+
+export async function run(): Promise<void> {
+  const { url: databaseUrl, cluster } = await database();
+  const { child, url } = await startServer(databaseUrl);
+  const knex = createKnex(databaseUrl, { poolMax: 2 });
+  try {
+    const email = `bench-${Date.now()}@lab.test`;
+    const password = 'bench-passphrase-1';
+    // default bcrypt cost (12), as in production: paid once, at sign-in
+    await knex('users').insert({ email, password_hash: await bcrypt.hash(password, 12), display_name: 'Bench', site_role: 'member', email_verified_at: new Date() });
+    const s = new Session(url);
+    await s.refreshCsrf();
+    const signIn = await s.send('POST', '/api/auth/sign-in', JSON.stringify({ email, password }));
+    if (signIn.status !== 200) throw new Error(`sign-in: ${signIn.status}`);
+    await s.refreshCsrf();
+    const projectIds: number[] = [];
+    for (let i = 0; i < 5; i++) projectIds.push(((await (await s.send('POST', '/api/projects', JSON.stringify({ name: `Bench project ${i}` }))).json()) as { id: number }).id);
+
+    const parts = (process.env.TETRAWELL_BENCH_LOAD_PARTS ?? 'reads,health').split(',');
+    // 1. signed-in reads
+    if (parts.includes('reads')) {
+    const warm = await autocannon({ url: `${url}/api/projects`, connections: CONNECTIONS, duration: 2, headers: { cookie: s.cookie } });
+    void warm;
+    const r = await autocannon({ url: `${url}/api/projects`, connections: CONNECTIONS, duration: READ_SECONDS, headers: { cookie: s.cookie } });
+    console.log(`GET /api/projects, signed in, ${CONNECTIONS} connections, ${READ_SECONDS} s:`);
+    console.log(
+      `  ${r.requests.average.toFixed(0)} req/s   latency p50 ${r.latency.p50} ms   p99 ${r.latency.p99} ms   max ${r.latency.max} ms   ` +
+        `(${r.requests.total} requests, ${r.non2xx} non-2xx, ${r.errors} errors)`,
+    );
+
+    }
+    // 2. health while large design PUTs run
+    if (parts.includes('health')) {
+    const bodyText = bigDesignBody('Bench array (invented example)', 1);
+    console.log(`\n/api/health while ${PUT_ROUNDS} rounds of ${PUTS_PER_ROUND} concurrent ${MAX_SITES.toLocaleString('en-US')}-site PUTs run (${(bodyText.length / 1e6).toFixed(1)} MB each):`);
+    const versions = new Map<number, number>(projectIds.slice(0, PUTS_PER_ROUND).map((id) => [id, 1]));
+    const putTimes: number[] = [];
+    const statuses: number[] = [];
+    const health = healthPoller(url, 180_000);
+    await new Promise((res) => setTimeout(res, 500));
+    const t0 = performance.now();
+    for (let round = 0; round < PUT_ROUNDS; round++) {
+      await Promise.all(
+        [...versions.keys()].map(async (id) => {
+          const v = versions.get(id)!;
+          const body = v === 1 ? bodyText : bodyText.replace(/"version":1}$/, `"version":${v}}`);
+          const t = performance.now();
+          const res = await s.send('PUT', `/api/projects/${id}/design`, body);
+          const text = await res.text();
+          putTimes.push(performance.now() - t);
+          statuses.push(res.status);
+          const m = /"version":(\d+),"updatedAt":"[^"]*"}$/.exec(text.slice(-120));
+          if (m) versions.set(id, Number(m[1]));
+        }),
+      );
+    }
+    const putWall = performance.now() - t0;
+    const during = await health.stop();
+    console.log(`  PUT statuses ${[...new Set(statuses)].join(', ')}; each PUT p50 ${pct(putTimes, 50).toFixed(0)} ms, max ${Math.max(...putTimes).toFixed(0)} ms; all rounds ${putWall.toFixed(0)} ms`);
+    console.log(`  health: ${during.length} polls, p50 ${pct(during, 50).toFixed(1)} ms, p99 ${pct(during, 99).toFixed(1)} ms, max ${Math.max(...during).toFixed(1)} ms`);
+    }
+  } finally {
+    await knex.destroy();
+    child.kill('SIGTERM');
+    await new Promise((res) => child.once('exit', res));
+    await cluster?.stop();
+  }
+}

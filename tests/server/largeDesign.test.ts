@@ -1,0 +1,123 @@
+/**
+ * Issue 8, item 7: the documented 100,000-site limit (MAX_SITES, server/contracts/design.ts) is reachable through
+ * the API: such a document is accepted (not 413), stored whole, and refused with the same 400/422 answers as a
+ * small one when it is wrong. Timings are not asserted here: tests/bench/load.bench.ts prints them.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { errorBodySchema } from '@contracts/api';
+import { MAX_SITES } from '@contracts/design';
+import { newUser, startTestEnv, type TestClient, type TestEnv } from './helpers';
+
+let env: TestEnv;
+let owner: { client: TestClient };
+let projectId: number;
+/** the project that receives the 100,000-site document; the other checks use `projectId`, whose design stays small */
+let bigProjectId: number;
+beforeAll(async () => {
+  env = await startTestEnv();
+  owner = await newUser(env, 'big');
+  projectId = (await owner.client.post('/api/projects', { name: 'Large array checks' })).body.id;
+  bigProjectId = (await owner.client.post('/api/projects', { name: 'Large array' })).body.id;
+});
+afterAll(async () => {
+  await env?.stop();
+});
+
+/** silicon lattice constant a = 0.5431020511 nm (CODATA 2018, lattice spacing of Si at 22.5 °C) */
+const A = 0.5431020511;
+
+function bigDesign(base: Record<string, unknown>, n: number, patch?: (site: Record<string, unknown>, i: number) => void) {
+  const sites: Record<string, unknown>[] = [];
+  for (let i = 0; i < n; i++) {
+    const site: Record<string, unknown> = {
+      id: `site-${i}`,
+      species: 'P',
+      position: [((i % 100) - 50) * A, ((Math.floor(i / 100) % 100) - 50) * A, Math.floor(i / 10_000) * A],
+      electrons: 1,
+      orbital: { model: 'hydrogenic-1s', radiusNm: 2.5 },
+      cluster: `c${i % 50}`,
+    };
+    patch?.(site, i);
+    sites.push(site);
+  }
+  return { ...base, name: `Large array of ${n} sites (invented example)`, sites, enclosure: { center: [0, 0, 0], halfExtentsNm: [60, 60, 60], boundary: { kind: 'multipole', order: 2 } } };
+}
+
+async function current(id = projectId) {
+  return (await owner.client.get(`/api/projects/${id}/design`)).body as { design: Record<string, unknown>; version: number };
+}
+
+describe('a design at the site limit', () => {
+  it('refuses one site too many with 422 at ["design","sites"]', async () => {
+    const cur = await current();
+    const r = await owner.client.put(`/api/projects/${projectId}/design`, { design: bigDesign(cur.design, MAX_SITES + 1), version: cur.version });
+    expect(r.status).toBe(422);
+    expect(errorBodySchema.parse(r.body).error.details?.map((d) => d.path)).toContainEqual(['design', 'sites']);
+  });
+
+  it('names the field of a bad site deep in a large document, as for a small one', async () => {
+    const cur = await current();
+    const large = await owner.client.put(`/api/projects/${projectId}/design`, {
+      design: bigDesign(cur.design, 20_000, (s, i) => i === 19_999 && (s.electrons = 3)),
+      version: cur.version,
+    });
+    const small = await owner.client.put(`/api/projects/${projectId}/design`, {
+      design: bigDesign(cur.design, 3, (s, i) => i === 2 && (s.electrons = 3)),
+      version: cur.version,
+    });
+    for (const [r, i] of [[large, 19_999], [small, 2]] as const) {
+      expect(r.status).toBe(422);
+      const e = errorBodySchema.parse(r.body).error;
+      expect(e.code).toBe('validation_failed');
+      expect(e.details?.map((d) => d.path)).toContainEqual(['design', 'sites', i, 'electrons']);
+    }
+    expect((await current()).version).toBe(cur.version);
+  });
+
+  it('refuses a lone surrogate and malformed JSON in a large body like in a small one', async () => {
+    const cur = await current();
+    const sur = await owner.client.put(`/api/projects/${projectId}/design`, {
+      design: bigDesign(cur.design, 20_000, (s, i) => i === 12_345 && (s.id = 'bad\ud800')),
+      version: cur.version,
+    });
+    expect(sur.status).toBe(422);
+    expect(errorBodySchema.parse(sur.body).error.details?.map((d) => d.path)).toContainEqual(['design', 'sites', 12_345, 'id']);
+
+    const token = owner.client.csrf ?? (await owner.client.refreshCsrf());
+    const broken = JSON.stringify({ design: bigDesign(cur.design, 20_000), version: cur.version }).slice(0, -2);
+    const r = await owner.client.agent.put(`/api/projects/${projectId}/design`).set('x-csrf-token', token).set('Content-Type', 'application/json').send(broken);
+    expect(r.status).toBe(400);
+    expect(errorBodySchema.parse(r.body).error.code).toBe('bad_request');
+  });
+
+  it('a stale version of a large document is a 409 and writes nothing', async () => {
+    const first = await current();
+    expect((await owner.client.put(`/api/projects/${projectId}/design`, { design: bigDesign(first.design, 2), version: first.version })).status).toBe(200);
+    const cur = await current();
+    const r = await owner.client.put(`/api/projects/${projectId}/design`, { design: bigDesign(cur.design, 20_000), version: cur.version - 1 });
+    expect(r.status).toBe(409);
+    expect((await current()).version).toBe(cur.version);
+  });
+
+  it('other routes keep a 1 MB ceiling: a 2 MB project body is refused with 413', async () => {
+    const r = await owner.client.post('/api/projects', { name: 'Huge', description: 'x'.repeat(2 * 1024 * 1024) });
+    expect(r.status).toBe(413);
+    expect(errorBodySchema.parse(r.body).error.code).toBe('payload_too_large');
+  });
+  it(`accepts ${MAX_SITES.toLocaleString('en-US')} sites (not 413) and stores them all`, async () => {
+    const cur = await current(bigProjectId);
+    const design = bigDesign(cur.design, MAX_SITES);
+    const body = JSON.stringify({ design, version: cur.version });
+    // far above the old 5 MB limit: this is what answered 413 before
+    expect(body.length).toBeGreaterThan(5 * 1024 * 1024);
+    const r = await owner.client.put(`/api/projects/${bigProjectId}/design`, JSON.parse(body));
+    expect(r.status).toBe(200);
+    expect(r.body.version).toBe(cur.version + 1);
+    expect(r.body.design.sites).toHaveLength(MAX_SITES);
+    expect(r.body.design.sites[MAX_SITES - 1].id).toBe(`site-${MAX_SITES - 1}`);
+    const stored = await env.knex('designs').where({ project_id: bigProjectId }).first(env.knex.raw(`jsonb_array_length(document->'sites') as n`));
+    expect(Number(stored.n)).toBe(MAX_SITES);
+    const audit = await env.knex('audit_events').where({ project_id: bigProjectId, action: 'design.update' }).orderBy('id', 'desc').first();
+    expect(audit.detail).toMatchObject({ sites: MAX_SITES, version: cur.version + 1 });
+  });
+});
