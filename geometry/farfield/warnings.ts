@@ -3,6 +3,8 @@
  * resident session (session.ts) give the same codes, messages and site lists in the same order.
  * Order of the list: pairs-limited (when pairs are limited), then the site and pair findings
  * below, then element-budget (when an element estimate was asked for).
+ * The words are shared by the command line and the studio's far-field panel; they say "domain
+ * box" for the document's `enclosure` (the on-screen name, issue 9).
  */
 import type { Boundary, Vec3 } from '../design/types';
 import type { FarFieldWarning } from './check';
@@ -51,7 +53,7 @@ export function findingsWarnings(f: Findings): FarFieldWarning[] {
     warnings.push({
       code: 'site-outside-enclosure',
       severity: 'error',
-      message: `${f.outside.length} site(s) lie outside the enclosure or on its boundary; no boundary bound exists for them. Move them inside or enlarge the half-extents.`,
+      message: `${f.outside.length} site(s) lie outside the domain box or on its boundary; no boundary bound exists for them. Move them inside or enlarge the half-extents.`,
       siteIds: f.outside,
     });
   if (f.tooClose.length)
@@ -65,7 +67,7 @@ export function findingsWarnings(f: Findings): FarFieldWarning[] {
     warnings.push({
       code: 'density-cut',
       severity: 'warning',
-      message: `The enclosure cuts off more than ${pct(tol / 10)} of the density of ${f.cut.length} site(s) (largest ${pct(f.worstCut)}); the boundary bound assumes the density lies inside.`,
+      message: `The domain box cuts off more than ${pct(tol / 10)} of the density of ${f.cut.length} site(s) (largest ${pct(f.worstCut)}); the boundary bound assumes the density lies inside.`,
       siteIds: f.cut,
     });
   if (f.coincide.length)
@@ -97,7 +99,7 @@ export function elementBudgetWarning(estimate: number, maxElements: number): Far
   return {
     code: 'element-budget',
     severity: 'warning',
-    message: `The recommended enclosure would need about ${estimate} elements, more than the budget of ${maxElements}.`,
+    message: `The recommended domain box would need about ${estimate} elements, more than the budget of ${maxElements}.`,
     siteIds: [],
   };
 }
