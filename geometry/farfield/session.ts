@@ -123,6 +123,10 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   // pair set (site indices) and the overlap sweep order; null when they must be rebuilt
   let pairI: Int32Array | null = null;
   let pairJ: Int32Array | null = null;
+  // after a move (site indices unchanged) the old pair set, whose cached results the rebuilt set
+  // takes over pair by pair; null after a change of the site list
+  let prevPairI: Int32Array | null = null;
+  let prevPairJ: Int32Array | null = null;
   let sweep: number[] | null = null;
   let sweepStale = true;
   // per pair of the pair set: the PairBound given out last time, the two site states, box stamp
@@ -163,6 +167,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   };
   const structureChanged = () => {
     pairI = pairJ = null;
+    prevPairI = prevPairJ = null;
     sweep = null;
     sweepFound = null;
   };
@@ -211,7 +216,11 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
           states[i] = newState(s);
           if (!sameVec(old.position, s.position) || old.cluster !== s.cluster) {
             // the bond graph depends on positions and clusters; all pairs do not
-            if (states.length > limit) pairI = pairJ = null;
+            if (states.length > limit && pairI && pairJ) {
+              prevPairI = pairI;
+              prevPairJ = pairJ;
+              pairI = pairJ = null;
+            }
             sweepStale = true;
             sweepFound = null;
           }
@@ -332,11 +341,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       }
       pairI = Int32Array.from(I);
       pairJ = Int32Array.from(J);
-      pairObj = new Array(I.length).fill(null);
-      pairStA = new Array(I.length).fill(null);
-      pairStB = new Array(I.length).fill(null);
-      pairV = new Float64Array(I.length);
-      pairBox = new Float64Array(I.length).fill(-1);
+      carryPairs(pairI, pairJ);
     }
     if (ev !== pairEv) {
       pairBox.fill(-1);
@@ -463,6 +468,49 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
     };
     if (options.moments) r.moments = moments();
     return r;
+  }
+
+  /**
+   * New per-pair caches for a rebuilt pair set. After a move the site indices are the same, so a
+   * pair (i, j) found in the previous set keeps its cached result (looked up through the old
+   * pairs grouped by i: a few per site); the cache still checks the two site states and the box.
+   */
+  function carryPairs(I: Int32Array, J: Int32Array): void {
+    const m = I.length;
+    const obj: (PairBound | null)[] = new Array(m).fill(null);
+    const stA: (SiteState | null)[] = new Array(m).fill(null);
+    const stB: (SiteState | null)[] = new Array(m).fill(null);
+    const val = new Float64Array(m);
+    const box = new Float64Array(m).fill(-1);
+    const oldI = prevPairI, oldJ = prevPairJ;
+    if (oldI && oldJ && oldI.length === pairObj.length) {
+      const n = states.length;
+      const start = new Uint32Array(n + 1);
+      for (let t = 0; t < oldI.length; t++) start[oldI[t] + 1]++;
+      for (let i = 0; i < n; i++) start[i + 1] += start[i];
+      const fill = start.slice(0, n);
+      const byI = new Uint32Array(oldI.length);
+      for (let t = 0; t < oldI.length; t++) byI[fill[oldI[t]]++] = t;
+      for (let t = 0; t < m; t++) {
+        const i = I[t], j = J[t];
+        for (let u = start[i]; u < start[i + 1]; u++) {
+          const o = byI[u];
+          if (oldJ[o] !== j) continue;
+          obj[t] = pairObj[o];
+          stA[t] = pairStA[o];
+          stB[t] = pairStB[o];
+          val[t] = pairV[o];
+          box[t] = pairBox[o];
+          break;
+        }
+      }
+    }
+    pairObj = obj;
+    pairStA = stA;
+    pairStB = stB;
+    pairV = val;
+    pairBox = box;
+    prevPairI = prevPairJ = null;
   }
 
   function overlapSweep(a: number, n: number): { coincide: string[]; overlap: string[] } {
