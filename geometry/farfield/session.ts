@@ -565,11 +565,19 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       cachedWithElements = r;
       return r;
     }
-    const est = options.estimateElements(r.recommendedHalfExtentsNm, currentDesign());
-    const budget = elementBudgetWarning(est, refinement.maxElements);
-    cachedWithElements = { ...r, elementsEstimate: est, warnings: budget ? [...r.warnings, budget] : r.warnings };
+    cachedWithElements = withElementEstimate(r, options.estimateElements(r.recommendedHalfExtentsNm, currentDesign()), refinement.maxElements);
     return cachedWithElements;
   }
 
   return { applyChanges, report, reportWithElements, design: currentDesign };
+}
+
+/**
+ * A report with an element estimate added as farFieldCheck adds it: `elementsEstimate`, and the
+ * element-budget warning last when the estimate exceeds the budget. For callers that work out
+ * the estimate elsewhere (the studio runs it in a second worker so the bounds stay live).
+ */
+export function withElementEstimate(r: FarFieldReport, estimate: number, maxElements: number): FarFieldReport {
+  const budget = elementBudgetWarning(estimate, maxElements);
+  return { ...r, elementsEstimate: estimate, warnings: budget ? [...r.warnings, budget] : r.warnings };
 }

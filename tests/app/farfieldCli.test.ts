@@ -14,7 +14,8 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { DesignDocument } from '@contracts/design';
 import { toCheckJson } from '../../server/cli/check';
-import { createWorkerCore } from '../../app/src/features/studio/farfield/workerCore';
+import { createWorkerCore, estimateElementsFor } from '../../app/src/features/studio/farfield/workerCore';
+import { withElementEstimate, type FarFieldReport } from '../../geometry/farfield';
 import { diffDesign } from '../../app/src/features/studio/farfield/diffDesign';
 import { generateArray } from '../../geometry/arrays';
 import { siteToNm, snapToLattice } from '../../geometry/lattice';
@@ -32,6 +33,12 @@ function cliCheck(doc: DesignDocument, name: string): unknown {
   return JSON.parse(r.stdout);
 }
 
+/** What the panel shows once the element worker has answered (useFarField does the same). */
+function withElements(bounds: FarFieldReport, doc: DesignDocument): FarFieldReport {
+  const rec = bounds.recommendedHalfExtentsNm;
+  return rec.every(Number.isFinite) ? withElementEstimate(bounds, estimateElementsFor(doc, rec), doc.refinement.maxElements) : bounds;
+}
+
 /** The JSON text both sides would print, read back: the comparison the user would make. */
 const asPrinted = (x: unknown) => JSON.parse(JSON.stringify(x));
 
@@ -39,8 +46,10 @@ describe('live far-field check equals npm run cli -- check --json', () => {
   it('the README plaquette, sent whole', () => {
     const doc = JSON.parse(readFileSync(join(root, 'tests/fixtures/designs/plaquette.json'), 'utf8')) as DesignDocument;
     const core = createWorkerCore();
-    core.reset(doc);
-    expect(asPrinted(toCheckJson(core.withElements()))).toEqual(cliCheck(doc, 'plaquette'));
+    const bounds = core.reset(doc);
+    const printed = cliCheck(doc, 'plaquette') as { recommendedElements: number | null };
+    expect(printed.recommendedElements).toBeGreaterThan(0);
+    expect(asPrinted(toCheckJson(withElements(bounds, doc)))).toEqual(printed);
   });
 
   it('a 9×9 array of 2-donor clusters (bond-graph pairs) after edits sent as changes', () => {
@@ -56,10 +65,11 @@ describe('live far-field check equals npm run cli -- check --json', () => {
     };
     const core = createWorkerCore();
     let sent: DesignDocument | null = null;
+    let bounds: FarFieldReport | null = null;
     const send = (doc: DesignDocument) => {
       const d = diffDesign(sent, doc);
-      if (d.kind === 'reset') core.reset(d.design);
-      else if (d.kind === 'changes') core.apply(d.changes);
+      if (d.kind === 'reset') bounds = core.reset(d.design);
+      else if (d.kind === 'changes') bounds = core.apply(d.changes);
       sent = doc;
     };
     send(start);
@@ -81,7 +91,8 @@ describe('live far-field check equals npm run cli -- check --json', () => {
     sites.splice(12, 1);
     send((doc = { ...doc, sites }));
     send((doc = { ...doc, enclosure: { ...doc.enclosure, halfExtentsNm: [22, 22, 8] } }));
-    const live = asPrinted(toCheckJson(core.withElements()));
+    if (!bounds) throw new Error('no report');
+    const live = asPrinted(toCheckJson(withElements(bounds, doc)));
     const printed = cliCheck(doc, 'edited') as { warnings: { code: string }[]; pairs: unknown[] };
     // the edits reached the numbers: a too-close boundary and bond-graph pairs
     expect(printed.warnings.map((w) => w.code)).toEqual(expect.arrayContaining(['boundary-too-close', 'pairs-limited']));
