@@ -3,7 +3,7 @@
  * open /dev/farfield-preview.html. Not part of the build (Vite builds app/index.html only).
  * An invented 3×3 square array at 8 lattice constants; buttons stand in for the studio's edits.
  */
-import { StrictMode, useState } from 'react';
+import { StrictMode, useEffect, useRef, useState } from 'react';
 import { createRoot } from 'react-dom/client';
 import '@fontsource/manrope/400.css';
 import '@fontsource/manrope/700.css';
@@ -31,14 +31,25 @@ function Preview() {
   const [doc, setDoc] = useState<DesignDocument>(() => start(3));
   const [readOnly, setReadOnly] = useState(false);
   const live = useFarField(doc);
+  // time from an edit to the bounds that answer it (shown for checking speed by eye)
+  const editedAt = useRef(0);
+  const [latency, setLatency] = useState<number | null>(null);
+  useEffect(() => {
+    if (editedAt.current && !live.computing) {
+      setLatency(performance.now() - editedAt.current);
+      editedAt.current = 0;
+    }
+  }, [live.report, live.computing]);
   const shrink = () => setDoc((d) => ({ ...d, enclosure: { ...d.enclosure, halfExtentsNm: d.enclosure.halfExtentsNm.map((h) => h * 0.8) as [number, number, number] } }));
-  const move = () =>
+  const move = () => {
+    editedAt.current = performance.now();
     setDoc((d) => {
       const sites = d.sites.slice();
       const s = sites[0];
       sites[0] = { ...s, position: siteToNm(snapToLattice([s.position[0] + A, s.position[1], s.position[2]], A), A) };
       return { ...d, sites };
     });
+  };
   return (
     <main className="mx-auto max-w-3xl space-y-3 p-4">
       <div className="flex flex-wrap gap-2 text-note">
@@ -48,6 +59,7 @@ function Preview() {
         <label className="flex items-center gap-1">
           <input type="checkbox" checked={readOnly} onChange={(e) => setReadOnly(e.target.checked)} /> viewer (read-only)
         </label>
+        <output data-testid="latency">{latency === null ? '' : `last update ${latency.toFixed(0)} ms`}</output>
       </div>
       <FarFieldPanel
         {...live}

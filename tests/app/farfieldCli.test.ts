@@ -15,6 +15,7 @@ import { fileURLToPath } from 'node:url';
 import type { DesignDocument } from '@contracts/design';
 import { toCheckJson } from '../../server/cli/check';
 import { createWorkerCore, estimateElementsFor } from '../../app/src/features/studio/farfield/workerCore';
+import { unpackReport } from '../../app/src/features/studio/farfield/transport';
 import { withElementEstimate, type FarFieldReport } from '../../geometry/farfield';
 import { diffDesign } from '../../app/src/features/studio/farfield/diffDesign';
 import { generateArray } from '../../geometry/arrays';
@@ -46,7 +47,8 @@ describe('live far-field check equals npm run cli -- check --json', () => {
   it('the README plaquette, sent whole', () => {
     const doc = JSON.parse(readFileSync(join(root, 'tests/fixtures/designs/plaquette.json'), 'utf8')) as DesignDocument;
     const core = createWorkerCore();
-    const bounds = core.reset(doc);
+    // through the same packing the worker uses for its trip to the page
+    const bounds = unpackReport(structuredClone(core.reset(doc)));
     const printed = cliCheck(doc, 'plaquette') as { recommendedElements: number | null };
     expect(printed.recommendedElements).toBeGreaterThan(0);
     expect(asPrinted(toCheckJson(withElements(bounds, doc)))).toEqual(printed);
@@ -68,8 +70,8 @@ describe('live far-field check equals npm run cli -- check --json', () => {
     let bounds: FarFieldReport | null = null;
     const send = (doc: DesignDocument) => {
       const d = diffDesign(sent, doc);
-      if (d.kind === 'reset') bounds = core.reset(d.design);
-      else if (d.kind === 'changes') bounds = core.apply(d.changes);
+      if (d.kind === 'reset') bounds = unpackReport(structuredClone(core.reset(d.design)));
+      else if (d.kind === 'changes') bounds = unpackReport(structuredClone(core.apply(d.changes)));
       sent = doc;
     };
     send(start);

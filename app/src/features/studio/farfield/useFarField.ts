@@ -10,6 +10,7 @@ import { releaseProxy, wrap, type Remote } from 'comlink';
 import type { DesignDocument } from '@contracts/design';
 import { withElementEstimate, type FarFieldReport } from '../../../../../geometry/farfield';
 import { diffDesign } from './diffDesign';
+import { unpackReport } from './transport';
 import type { ElementsWorkerApi, FarFieldWorkerApi } from './workerCore';
 
 export interface FarFieldState {
@@ -103,7 +104,7 @@ export function useFarField(document: DesignDocument): FarFieldState {
       try {
         const diff = diffDesign(sent.current, doc);
         const report =
-          diff.kind === 'reset' ? await remote.reset(diff.design) : diff.kind === 'changes' ? await remote.apply(diff.changes) : lastBounds.current;
+          diff.kind === 'reset' ? unpackReport(await remote.reset(diff.design)) : diff.kind === 'changes' ? unpackReport(await remote.apply(diff.changes)) : lastBounds.current;
         sent.current = doc;
         lastBounds.current = report;
         if (alive.current && !waiting.current && report) {

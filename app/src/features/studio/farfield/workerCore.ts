@@ -4,15 +4,16 @@
  * estimateDesignElements with no cap, rounded). Kept apart from the worker files so tests run
  * them in Node and compare them with the CLI.
  */
-import { createFarFieldSession, type FarFieldChanges, type FarFieldReport, type FarFieldSession } from '../../../../../geometry/farfield';
+import { createFarFieldSession, type FarFieldChanges, type FarFieldSession } from '../../../../../geometry/farfield';
 import { estimateDesignElements } from '../../../../../geometry/mesh/index';
 import type { Design, Vec3 } from '../../../../../geometry/design/types';
+import { packReport, type PackedReport } from './transport';
 
 export interface FarFieldWorkerApi {
-  /** take a whole design (first document, or after an error); returns the bounds */
-  reset(design: Design): FarFieldReport;
-  /** apply edits to the resident design; returns the bounds (no element estimate) */
-  apply(changes: FarFieldChanges): FarFieldReport;
+  /** take a whole design (first document, or after an error); returns the bounds, packed (unpackReport) */
+  reset(design: Design): PackedReport;
+  /** apply edits to the resident design; returns the bounds (no element estimate), packed */
+  apply(changes: FarFieldChanges): PackedReport;
 }
 
 export interface ElementsWorkerApi {
@@ -30,11 +31,11 @@ export function createWorkerCore(): FarFieldWorkerApi {
   return {
     reset(design) {
       session = createFarFieldSession(design);
-      return session.report();
+      return packReport(session.report());
     },
     apply(changes) {
       if (!session) throw new Error('the far-field worker has no design yet');
-      return session.applyChanges(changes);
+      return packReport(session.applyChanges(changes));
     },
   };
 }
