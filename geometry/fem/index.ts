@@ -44,5 +44,5 @@ export { boundaryValues } from './boundary';
 export { solveCoulomb, solveSitePotentials, energiesOnMesh, richardson, observedRate, CoulombError, COULOMB_ASSUMPTIONS } from './coulomb';
 export type { CoulombOptions, CoulombResult, SiteEnergy, PairEnergy, ErrorBudget, Progress } from './coulomb';
 export { residualIndicator, dorflerMark, runAdaptive, DEFAULT_THETA } from './adaptive';
-export { runStudy, fitLogLog } from './study';
-export type { StudyOptions, StudyResult, StudyPlot } from './study';
+export { runConvergence, fitLogLog } from './convergence';
+export type { ConvergenceOptions, ConvergenceResult, ConvergencePlot } from './convergence';
