@@ -48,6 +48,8 @@ export const WARNING_CODES = [
   'pairs-limited',
   'element-budget',
   'no-sites',
+  'orbital-too-small',
+  'orbital-too-large',
 ] as const;
 export type WarningCode = (typeof WARNING_CODES)[number];
 
@@ -95,6 +97,11 @@ export interface FarFieldReport {
   recommendedHalfExtentsNm: Vec3;
   /** element count the refinement would need for the recommended box, when an estimator is given */
   elementsEstimate: number | null;
+  /**
+   * true when the estimator stopped at its cap: the real count is more than elementsEstimate
+   * (a lower bound), which the check reports instead of integrating on
+   */
+  elementsEstimateIsLowerBound: boolean;
   warnings: FarFieldWarning[];
   /**
    * Multipole moments Q_lm (l ≤ 4, real solid harmonics in Racah normalisation, the order of
@@ -110,8 +117,11 @@ export interface FarFieldOptions {
   allPairsLimit?: number;
   /** bond-graph pruning factor (default 1.2, see geometry/arrays/bonds.ts) */
   shellFactor?: number;
-  /** hook for the mesh issue: the element count the refinement would need for given half-extents */
-  estimateElements?: (halfExtentsNm: Vec3) => number;
+  /**
+   * hook for the mesh issue: the element count the refinement would need for given half-extents,
+   * or { elements, atLeast } when the estimator stopped at a cap and elements is a lower bound
+   */
+  estimateElements?: (halfExtentsNm: Vec3) => number | { elements: number; atLeast: boolean };
   /** include the multipole moments up to order 4 of every site and of the array */
   moments?: boolean;
   /** the centre the moments are taken about (default: the enclosure centre) */
@@ -119,6 +129,24 @@ export interface FarFieldOptions {
 }
 
 export const ALL_PAIRS_LIMIT = 64;
+
+/**
+ * Plausible orbital sizes (radiusNm, radiusZNm, sigmaNm) for the envelope models, outside which
+ * check warns (the schema refuses only what no atom can have, see server/contracts/design.ts).
+ * Below a hundredth of the lattice constant (0.0054 nm in silicon) an envelope would sit inside
+ * one atom's core, where the effective-mass picture behind every model here does not hold
+ * (it needs envelopes spanning many unit cells: Kohn & Luttinger 1955, from memory). Above 100 nm,
+ * 40 times the default donor envelope of 2.5 nm, no bound shallow-donor state in silicon is that
+ * large (ground-state radii are 1–3 nm, from memory); the schema's ceiling is 1 µm, so a
+ * warning at a micron could never fire (common practice).
+ */
+export const ORBITAL_MIN_LATTICE_FRACTION = 0.01;
+export const ORBITAL_MAX_PLAUSIBLE_NM = 100;
+
+/** the lengths a user gave for an orbital model */
+function orbitalSizes(o: Orbital): number[] {
+  return o.model === 'anisotropic-1s' ? [o.radiusNm, o.radiusZNm] : o.model === 'gaussian' ? [o.sigmaNm] : [o.radiusNm];
+}
 
 export const MODEL_ASSUMPTIONS = [
   'Homogeneous host with the design\'s relative permittivity; no interfaces, gates or screening.',
@@ -277,6 +305,11 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
   const noElectrons: string[] = [];
   const offLattice: string[] = [];
   const aniso: string[] = [];
+  const tooSmall: string[] = [];
+  const tooLarge: string[] = [];
+  let smallest = Infinity;
+  let largest = 0;
+  const minPlausible = ORBITAL_MIN_LATTICE_FRACTION * a;
   let worst = 0;
   const reqCache = new Map<string, number>();
   for (let i = 0; i < n; i++) {
@@ -307,6 +340,16 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     }
     if (s.electrons === 0) noElectrons.push(s.id);
     if (orbitals[i].model === 'anisotropic-1s') aniso.push(s.id);
+    const sizes = orbitalSizes(orbitals[i]);
+    const lo = Math.min(...sizes), hi = Math.max(...sizes);
+    if (lo < minPlausible) {
+      tooSmall.push(s.id);
+      smallest = Math.min(smallest, lo);
+    }
+    if (hi > ORBITAL_MAX_PLAUSIBLE_NM) {
+      tooLarge.push(s.id);
+      largest = Math.max(largest, hi);
+    }
     const snapped = siteToNm(snapToLattice(s.position, a), a);
     if (dist(snapped, s.position) > 1e-6) offLattice.push(s.id);
   }
@@ -357,16 +400,33 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
       message: 'The anisotropic envelope is a single-valley model; a real donor state sums six valleys and is nearly isotropic apart from lattice-scale oscillations.',
       siteIds: aniso,
     });
+  if (tooSmall.length)
+    warnings.push({
+      code: 'orbital-too-small',
+      severity: 'warning',
+      message: `${tooSmall.length} site(s) have an orbital size below a hundredth of the lattice constant (${minPlausible.toPrecision(3)} nm; smallest ${smallest.toPrecision(3)} nm): such an envelope would sit inside one atom's core, where the effective-mass models used here do not apply, and its mesh would need a huge number of elements.`,
+      siteIds: tooSmall,
+    });
+  if (tooLarge.length)
+    warnings.push({
+      code: 'orbital-too-large',
+      severity: 'warning',
+      message: `${tooLarge.length} site(s) have an orbital size above ${ORBITAL_MAX_PLAUSIBLE_NM} nm (largest ${largest.toPrecision(3)} nm), far beyond any bound donor state in silicon (1–3 nm); check the unit (nm) and the model.`,
+      siteIds: tooLarge,
+    });
   if (noElectrons.length)
     warnings.push({ code: 'no-electrons', severity: 'info', message: 'Sites with no electrons: their bounds are for the orbital an added electron would occupy.', siteIds: noElectrons });
   let elementsEstimate: number | null = null;
+  let elementsEstimateIsLowerBound = false;
   if (options.estimateElements && rec.every(Number.isFinite)) {
-    elementsEstimate = options.estimateElements(rec);
+    const e = options.estimateElements(rec);
+    elementsEstimate = typeof e === 'number' ? e : e.elements;
+    elementsEstimateIsLowerBound = typeof e !== 'number' && e.atLeast;
     if (elementsEstimate > design.refinement.maxElements)
       warnings.push({
         code: 'element-budget',
         severity: 'warning',
-        message: `The recommended enclosure would need about ${elementsEstimate} elements, more than the budget of ${design.refinement.maxElements}.`,
+        message: `The recommended enclosure would need ${elementsEstimateIsLowerBound ? 'more than' : 'about'} ${elementsEstimate} elements, more than the budget of ${design.refinement.maxElements}.`,
         siteIds: [],
       });
   }
@@ -378,6 +438,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     worstRelBound: outside.length ? null : worst,
     recommendedHalfExtentsNm: rec,
     elementsEstimate,
+    elementsEstimateIsLowerBound,
     warnings,
     assumptions: MODEL_ASSUMPTIONS,
   };

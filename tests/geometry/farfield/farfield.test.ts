@@ -231,6 +231,35 @@ describe('far-field check', () => {
     expect(r.worstRelBound).toBeNull();
     expect(JSON.parse(JSON.stringify(r)).sites.length).toBe(5);
   });
+  it('warns on orbital sizes below a/100 (a = 0.5431020511 nm, CODATA 2018 Si lattice parameter) or above 100 nm, per site, with the reason', () => {
+    const a = SI_LATTICE_CONSTANT_NM;
+    const sites: Design['sites'] = [
+      { id: 'ok', species: 'P', position: [0, 0, 0], electrons: 1 },
+      { id: 'just-below', species: 'P', position: [5, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: 0.99 * (a / 100) } },
+      { id: 'just-above', species: 'P', position: [-5, 0, 0], electrons: 1, orbital: { model: 'hydrogenic-1s', radiusNm: 1.01 * (a / 100) } },
+      { id: 'flat', species: 'P', position: [0, 5, 0], electrons: 1, orbital: { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1e-4 } },
+      { id: 'huge', species: 'P', position: [0, -5, 0], electrons: 1, orbital: { model: 'hydrogenic-1s', radiusNm: 101 } },
+    ];
+    const r = farFieldCheck(design(sites, [30, 30, 30], { kind: 'multipole', order: 2 }));
+    const byCode = new Map(r.warnings.map((w) => [w.code, w]));
+    expect(byCode.get('orbital-too-small')?.siteIds).toEqual(['just-below', 'flat']);
+    expect(byCode.get('orbital-too-small')?.message).toMatch(/hundredth of the lattice constant \(0\.00543 nm; smallest 0\.000100 nm\)/);
+    expect(byCode.get('orbital-too-large')?.siteIds).toEqual(['huge']);
+    expect(byCode.get('orbital-too-large')?.severity).toBe('warning');
+    // the default plaquette sizes (2.5 nm, Kohn & Luttinger, from memory) raise neither
+    const plain = farFieldCheck(design([sites[0]], [30, 30, 30], { kind: 'multipole', order: 2 }));
+    expect(plain.warnings.map((w) => w.code)).not.toContain('orbital-too-small');
+    expect(plain.warnings.map((w) => w.code)).not.toContain('orbital-too-large');
+  });
+  it('the element-count hook may report a lower bound ("more than N"): the report says so and the budget warning reads "more than"', () => {
+    const sites: Design['sites'] = [{ id: 'd1', species: 'P', position: [0, 0, 0], electrons: 1 }];
+    const d = design(sites, [20, 20, 20], { kind: 'multipole', order: 2 });
+    const r = farFieldCheck(d, { estimateElements: () => ({ elements: 3_000_001, atLeast: true }) });
+    expect(r.elementsEstimate).toBe(3_000_001);
+    expect(r.elementsEstimateIsLowerBound).toBe(true);
+    expect(r.warnings.find((w) => w.code === 'element-budget')?.message).toMatch(/would need more than 3000001 elements/);
+    expect(farFieldCheck(d, { estimateElements: () => 10 }).elementsEstimateIsLowerBound).toBe(false);
+  });
   it('cluster members are not flagged as overlapping; large arrays check bond-graph pairs only', () => {
     const a = SI_LATTICE_CONSTANT_NM;
     const sites: Design['sites'] = [
