@@ -8,7 +8,7 @@
  * where recommendedElements is the mesher's estimate of the graded mesh for the recommended box
  * (null when no box size meets the tolerance). The estimate is capped so that check stays instant
  * on every valid design: past the cap (1.5 × min(maxElements, the mesher's server cap), or a flat
- * box whose initial grid alone is larger, or the estimate's work bound) it stops and
+ * box whose initial grid alone is larger, or CHECK_ESTIMATE_MAX_LEAVES of work) it stops and
  * recommendedElementsIsLowerBound is true: the mesh would need more than recommendedElements.
  * (null stands for "no bound": a site outside the enclosure, or a box no size can fix).
  * --moments adds the multipole moments to order 4 of every site's unit density and of the array
@@ -25,6 +25,13 @@ import { readDesign } from './design-file';
 import { notesAndAssumptions, table } from './text';
 
 const USAGE = 'usage: npm run cli -- check <design.json> [--json] [--moments]';
+
+/**
+ * Work bound of check's element estimate, in cubature leaves (~5–10 µs each on the two-core test
+ * machine, so about a second at most): the plaquette needs ~11,000, a 100-site array ~100,000; larger
+ * counts are reported as "more than N" (common practice: check must stay instant).
+ */
+export const CHECK_ESTIMATE_MAX_LEAVES = 120_000;
 
 const num = (x: number | null) => (x === null || !Number.isFinite(x) ? null : x);
 
@@ -80,7 +87,7 @@ export function toReadable(design: Design, r: FarFieldReport): string {
   if (r.elementsEstimate !== null)
     out.push(
       r.elementsEstimateIsLowerBound
-        ? `elements the refinement would need: more than ${r.elementsEstimate} (the estimate stops there; the mesher refuses above its cap)`
+        ? `elements the refinement would need: more than ${r.elementsEstimate} (the estimate stops there, at its cap)`
         : `elements the refinement would need: about ${r.elementsEstimate}`,
     );
   if (r.moments) {
@@ -122,7 +129,7 @@ export async function run(argv: string[]): Promise<number> {
   const report = farFieldCheck(design, {
     moments,
     estimateElements: (halfExtentsNm) => {
-      const e = estimateDesignElements({ ...design, enclosure: { ...design.enclosure, halfExtentsNm } });
+      const e = estimateDesignElements({ ...design, enclosure: { ...design.enclosure, halfExtentsNm } }, { maxEstimateLeaves: CHECK_ESTIMATE_MAX_LEAVES });
       return { elements: Math.round(e.estimate), atLeast: e.aborted };
     },
   });
