@@ -1,6 +1,6 @@
 /**
  * `npm run cli -- convergence <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json]`:
- * convergence studies of U (and the box-size sweep for grounded and multipole boundaries).
+ * convergence sweeps of U (and the box-size sweep for grounded and multipole boundaries).
  *
  * With --json prints the convergence result: { kind, order, siteIds, rows, plots, fittedRate, theoreticalRate,
  * seconds, notes }. Without it, the table, the fitted rate and the model assumptions.
