@@ -49,6 +49,8 @@ export const WARNING_CODES = [
   'pairs-limited',
   'element-budget',
   'no-sites',
+  'orbital-too-small',
+  'orbital-too-large',
 ] as const;
 export type WarningCode = (typeof WARNING_CODES)[number];
 
@@ -96,6 +98,11 @@ export interface FarFieldReport {
   recommendedHalfExtentsNm: Vec3;
   /** element count the refinement would need for the recommended box, when an estimator is given */
   elementsEstimate: number | null;
+  /**
+   * true when the estimator stopped at its cap: the real count is more than elementsEstimate
+   * (a lower bound), which the check reports instead of integrating on
+   */
+  elementsEstimateIsLowerBound: boolean;
   warnings: FarFieldWarning[];
   /**
    * Multipole moments Q_lm (l ≤ 4, real solid harmonics in Racah normalisation, the order of
@@ -111,8 +118,11 @@ export interface FarFieldOptions {
   allPairsLimit?: number;
   /** bond-graph pruning factor (default 1.2, see geometry/arrays/bonds.ts) */
   shellFactor?: number;
-  /** hook for the mesh issue: the element count the refinement would need for given half-extents */
-  estimateElements?: (halfExtentsNm: Vec3) => number;
+  /**
+   * hook for the mesh issue: the element count the refinement would need for given half-extents,
+   * or { elements, atLeast } when the estimator stopped at a cap and elements is a lower bound
+   */
+  estimateElements?: (halfExtentsNm: Vec3) => number | { elements: number; atLeast: boolean };
   /** include the multipole moments up to order 4 of every site and of the array */
   moments?: boolean;
   /** the centre the moments are taken about (default: the enclosure centre) */
@@ -120,6 +130,24 @@ export interface FarFieldOptions {
 }
 
 export const ALL_PAIRS_LIMIT = 64;
+
+/**
+ * Plausible orbital sizes (radiusNm, radiusZNm, sigmaNm) for the envelope models, outside which
+ * check warns (the schema refuses only what no atom can have, see server/contracts/design.ts).
+ * Below a hundredth of the lattice constant (0.0054 nm in silicon) an envelope would sit inside
+ * one atom's core, where the effective-mass picture behind every model here does not hold
+ * (it needs envelopes spanning many unit cells: Kohn & Luttinger 1955, from memory). Above 100 nm,
+ * 40 times the default donor envelope of 2.5 nm, no bound shallow-donor state in silicon is that
+ * large (ground-state radii are 1–3 nm, from memory); the schema's ceiling is 1 µm, so a
+ * warning at a micron could never fire (common practice).
+ */
+export const ORBITAL_MIN_LATTICE_FRACTION = 0.01;
+export const ORBITAL_MAX_PLAUSIBLE_NM = 100;
+
+/** the lengths a user gave for an orbital model */
+export function orbitalSizes(o: Orbital): number[] {
+  return o.model === 'anisotropic-1s' ? [o.radiusNm, o.radiusZNm] : o.model === 'gaussian' ? [o.sigmaNm] : [o.radiusNm];
+}
 
 export const MODEL_ASSUMPTIONS = [
   'Homogeneous host with the design\'s relative permittivity; no interfaces, gates or screening.',
@@ -239,20 +267,55 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     target[i] = Math.min(target[i], tol * v);
     target[j] = Math.min(target[j], tol * v);
   }
-  // overlap check over all pairs in O(N log N): sweep along x with a window of one lattice constant
+  // Overlap check over all pairs closer than a. Sites are binned into strips of a × a cross-section
+  // along x (keyed by their y and z cells) and sorted by x within a strip; each site looks at the
+  // nine strips around its own, from x − a to x + a. A plain sweep along x degrades on lattice arrays,
+  // where whole planes of sites share one x (N = 10⁵ in a plane: ~8·10⁶ comparisons instead of ~10⁶).
   {
-    const order = Array.from({ length: n }, (_, i) => i).sort((u, v) => sites[u].position[0] - sites[v].position[0] || u - v);
-    for (let p = 0; p < n; p++) {
-      const i = order[p];
+    const strips = new Map<number, number[]>(); // key → site indices; lookups only, never iterated for output order
+    const cy = new Float64Array(n);
+    const cz = new Float64Array(n);
+    // cells counted from the smallest coordinate, so keys are small non-negative integers
+    let y0 = Infinity, z0 = Infinity;
+    for (let i = 0; i < n; i++) {
+      y0 = Math.min(y0, sites[i].position[1]);
+      z0 = Math.min(z0, sites[i].position[2]);
+    }
+    // |coordinates| ≤ 10⁶ nm and a ≥ ~0.1 nm in practice: cell indices stay below 2²⁵, keys below 2⁵³
+    const STRIDE = 2 ** 26;
+    for (let i = 0; i < n; i++) {
+      cy[i] = Math.floor((sites[i].position[1] - y0) / a);
+      cz[i] = Math.floor((sites[i].position[2] - z0) / a);
+      const key = cy[i] * STRIDE + cz[i];
+      const list = strips.get(key);
+      if (list) list.push(i);
+      else strips.set(key, [i]);
+    }
+    for (const list of strips.values()) list.sort((u, v) => sites[u].position[0] - sites[v].position[0] || u - v);
+    for (let i = 0; i < n; i++) {
       const pi = sites[i].position;
-      for (let q = p + 1; q < n; q++) {
-        const j = order[q];
-        const pj = sites[j].position;
-        if (pj[0] - pi[0] >= a) break;
-        const R = dist(pi, pj);
-        if (R < 1e-6) {
-          coincide.push(sites[i].id, sites[j].id); // uniq() below removes repeats
-        } else if (R < a && !(sites[i].cluster !== undefined && sites[i].cluster === sites[j].cluster)) overlap.push(sites[i].id, sites[j].id);
+      for (let dy = -1; dy <= 1; dy++) {
+        for (let dz = -1; dz <= 1; dz++) {
+          const list = strips.get((cy[i] + dy) * STRIDE + (cz[i] + dz));
+          if (!list) continue;
+          // first entry with x > x_i − a (binary search), then scan while x < x_i + a
+          let lo = 0, hi = list.length;
+          while (lo < hi) {
+            const mid = (lo + hi) >> 1;
+            if (sites[list[mid]].position[0] <= pi[0] - a) lo = mid + 1;
+            else hi = mid;
+          }
+          for (let q = lo; q < list.length; q++) {
+            const j = list[q];
+            const pj = sites[j].position;
+            if (pj[0] - pi[0] >= a) break;
+            if (j <= i) continue; // each pair once, from its lower index
+            const R = dist(pi, pj);
+            if (R < 1e-6) {
+              coincide.push(sites[i].id, sites[j].id); // uniq() below removes repeats
+            } else if (R < a && !(sites[i].cluster !== undefined && sites[i].cluster === sites[j].cluster)) overlap.push(sites[i].id, sites[j].id);
+          }
+        }
       }
     }
   }
@@ -267,6 +330,11 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
   const noElectrons: string[] = [];
   const offLattice: string[] = [];
   const aniso: string[] = [];
+  const tooSmall: string[] = [];
+  const tooLarge: string[] = [];
+  let smallest = Infinity;
+  let largest = 0;
+  const minPlausible = ORBITAL_MIN_LATTICE_FRACTION * a;
   let worst = 0;
   const reqCache = new Map<string, number>();
   for (let i = 0; i < n; i++) {
@@ -297,6 +365,16 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     }
     if (s.electrons === 0) noElectrons.push(s.id);
     if (orbitals[i].model === 'anisotropic-1s') aniso.push(s.id);
+    const sizes = orbitalSizes(orbitals[i]);
+    const lo = Math.min(...sizes), hi = Math.max(...sizes);
+    if (lo < minPlausible) {
+      tooSmall.push(s.id);
+      smallest = Math.min(smallest, lo);
+    }
+    if (hi > ORBITAL_MAX_PLAUSIBLE_NM) {
+      tooLarge.push(s.id);
+      largest = Math.max(largest, hi);
+    }
     const snapped = siteToNm(snapToLattice(s.position, a), a);
     if (dist(snapped, s.position) > 1e-6) offLattice.push(s.id);
   }
@@ -309,12 +387,16 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     ...findingsWarnings({
       siteCount: n, boundary, tolerance: tol, latticeConstantNm: a, worst, recommended: rec,
       outside, tooClose, cut, worstCut, coincide, overlap, offLattice, aniso, noElectrons,
+      tooSmall, tooLarge, smallest, largest, minPlausible,
     }),
   );
   let elementsEstimate: number | null = null;
+  let elementsEstimateIsLowerBound = false;
   if (options.estimateElements && rec.every(Number.isFinite)) {
-    elementsEstimate = options.estimateElements(rec);
-    const budget = elementBudgetWarning(elementsEstimate, design.refinement.maxElements);
+    const e = options.estimateElements(rec);
+    elementsEstimate = typeof e === 'number' ? e : e.elements;
+    elementsEstimateIsLowerBound = typeof e !== 'number' && e.atLeast;
+    const budget = elementBudgetWarning(elementsEstimate, design.refinement.maxElements, elementsEstimateIsLowerBound);
     if (budget) warnings.push(budget);
   }
   const report: FarFieldReport = {
@@ -325,6 +407,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     worstRelBound: outside.length ? null : worst,
     recommendedHalfExtentsNm: rec,
     elementsEstimate,
+    elementsEstimateIsLowerBound,
     warnings,
     assumptions: MODEL_ASSUMPTIONS,
   };

@@ -3,7 +3,7 @@
  * the neglected-far-field envelope per orbital, and the maximum-principle bounds on U_i and
  * V_ij with a recommended enclosure.
  */
-export { farFieldCheck, ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, WARNING_CODES } from './check';
+export { farFieldCheck, ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, WARNING_CODES, ORBITAL_MIN_LATTICE_FRACTION, ORBITAL_MAX_PLAUSIBLE_NM } from './check';
 export type { FarFieldOptions, FarFieldReport, FarFieldWarning, PairBound, SiteBound, WarningCode } from './check';
 export { clearanceFor, keptOrder, neglectedEnvelope } from './envelope';
 export type { Envelope } from './envelope';

@@ -28,7 +28,7 @@ import { snapToLattice, siteToNm } from '../lattice';
 import { neglectedEnvelope, type Envelope } from './envelope';
 import { harmonicCount } from './harmonics';
 import { orbitalMoments } from './moments';
-import { ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, requiredClearance, type FarFieldOptions, type FarFieldReport, type PairBound, type SiteBound } from './check';
+import { ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, ORBITAL_MAX_PLAUSIBLE_NM, ORBITAL_MIN_LATTICE_FRACTION, orbitalSizes, requiredClearance, type FarFieldOptions, type FarFieldReport, type PairBound, type SiteBound } from './check';
 import { describeBoundary, elementBudgetWarning, findingsWarnings, pairsLimitedWarning } from './warnings';
 
 /**
@@ -403,6 +403,11 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
     const noElectrons: string[] = [];
     const offLattice: string[] = [];
     const aniso: string[] = [];
+    const tooSmall: string[] = [];
+    const tooLarge: string[] = [];
+    let smallest = Infinity;
+    let largest = 0;
+    const minPlausible = ORBITAL_MIN_LATTICE_FRACTION * a;
     let worst = 0;
     for (let i = 0; i < n; i++) {
       const st = states[i];
@@ -442,6 +447,16 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       }
       if (s.electrons === 0) noElectrons.push(s.id);
       if (st.orbital.model === 'anisotropic-1s') aniso.push(s.id);
+      const sizes = orbitalSizes(st.orbital);
+      const lo = Math.min(...sizes), hi = Math.max(...sizes);
+      if (lo < minPlausible) {
+        tooSmall.push(s.id);
+        smallest = Math.min(smallest, lo);
+      }
+      if (hi > ORBITAL_MAX_PLAUSIBLE_NM) {
+        tooLarge.push(s.id);
+        largest = Math.max(largest, hi);
+      }
       if (st.offLattice) offLattice.push(s.id);
     }
     for (const p of pairs) {
@@ -453,6 +468,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       ...findingsWarnings({
         siteCount: n, boundary, tolerance: tol, latticeConstantNm: a, worst, recommended: rec,
         outside, tooClose, cut, worstCut, coincide, overlap, offLattice, aniso, noElectrons,
+        tooSmall, tooLarge, smallest, largest, minPlausible,
       }),
     );
     const r: FarFieldReport = {
@@ -463,6 +479,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       worstRelBound: outside.length ? null : worst,
       recommendedHalfExtentsNm: rec,
       elementsEstimate: null,
+      elementsEstimateIsLowerBound: false,
       warnings,
       assumptions: MODEL_ASSUMPTIONS,
     };
@@ -577,7 +594,13 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
  * element-budget warning last when the estimate exceeds the budget. For callers that work out
  * the estimate elsewhere (the studio runs it in a second worker so the bounds stay live).
  */
-export function withElementEstimate(r: FarFieldReport, estimate: number, maxElements: number): FarFieldReport {
-  const budget = elementBudgetWarning(estimate, maxElements);
-  return { ...r, elementsEstimate: estimate, warnings: budget ? [...r.warnings, budget] : r.warnings };
+export function withElementEstimate(
+  r: FarFieldReport,
+  estimate: number | { elements: number; atLeast: boolean },
+  maxElements: number,
+): FarFieldReport {
+  const elements = typeof estimate === 'number' ? estimate : estimate.elements;
+  const atLeast = typeof estimate !== 'number' && estimate.atLeast;
+  const budget = elementBudgetWarning(elements, maxElements, atLeast);
+  return { ...r, elementsEstimate: elements, elementsEstimateIsLowerBound: atLeast, warnings: budget ? [...r.warnings, budget] : r.warnings };
 }

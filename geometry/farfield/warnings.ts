@@ -7,7 +7,7 @@
  * box" for the document's `enclosure` (the on-screen name, issue 9).
  */
 import type { Boundary, Vec3 } from '../design/types';
-import type { FarFieldWarning } from './check';
+import { ORBITAL_MAX_PLAUSIBLE_NM, type FarFieldWarning } from './check';
 
 export function describeBoundary(b: Boundary): string {
   return b.kind === 'grounded' ? 'grounded' : `multipole(order ${b.order})`;
@@ -41,6 +41,13 @@ export interface Findings {
   offLattice: string[];
   aniso: string[];
   noElectrons: string[];
+  /** sites whose orbital is smaller than `minPlausible` (a hundredth of the lattice constant), and the smallest size */
+  tooSmall: string[];
+  smallest: number;
+  minPlausible: number;
+  /** sites whose orbital is larger than ORBITAL_MAX_PLAUSIBLE_NM, and the largest size */
+  tooLarge: string[];
+  largest: number;
 }
 
 export function findingsWarnings(f: Findings): FarFieldWarning[] {
@@ -88,18 +95,32 @@ export function findingsWarnings(f: Findings): FarFieldWarning[] {
       message: 'The anisotropic envelope is a single-valley model; a real donor state sums six valleys and is nearly isotropic apart from lattice-scale oscillations.',
       siteIds: f.aniso,
     });
+  if (f.tooSmall.length)
+    warnings.push({
+      code: 'orbital-too-small',
+      severity: 'warning',
+      message: `${f.tooSmall.length} site(s) have an orbital size below a hundredth of the lattice constant (${f.minPlausible.toPrecision(3)} nm; smallest ${f.smallest.toPrecision(3)} nm): such an envelope would sit inside one atom's core, where the effective-mass models used here do not apply, and its mesh would need a huge number of elements.`,
+      siteIds: f.tooSmall,
+    });
+  if (f.tooLarge.length)
+    warnings.push({
+      code: 'orbital-too-large',
+      severity: 'warning',
+      message: `${f.tooLarge.length} site(s) have an orbital size above ${ORBITAL_MAX_PLAUSIBLE_NM} nm (largest ${f.largest.toPrecision(3)} nm), far beyond any bound donor state in silicon (1–3 nm); check the unit (nm) and the model.`,
+      siteIds: f.tooLarge,
+    });
   if (f.noElectrons.length)
     warnings.push({ code: 'no-electrons', severity: 'info', message: 'Sites with no electrons: their bounds are for the orbital an added electron would occupy.', siteIds: f.noElectrons });
   return warnings;
 }
 
 /** The element-budget warning, or null when the estimate fits the budget. */
-export function elementBudgetWarning(estimate: number, maxElements: number): FarFieldWarning | null {
+export function elementBudgetWarning(estimate: number, maxElements: number, isLowerBound = false): FarFieldWarning | null {
   if (!(estimate > maxElements)) return null;
   return {
     code: 'element-budget',
     severity: 'warning',
-    message: `The recommended domain box would need about ${estimate} elements, more than the budget of ${maxElements}.`,
+    message: `The recommended domain box would need ${isLowerBound ? 'more than' : 'about'} ${estimate} elements, more than the budget of ${maxElements}.`,
     siteIds: [],
   };
 }

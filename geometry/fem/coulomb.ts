@@ -95,7 +95,7 @@ export interface CoulombOptions {
   /** PCG relative residual (default 1e-10) */
   solverTol?: number;
   preconditioner?: 'multigrid' | 'jacobi';
-  /** quadrature options of the density loads (default: load.ts's; for studies and tests) */
+  /** quadrature options of the density loads (default: load.ts's; for convergence sweeps and tests) */
   load?: DensityLoadOptions;
   onProgress?: (p: Progress) => void;
   signal?: AbortSignal | { readonly aborted: boolean };
@@ -683,7 +683,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
 }
 
 /**
- * U of every site with electrons on one given mesh (eV), for studies that build their own meshes.
+ * U of every site with electrons on one given mesh (eV), for convergence sweeps that build their own meshes.
  */
 export function energiesOnMesh(
   design: Design,

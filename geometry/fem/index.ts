@@ -37,12 +37,12 @@ export {
 } from './reference';
 
 // The Coulomb problem layer: densities, boundary values, U and V with error bars, adaptivity,
-// studies (the worker pool lives in pool.ts and is imported directly by Node-side callers only).
+// convergence sweeps (the worker pool lives in pool.ts and is imported directly by Node-side callers only).
 export { densityLoad } from './load';
 export type { DensityLoad, DensityLoadOptions } from './load';
 export { boundaryValues } from './boundary';
 export { solveCoulomb, solveSitePotentials, energiesOnMesh, richardson, observedRate, CoulombError, COULOMB_ASSUMPTIONS } from './coulomb';
 export type { CoulombOptions, CoulombResult, SiteEnergy, PairEnergy, ErrorBudget, Progress } from './coulomb';
 export { residualIndicator, dorflerMark, runAdaptive, DEFAULT_THETA } from './adaptive';
-export { runStudy, fitLogLog } from './study';
-export type { StudyOptions, StudyResult, StudyPlot } from './study';
+export { runConvergence, fitLogLog } from './convergence';
+export type { ConvergenceOptions, ConvergenceResult, ConvergencePlot } from './convergence';

@@ -12,14 +12,14 @@
 import type { MessagePort } from 'node:worker_threads';
 import type { Design } from '../design/types';
 import { solveCoulomb, solveSitePotentials, type CoulombOptions, type Progress } from './coulomb';
-import { runStudy, type StudyOptions } from './study';
+import { runConvergence, type ConvergenceOptions } from './convergence';
 import type { TetMesh } from '../mesh/types';
 
 export const PROGRESS_INTERVAL_MS = 50;
 
 export type CoulombJob =
   | { kind: 'coulomb'; design: Design; options?: Omit<CoulombOptions, 'onProgress' | 'signal'> }
-  | { kind: 'study'; design: Design; options: Omit<StudyOptions, 'onProgress' | 'signal'> }
+  | { kind: 'convergence'; design: Design; options: Omit<ConvergenceOptions, 'onProgress' | 'signal'> }
   | { kind: 'potentials'; design: Design; mesh: TetMesh; order?: 1 | 2 };
 
 export interface WorkerTask {
@@ -47,8 +47,8 @@ export default function runJob(task: WorkerTask): unknown {
     switch (job.kind) {
       case 'coulomb':
         return solveCoulomb(job.design, { ...job.options, onProgress });
-      case 'study':
-        return runStudy(job.design, { ...job.options, onProgress });
+      case 'convergence':
+        return runConvergence(job.design, { ...job.options, onProgress });
       case 'potentials': {
         const r = solveSitePotentials(job.design, job.mesh, job.order ?? job.design.refinement.order, { onProgress });
         return r;

@@ -91,12 +91,16 @@ export interface CubatureOptions {
   maxDepth?: number;
   /** stop early (return aborted) once the running sum exceeds this; f ≥ 0 makes that safe */
   stopAbove?: number;
+  /** stop early (return aborted, stoppedBy 'work') after this many leaves: the sum is then a lower bound */
+  maxLeaves?: number;
 }
 
 export interface CubatureResult {
   value: number;
   leaves: number;
   aborted: boolean;
+  /** why it stopped early: the sum passed stopAbove ('count') or the leaves ran out ('work') */
+  stoppedBy: 'count' | 'work' | null;
 }
 
 // 2-point Gauss–Legendre nodes on [−1, 1]: ±1/√3, weights 1 (exact for cubics per axis; Abramowitz & Stegun 25.4.29)
@@ -106,6 +110,10 @@ export function adaptiveCubature(f: (x: number, y: number, z: number) => number,
   const cells = opts.cells ?? [1, 1, 1];
   const maxDepth = opts.maxDepth ?? 24;
   const stopAbove = opts.stopAbove ?? Infinity;
+  const maxLeaves = opts.maxLeaves ?? Infinity;
+  // the initial cells go on the stack at once: refuse a grid too large for it (7 numbers a cell)
+  // rather than let the engine fail on the allocation
+  if (!(cells[0] * cells[1] * cells[2] <= Math.min(maxLeaves, 1e7))) return { value: 0, leaves: 0, aborted: true, stoppedBy: 'work' };
   let value = 0;
   let leaves = 0;
   // explicit stack of cells (lo, hi, depth), processed last-in first-out: deterministic order
@@ -143,9 +151,10 @@ export function adaptiveCubature(f: (x: number, y: number, z: number) => number,
     for (let o = 0; o < 8; o++) s += f(c0 + (o & 1 ? r0 : -r0), c1 + (o & 2 ? r1 : -r1), c2 + (o & 4 ? r2 : -r2));
     value += (s / 8) * (u[0] - l[0]) * (u[1] - l[1]) * (u[2] - l[2]);
     leaves++;
-    if (value > stopAbove) return { value, leaves, aborted: true };
+    if (value > stopAbove) return { value, leaves, aborted: true, stoppedBy: 'count' };
+    if (leaves >= maxLeaves && stack.length > 0) return { value, leaves, aborted: true, stoppedBy: 'work' };
   }
-  return { value, leaves, aborted: false };
+  return { value, leaves, aborted: false, stoppedBy: null };
 }
 
 /**
@@ -167,6 +176,8 @@ export interface EstimateInput {
   cells: readonly [number, number, number];
   /** stop integrating once the estimate exceeds this (the caller refuses anyway) */
   stopAbove?: number;
+  /** work bound in cubature leaves (see adaptiveCubature) */
+  maxLeaves?: number;
 }
 
 export interface EstimateResult {
@@ -176,8 +187,9 @@ export interface EstimateResult {
   sizeDriven: number;
   /** number of cubature leaves used */
   leaves: number;
-  /** true when integration stopped early because the estimate passed stopAbove */
+  /** true when integration stopped early because the estimate passed stopAbove or maxLeaves */
   aborted: boolean;
+  stoppedBy: 'count' | 'work' | null;
 }
 
 export function estimateTetCount(input: EstimateInput): EstimateResult {
@@ -227,8 +239,8 @@ export function estimateTetCount(input: EstimateInput): EstimateResult {
     return hmin < LEAF_H_VARIATION * hhi;
   };
   const stop = input.stopAbove === undefined ? undefined : input.stopAbove / CLOSURE_ALLOWANCE;
-  const r = adaptiveCubature(f, boxMin, boxMax, { cells, split, stopAbove: stop });
-  return { tets: CLOSURE_ALLOWANCE * r.value, sizeDriven: r.value, leaves: r.leaves, aborted: r.aborted };
+  const r = adaptiveCubature(f, boxMin, boxMax, { cells, split, stopAbove: stop, maxLeaves: input.maxLeaves });
+  return { tets: CLOSURE_ALLOWANCE * r.value, sizeDriven: r.value, leaves: r.leaves, aborted: r.aborted, stoppedBy: r.stoppedBy };
 }
 
 /**

@@ -28,6 +28,8 @@ export interface MeshDesignOptions extends SizeFieldOptions {
   maxElements?: number;
   /** keep the tagged bisection mesh in the result (for further adaptive refinement) */
   keepBisectionMesh?: boolean;
+  /** work bound of the estimate in cubature leaves (default ESTIMATE_MAX_LEAVES) */
+  maxEstimateLeaves?: number;
 }
 
 export interface MeshDesignStats {
@@ -97,11 +99,30 @@ function checkEnclosure(design: Design): void {
   }
 }
 
+/**
+ * Most cubature leaves one estimate may use. The estimate's work is in its leaves (a few µs each),
+ * so this bounds its time whatever the design; past it the partial sum is still a lower bound
+ * (the integrand is positive). Far above the leaves of any design the mesher can build within the
+ * server cap (common practice).
+ */
+export const ESTIMATE_MAX_LEAVES = 1_000_000;
+
+/** Why an estimate stopped early and is a lower bound only. */
+export type EstimateStop =
+  /** the initial Kuhn grid alone (near-cubic cells across a flat or needle-like box) passes the limit */
+  | 'initial-grid'
+  /** the integrated count passed the limit */
+  | 'count'
+  /** the cubature used ESTIMATE_MAX_LEAVES leaves */
+  | 'work';
+
 export interface DesignEstimate {
   /** estimated tetrahedra of the graded mesh (never below the initial Kuhn mesh) */
   estimate: number;
   /** true when the count passed the limit and integration stopped early (a lower bound then) */
   aborted: boolean;
+  /** why it stopped early (null: the full estimate) */
+  stoppedBy: EstimateStop | null;
   /** min(maxElements, hardCap) */
   limit: number;
   maxElements: number;
@@ -132,15 +153,34 @@ export function estimateDesignElements(design: Design, options: MeshDesignOption
   const initialTets = 6 * cells[0] * cells[1] * cells[2];
 
   const t0 = performance.now();
+  // A flat or needle-like box (half-extents 10⁶ × 10⁶ × 10⁻⁶ nm) needs ~10²⁵ near-cubic initial
+  // cells before any refinement: refuse on that count alone, before anything is allocated.
+  if (!(initialTets <= limit)) {
+    return {
+      estimate: initialTets,
+      aborted: true,
+      stoppedBy: 'initial-grid',
+      limit,
+      maxElements,
+      hardCap,
+      cells,
+      initialTets,
+      leaves: 0,
+      spec,
+      params,
+      seconds: (performance.now() - t0) / 1000,
+    };
+  }
   // a cheap lower bound first (milliseconds even for 10⁵ sites), then the cubature
   const lower = CLOSURE_ALLOWANCE * coreLowerBound(spec, boxMin, boxMax, cells, limit / CLOSURE_ALLOWANCE);
   const est =
     lower > limit
-      ? { tets: lower, sizeDriven: lower / CLOSURE_ALLOWANCE, leaves: 0, aborted: true }
-      : estimateTetCount({ field, boxMin, boxMax, cells, stopAbove: 1.5 * limit });
+      ? { tets: lower, sizeDriven: lower / CLOSURE_ALLOWANCE, leaves: 0, aborted: true, stoppedBy: 'count' as const }
+      : estimateTetCount({ field, boxMin, boxMax, cells, stopAbove: 1.5 * limit, maxLeaves: options.maxEstimateLeaves ?? ESTIMATE_MAX_LEAVES });
   return {
     estimate: Math.max(initialTets, est.tets),
     aborted: est.aborted,
+    stoppedBy: est.stoppedBy,
     limit,
     maxElements,
     hardCap,
@@ -154,10 +194,22 @@ export function estimateDesignElements(design: Design, options: MeshDesignOption
 }
 
 export function meshDesign(design: Design, options: MeshDesignOptions = {}): MeshDesignResult {
-  const { estimate, aborted, limit, maxElements, hardCap, cells, initialTets, leaves, spec, params, seconds } = estimateDesignElements(design, options);
+  const { estimate, aborted, stoppedBy, limit, maxElements, hardCap, cells, initialTets, leaves, spec, params, seconds } = estimateDesignElements(design, options);
   const { center, halfExtentsNm } = design.enclosure;
   const field = new SizeField(spec);
   const t1 = performance.now();
+  if (stoppedBy === 'initial-grid') {
+    const which = maxElements <= hardCap ? `the design's maxElements (${maxElements})` : `the server cap (${hardCap})`;
+    const h = halfExtentsNm;
+    const aspect = Math.max(h[0], h[1], h[2]) / Math.min(h[0], h[1], h[2]);
+    throw new MeshError(
+      'too-many-elements',
+      `the enclosure's half-extents ${h.map((x) => x.toPrecision(4)).join(' × ')} nm (longest/shortest ${aspect.toPrecision(3)}) need ` +
+        `${cells.map((c) => c.toPrecision(3)).join(' × ')} near-cubic initial cells, ${initialTets.toPrecision(3)} tetrahedra before any refinement, ` +
+        `more than ${which}; make the box less flat or smaller`,
+      { estimate, limit, maxElements, hardCap },
+    );
+  }
   if (estimate > limit) {
     const which = maxElements <= hardCap ? `the design's maxElements (${maxElements})` : `the server cap (${hardCap})`;
     throw new MeshError(

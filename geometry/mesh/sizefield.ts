@@ -214,14 +214,19 @@ class SiteGrid {
       }
     }
     const span = Math.max(hi[0] - lo[0], hi[1] - lo[1], hi[2] - lo[2], 1e-9);
-    // about one site per cell for a volume-filling array; at most ~n cells in total
+    // About one site per cell, at most ~2n cells in total: start from the volume-filling size
+    // span/∛n and halve while the grid stays within 2n cells, so that a flat array (span/√n) or a
+    // row (span/n) also gets about one site per cell rather than tens; then grow back by 1.25 to
+    // the smallest size within the bound. Exactness does not depend on the size, only the speed.
     let cell = span / Math.cbrt(this.n);
     const dimsOf = (c: number) => [0, 1, 2].map((a) => Math.floor((hi[a] - lo[a]) / c) + 1);
-    let d = dimsOf(cell);
-    while (d[0] * d[1] * d[2] > 2 * this.n + 8) {
-      cell *= 1.25;
-      d = dimsOf(cell);
-    }
+    const within = (c: number) => {
+      const d = dimsOf(c);
+      return d[0] * d[1] * d[2] <= 2 * this.n + 8;
+    };
+    while (cell > 1e-9 && within(cell / 2)) cell /= 2;
+    while (!within(cell)) cell *= 1.25;
+    const d = dimsOf(cell);
     this.origin = lo;
     this.inv = 1 / cell;
     this.dims = d;
@@ -288,9 +293,30 @@ class SiteGrid {
     const start = this.start;
     const ids = this.ids;
     const maxRing = Math.max(i0, dx - 1 - i1, j0, dy - 1 - j1, k0, dz - 1 - k1);
+    // Separation of the query box from the grid's extent along each axis (0 where they overlap):
+    // a query far above a flat array is that far from every cell, whatever the ring.
+    const o0 = this.origin[0], o1 = this.origin[1], o2 = this.origin[2];
+    const s0 = Math.max(0, o0 - u0, l0 - (o0 + dx * cell));
+    const s1 = Math.max(0, o1 - u1, l1 - (o1 + dy * cell));
+    const s2 = Math.max(0, o2 - u2, l2 - (o2 + dz * cell));
+    const S = s0 * s0 + s1 * s1 + s2 * s2;
     for (let ring = 0; ring <= maxRing; ring++) {
-      const gap = (ring - 1) * cell;
-      if (ring > 0 && gap > 0 && gap * gap >= best) break;
+      if (ring > 0) {
+        // Every cell of ring k lies outside the block of ring k − 1 along some axis, on a side where
+        // cells exist: along that axis it is at least as far as that block's face (and as the grid),
+        // along the others at least as far as the grid. The smallest such bound over axes and sides
+        // bounds the whole ring from below.
+        let lb = Infinity;
+        let g = 0;
+        let v = 0;
+        if (i0 - ring >= 0) { g = Math.max(s0, l0 - (o0 + (i0 - ring + 1) * cell)); v = g * g + S - s0 * s0; if (v < lb) lb = v; }
+        if (i1 + ring <= dx - 1) { g = Math.max(s0, o0 + (i1 + ring) * cell - u0); v = g * g + S - s0 * s0; if (v < lb) lb = v; }
+        if (j0 - ring >= 0) { g = Math.max(s1, l1 - (o1 + (j0 - ring + 1) * cell)); v = g * g + S - s1 * s1; if (v < lb) lb = v; }
+        if (j1 + ring <= dy - 1) { g = Math.max(s1, o1 + (j1 + ring) * cell - u1); v = g * g + S - s1 * s1; if (v < lb) lb = v; }
+        if (k0 - ring >= 0) { g = Math.max(s2, l2 - (o2 + (k0 - ring + 1) * cell)); v = g * g + S - s2 * s2; if (v < lb) lb = v; }
+        if (k1 + ring <= dz - 1) { g = Math.max(s2, o2 + (k1 + ring) * cell - u2); v = g * g + S - s2 * s2; if (v < lb) lb = v; }
+        if (lb >= best) break;
+      }
       const a0 = i0 - ring, a1 = i1 + ring;
       const b0 = j0 - ring, b1 = j1 + ring;
       const c0 = k0 - ring, c1 = k1 + ring;

@@ -4,9 +4,12 @@
  * With --json prints exactly one JSON object:
  *   { boundary, tolerance, sites: [{ id, chargeOutside, uBoundEv, uRelBound }],
  *     pairs: [{ a, b, vBoundEv, vRelBound }], worstRelBound, recommendedHalfExtentsNm,
- *     recommendedElements, warnings: [{ code, message, siteIds }] }
+ *     recommendedElements, warnings: [{ code, message, siteIds }], recommendedElementsIsLowerBound }
  * where recommendedElements is the mesher's estimate of the graded mesh for the recommended box
- * (null when no box size meets the tolerance).
+ * (null when no box size meets the tolerance). The estimate is capped so that check stays instant
+ * on every valid design: past the cap (1.5 × min(maxElements, the mesher's server cap), or a flat
+ * box whose initial grid alone is larger, or CHECK_ESTIMATE_MAX_LEAVES of work) it stops and
+ * recommendedElementsIsLowerBound is true: the mesh would need more than recommendedElements.
  * (null stands for "no bound": a site outside the enclosure, or a box no size can fix).
  * --moments adds the multipole moments to order 4 of every site's unit density and of the array
  * (weights = electrons) about the enclosure centre: a `moments` key in the JSON, a table otherwise.
@@ -23,6 +26,13 @@ import { notesAndAssumptions, table } from './text';
 
 const USAGE = 'usage: npm run cli -- check <design.json> [--json] [--moments]';
 
+/**
+ * Work bound of check's element estimate, in cubature leaves (~5–10 µs each on the two-core test
+ * machine, so about a second at most): the plaquette needs ~11,000, a 100-site array ~100,000; larger
+ * counts are reported as "more than N" (common practice: check must stay instant).
+ */
+export const CHECK_ESTIMATE_MAX_LEAVES = 120_000;
+
 const num = (x: number | null) => (x === null || !Number.isFinite(x) ? null : x);
 
 export function toCheckJson(r: FarFieldReport) {
@@ -35,6 +45,8 @@ export function toCheckJson(r: FarFieldReport) {
     recommendedHalfExtentsNm: r.recommendedHalfExtentsNm.map(num),
     recommendedElements: r.elementsEstimate,
     warnings: r.warnings.map((w) => ({ code: w.code, message: w.message, siteIds: w.siteIds })),
+    // added after the first release: keys are only ever added, at the end
+    recommendedElementsIsLowerBound: r.elementsEstimateIsLowerBound,
   };
 }
 
@@ -72,7 +84,12 @@ export function toReadable(design: Design, r: FarFieldReport): string {
   out.push('');
   out.push(`worst relative bound: ${pct(r.worstRelBound)} (target ${pct(r.tolerance)})`);
   out.push(`smallest half-extents meeting the target: ${r.recommendedHalfExtentsNm.map((x) => g(x, 4)).join(' × ')} nm`);
-  if (r.elementsEstimate !== null) out.push(`elements the refinement would need: about ${r.elementsEstimate}`);
+  if (r.elementsEstimate !== null)
+    out.push(
+      r.elementsEstimateIsLowerBound
+        ? `elements the refinement would need: more than ${r.elementsEstimate} (the estimate stops there, at its cap)`
+        : `elements the refinement would need: about ${r.elementsEstimate}`,
+    );
   if (r.moments) {
     const names = ['q', 'p_y', 'p_z', 'p_x'];
     const row = (label: string, v: number[]) => [label, ...v.slice(0, 4).map((x) => g(x, 4)), g(Math.hypot(...v.slice(4, 9)), 4), g(Math.hypot(...v.slice(9, 16)), 4), g(Math.hypot(...v.slice(16, 25)), 4)];
@@ -105,12 +122,16 @@ export async function run(argv: string[]): Promise<number> {
   const design = await readDesign(files[0], json);
   if (!design) return 1;
   // The element count the graded mesh would need for the recommended box (the mesher's estimate,
-  // within ±30 %); skipped for a box no size can fix.
+  // within ±30 %); skipped for a box no size can fix. Capped at the mesher's own limit (the design's
+  // maxElements and the server cap): past it the mesher refuses anyway, so "more than N" is the
+  // useful answer, and it keeps check instant for tiny orbitals and flat boxes.
   const moments = flags.includes('--moments');
   const report = farFieldCheck(design, {
     moments,
-    estimateElements: (halfExtentsNm) =>
-      Math.round(estimateDesignElements({ ...design, enclosure: { ...design.enclosure, halfExtentsNm } }, { maxElements: Infinity, hardCap: Infinity }).estimate),
+    estimateElements: (halfExtentsNm) => {
+      const e = estimateDesignElements({ ...design, enclosure: { ...design.enclosure, halfExtentsNm } }, { maxEstimateLeaves: CHECK_ESTIMATE_MAX_LEAVES });
+      return { elements: Math.round(e.estimate), atLeast: e.aborted };
+    },
   });
   const body = json ? JSON.stringify(moments ? { ...toCheckJson(report), moments: report.moments } : toCheckJson(report), null, 2) : toReadable(design, report);
   console.log(body);

@@ -16,6 +16,9 @@ export async function readDesign(file: string, json: boolean): Promise<Design | 
     console.error(`cannot read ${file}: ${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a folder' : (e as Error).message}`);
     return null;
   }
+  // A UTF-8 byte-order mark (some Windows editors write one) is not JSON: drop it (RFC 8259 §8.1
+  // lets a parser ignore it).
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
   let doc: unknown;
   try {
     doc = JSON.parse(text);

@@ -6,12 +6,12 @@ const commands: Record<string, { file: string; summary: string }> = {
   check: { file: './check', summary: 'far-field check of a design: boundary error bounds and a safe enclosure size' },
   mesh: { file: './mesh', summary: 'build a graded tetrahedral mesh and write it as .vtu, .vtk or binary' },
   coulomb: { file: './coulomb', summary: 'solve for on-site U and inter-site V with P1 or P2 elements' },
-  study: { file: './study', summary: 'convergence study over refinement levels or enclosure sizes' },
+  convergence: { file: './convergence', summary: 'convergence sweep over refinement levels or enclosure sizes' },
 };
 
 function usage(): string {
   const lines = ['usage: npm run cli -- <command> <design.json> [options]', '', 'commands:'];
-  for (const [name, c] of Object.entries(commands)) lines.push(`  ${name.padEnd(8)} ${c.summary}`);
+  for (const [name, c] of Object.entries(commands)) lines.push(`  ${name.padEnd(11)} ${c.summary}`);
   return lines.join('\n');
 }
 

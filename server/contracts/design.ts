@@ -8,7 +8,15 @@
  *   sites ≤ MAX_SITES = 100,000 — a 100k-site document is ~10 MB of JSON, the most an API body
  *   should carry, and far beyond what one finite-element solve resolves; the far-field check is
  *   linear in the number of sites (~1 ms per 1,000).
- *   lengths ≤ 10⁶ nm, radii ≤ 10³ nm, 1 ≤ εr ≤ 10³, 0 < a ≤ 10 nm.
+ *   lengths ≤ 10⁶ nm, 10⁻⁴ nm ≤ radii ≤ 10³ nm, 1 ≤ εr ≤ 10³, 0 < a ≤ 10 nm.
+ *   Orbital radii (radiusNm, radiusZNm, sigmaNm): the floor MIN_RADIUS_NM = 10⁻⁴ nm lies below the
+ *   smallest bound-electron envelope of any atom, the hydrogen-like 1s of a bare nucleus, a0/Z =
+ *   0.0529177 nm / 92 = 5.75·10⁻⁴ nm (Bohr radius a0 from CODATA 2018; Bohr model a0/Z); a smaller
+ *   number cannot be an envelope the models mean, and it would ask the mesher for ~10¹⁵ elements.
+ *   The ceiling MAX_RADIUS_NM = 10³ nm (a micron) is 400 times the default donor envelope (2.5 nm,
+ *   Kohn & Luttinger 1955, from memory) and already far beyond any shallow impurity state (common
+ *   practice). Sizes inside these bounds but implausible for a donor in silicon (below a hundredth
+ *   of the lattice constant, above 100 nm) are warnings of the far-field check, not refusals.
  * Sites outside the enclosure are valid documents (a design may be mid-edit); the far-field
  * check reports them as an error-level warning.
  *
@@ -23,9 +31,10 @@ export const CURRENT_DESIGN_VERSION = 1;
 export const MAX_SITES = 100_000;
 export const MAX_LENGTH_NM = 1e6;
 export const MAX_RADIUS_NM = 1e3;
+export const MIN_RADIUS_NM = 1e-4;
 
 const coordinate = z.number().min(-MAX_LENGTH_NM).max(MAX_LENGTH_NM);
-const radius = z.number().positive().max(MAX_RADIUS_NM);
+const radius = z.number().min(MIN_RADIUS_NM).max(MAX_RADIUS_NM);
 export const vec3Schema = z.tuple([coordinate, coordinate, coordinate]);
 
 export const speciesSchema = z.enum(['P', 'As', 'Sb', 'Bi', 'B']);

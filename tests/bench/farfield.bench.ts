@@ -7,6 +7,8 @@ import { generateArray } from '../../geometry/arrays';
 import { createFarFieldSession, farFieldCheck } from '../../geometry/farfield';
 import type { Design, Orbital, Site, Vec3 } from '../../geometry/design/types';
 import { siteToNm, snapToLattice } from '../../geometry/lattice';
+import { estimateDesignElements } from '../../geometry/mesh/index';
+import { CHECK_ESTIMATE_MAX_LEAVES } from '../../server/cli/check';
 import { SI_LATTICE_CONSTANT_NM } from '../../geometry/units';
 import { siliconDesign } from '../geometry/design-fixtures';
 
@@ -44,6 +46,27 @@ function time(label: string, d: Design, reps: number, options = {}): void {
   );
 }
 
+/**
+ * What `npm run cli -- check` computes (issue 8 item 11: 5,000 sites took 8.4 s, 100,000 took 87 s,
+ * target under 2 s): the far-field check plus the capped element estimate for the recommended box.
+ * CPU time, since the machine is shared.
+ */
+function timeCheckCommand(label: string, d: Design): void {
+  const cpu = () => {
+    const c = process.cpuUsage();
+    return (c.user + c.system) / 1000;
+  };
+  const c0 = cpu();
+  const r = farFieldCheck(d);
+  const c1 = cpu();
+  const e = estimateDesignElements({ ...d, enclosure: { ...d.enclosure, halfExtentsNm: r.recommendedHalfExtentsNm } }, { maxEstimateLeaves: CHECK_ESTIMATE_MAX_LEAVES });
+  const c2 = cpu();
+  console.log(
+    `${label.padEnd(50)} sites ${String(d.sites.length).padStart(6)}  far field ${(c1 - c0).toFixed(0).padStart(5)} ms  estimate ${(c2 - c1).toFixed(0).padStart(5)} ms cpu  ` +
+      `→ ${e.aborted ? 'more than ' : 'about '}${Math.round(e.estimate)} elements (${e.stoppedBy ?? 'full'}, ${e.leaves} leaves)`,
+  );
+}
+
 export async function run(): Promise<void> {
   console.log(`far-field check (target: ≤ 5 ms for 1,000 sites); load average now ${(await import('node:os')).loadavg()[0].toFixed(1)}`);
   time('hydrogenic, multipole order 2', designOf(40, 25, { kind: 'multipole', order: 2 }), 200);
@@ -53,6 +76,12 @@ export async function run(): Promise<void> {
   time('hydrogenic, multipole 2, with array moments (order 4)', designOf(40, 25, { kind: 'multipole', order: 2 }), 100, { moments: true });
   time('hydrogenic, multipole order 2', designOf(100, 100, { kind: 'multipole', order: 2 }), 20);
   time('hydrogenic, 64 sites (all pairs)', designOf(8, 8, { kind: 'multipole', order: 2 }), 200);
+  console.log('check command path: far-field check + capped element estimate of the recommended box (target: 100,000 sites under 2 s)');
+  timeCheckCommand('check, 100 sites', designOf(10, 10, { kind: 'multipole', order: 2 }));
+  timeCheckCommand('check, 900 sites (stops at the work bound)', designOf(30, 30, { kind: 'multipole', order: 2 }));
+  timeCheckCommand('check, 5,000 sites', designOf(50, 100, { kind: 'multipole', order: 2 }));
+  timeCheckCommand('check, 10,000 sites', designOf(100, 100, { kind: 'multipole', order: 2 }));
+  timeCheckCommand('check, 99,856 sites', designOf(316, 316, { kind: 'multipole', order: 2 }));
   await runSession();
 }
 

@@ -21,7 +21,7 @@ describe('npm run cli -- check', () => {
     const r = cli(fixture, '--json');
     expect(r.code).toBe(0);
     const j = JSON.parse(r.out);
-    expect(Object.keys(j)).toEqual(['boundary', 'tolerance', 'sites', 'pairs', 'worstRelBound', 'recommendedHalfExtentsNm', 'recommendedElements', 'warnings']);
+    expect(Object.keys(j)).toEqual(['boundary', 'tolerance', 'sites', 'pairs', 'worstRelBound', 'recommendedHalfExtentsNm', 'recommendedElements', 'warnings', 'recommendedElementsIsLowerBound']);
     expect(Object.keys(j.sites[0])).toEqual(['id', 'chargeOutside', 'uBoundEv', 'uRelBound']);
     expect(Object.keys(j.pairs[0])).toEqual(['a', 'b', 'vBoundEv', 'vRelBound']);
     expect(j.sites).toHaveLength(4);

@@ -71,8 +71,24 @@ describe('malformed documents get plain-words issues with field paths', () => {
     d.sites[3].orbital = { model: 'hydrogenic-1s', radiusNm: -1 };
     d.enclosure.halfExtentsNm = [0, 10, 10];
     const out = lines(d);
-    expect(out).toContain('sites[3].orbital.radiusNm: must be greater than 0, not -1');
+    expect(out).toContain('sites[3].orbital.radiusNm: must be at least 0.0001, not -1');
     expect(out).toContain('enclosure.halfExtentsNm[0]: must be greater than 0, not 0');
+  });
+  it('orbital sizes: the floor 1e-4 nm is below the smallest bound envelope of any atom, a0/92 (CODATA 2018 a0), the ceiling is 1 µm', () => {
+    const a0Nm = 0.0529177210903; // CODATA 2018 Bohr radius
+    const d = example();
+    d.sites[0].orbital = { model: 'gaussian', sigmaNm: 1e-6 };
+    d.sites[1].orbital = { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1e-300 };
+    d.sites[2].orbital = { model: 'hydrogenic-1s', radiusNm: 1001 };
+    const out = lines(d);
+    expect(out).toContain('sites[0].orbital.sigmaNm: must be at least 0.0001, not 0.000001');
+    expect(out).toContain('sites[1].orbital.radiusZNm: must be at least 0.0001, not 1e-300');
+    expect(out.some((l) => l.startsWith('sites[2].orbital.radiusNm: '))).toBe(true);
+    const ok = example();
+    // the hydrogen-like 1s of a bare uranium nucleus (Bohr model a0/Z) is a valid size
+    ok.sites[0].orbital = { model: 'hydrogenic-1s', radiusNm: a0Nm / 92 };
+    ok.sites[1].orbital = { model: 'gaussian', sigmaNm: 1000 };
+    expect(parseDesign(ok).ok).toBe(true);
   });
   it('unknown species and orbital model', () => {
     const d = example();

@@ -231,6 +231,73 @@ describe('far-field check', () => {
     expect(r.worstRelBound).toBeNull();
     expect(JSON.parse(JSON.stringify(r)).sites.length).toBe(5);
   });
+  it('warns on orbital sizes below a/100 (a = 0.5431020511 nm, CODATA 2018 Si lattice parameter) or above 100 nm, per site, with the reason', () => {
+    const a = SI_LATTICE_CONSTANT_NM;
+    const sites: Design['sites'] = [
+      { id: 'ok', species: 'P', position: [0, 0, 0], electrons: 1 },
+      { id: 'just-below', species: 'P', position: [5, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: 0.99 * (a / 100) } },
+      { id: 'just-above', species: 'P', position: [-5, 0, 0], electrons: 1, orbital: { model: 'hydrogenic-1s', radiusNm: 1.01 * (a / 100) } },
+      { id: 'flat', species: 'P', position: [0, 5, 0], electrons: 1, orbital: { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1e-4 } },
+      { id: 'huge', species: 'P', position: [0, -5, 0], electrons: 1, orbital: { model: 'hydrogenic-1s', radiusNm: 101 } },
+    ];
+    const r = farFieldCheck(design(sites, [30, 30, 30], { kind: 'multipole', order: 2 }));
+    const byCode = new Map(r.warnings.map((w) => [w.code, w]));
+    expect(byCode.get('orbital-too-small')?.siteIds).toEqual(['just-below', 'flat']);
+    expect(byCode.get('orbital-too-small')?.message).toMatch(/hundredth of the lattice constant \(0\.00543 nm; smallest 0\.000100 nm\)/);
+    expect(byCode.get('orbital-too-large')?.siteIds).toEqual(['huge']);
+    expect(byCode.get('orbital-too-large')?.severity).toBe('warning');
+    // the default plaquette sizes (2.5 nm, Kohn & Luttinger, from memory) raise neither
+    const plain = farFieldCheck(design([sites[0]], [30, 30, 30], { kind: 'multipole', order: 2 }));
+    expect(plain.warnings.map((w) => w.code)).not.toContain('orbital-too-small');
+    expect(plain.warnings.map((w) => w.code)).not.toContain('orbital-too-large');
+  });
+  it('the element-count hook may report a lower bound ("more than N"): the report says so and the budget warning reads "more than"', () => {
+    const sites: Design['sites'] = [{ id: 'd1', species: 'P', position: [0, 0, 0], electrons: 1 }];
+    const d = design(sites, [20, 20, 20], { kind: 'multipole', order: 2 });
+    const r = farFieldCheck(d, { estimateElements: () => ({ elements: 3_000_001, atLeast: true }) });
+    expect(r.elementsEstimate).toBe(3_000_001);
+    expect(r.elementsEstimateIsLowerBound).toBe(true);
+    expect(r.warnings.find((w) => w.code === 'element-budget')?.message).toMatch(/would need more than 3000001 elements/);
+    expect(farFieldCheck(d, { estimateElements: () => 10 }).elementsEstimateIsLowerBound).toBe(false);
+  });
+  it('overlap and coincidence flags equal a brute-force scan of all pairs on a lattice plane with defects (every pair, O(N²))', () => {
+    const a = SI_LATTICE_CONSTANT_NM;
+    const rnd = mulberry32(42);
+    const sites: Design['sites'] = [];
+    // a plane of sites sharing x and y values (the case a sweep along x handles badly), a few moved
+    // within a lattice constant of a neighbour, a few doubled, some in one cluster
+    for (let i = 0; i < 40; i++)
+      for (let j = 0; j < 40; j++) {
+        const p: Vec3 = [2 * a * i - 40 * a, 2 * a * j - 40 * a, 0];
+        const r = rnd();
+        if (r < 0.05) p[0] += a * (1.1 + 0.8 * rnd()); // 0.1a to 0.9a from the next site along x
+        else if (r < 0.1) {
+          p[1] += 1.5 * a; // 0.5a along y and 0.8a along z from the next one: 0.94a
+          p[2] += 0.8 * a;
+        }
+        sites.push({ id: `s${i}-${j}`, species: 'P', position: p, electrons: 1, cluster: r > 0.97 ? 'c' : undefined });
+        if (r > 0.99) sites.push({ id: `t${i}-${j}`, species: 'P', position: [...p], electrons: 1 });
+      }
+    // in a shuffled order (Fisher–Yates), so no pair is found only because of how sites were listed
+    for (let i = sites.length - 1; i > 0; i--) {
+      const k = Math.floor(rnd() * (i + 1));
+      [sites[i], sites[k]] = [sites[k], sites[i]];
+    }
+    const r = farFieldCheck(design(sites, [60, 60, 20], { kind: 'multipole', order: 2 }));
+    const coincide = new Set<string>();
+    const overlap = new Set<string>();
+    for (let i = 0; i < sites.length; i++)
+      for (let j = i + 1; j < sites.length; j++) {
+        const R = Math.hypot(...[0, 1, 2].map((k) => sites[i].position[k] - sites[j].position[k]));
+        if (R < 1e-6) coincide.add(sites[i].id).add(sites[j].id);
+        else if (R < a && !(sites[i].cluster !== undefined && sites[i].cluster === sites[j].cluster)) overlap.add(sites[i].id).add(sites[j].id);
+      }
+    const byCode = new Map(r.warnings.map((w) => [w.code, w]));
+    expect(overlap.size).toBeGreaterThan(10);
+    expect(coincide.size).toBeGreaterThan(0);
+    expect(new Set(byCode.get('sites-overlap')?.siteIds)).toEqual(overlap);
+    expect(new Set(byCode.get('sites-coincide')?.siteIds)).toEqual(coincide);
+  });
   it('cluster members are not flagged as overlapping; large arrays check bond-graph pairs only', () => {
     const a = SI_LATTICE_CONSTANT_NM;
     const sites: Design['sites'] = [

@@ -1,10 +1,10 @@
-/** The coulomb and study commands: exact JSON shapes, readable honesty, refusals and exit codes. */
+/** The coulomb and convergence commands: exact JSON shapes, readable honesty, refusals and exit codes. */
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { run as coulomb } from '../../../server/cli/coulomb';
-import { run as study } from '../../../server/cli/study';
+import { run as convergence } from '../../../server/cli/convergence';
 import { oneSite } from './coulomb-fixtures';
 
 const dir = mkdtempSync(join(tmpdir(), 'tetrawell-coulomb-'));
@@ -109,11 +109,11 @@ describe('coulomb command', () => {
   });
 });
 
-describe('study command', () => {
+describe('convergence command', () => {
   it('--kind refinement --json prints rows, plots and the fitted rate', async () => {
     const io = capture();
     const coarse = oneSite({ model: 'gaussian', sigmaNm: 1 }, { half: 8, order: 1, tol: 5e-2 });
-    const code = await study([designFile('s.json', coarse), '--kind', 'refinement', '--json']);
+    const code = await convergence([designFile('s.json', coarse), '--kind', 'refinement', '--json']);
     expect(code).toBe(0);
     const j = JSON.parse(io.out.join('\n'));
     expect(j.kind).toBe('refinement');
@@ -123,7 +123,7 @@ describe('study command', () => {
   });
   it('a missing or wrong --kind is a usage error', async () => {
     capture();
-    expect(await study([designFile('s2.json', base)])).toBe(2);
-    expect(await study([designFile('s3.json', base), '--kind', 'sideways'])).toBe(2);
+    expect(await convergence([designFile('s2.json', base)])).toBe(2);
+    expect(await convergence([designFile('s3.json', base), '--kind', 'sideways'])).toBe(2);
   });
 });

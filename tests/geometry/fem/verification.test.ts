@@ -9,7 +9,7 @@
  */
 import { beforeAll, describe, expect, it } from 'vitest';
 import { solveCoulomb, energiesOnMesh, type CoulombResult, type SiteEnergy } from '../../../geometry/fem/coulomb';
-import { fitLogLog } from '../../../geometry/fem/study';
+import { fitLogLog } from '../../../geometry/fem/convergence';
 import { farFieldCheck } from '../../../geometry/farfield';
 import { meshDesign, refineUniform, toTetMesh } from '../../../geometry/mesh/index';
 import { COULOMB_EV_NM } from '../../../geometry/units';

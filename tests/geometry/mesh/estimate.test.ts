@@ -5,7 +5,7 @@
  * closed-form integral; the estimate is checked against real meshes (issue 4: within ±30 %).
  */
 import { describe, expect, it } from 'vitest';
-import { meshDesign, kuhnBox, refineUniform, toTetMesh, MeshError, LADDER_MEAN_CONSTANT } from '../../../geometry/mesh/index';
+import { meshDesign, kuhnBox, refineUniform, toTetMesh, MeshError, LADDER_MEAN_CONSTANT, estimateDesignElements } from '../../../geometry/mesh/index';
 import { adaptiveCubature, cellLadderEdges, coreLowerBound, ladderDensity, ladderEdge, ladderVolume } from '../../../geometry/mesh/estimate';
 import { sizeFieldFromDesign, chooseInitialCells } from '../../../geometry/mesh/index';
 import { computeTetQuality } from '../../../geometry/mesh/quality';
@@ -162,6 +162,42 @@ describe('refusals', () => {
     }
     expect((err as MeshError).code).toBe('too-many-elements');
     expect((err as MeshError).message).toMatch(/server cap \(20000\)/);
+  });
+
+  it('a flat box (half-extents 1e6 × 1e6 × 1e-6 nm) is refused from its initial grid alone, before any allocation', () => {
+    const d = design([{ position: [0, 0, 0] }], [1e6, 1e6, 1e-6], 1, 1e-2);
+    const e = estimateDesignElements(d);
+    // near-cubic cells: 2 across the thinnest axis, so 2e6/1e-6 = 2e12 along the others, 6 Kuhn tets each
+    expect(e.cells).toEqual([2e12, 2e12, 2]);
+    expect(e.stoppedBy).toBe('initial-grid');
+    expect(e.aborted).toBe(true);
+    expect(e.estimate).toBe(6 * 2e12 * 2e12 * 2);
+    expect(e.leaves).toBe(0);
+    let err: unknown;
+    try {
+      meshDesign(d);
+    } catch (x) {
+      err = x;
+    }
+    expect((err as MeshError).code).toBe('too-many-elements');
+    expect((err as MeshError).message).toMatch(/longest\/shortest 1\.00e\+12\) need .* initial cells, 4\.80e\+25 tetrahedra before any refinement/);
+  });
+
+  it('the work bound stops the cubature with a lower bound (the integrand is positive: common practice)', () => {
+    const d = design([{ position: [0.4, 0.1, -0.3] }], [25, 25, 25], 1, 1e-2);
+    const full = estimateDesignElements(d);
+    expect(full.stoppedBy).toBeNull();
+    const cut = estimateDesignElements(d, { maxEstimateLeaves: 50 });
+    expect(cut.stoppedBy).toBe('work');
+    expect(cut.aborted).toBe(true);
+    expect(cut.leaves).toBe(50);
+    expect(cut.estimate).toBeLessThanOrEqual(full.estimate);
+    // a gaussian σ = 1e-3 nm (valid, but a hundred times below a/100) with the default limits
+    // answers at once: the count passes min(maxElements, server cap) and the estimate stops
+    const tiny = design([{ position: [0, 0, 0], orbital: { model: 'gaussian', sigmaNm: 1e-3 } }], [2.2, 2.2, 0.005], 2, 1e-3, 2_000_000);
+    const t = estimateDesignElements(tiny);
+    expect(t.aborted).toBe(true);
+    expect(t.estimate).toBeGreaterThan(2_000_000);
   });
 
   it('refuses a degenerate enclosure (zero, negative, NaN extent) with a clear error', () => {

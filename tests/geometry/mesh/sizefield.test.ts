@@ -137,6 +137,30 @@ describe('size field evaluation', () => {
     }
   });
 
+  it('the site grid of a flat array and a row (one site per cell, bound from the grid\'s extent) matches a plain scan', () => {
+    // a 30×30 plane of sites (z = 0) and a row of 200: the grid cells shrink to about one site each,
+    // and queries far above the plane or beside the row end after a ring or two
+    for (const layout of ['plane', 'row'] as const) {
+      const many: typeof sites = [];
+      if (layout === 'plane') for (let i = 0; i < 30; i++) for (let j = 0; j < 30; j++) many.push({ p: [4.5 * i + 0.3 * (j % 3), 3.9 * j, 0], h0: 0.4, a: 2 });
+      else for (let i = 0; i < 200; i++) many.push({ p: [1.7 * i, 0.2 * (i % 4), -0.1 * (i % 3)], h0: 0.4, a: 2 });
+      const f = new SizeField(specOf(many));
+      let seed = 11;
+      const next = () => (seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32; // LCG (Numerical Recipes constants)
+      for (let q = 0; q < 400; q++) {
+        const lo = [next() * 400 - 60, next() * 200 - 60, next() * 120 - 60];
+        const w = [next() ** 3 * 20, next() ** 3 * 20, next() ** 3 * 20];
+        const hb = f.minOverBox(lo[0], lo[1], lo[2], lo[0] + w[0], lo[1] + w[1], lo[2] + w[2]);
+        let exact = hmax;
+        for (const s of many) {
+          const p = [0, 1, 2].map((a) => Math.min(Math.max(s.p[a], lo[a]), lo[a] + w[a]));
+          exact = Math.min(exact, hRef(p, [s], beta, hmax));
+        }
+        expect(hb).toBeCloseTo(exact, 12);
+      }
+    }
+  });
+
   it('a mesh refined to the size field meets it: longest edge ≤ min of h over every tet (checked at the vertices and the centroid)', () => {
     const d = design([{ position: [1.3, -0.4, 0.9] }, { position: [-6, 2, 3], orbital: { model: 'gaussian', sigmaNm: 0.6 } }], [15, 12, 12], 1, 3e-2);
     const { spec } = sizeFieldFromDesign(d);

@@ -1,23 +1,23 @@
 /**
- * `npm run cli -- study <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json]`:
- * convergence studies of U (and the box-size sweep for grounded and multipole boundaries).
+ * `npm run cli -- convergence <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json]`:
+ * convergence sweeps of U (and the box-size sweep for grounded and multipole boundaries).
  *
- * With --json prints the study: { kind, order, siteIds, rows, plots, fittedRate, theoreticalRate,
+ * With --json prints the convergence result: { kind, order, siteIds, rows, plots, fittedRate, theoreticalRate,
  * seconds, notes }. Without it, the table, the fitted rate and the model assumptions.
  * Exit codes: 0 done, 1 invalid document or a refusal, 2 usage.
  */
 import type { Design } from '../../geometry/design/types';
-import { runStudy, type StudyResult, type RefinementRow, type BoxRow } from '../../geometry/fem/study';
+import { runConvergence, type ConvergenceResult, type RefinementRow, type BoxRow } from '../../geometry/fem/convergence';
 import { parseArgs, refusalMessage } from './coulomb';
 import { readDesign } from './design-file';
 import { notesAndAssumptions, table } from './text';
 
-const USAGE = 'usage: npm run cli -- study <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json]';
+const USAGE = 'usage: npm run cli -- convergence <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json]';
 
 const meV = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(6) : '—');
 
 
-export function toStudyJson(r: StudyResult) {
+export function toConvergenceJson(r: ConvergenceResult) {
   return {
     kind: r.kind,
     order: r.order,
@@ -31,9 +31,9 @@ export function toStudyJson(r: StudyResult) {
   };
 }
 
-export function toStudyReadable(design: Design, r: StudyResult): string {
+export function toConvergenceReadable(design: Design, r: ConvergenceResult): string {
   const out: string[] = [];
-  out.push(`Convergence study (${r.kind}): ${design.name}, P${r.order}, ${r.seconds.toFixed(1)} s`);
+  out.push(`Convergence (${r.kind}): ${design.name}, P${r.order}, ${r.seconds.toFixed(1)} s`);
   out.push('');
   if (r.kind === 'refinement') {
     const rows = r.rows as RefinementRow[];
@@ -84,15 +84,15 @@ export async function run(argv: string[]): Promise<number> {
   const json = args.flags.has('--json');
   const design = await readDesign(args.files[0], json);
   if (!design) return 1;
-  let result: StudyResult;
+  let result: ConvergenceResult;
   try {
-    result = runStudy(design, { kind, order: orderArg ? (Number(orderArg) as 1 | 2) : undefined, levels });
+    result = runConvergence(design, { kind, order: orderArg ? (Number(orderArg) as 1 | 2) : undefined, levels });
   } catch (err) {
     const msg = refusalMessage(err);
     if (msg === null) throw err;
-    console.error(`cannot run the study: ${msg}`);
+    console.error(`cannot run the convergence sweep: ${msg}`);
     return 1;
   }
-  console.log(json ? JSON.stringify(toStudyJson(result), null, 2) : toStudyReadable(design, result));
+  console.log(json ? JSON.stringify(toConvergenceJson(result), null, 2) : toConvergenceReadable(design, result));
   return 0;
 }

@@ -19,7 +19,7 @@ import type { Design, Boundary } from '../design/types';
 import { solveCoulomb, energiesOnMesh, type CoulombOptions, type Progress, COULOMB_ASSUMPTIONS } from './coulomb';
 import { meshDesign, refineUniform, toTetMesh } from '../mesh/index';
 
-export interface StudyOptions {
+export interface ConvergenceOptions {
   kind: 'refinement' | 'box';
   order?: 1 | 2;
   /** refinement: number of levels (default 3; each is 8× the previous) */
@@ -46,7 +46,7 @@ export interface PlotSeries {
   y: number[];
 }
 
-export interface StudyPlot {
+export interface ConvergencePlot {
   title: string;
   xLabel: string;
   yLabel: string;
@@ -80,12 +80,12 @@ export interface BoxRow {
   boundaryBoundEv: number[];
 }
 
-export interface StudyResult {
+export interface ConvergenceResult {
   kind: 'refinement' | 'box';
   order: 1 | 2;
   siteIds: string[];
   rows: RefinementRow[] | BoxRow[];
-  plots: StudyPlot[];
+  plots: ConvergencePlot[];
   /** refinement: fitted and theoretical rates in N */
   fittedRate: number | null;
   theoreticalRate: number;
@@ -121,7 +121,7 @@ export function fitLogLog(x: readonly number[], y: readonly number[]): LogLogFit
   return { rate: -slope, prefactor: Math.exp(my - slope * mx), points: n };
 }
 
-export function runStudy(design: Design, options: StudyOptions): StudyResult {
+export function runConvergence(design: Design, options: ConvergenceOptions): ConvergenceResult {
   const t0 = performance.now();
   const order = options.order ?? design.refinement.order;
   const theoreticalRate = (2 * order) / 3;
@@ -159,7 +159,7 @@ export function runStudy(design: Design, options: StudyOptions): StudyResult {
     if (fit && Math.abs(fit.rate - theoreticalRate) > 0.5 * theoreticalRate) {
       notes.push(`The fitted rate ${fit.rate.toFixed(2)} is far from the theoretical ${theoreticalRate.toFixed(2)}: the coarse levels may not be in the asymptotic range yet.`);
     }
-    const plots: StudyPlot[] = [
+    const plots: ConvergencePlot[] = [
       {
         title: `U against unknowns (P${order})`,
         xLabel: 'unknowns N',
@@ -215,7 +215,7 @@ export function runStudy(design: Design, options: StudyOptions): StudyResult {
       done++;
     }
   }
-  const plots: StudyPlot[] = [
+  const plots: ConvergencePlot[] = [
     {
       title: `U of ${siteIds[0]} against the enclosure half-width`,
       xLabel: 'smallest half-width (nm)',

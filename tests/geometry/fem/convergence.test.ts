@@ -1,6 +1,6 @@
 /** Convergence studies: the rate fit, the refinement sweep and the box sweep. */
 import { describe, expect, it } from 'vitest';
-import { fitLogLog, runStudy, type BoxRow, type RefinementRow } from '../../../geometry/fem/study';
+import { fitLogLog, runConvergence, type BoxRow, type RefinementRow } from '../../../geometry/fem/convergence';
 import { COULOMB_EV_NM } from '../../../geometry/units';
 import { oneSite } from './coulomb-fixtures';
 
@@ -18,10 +18,10 @@ describe('fitLogLog', () => {
   });
 });
 
-describe('runStudy', () => {
+describe('runConvergence', () => {
   it('refinement: U rises towards the Gaussian self-energy at about N^(-2/3) for P1 (graded-mesh theory)', () => {
     const d = oneSite({ model: 'gaussian', sigmaNm: 1 }, { half: 12, order: 1, tol: 1e-2 });
-    const r = runStudy(d, { kind: 'refinement', levels: 3 });
+    const r = runConvergence(d, { kind: 'refinement', levels: 3 });
     const rows = r.rows as RefinementRow[];
     expect(rows).toHaveLength(3);
     // unknowns grow, Galerkin energies rise monotonically towards the exact value
@@ -43,7 +43,7 @@ describe('runStudy', () => {
 
   it('box: grounded U climbs with the half-width like −1/(εr L), multipole U stays put', () => {
     const d = oneSite({ model: 'gaussian', sigmaNm: 1 }, { half: 8, order: 2, tol: 1e-2, boundary: { kind: 'grounded' } });
-    const r = runStudy(d, { kind: 'box', factors: [1, 2] });
+    const r = runConvergence(d, { kind: 'box', factors: [1, 2] });
     const rows = r.rows as BoxRow[];
     const g = rows.filter((x) => x.boundary === 'grounded');
     const m = rows.filter((x) => x.boundary.startsWith('multipole'));
