@@ -34,6 +34,7 @@ import { bondGraph, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
 import { snapToLattice, siteToNm } from '../lattice';
 import { clearanceFor, neglectedEnvelope, type Envelope } from './envelope';
 import { combinedMoments, orbitalMoments } from './moments';
+import { closeSitePairs } from './close-pairs';
 import { describeBoundary, elementBudgetWarning, findingsWarnings, pairsLimitedWarning } from './warnings';
 
 /** Stable warning codes: the UI and scripts may key on them; never rename, only add. */
@@ -267,58 +268,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     target[i] = Math.min(target[i], tol * v);
     target[j] = Math.min(target[j], tol * v);
   }
-  // Overlap check over all pairs closer than a. Sites are binned into strips of a × a cross-section
-  // along x (keyed by their y and z cells) and sorted by x within a strip; each site looks at the
-  // nine strips around its own, from x − a to x + a. A plain sweep along x degrades on lattice arrays,
-  // where whole planes of sites share one x (N = 10⁵ in a plane: ~8·10⁶ comparisons instead of ~10⁶).
-  {
-    const strips = new Map<number, number[]>(); // key → site indices; lookups only, never iterated for output order
-    const cy = new Float64Array(n);
-    const cz = new Float64Array(n);
-    // cells counted from the smallest coordinate, so keys are small non-negative integers
-    let y0 = Infinity, z0 = Infinity;
-    for (let i = 0; i < n; i++) {
-      y0 = Math.min(y0, sites[i].position[1]);
-      z0 = Math.min(z0, sites[i].position[2]);
-    }
-    // |coordinates| ≤ 10⁶ nm and a ≥ ~0.1 nm in practice: cell indices stay below 2²⁵, keys below 2⁵³
-    const STRIDE = 2 ** 26;
-    for (let i = 0; i < n; i++) {
-      cy[i] = Math.floor((sites[i].position[1] - y0) / a);
-      cz[i] = Math.floor((sites[i].position[2] - z0) / a);
-      const key = cy[i] * STRIDE + cz[i];
-      const list = strips.get(key);
-      if (list) list.push(i);
-      else strips.set(key, [i]);
-    }
-    for (const list of strips.values()) list.sort((u, v) => sites[u].position[0] - sites[v].position[0] || u - v);
-    for (let i = 0; i < n; i++) {
-      const pi = sites[i].position;
-      for (let dy = -1; dy <= 1; dy++) {
-        for (let dz = -1; dz <= 1; dz++) {
-          const list = strips.get((cy[i] + dy) * STRIDE + (cz[i] + dz));
-          if (!list) continue;
-          // first entry with x > x_i − a (binary search), then scan while x < x_i + a
-          let lo = 0, hi = list.length;
-          while (lo < hi) {
-            const mid = (lo + hi) >> 1;
-            if (sites[list[mid]].position[0] <= pi[0] - a) lo = mid + 1;
-            else hi = mid;
-          }
-          for (let q = lo; q < list.length; q++) {
-            const j = list[q];
-            const pj = sites[j].position;
-            if (pj[0] - pi[0] >= a) break;
-            if (j <= i) continue; // each pair once, from its lower index
-            const R = dist(pi, pj);
-            if (R < 1e-6) {
-              coincide.push(sites[i].id, sites[j].id); // uniq() below removes repeats
-            } else if (R < a && !(sites[i].cluster !== undefined && sites[i].cluster === sites[j].cluster)) overlap.push(sites[i].id, sites[j].id);
-          }
-        }
-      }
-    }
-  }
+  closeSitePairs(sites, a, coincide, overlap);
 
   // ---- site results, recommended box
   const out: SiteBound[] = [];

@@ -11,7 +11,7 @@
  *              required clearance (bisection)                            its target or the tolerance
  *              moments of the unit density (when asked for)              the site's edit, the centre
  *   pair set   all pairs (≤ allPairsLimit sites) or the bond graph       positions, clusters, site list
- *   x order    the overlap sweep's order (re-sorted: nearly sorted after a move, so cheap)
+ *   close pairs  sites closer than a (close-pairs.ts, as check.ts)           positions, clusters, lattice constant
  * Pair energies and bounds are recomputed on every update (O(pairs), cheap next to the rest);
  * the bond graph is rebuilt after a position edit when there are more sites than allPairsLimit
  * (Delaunay, O(N log N)): a local update could not promise delaunator's choice among
@@ -29,6 +29,7 @@ import { neglectedEnvelope, type Envelope } from './envelope';
 import { harmonicCount } from './harmonics';
 import { orbitalMoments } from './moments';
 import { ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, ORBITAL_MAX_PLAUSIBLE_NM, ORBITAL_MIN_LATTICE_FRACTION, orbitalSizes, requiredClearance, type FarFieldOptions, type FarFieldReport, type PairBound, type SiteBound } from './check';
+import { closeSitePairs } from './close-pairs';
 import { describeBoundary, elementBudgetWarning, findingsWarnings, pairsLimitedWarning } from './warnings';
 
 /**
@@ -120,15 +121,13 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   let reqStamp = 0;
   let envByKey = new Map<string, Envelope>();
   let reqCache = new Map<string, number>();
-  // pair set (site indices) and the overlap sweep order; null when they must be rebuilt
+  // pair set (site indices); null when it must be rebuilt
   let pairI: Int32Array | null = null;
   let pairJ: Int32Array | null = null;
   // after a move (site indices unchanged) the old pair set, whose cached results the rebuilt set
   // takes over pair by pair; null after a change of the site list
   let prevPairI: Int32Array | null = null;
   let prevPairJ: Int32Array | null = null;
-  let sweep: number[] | null = null;
-  let sweepStale = true;
   // per pair of the pair set: the PairBound given out last time, the two site states, box stamp
   // and energy scale it was computed from, and V in nm⁻¹ (for the targets)
   let pairObj: (PairBound | null)[] = [];
@@ -168,7 +167,6 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   const structureChanged = () => {
     pairI = pairJ = null;
     prevPairI = prevPairJ = null;
-    sweep = null;
     sweepFound = null;
   };
 
@@ -221,7 +219,6 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
               prevPairJ = pairJ;
               pairI = pairJ = null;
             }
-            sweepStale = true;
             sweepFound = null;
           }
         }
@@ -387,9 +384,9 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       if (tol * v < target[j]) target[j] = tol * v;
     }
 
-    // ---- overlap sweep along x (same order and ties as check.ts: x, then index); what it finds
+    // ---- close pairs (close-pairs.ts, shared with check.ts); what it finds
     // depends on positions, clusters and the lattice constant only, so it is kept until they change
-    if (!sweepFound) sweepFound = overlapSweep(a, n);
+    if (!sweepFound) sweepFound = overlapSweep(a);
     coincide.push(...sweepFound.coincide);
     overlap.push(...sweepFound.overlap);
 
@@ -530,28 +527,14 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
     prevPairI = prevPairJ = null;
   }
 
-  function overlapSweep(a: number, n: number): { coincide: string[]; overlap: string[] } {
+  function overlapSweep(a: number): { coincide: string[]; overlap: string[] } {
     const found = { coincide: [] as string[], overlap: [] as string[] };
-    const byX = (u: number, v: number) => states[u].site.position[0] - states[v].site.position[0] || u - v;
-    if (!sweep) {
-      sweep = Array.from({ length: n }, (_, i) => i).sort(byX);
-      sweepStale = false;
-    } else if (sweepStale) {
-      sweep.sort(byX); // nearly sorted after a move: TimSort is close to linear
-      sweepStale = false;
-    }
-    for (let p = 0; p < n; p++) {
-      const i = sweep[p];
-      const pi = states[i].site.position;
-      for (let q = p + 1; q < n; q++) {
-        const j = sweep[q];
-        const pj = states[j].site.position;
-        if (pj[0] - pi[0] >= a) break;
-        const R = dist(pi, pj);
-        if (R < 1e-6) found.coincide.push(states[i].site.id, states[j].site.id);
-        else if (R < a && !(states[i].site.cluster !== undefined && states[i].site.cluster === states[j].site.cluster)) found.overlap.push(states[i].site.id, states[j].site.id);
-      }
-    }
+    closeSitePairs(
+      states.map((st) => st.site),
+      a,
+      found.coincide,
+      found.overlap,
+    );
     return found;
   }
 

@@ -21,7 +21,7 @@ export { NO_PARENT } from './types';
  *       graded mesh of a design: size field from the sites (sizefield.ts), element-count estimate
  *       and refusal above maxElements / the server cap (estimate.ts), bisection to the size field.
  */
-export { meshDesign, estimateDesignElements, chooseInitialCells, DEFAULT_HARD_CAP } from './mesh-design';
+export { meshDesign, estimateDesignElements, checkElementEstimate, CHECK_ESTIMATE_MAX_LEAVES, chooseInitialCells, DEFAULT_HARD_CAP } from './mesh-design';
 export type { MeshDesignOptions, MeshDesignResult, MeshDesignStats, DesignEstimate } from './mesh-design';
 export { SizeField, sizeFieldFromDesign, gradingExponent, autoCoreSize, orbitalLength } from './sizefield';
 export type { SizeFieldSpec, SizeFieldParams, SizeFieldOptions, SizeClassSpec } from './sizefield';

@@ -258,3 +258,23 @@ export function meshDesign(design: Design, options: MeshDesignOptions = {}): Mes
     bisectionMesh: options.keepBisectionMesh ? mesh : undefined,
   };
 }
+
+/**
+ * Work bound of the far-field check's element estimate, in cubature leaves (~5–10 µs each on the
+ * two-core test machine, so about a second at most): the plaquette needs ~11,000, a 100-site array
+ * ~100,000; larger counts are reported as "more than N" (common practice: the check must stay instant).
+ */
+export const CHECK_ESTIMATE_MAX_LEAVES = 120_000;
+
+/**
+ * The element count the far-field check reports for a box: the mesher's estimate of the graded
+ * mesh with these half-extents, rounded, stopped at CHECK_ESTIMATE_MAX_LEAVES (then `atLeast`).
+ * One function for `npm run cli -- check` and the studio's live panel, so both print the same.
+ */
+export function checkElementEstimate(design: Design, halfExtentsNm: readonly [number, number, number]): { elements: number; atLeast: boolean } {
+  const e = estimateDesignElements(
+    { ...design, enclosure: { ...design.enclosure, halfExtentsNm: [halfExtentsNm[0], halfExtentsNm[1], halfExtentsNm[2]] } },
+    { maxEstimateLeaves: CHECK_ESTIMATE_MAX_LEAVES },
+  );
+  return { elements: Math.round(e.estimate), atLeast: e.aborted };
+}

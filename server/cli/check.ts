@@ -20,18 +20,12 @@
  */
 import { farFieldCheck, type FarFieldReport } from '../../geometry/farfield';
 import type { Design } from '../../geometry/design/types';
-import { estimateDesignElements } from '../../geometry/mesh/index';
+import { checkElementEstimate } from '../../geometry/mesh/index';
 import { readDesign } from './design-file';
 import { notesAndAssumptions, table } from './text';
 
 const USAGE = 'usage: npm run cli -- check <design.json> [--json] [--moments]';
 
-/**
- * Work bound of check's element estimate, in cubature leaves (~5–10 µs each on the two-core test
- * machine, so about a second at most): the plaquette needs ~11,000, a 100-site array ~100,000; larger
- * counts are reported as "more than N" (common practice: check must stay instant).
- */
-export const CHECK_ESTIMATE_MAX_LEAVES = 120_000;
 
 const num = (x: number | null) => (x === null || !Number.isFinite(x) ? null : x);
 
@@ -128,10 +122,7 @@ export async function run(argv: string[]): Promise<number> {
   const moments = flags.includes('--moments');
   const report = farFieldCheck(design, {
     moments,
-    estimateElements: (halfExtentsNm) => {
-      const e = estimateDesignElements({ ...design, enclosure: { ...design.enclosure, halfExtentsNm } }, { maxEstimateLeaves: CHECK_ESTIMATE_MAX_LEAVES });
-      return { elements: Math.round(e.estimate), atLeast: e.aborted };
-    },
+    estimateElements: (halfExtentsNm) => checkElementEstimate(design, halfExtentsNm),
   });
   const body = json ? JSON.stringify(moments ? { ...toCheckJson(report), moments: report.moments } : toCheckJson(report), null, 2) : toReadable(design, report);
   console.log(body);

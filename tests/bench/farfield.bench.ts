@@ -7,8 +7,7 @@ import { generateArray } from '../../geometry/arrays';
 import { createFarFieldSession, farFieldCheck } from '../../geometry/farfield';
 import type { Design, Orbital, Site, Vec3 } from '../../geometry/design/types';
 import { siteToNm, snapToLattice } from '../../geometry/lattice';
-import { estimateDesignElements } from '../../geometry/mesh/index';
-import { CHECK_ESTIMATE_MAX_LEAVES } from '../../server/cli/check';
+import { CHECK_ESTIMATE_MAX_LEAVES, estimateDesignElements } from '../../geometry/mesh/index';
 import { SI_LATTICE_CONSTANT_NM } from '../../geometry/units';
 import { siliconDesign } from '../geometry/design-fixtures';
 

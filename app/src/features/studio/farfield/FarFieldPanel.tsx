@@ -168,7 +168,7 @@ function Body({ report, document, readOnly, onApplyRecommended, elementsPending 
         </p>
         <p className="num text-fine text-wafer-600">
           Graded mesh for that box:{' '}
-          {!recOk ? '—' : elementsPending || report.elementsEstimate === null ? 'estimating…' : `about ${report.elementsEstimate.toLocaleString('en-US')} elements (budget ${document.refinement.maxElements.toLocaleString('en-US')} elements)`}
+          {!recOk ? '—' : elementsPending || report.elementsEstimate === null ? 'estimating…' : `${report.elementsEstimateIsLowerBound ? 'more than' : 'about'} ${report.elementsEstimate.toLocaleString('en-US')} elements (budget ${document.refinement.maxElements.toLocaleString('en-US')} elements)`}
         </p>
         {!readOnly && (
           <Button className="mt-2" variant="secondary" disabled={!recOk || same} onClick={() => onApplyRecommended([rec[0], rec[1], rec[2]])}>

@@ -1,11 +1,11 @@
 /**
  * What the far-field workers do, without the workers: a resident session of the design (the
  * bounds), and the element estimate the command line prints (`npm run cli -- check`:
- * estimateDesignElements with no cap, rounded). Kept apart from the worker files so tests run
+ * checkElementEstimate, the same work bound and "more than N"). Kept apart from the worker files so tests run
  * them in Node and compare them with the CLI.
  */
 import { createFarFieldSession, type FarFieldChanges, type FarFieldSession } from '../../../../../geometry/farfield';
-import { estimateDesignElements } from '../../../../../geometry/mesh/index';
+import { checkElementEstimate } from '../../../../../geometry/mesh/index';
 import type { Design, Vec3 } from '../../../../../geometry/design/types';
 import { packReport, type PackedReport } from './transport';
 
@@ -18,12 +18,12 @@ export interface FarFieldWorkerApi {
 
 export interface ElementsWorkerApi {
   /** elements the graded mesh of `design` would need with these half-extents */
-  estimate(design: Design, halfExtentsNm: Vec3): number;
+  estimate(design: Design, halfExtentsNm: Vec3): { elements: number; atLeast: boolean };
 }
 
-/** The CLI's element count for a box: the mesher's estimate, uncapped, rounded. */
-export function estimateElementsFor(design: Design, halfExtentsNm: Vec3): number {
-  return Math.round(estimateDesignElements({ ...design, enclosure: { ...design.enclosure, halfExtentsNm } }, { maxElements: Infinity, hardCap: Infinity }).estimate);
+/** The CLI's element count for a box (checkElementEstimate). */
+export function estimateElementsFor(design: Design, halfExtentsNm: Vec3): { elements: number; atLeast: boolean } {
+  return checkElementEstimate(design, halfExtentsNm);
 }
 
 export function createWorkerCore(): FarFieldWorkerApi {
