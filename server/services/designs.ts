@@ -87,6 +87,13 @@ export function designService(deps: ServiceDeps) {
     return { name: doc.name, documentJson, siteCount: doc.sites.length, ...f };
   }
 
+  /** the answer to a save: the document just written (no re-read and re-parse of a large jsonb) and the row's metadata */
+  async function saved(projectId: number, designId: number, doc: DesignDocument): Promise<DesignDetail> {
+    const cur = await designsRepo(db).current(projectId, designId);
+    if (!cur) throw notFound('The design');
+    return { id: designId, name: cur.name, document: doc, version: cur.version, updatedAt: cur.updatedAt, updatedBy: cur.updatedBy };
+  }
+
   async function mustGet(projectId: number, designId: number): Promise<DesignRecord> {
     const rec = await designsRepo(db).get(projectId, designId);
     if (!rec) throw notFound('The design');
@@ -132,7 +139,7 @@ export function designService(deps: ServiceDeps) {
         });
         return newId;
       });
-      return service.get(projectId, id);
+      return saved(projectId, id, doc);
     },
 
     async update(projectId: number, designId: number, input: { document: DesignDocument; version: number; name?: string }, userId: number): Promise<DesignDetail> {
@@ -155,7 +162,7 @@ export function designService(deps: ServiceDeps) {
           await recordAudit(trx, { projectId, actorId: userId, action: 'design.rename', detail: { designId, version, from: before.name, to: doc.name } });
         }
       });
-      return service.get(projectId, designId);
+      return saved(projectId, designId, doc);
     },
 
     async remove(projectId: number, designId: number, userId: number): Promise<void> {
