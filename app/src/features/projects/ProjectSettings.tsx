@@ -31,8 +31,8 @@ function RenameForm({ project, onSaved, onLoadLatest }: { project: Project; onSa
   return (
     <form ref={formRef} noValidate onSubmit={onSubmit} className="space-y-3" aria-label="Rename project">
       <FormAlert message={errors.form} />
-      <TextField label="Project name" name="name" required maxLength={120} defaultValue={project.name} error={errors.fields.name} />
-      <TextAreaField label="Description" name="description" maxLength={2000} defaultValue={project.description} error={errors.fields.description} />
+      <TextField label="Project name" name="name" required limit={120} defaultValue={project.name} error={errors.fields.name} />
+      <TextAreaField label="Description" name="description" limit={2000} defaultValue={project.description} error={errors.fields.description} />
       <VersionedFormActions pending={update.isPending} stale={stale} onLoadLatest={onLoadLatest}>
         Save changes
       </VersionedFormActions>
