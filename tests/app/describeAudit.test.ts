@@ -84,6 +84,17 @@ describe('describeAuditEntry', () => {
     for (const [action, detail, sentence] of cases) expect(describeAuditEntry({ actor: 'Ama Reyes', action, detail }).summary).toBe(sentence);
   });
 
+  it('writes the design events the designs service records', () => {
+    const say = (action: string, detail: Record<string, unknown>) => describeAuditEntry({ actor: 'Ama Reyes', action, detail }).summary;
+    expect(say('design.create', { designId: 7, name: 'Honeycomb flake', sites: 0 })).toBe('Ama Reyes started the design “Honeycomb flake” (0 sites).');
+    expect(say('design.create', { designId: 8, name: 'Honeycomb flake (copy)', sites: 24, copyOf: 7 })).toBe('Ama Reyes duplicated a design as “Honeycomb flake (copy)” (24 sites).');
+    expect(say('design.rename', { designId: 7, version: 3, from: 'Flake', to: 'Honeycomb flake' })).toBe('Ama Reyes renamed the design “Flake” to “Honeycomb flake”.');
+    expect(say('design.delete', { designId: 7, name: 'Honeycomb flake', version: 3 })).toBe('Ama Reyes deleted the design “Honeycomb flake”.');
+    for (const text of [say('design.create', { designId: 8, name: 'x', sites: 1, copyOf: 7 }), say('design.delete', { designId: 7, name: 'x', version: 3 })]) {
+      expect(text).not.toMatch(/\b[78]\b/); // no design ids
+    }
+  });
+
   it('says when the actor no longer has an account', () => {
     expect(describeAuditEntry({ actor: null, action: 'member.leave', detail: { role: 'viewer' } }).summary).toMatch(/^Someone whose account no longer exists left/);
   });

@@ -274,6 +274,8 @@ export function DesignsTable({ project }: { project: Project }) {
     columns,
     state: { sorting, globalFilter: filter },
     onSortingChange: setSorting,
+    // The first click sorts ascending for every column (TanStack would start numbers descending).
+    sortDescFirst: false,
     onGlobalFilterChange: setFilter,
     globalFilterFn: (row, _id, value: string) => matchesFilter(row.original, value),
     getRowId: (d) => String(d.id),

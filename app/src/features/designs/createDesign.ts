@@ -3,7 +3,7 @@ import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
 import type { designCreateBodySchema } from '@contracts/api';
 import { api } from '../../lib/api';
-import { designsQuery } from './listDesigns';
+import { projectQuery } from '../projects/getProject';
 
 export type DesignCreateBody = z.input<typeof designCreateBodySchema>;
 
@@ -16,8 +16,9 @@ export async function createDesign(projectId: number, body: DesignCreateBody) {
 
 export function useCreateDesign(projectId: number) {
   const qc = useQueryClient();
+  // The project's key covers its designs list, its activity and its own updatedAt (touched by every design write).
   return useMutation({
     mutationFn: (body: DesignCreateBody) => createDesign(projectId, body),
-    onSuccess: () => qc.invalidateQueries({ queryKey: designsQuery(projectId).queryKey }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: projectQuery(projectId).queryKey }),
   });
 }

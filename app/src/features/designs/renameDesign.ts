@@ -4,7 +4,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { designResponseSchema } from '@contracts/api';
 import { api } from '../../lib/api';
-import { designsQuery } from './listDesigns';
+import { projectQuery } from '../projects/getProject';
 
 export async function renameDesign(projectId: number, designId: number, name: string) {
   const path = `/api/projects/${projectId}/designs/${designId}`;
@@ -16,9 +16,10 @@ export async function renameDesign(projectId: number, designId: number, name: st
 
 export function useRenameDesign(projectId: number) {
   const qc = useQueryClient();
+  // The project's key covers its designs list, its activity and its own updatedAt (touched by every design write).
   return useMutation({
     mutationFn: ({ designId, name }: { designId: number; name: string }) => renameDesign(projectId, designId, name),
     // On success and on a 409 alike the listed name and version may be out of date.
-    onSettled: () => qc.invalidateQueries({ queryKey: designsQuery(projectId).queryKey }),
+    onSettled: () => qc.invalidateQueries({ queryKey: projectQuery(projectId).queryKey }),
   });
 }

@@ -119,29 +119,24 @@ export function describeAuditEntry(entry: AuditEntryLike): AuditSentence {
       return s.done(`${who} left the project (was ${role(d.role)})`);
   }
 
-  // Designs: several per project (issue 9); the detail names the design and its version.
+  // Designs (server/services/designs.ts): create { name, sites, copyOf? }, update { name, version,
+  // sites }, rename { from, to, version }, delete { name, version }.
   if (entry.action.startsWith('design.')) {
-    const name = str(d.name);
+    const name = str(d.name) ?? str(d.to);
     const quoted = name ? ` ${s.quote('Design', name)}` : '';
     const version = num(d.version);
-    const sites = num(d.sites) ?? num(d.siteCount);
+    const sites = num(d.sites);
     const facts = [version !== null ? `version ${version}` : '', sites !== null ? plural(sites, 'site') : ''].filter(Boolean).join(', ');
     const tail = facts ? ` (${facts})` : '';
-    const copyOf = str(d.copyOfName);
-    const from = (d.changed as { name?: { from?: unknown } } | undefined)?.name?.from ?? d.from ?? d.oldName;
     switch (entry.action) {
       case 'design.create':
-        return s.done(`${who} started the design${quoted}${copyOf ? ` as a copy of ${s.quote('Copied from', copyOf)}` : ''}${tail}`);
-      case 'design.copy':
-        return s.done(`${who} duplicated a design as${quoted}${tail}`);
+        return s.done(d.copyOf !== undefined ? `${who} duplicated a design as${quoted}${tail}` : `${who} started the design${quoted}${tail}`);
       case 'design.rename':
-        return s.done(typeof from === 'string' ? `${who} renamed the design ${s.quote('Old name', from)} to${quoted}` : `${who} renamed a design to${quoted}`);
+        return s.done(str(d.from) ? `${who} renamed the design ${s.quote('Old name', str(d.from)!)} to${quoted}` : `${who} renamed a design to${quoted}`);
       case 'design.delete':
         return s.done(`${who} deleted the design${quoted}`);
       case 'design.update':
         return s.done(`${who} saved the design${quoted}${tail}`);
-      case 'design.import':
-        return s.done(`${who} imported sites into the design${quoted}${tail}`);
     }
   }
 
