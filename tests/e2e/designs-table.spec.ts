@@ -62,11 +62,11 @@ test('an owner starts, sorts, filters, duplicates, renames and deletes designs; 
   // Duplicate, then filter down to the chain and its copy.
   await table.getByRole('button', { name: 'Duplicate Six-site chain' }).click();
   await expect(table.getByRole('link', { name: 'Six-site chain (copy)' })).toBeVisible();
-  await page.getByLabel('Filter designs').fill('CHAIN (');
+  await page.getByLabel('Filter by name or person').fill('CHAIN (');
   await expect(table.getByRole('row')).toHaveCount(2);
-  await page.getByLabel('Filter designs').fill('six');
+  await page.getByLabel('Filter by name or person').fill('six');
   await expect(table.getByRole('row')).toHaveCount(3);
-  await page.getByLabel('Filter designs').fill('');
+  await page.getByLabel('Filter by name or person').fill('');
 
   // Rename the copy; a name over the limit is refused in place, not cut.
   await table.getByRole('button', { name: 'Rename Six-site chain (copy)' }).click();

@@ -87,17 +87,14 @@ function NewDesignForm({ projectId, onCreated }: { projectId: number; onCreated:
     );
   }
   return (
-    <form key={key} noValidate onSubmit={onSubmit} aria-label="Start a design" className="flex flex-wrap items-start gap-3">
-      <div className="min-w-0 flex-[1_1_18rem]">
-        <TextField label="New design name" name="name" limit={DESIGN_NAME_MAX} error={error} hint="For example the array it holds: “6-site chain, 4 nm”." />
+    <form key={key} noValidate onSubmit={onSubmit} aria-label="Start a design" className="flex min-w-0 flex-[2_1_24rem] items-start gap-2">
+      <div className="min-w-0 flex-1">
+        <TextField label="New design name" name="name" limit={DESIGN_NAME_MAX} error={error ?? formError ?? undefined} hint="For example the array it holds." />
       </div>
-      <div className="pt-7">
+      <div className="pt-[1.85rem]">
         <SubmitButton pending={create.isPending} pendingLabel="Starting…">
           Start design
         </SubmitButton>
-      </div>
-      <div className="basis-full">
-        <FormAlert message={formError} />
       </div>
     </form>
   );
@@ -293,21 +290,25 @@ export function DesignsTable({ project }: { project: Project }) {
       description={designs.data ? `${total} ${total === 1 ? 'design' : 'designs'} in this project. Open one to place and move its sites.` : 'The dopant-array designs of this project.'}
     >
       <div className="space-y-4">
-        {canEdit && (
-          <NewDesignForm
-            projectId={project.id}
-            onCreated={(d) => setMessage({ tone: 'success', text: `Started “${d.name}”. It is in the table; open it to add sites.` })}
-          />
-        )}
-        <div aria-live="polite">{message && <FormAlert tone={message.tone} message={message.text} />}</div>
+        <div className="flex flex-wrap items-start gap-x-8 gap-y-3">
+          {total > 0 && (
+            <div className="min-w-0 flex-[1_1_14rem]">
+              <TextField label="Filter by name or person" name="designFilter" type="search" value={filter} onChange={(e) => setFilter(e.target.value)} />
+            </div>
+          )}
+          {canEdit && (
+            <NewDesignForm
+              projectId={project.id}
+              onCreated={(d) => setMessage({ tone: 'success', text: `Started “${d.name}”. It is in the table; open it to add sites.` })}
+            />
+          )}
+        </div>
+        <FormAlert tone={message?.tone ?? 'success'} message={message?.text ?? null} />
         {designs.isPending && <Loading label="Loading designs…" />}
         {designs.isError && <QueryError error={designs.error} what="the designs" onRetry={() => void designs.refetch()} />}
         {designs.data && total === 0 && <p className="text-body text-wafer-600">No designs yet.{canEdit ? ' Start one above.' : ''}</p>}
         {designs.data && total > 0 && (
           <>
-            <div className="max-w-sm">
-              <TextField label="Filter designs" name="designFilter" type="search" value={filter} onChange={(e) => setFilter(e.target.value)} hint="By name or by who saved last." />
-            </div>
             <div className="overflow-x-auto border-y border-wafer-200">
               <table className="w-full text-left text-note">
                 <caption className="sr-only">Designs of this project; column headers sort</caption>
