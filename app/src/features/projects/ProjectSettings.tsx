@@ -63,7 +63,7 @@ function DeleteProject({ project }: { project: Project }) {
         del.mutate(undefined, { onSuccess: () => navigate('/projects', { replace: true }), onError: (err) => setError(formErrorsFromError(err, []).form) });
       }}
     >
-      <p className="text-note text-garnet-700">This removes the project, its design and its team for everyone. Type the project name to confirm.</p>
+      <p className="text-note text-garnet-700">This removes the project, its designs and its team for everyone. Type the project name to confirm.</p>
       <FormAlert message={error} />
       <TextField label="Project name" name="confirmName" value={typed} onChange={(e) => setTyped(e.target.value)} autoComplete="off" />
       <div className="flex gap-2">
