@@ -122,6 +122,9 @@ function AccountLinks() {
   return (
     <div className="flex shrink-0 items-center gap-4">
       <nav aria-label="Main" className="flex items-center gap-3">
+        <NavLink to="/projects" className={linkClass}>
+          Projects
+        </NavLink>
         {canSite(user.siteRole, 'admin.mail.read') && (
           <NavLink to="/admin/mail" className={linkClass}>
             Mail room
