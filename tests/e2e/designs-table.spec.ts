@@ -41,7 +41,7 @@ test('an owner starts, sorts, filters, duplicates, renames and deletes designs; 
   const after = (await (await page.request.get(`/api/projects/${projectId}/designs`)).json()) as { designs: { id: number; siteCount: number; worstRelBound: number | null }[] };
   const saved = after.designs.find((d) => d.id === chain.id)!;
   expect(saved.siteCount).toBe(sites.length);
-  const chainRow = table.getByRole('row', { name: /Six-site chain/ });
+  const chainRow = table.getByRole('row').filter({ has: page.getByRole('link', { name: 'Six-site chain', exact: true }) });
   await expect(chainRow).toContainText('6');
   if (saved.worstRelBound !== null) {
     // Two significant figures of the percentage: the contract's relative bound × 100.

@@ -29,6 +29,7 @@ test('an unknown address keeps the frame for a signed-out visitor', async ({ pag
 });
 
 test('titles, a 120-character name, the length counter and the activity sentences', async ({ page }) => {
+  test.setTimeout(120_000); // one account and a dozen pages on a shared two-core machine
   await page.setViewportSize({ width: 1280, height: 900 });
   await signUp(page, { email: uniqueEmail('frame'), name: 'Ilse Marchetti' });
   await expect(page).toHaveTitle('Projects · Tetrawell');
