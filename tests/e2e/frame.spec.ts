@@ -58,6 +58,12 @@ test('titles, a 120-character name, the length counter and the activity sentence
   await expectNoSidewaysScroll(page);
   const h1 = await page.getByRole('heading', { level: 1 }).boundingBox();
   expect(h1!.x + h1!.width).toBeLessThanOrEqual(1280);
+  await page.screenshot({ path: 'tests/artifacts/frame-long-name-project.png' });
+  await page.goto('/projects');
+  await expect(page.getByRole('link', { name: longest })).toBeVisible();
+  await expectNoSidewaysScroll(page);
+  await page.screenshot({ path: 'tests/artifacts/frame-long-name-list.png' });
+  await page.goto(`/projects/${projectId}`);
 
   // A rename shows in the activity list as a sentence with names, not JSON.
   const current = (await (await page.request.get(`/api/projects/${projectId}`)).json()) as { version: number };
