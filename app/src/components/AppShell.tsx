@@ -62,7 +62,7 @@ function Trail({ trail }: { trail: Crumb[] }) {
         {trail.map((c, i) => {
           const last = i === trail.length - 1;
           return (
-            <li key={i} className={`flex items-center gap-1.5 ${last ? 'min-w-0' : 'min-w-0 max-w-[40%] shrink'}`}>
+            <li key={i} className={`flex items-center gap-1.5 ${last ? 'min-w-0' : 'max-w-[16rem] shrink-0'}`}>
               {i > 0 && (
                 <svg aria-hidden="true" viewBox="0 0 8 12" className="h-2.5 w-2 shrink-0 text-wafer-300">
                   <path d="M1.5 1 L6.5 6 L1.5 11" fill="none" stroke="currentColor" strokeWidth="1.6" />

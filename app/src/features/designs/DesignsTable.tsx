@@ -166,7 +166,7 @@ function RowActions({ projectId, design, onRename, onMessage }: { projectId: num
     );
   }
   return (
-    <div className="flex flex-wrap justify-end gap-1">
+    <div className="flex justify-end gap-1 whitespace-nowrap">
       <Button
         variant="quiet"
         aria-label={`Duplicate ${design.name}`}
