@@ -14,7 +14,9 @@ import { ProjectListPage } from './features/projects/ProjectListPage';
 import { ProjectPage } from './features/projects/ProjectPage';
 
 /**
- * Routes. The paths /invite/:token, /reset/:token, /verify/:token, /sign-in and /reset are also
+ * Routes. A route whose page should fill the frame edge to edge (the design workspace) sets
+ * `handle: { fullBleed: true }`; AppShell then drops the page padding and width limit.
+ * The paths /invite/:token, /reset/:token, /verify/:token, /sign-in and /reset are also
  * written into e-mails by the server, so they must not change without changing the mail templates.
  */
 export const router = createBrowserRouter([
@@ -41,5 +43,6 @@ export const router = createBrowserRouter([
       },
     ],
   },
-  { path: '*', element: <NotFoundPage /> },
+  // Unknown addresses keep the frame (header with the trail, footer) whether or not anyone is signed in.
+  { element: <AppShell />, children: [{ path: '*', element: <NotFoundPage /> }] },
 ]);

@@ -217,6 +217,8 @@ export const auditEntrySchema = z.object({
   at: z.string(),
   actor: z.string().nullable(),
   action: z.string(),
+  /** current display name of the member the entry concerns (detail.userId), when it names one who still has an account */
+  subject: z.string().nullable(),
   detail: z.record(z.string(), z.unknown()),
 });
 export const auditListSchema = z.object({ entries: z.array(auditEntrySchema) });

@@ -1,10 +1,9 @@
 /**
- * Small pieces of client logic: links in captured mail, audit wording, and retry policy
+ * Small pieces of client logic: links in captured mail and retry policy
  * (4xx answers are final per RFC 9110 §15.5, so retrying them only repeats the refusal).
  */
 import { describe, expect, it } from 'vitest';
 import { splitLinks } from '../../app/src/features/admin/linkify';
-import { describeAction, describeDetail } from '../../app/src/features/projects/describeAudit';
 import { ApiError } from '../../app/src/lib/api';
 import { shouldRetry } from '../../app/src/lib/queryClient';
 
@@ -25,16 +24,6 @@ describe('splitLinks', () => {
 
   it('returns plain text unchanged when there is no link', () => {
     expect(splitLinks('no links here')).toEqual([{ kind: 'text', text: 'no links here' }]);
-  });
-});
-
-describe('audit wording', () => {
-  it('turns dotted codes into a phrase', () => {
-    expect(describeAction('invitation.create')).toBe('Invitation create');
-    expect(describeAction('member.role_change')).toBe('Member role change');
-  });
-  it('lists details compactly and skips empty values', () => {
-    expect(describeDetail({ role: 'viewer', invitedEmail: 'a@b.example', gone: null })).toBe('role: viewer · invited email: a@b.example');
   });
 });
 

@@ -1,6 +1,6 @@
 /**
  * The demo a first-time visitor meets after `npm start`: sign in with a demo account and find
- * the seeded project with its four-donor chain. The shared test database is not empty (other
+ * the seeded project with its designs (the four-donor chain, a six-donor chain, a 3 × 3 square). The shared test database is not empty (other
  * tests write to it), so this test seeds a database of its own on the same cluster and runs a
  * second server on it, exactly as the start script does (migrate, seedDemoIfEmpty, start).
  *
@@ -11,7 +11,7 @@ import { expect, test } from '@playwright/test';
 import knexFactory from 'knex';
 import { randomBytes } from 'node:crypto';
 import { migrateLatest } from '../../server/db/migrate';
-import { DEMO_ACCOUNTS, DEMO_PROJECT_NAME, demoDesign, seedDemoIfEmpty } from '../../server/db/seed';
+import { DEMO_ACCOUNTS, DEMO_PROJECT_NAME, demoChainVersions, demoDesign, demoSquareDesign, seedDemoIfEmpty } from '../../server/db/seed';
 import { start, type RunningServer } from '../../server/index';
 
 const silent = { info: () => {}, warn: () => {}, error: (...a: unknown[]) => console.error(...a) };
@@ -50,7 +50,7 @@ test.afterAll(async () => {
   }
 });
 
-test('each demo account signs in and finds the seeded donor chain', async ({ browser }) => {
+test('each demo account signs in and finds the seeded designs', async ({ browser }) => {
   const design = demoDesign();
   const a = design.host.latticeConstantNm;
   for (const account of DEMO_ACCOUNTS) {
@@ -67,16 +67,16 @@ test('each demo account signs in and finds the seeded donor chain', async ({ bro
 
     await page.getByRole('link', { name: DEMO_PROJECT_NAME }).click();
     await expect(page.getByRole('heading', { level: 1, name: DEMO_PROJECT_NAME, exact: true })).toBeVisible();
-    const table = page.getByRole('table', { name: /Sites of the design/ });
-    await expect(table.getByRole('row')).toHaveCount(1 + design.sites.length);
-    for (const site of design.sites) {
-      // Nearest neighbour from the seeded positions themselves.
-      const nearest = Math.min(
-        ...design.sites.filter((o) => o !== site).map((o) => Math.hypot(site.position[0] - o.position[0], site.position[1] - o.position[1], site.position[2] - o.position[2])),
-      );
-      const row = table.getByRole('row', { name: new RegExp(`^${site.id}\\b`) });
-      await expect(row).toContainText(nearest.toFixed(3));
+    // The project page lists the seeded designs with their site counts, taken from the seed's own documents.
+    const table = page.getByRole('table', { name: /Designs of this project/ });
+    const seeded = [design, demoChainVersions().at(-1)!, demoSquareDesign()];
+    await expect(table.getByRole('row')).toHaveCount(1 + seeded.length);
+    for (const doc of seeded) {
+      const row = table.getByRole('row').filter({ has: page.getByRole('link', { name: doc.name, exact: true }) });
+      await expect(row.getByRole('cell').nth(1)).toHaveText(String(doc.sites.length));
     }
+    // Only those who may edit designs get the controls.
+    await expect(page.getByRole('form', { name: 'Start a design' })).toHaveCount(account.projectRole === 'viewer' ? 0 : 1);
     // The chain's spacing is a whole number of [110] steps of a·√2; confirm the formula matches the seed.
     const spacing = Math.hypot(design.sites[1].position[0] - design.sites[0].position[0], design.sites[1].position[1] - design.sites[0].position[1]);
     expect(spacing / (a * Math.SQRT2)).toBeCloseTo(Math.round(spacing / (a * Math.SQRT2)), 9);

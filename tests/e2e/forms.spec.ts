@@ -84,6 +84,10 @@ test('keyboard alone signs in, and focused controls show a visible ring', async 
   await setup.close();
 
   await page.goto('/sign-in');
+  // The first stop is the skip link (WCAG 2.4.1 Bypass Blocks); following it lands before the form.
+  await page.keyboard.press('Tab');
+  await expect(page.getByRole('link', { name: 'Skip to content' })).toBeFocused();
+  await page.keyboard.press('Enter');
   await page.keyboard.press('Tab');
   await expect(page.getByLabel('E-mail address')).toBeFocused();
   const outline = await page.getByLabel('E-mail address').evaluate((el) => getComputedStyle(el).outlineStyle);

@@ -8,8 +8,8 @@ export function EstimateNote({ variant = 'inline', assumptions }: { variant?: 'i
     "Confirm them with your group's own validated methods before they guide a fabrication or design decision.";
   if (variant === 'footer') {
     return (
-      <p className="text-fine text-wafer-400">
-        <span className="font-semibold text-ember-300">Model estimates. </span>
+      <p className="max-w-4xl text-fine text-wafer-600">
+        <span className="font-semibold text-ember-800">Model estimates. </span>
         {text}
       </p>
     );

@@ -3,7 +3,7 @@
  * aria-describedby, invalid controls say so with aria-invalid, and form-level messages land in
  * an aria-live region that exists before the message does (so screen readers announce it).
  */
-import { useEffect, useId, useRef, useState, type InputHTMLAttributes, type ReactNode, type SelectHTMLAttributes, type TextareaHTMLAttributes } from 'react';
+import { useEffect, useId, useRef, useState, type ChangeEvent, type InputHTMLAttributes, type ReactNode, type SelectHTMLAttributes, type TextareaHTMLAttributes } from 'react';
 import { noErrors, type FormErrors } from '../lib/formErrors';
 
 const controlBase =
@@ -46,29 +46,83 @@ function FieldFrame({ id, label, hint, error, children }: FieldFrameProps) {
   );
 }
 
-type TextFieldProps = Omit<InputHTMLAttributes<HTMLInputElement>, 'name'> & { label: string; name: string; hint?: ReactNode; error?: string };
+/**
+ * A length limit that says so instead of cutting: `maxLength` would drop the end of a pasted
+ * name without a word. The counter counts what will be saved (the contracts trim, then count
+ * UTF-16 units like zod's `max`), and past the limit the field is marked invalid with the figure.
+ */
+function useLimit(limit: number | undefined, initial: unknown, onChange?: (e: ChangeEvent<HTMLInputElement & HTMLTextAreaElement>) => void) {
+  const [length, setLength] = useState(() => String(initial ?? '').trim().length);
+  const over = limit !== undefined && length > limit;
+  return {
+    over,
+    counter: limit === undefined ? null : (
+      <span className={`num ${over ? 'font-semibold text-garnet-700' : ''}`}>
+        {length} of {limit} characters
+      </span>
+    ),
+    overMessage: over ? `Too long: ${length} characters, at most ${limit} fit. Shorten it before saving.` : undefined,
+    onChange: (e: ChangeEvent<HTMLInputElement & HTMLTextAreaElement>) => {
+      setLength(e.currentTarget.value.trim().length);
+      onChange?.(e);
+    },
+  };
+}
 
-export function TextField({ label, name, hint, error, id, className = '', ...input }: TextFieldProps) {
+function hintWith(hint: ReactNode, counter: ReactNode): ReactNode {
+  if (!counter) return hint;
+  return (
+    <span className="flex flex-wrap justify-between gap-x-3">
+      <span>{hint}</span>
+      {counter}
+    </span>
+  );
+}
+
+type TextFieldProps = Omit<InputHTMLAttributes<HTMLInputElement>, 'name' | 'maxLength'> & { label: string; name: string; hint?: ReactNode; error?: string; limit?: number };
+
+export function TextField({ label, name, hint, error, id, className = '', limit, onChange, ...input }: TextFieldProps) {
   const auto = useId();
   const fieldId = id ?? `${auto}-${name}`;
+  const lim = useLimit(limit, input.value ?? input.defaultValue, onChange);
+  const shownError = error ?? lim.overMessage;
   return (
-    <FieldFrame id={fieldId} label={label} hint={hint} error={error}>
+    <FieldFrame id={fieldId} label={label} hint={hintWith(hint, lim.counter)} error={shownError}>
       {(describedBy) => (
-        <input id={fieldId} name={name} aria-invalid={error ? true : undefined} aria-describedby={describedBy} className={`${controlClass(!!error)} ${className}`} {...input} />
+        <input
+          id={fieldId}
+          name={name}
+          aria-invalid={shownError ? true : undefined}
+          aria-describedby={describedBy}
+          className={`${controlClass(!!shownError)} ${className}`}
+          onChange={lim.onChange}
+          {...input}
+        />
       )}
     </FieldFrame>
   );
 }
 
-type TextAreaFieldProps = Omit<TextareaHTMLAttributes<HTMLTextAreaElement>, 'name'> & { label: string; name: string; hint?: ReactNode; error?: string };
+type TextAreaFieldProps = Omit<TextareaHTMLAttributes<HTMLTextAreaElement>, 'name' | 'maxLength'> & { label: string; name: string; hint?: ReactNode; error?: string; limit?: number };
 
-export function TextAreaField({ label, name, hint, error, id, rows = 3, ...area }: TextAreaFieldProps) {
+export function TextAreaField({ label, name, hint, error, id, rows = 3, limit, onChange, ...area }: TextAreaFieldProps) {
   const auto = useId();
   const fieldId = id ?? `${auto}-${name}`;
+  const lim = useLimit(limit, area.value ?? area.defaultValue, onChange);
+  const shownError = error ?? lim.overMessage;
   return (
-    <FieldFrame id={fieldId} label={label} hint={hint} error={error}>
+    <FieldFrame id={fieldId} label={label} hint={hintWith(hint, lim.counter)} error={shownError}>
       {(describedBy) => (
-        <textarea id={fieldId} name={name} rows={rows} aria-invalid={error ? true : undefined} aria-describedby={describedBy} className={controlClass(!!error)} {...area} />
+        <textarea
+          id={fieldId}
+          name={name}
+          rows={rows}
+          aria-invalid={shownError ? true : undefined}
+          aria-describedby={describedBy}
+          className={controlClass(!!shownError)}
+          onChange={lim.onChange}
+          {...area}
+        />
       )}
     </FieldFrame>
   );

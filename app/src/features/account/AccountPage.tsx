@@ -2,6 +2,7 @@ import { useState } from 'react';
 import { accountUpdateBodySchema, passwordChangeBodySchema, type User } from '@contracts/api';
 import { FormAlert, SubmitButton, TextField, formValues, useFormErrors } from '../../components/Form';
 import { PageHeader } from '../../components/PageHeader';
+import { usePageTitle } from '../../components/pageTitle';
 import { Panel } from '../../components/Panel';
 import { Loading } from '../../components/QueryState';
 import { VersionedFormActions, useVersionedForm } from '../../components/VersionedForm';
@@ -32,7 +33,7 @@ function DisplayNameForm({ user, onSaved, onLoadLatest }: { user: User; onSaved:
   return (
     <form ref={formRef} noValidate onSubmit={onSubmit} className="space-y-3" aria-label="Change display name">
       <FormAlert message={errors.form} />
-      <TextField label="Display name" name="displayName" required maxLength={80} defaultValue={user.displayName} autoComplete="name" hint="Shown to your teammates in every project." error={errors.fields.displayName} />
+      <TextField label="Display name" name="displayName" required limit={80} defaultValue={user.displayName} autoComplete="name" hint="Shown to your teammates in every project." error={errors.fields.displayName} />
       <VersionedFormActions pending={update.isPending} stale={stale} onLoadLatest={onLoadLatest}>
         Save name
       </VersionedFormActions>
@@ -83,11 +84,12 @@ export function AccountPage() {
   const me = useMe();
   const [nameKey, setNameKey] = useState(0);
   const [nameSaved, setNameSaved] = useState(false);
+  usePageTitle('Your account');
   if (!me.data) return <Loading />;
   const user = me.data;
   return (
     <>
-      <PageHeader eyebrow="Account" title="Your account" lead={`Signed in as ${user.email}${user.siteRole === 'admin' ? ' · site administrator' : ''}.`} />
+      <PageHeader title="Your account" lead={`Signed in as ${user.email}${user.siteRole === 'admin' ? ' · site administrator' : ''}.`} />
       <div className="grid max-w-4xl items-start gap-6 md:grid-cols-2">
         <Panel title="Profile">
           <div className="space-y-3">

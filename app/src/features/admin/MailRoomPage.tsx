@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import { canSite } from '@contracts/roles';
 import { PageHeader } from '../../components/PageHeader';
+import { usePageTitle } from '../../components/pageTitle';
 import { Panel } from '../../components/Panel';
 import { Loading, QueryError } from '../../components/QueryState';
 import { formatDateTime } from '../../lib/format';
@@ -65,13 +66,13 @@ function MailList() {
 
 export function MailRoomPage() {
   const me = useMe();
+  usePageTitle('Mail room');
   if (!canSite(me.data?.siteRole, 'admin.mail.read')) {
     return <PageHeader title="Mail room" lead="Only site administrators can read captured mail." />;
   }
   return (
     <>
       <PageHeader
-        eyebrow="Site administration"
         title="Mail room"
         lead="Messages caught by the local stand-in mail server used in development and tests. With a real mail host configured, nothing lands here."
       />

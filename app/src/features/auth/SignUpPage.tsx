@@ -42,7 +42,7 @@ export function SignUpPage() {
     <GateShell title="Create your account" lead="One account for every project your group shares with you.">
       <form ref={formRef} noValidate onSubmit={onSubmit} className="space-y-4" aria-label="Create account">
         <FormAlert message={errors.form} />
-        <TextField label="Display name" name="displayName" autoComplete="name" required hint="Shown to your teammates." error={errors.fields.displayName} />
+        <TextField label="Display name" name="displayName" autoComplete="name" required limit={80} hint="Shown to your teammates." error={errors.fields.displayName} />
         <TextField label="E-mail address" name="email" type="email" autoComplete="email" required error={errors.fields.email} defaultValue={params.get('email') ?? ''} />
         <TextField label="Password" name="password" type="password" autoComplete="new-password" required hint="At least 10 characters." error={errors.fields.password} />
         <div className="pt-1">

@@ -50,7 +50,7 @@ function DesignBody({ design }: { design: DesignDocument }) {
         <Fact term="Sites">
           {design.sites.length} ({counts.map((c) => `${c.count} ${c.species}`).join(', ') || 'none'})
         </Fact>
-        <Fact term="Enclosure">
+        <Fact term="Domain box">
           box of half-size {halfExtentsNm.map((h) => formatNm(h, 1)).join(' × ')} nm about ({center.map((c) => formatNm(c, 2)).join(', ')}) nm;{' '}
           {boundary.kind === 'grounded' ? 'grounded walls' : `multipole boundary to order ${boundary.order}`}
         </Fact>

@@ -57,7 +57,7 @@ export function InvitationsSection({ project }: { project: Project }) {
   return (
     <Panel title="Invitations" description="Invite by e-mail; the link in the message lets them join with the role you pick.">
       <InviteForm projectId={project.id} />
-      <h3 className="mt-6 text-note font-bold uppercase tracking-wide text-wafer-500">Waiting for an answer</h3>
+      <h3 className="mt-6 text-note font-bold text-wafer-700">Waiting for an answer</h3>
       <FormAlert message={revokeError} />
       {invitations.isPending && <Loading label="Loading invitations…" />}
       {invitations.isError && <QueryError error={invitations.error} what="invitations" onRetry={() => void invitations.refetch()} />}
@@ -69,7 +69,7 @@ export function InvitationsSection({ project }: { project: Project }) {
               <div className="min-w-0">
                 <p className="truncate font-semibold text-wafer-900">{inv.email}</p>
                 <p className="text-fine text-wafer-500">
-                  by {inv.invitedBy} · expires <time dateTime={inv.expiresAt}>{formatDateTime(inv.expiresAt)}</time>
+                  by <span className="wrap-anywhere">{inv.invitedBy}</span> · expires <time dateTime={inv.expiresAt}>{formatDateTime(inv.expiresAt)}</time>
                 </p>
               </div>
               <div className="flex items-center gap-2">

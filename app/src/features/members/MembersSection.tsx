@@ -39,7 +39,7 @@ function MemberRow({ projectId, member, project, isSelf, onFailure }: { projectI
     <li className="py-3">
       <div className="flex flex-wrap items-center justify-between gap-3">
         <div className="min-w-0">
-          <p className="font-semibold text-wafer-900">
+          <p className="wrap-anywhere font-semibold text-wafer-900">
             {member.displayName}
             {isSelf && <span className="ml-1.5 text-fine font-normal text-wafer-500">(you)</span>}
           </p>
@@ -80,7 +80,7 @@ function MemberRow({ projectId, member, project, isSelf, onFailure }: { projectI
             </Button>
           ) : (
             <>
-              <span className="text-note text-wafer-700">Remove {member.displayName} from this project?</span>
+              <span className="wrap-anywhere text-note text-wafer-700">Remove {member.displayName} from this project?</span>
               <Button
                 variant="danger"
                 disabled={remove.isPending}

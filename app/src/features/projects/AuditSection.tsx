@@ -2,7 +2,7 @@ import type { Project } from '@contracts/api';
 import { Panel } from '../../components/Panel';
 import { Loading, QueryError } from '../../components/QueryState';
 import { formatDateTime } from '../../lib/format';
-import { describeAction, describeDetail } from './describeAudit';
+import { describeAuditEntry } from './describeAudit';
 import { useAudit } from './listAudit';
 
 const SHOWN = 25;
@@ -17,18 +17,34 @@ export function AuditSection({ project }: { project: Project }) {
       {audit.isError && <QueryError error={audit.error} what="the activity log" onRetry={() => void audit.refetch()} />}
       {audit.data && audit.data.length === 0 && <p className="text-note text-wafer-500">Nothing recorded yet.</p>}
       {audit.data && audit.data.length > 0 && (
-        <ol className="space-y-2.5" aria-label="Recent activity">
-          {audit.data.slice(0, SHOWN).map((e) => (
-            <li key={e.id} className="grid grid-cols-[9.5rem_1fr] gap-3 text-note">
-              <time dateTime={e.at} className="num text-wafer-500">
-                {formatDateTime(e.at)}
-              </time>
-              <div className="min-w-0">
-                <span className="font-semibold text-wafer-900">{e.actor ?? 'System'}</span> <span className="text-wafer-700">{describeAction(e.action).toLowerCase()}</span>
-                {Object.keys(e.detail).length > 0 && <p className="truncate text-fine text-wafer-500">{describeDetail(e.detail)}</p>}
-              </div>
-            </li>
-          ))}
+        <ol className="divide-y divide-wafer-100" aria-label="Recent activity">
+          {audit.data.slice(0, SHOWN).map((e) => {
+            const { summary, more } = describeAuditEntry(e);
+            return (
+              <li key={e.id} className="py-2 text-note first:pt-0 last:pb-0">
+                <time dateTime={e.at} className="num block text-fine text-wafer-500">
+                  {formatDateTime(e.at)}
+                </time>
+                <p className="wrap-anywhere text-wafer-800">{summary}</p>
+                {more.length > 0 && (
+                  <details className="group mt-1">
+                    <summary className="w-fit cursor-pointer rounded text-fine font-semibold text-phosphor-700 hover:text-phosphor-800">
+                      <span className="group-open:hidden">Show in full</span>
+                      <span className="hidden group-open:inline">Hide</span>
+                    </summary>
+                    <dl className="mt-1.5 space-y-1.5 border-l-2 border-wafer-200 pl-3 text-fine">
+                      {more.map((m, i) => (
+                        <div key={i}>
+                          <dt className="font-semibold text-wafer-600">{m.label}</dt>
+                          <dd className="whitespace-pre-wrap wrap-anywhere text-wafer-800">{m.value}</dd>
+                        </div>
+                      ))}
+                    </dl>
+                  </details>
+                )}
+              </li>
+            );
+          })}
         </ol>
       )}
     </Panel>

@@ -2,6 +2,7 @@ import { Link, useNavigate } from 'react-router';
 import { projectCreateBodySchema } from '@contracts/api';
 import { FormAlert, SubmitButton, TextAreaField, TextField, formValues, useFormErrors } from '../../components/Form';
 import { PageHeader } from '../../components/PageHeader';
+import { usePageTitle } from '../../components/pageTitle';
 import { Panel } from '../../components/Panel';
 import { Loading, QueryError } from '../../components/QueryState';
 import { RoleBadge } from '../../components/RoleBadge';
@@ -35,8 +36,8 @@ function CreateProjectForm() {
   return (
     <form ref={formRef} noValidate onSubmit={onSubmit} className="space-y-4" aria-label="Start a project">
       <FormAlert message={errors.form} />
-      <TextField label="Project name" name="name" required maxLength={120} error={errors.fields.name} hint="For example: the array, sample or question it studies." />
-      <TextAreaField label="Description" name="description" maxLength={2000} error={errors.fields.description} hint="Optional. What the team is modelling and why." />
+      <TextField label="Project name" name="name" required limit={120} error={errors.fields.name} hint="For example: the array, sample or question it studies." />
+      <TextAreaField label="Description" name="description" limit={2000} error={errors.fields.description} hint="Optional. What the team is modelling and why." />
       <SubmitButton pending={create.isPending} pendingLabel="Creating…">
         Create project
       </SubmitButton>
@@ -46,11 +47,12 @@ function CreateProjectForm() {
 
 export function ProjectListPage() {
   const projects = useProjects();
+  usePageTitle('Projects');
   return (
     <>
-      <PageHeader eyebrow="Workbench" title="Projects" lead="Each project holds one dopant-array design, the people who work on it and a log of what they did." />
-      <div className="grid gap-6 lg:grid-cols-3">
-        <div className="lg:col-span-2">
+      <PageHeader title="Projects" lead="Each project holds its dopant-array designs, the people who work on them and a log of what they did." />
+      <div className="grid gap-x-10 gap-y-8 lg:grid-cols-3">
+        <div className="min-w-0 lg:col-span-2">
           <Panel title="Your projects">
             {projects.isPending && <Loading label="Loading projects…" />}
             {projects.isError && <QueryError error={projects.error} what="your projects" onRetry={() => void projects.refetch()} />}
@@ -60,12 +62,12 @@ export function ProjectListPage() {
             {projects.data && projects.data.length > 0 && (
               <ul className="divide-y divide-wafer-100" aria-label="Projects">
                 {projects.data.map((p) => (
-                  <li key={p.id} className="flex flex-wrap items-start justify-between gap-3 py-3">
-                    <div className="min-w-0">
-                      <Link to={`/projects/${p.id}`} className="text-body font-bold text-wafer-900 underline-offset-2 hover:text-phosphor-700 hover:underline">
+                  <li key={p.id} className="flex items-start justify-between gap-3 py-3">
+                    <div className="min-w-0 flex-1">
+                      <Link to={`/projects/${p.id}`} className="wrap-anywhere text-body font-bold text-wafer-900 underline-offset-2 hover:text-phosphor-700 hover:underline">
                         {p.name}
                       </Link>
-                      {p.description && <p className="mt-0.5 line-clamp-2 text-note text-wafer-600">{p.description}</p>}
+                      {p.description && <p className="mt-0.5 line-clamp-2 wrap-anywhere text-note text-wafer-600">{p.description}</p>}
                       <p className="mt-1 text-fine text-wafer-500">
                         Updated <time dateTime={p.updatedAt}>{formatDateTime(p.updatedAt)}</time>
                       </p>

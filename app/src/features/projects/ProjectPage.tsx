@@ -1,10 +1,11 @@
 import { Link, useParams } from 'react-router';
 import { PageHeader } from '../../components/PageHeader';
+import { usePageTitle } from '../../components/pageTitle';
 import { Loading, QueryError } from '../../components/QueryState';
 import { ROLE_LABELS } from '../../components/RoleBadge';
 import { ApiError } from '../../lib/api';
 import { formatDateTime } from '../../lib/format';
-import { DesignSummary } from '../design/DesignSummary';
+import { DesignsTable } from '../designs/DesignsTable';
 import { InvitationsSection } from '../invitations/InvitationsSection';
 import { MembersSection } from '../members/MembersSection';
 import { AuditSection } from './AuditSection';
@@ -16,8 +17,11 @@ export function ProjectPage() {
   const projectId = Number(raw);
   const valid = Number.isInteger(projectId) && projectId > 0;
   const project = useProject(valid ? projectId : 0, valid);
+  const missing = !valid || (project.error instanceof ApiError && (project.error.status === 404 || project.error.status === 403));
+  const name = project.data?.name;
+  usePageTitle(missing ? 'Project not found' : (name ?? 'Project'), [{ label: 'Projects', to: '/projects' }, { label: missing ? 'Not found' : (name ?? '…') }]);
 
-  if (!valid || (project.error instanceof ApiError && (project.error.status === 404 || project.error.status === 403))) {
+  if (missing) {
     return (
       <div className="max-w-xl">
         <PageHeader title="Project not found" lead="It does not exist, was deleted, or you are not a member of it. Ask one of its owners for an invitation." />
@@ -33,15 +37,8 @@ export function ProjectPage() {
   const p = project.data;
   return (
     <>
-      <nav aria-label="Breadcrumb" className="mb-3 text-note">
-        <Link to="/projects" className="font-semibold text-phosphor-700 underline-offset-2 hover:underline">
-          Projects
-        </Link>
-        <span aria-hidden="true" className="mx-2 text-wafer-400">/</span>
-        <span aria-current="page" className="text-wafer-600">{p.name}</span>
-      </nav>
       <PageHeader title={p.name} lead={p.description || undefined}>
-        <div className="text-note text-wafer-600 md:text-right">
+        <div className="shrink-0 text-note text-wafer-600 md:text-right">
           <p>
             Your role: <span className="font-semibold text-wafer-900">{ROLE_LABELS[p.role].label}</span> ({ROLE_LABELS[p.role].summary})
           </p>
@@ -50,15 +47,15 @@ export function ProjectPage() {
           </p>
         </div>
       </PageHeader>
-      {/* The site table gets the full width; team and history sit side by side below it. */}
-      <div className="space-y-6">
-        <DesignSummary projectId={p.id} />
-        <div className="grid items-start gap-6 lg:grid-cols-2">
-          <div className="space-y-6">
+      {/* The designs get the full width; team and history sit side by side below them. */}
+      <div className="space-y-10">
+        <DesignsTable project={p} />
+        <div className="grid items-start gap-x-10 gap-y-10 lg:grid-cols-2">
+          <div className="min-w-0 space-y-10">
             <MembersSection project={p} />
             <InvitationsSection project={p} />
           </div>
-          <div className="space-y-6">
+          <div className="min-w-0 space-y-10">
             <AuditSection project={p} />
             <ProjectSettings project={p} />
           </div>

@@ -31,8 +31,8 @@ function RenameForm({ project, onSaved, onLoadLatest }: { project: Project; onSa
   return (
     <form ref={formRef} noValidate onSubmit={onSubmit} className="space-y-3" aria-label="Rename project">
       <FormAlert message={errors.form} />
-      <TextField label="Project name" name="name" required maxLength={120} defaultValue={project.name} error={errors.fields.name} />
-      <TextAreaField label="Description" name="description" maxLength={2000} defaultValue={project.description} error={errors.fields.description} />
+      <TextField label="Project name" name="name" required limit={120} defaultValue={project.name} error={errors.fields.name} />
+      <TextAreaField label="Description" name="description" limit={2000} defaultValue={project.description} error={errors.fields.description} />
       <VersionedFormActions pending={update.isPending} stale={stale} onLoadLatest={onLoadLatest}>
         Save changes
       </VersionedFormActions>
@@ -63,7 +63,7 @@ function DeleteProject({ project }: { project: Project }) {
         del.mutate(undefined, { onSuccess: () => navigate('/projects', { replace: true }), onError: (err) => setError(formErrorsFromError(err, []).form) });
       }}
     >
-      <p className="text-note text-garnet-700">This removes the project, its design and its team for everyone. Type the project name to confirm.</p>
+      <p className="text-note text-garnet-700">This removes the project, its designs and its team for everyone. Type the project name to confirm.</p>
       <FormAlert message={error} />
       <TextField label="Project name" name="confirmName" value={typed} onChange={(e) => setTyped(e.target.value)} autoComplete="off" />
       <div className="flex gap-2">
