@@ -88,7 +88,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     });
   } catch (err) {
     sessionStore.close();
-    await Promise.allSettled([knex.destroy(), sessionPool.end()]);
+    await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close()]);
     mailer.close();
     throw err;
   }
@@ -109,7 +109,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
       });
       sessionStore.close();
       mailer.close();
-      await Promise.allSettled([knex.destroy(), sessionPool.end()]);
+      await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close()]);
     })());
 
   return { url, port, app, knex, services, stop };

@@ -16,6 +16,8 @@ import { projectsRepo } from '../repositories/projects';
 import { membershipsRepo } from '../repositories/memberships';
 import { designsRepo } from '../repositories/designs';
 import { auditRepo } from '../repositories/audit';
+import { designWriteSync } from '../services/designs';
+import { generateArray } from '../../geometry/arrays';
 import { SI_EPSILON_R, SI_LATTICE_CONSTANT_NM } from '../../geometry/units';
 
 export interface DemoAccount {
@@ -70,6 +72,37 @@ export function demoDesign(): DesignDocument {
   });
 }
 
+/** Designs of the demo project besides the four-donor chain (all invented examples). */
+export const DEMO_CHAIN6_NAME = 'Six-donor chain, about 4 nm pitch';
+export const DEMO_SQUARE_NAME = '3 × 3 square array, about 4.3 nm pitch';
+
+function demoDocument(name: string, sites: DesignDocument['sites'], halfExtentNm: number): DesignDocument {
+  return designSchema.parse({
+    format: 'tetrawell-design',
+    version: 1,
+    name,
+    host: { material: 'Si', epsilonR: SI_EPSILON_R, latticeConstantNm: SI_LATTICE_CONSTANT_NM },
+    sites,
+    enclosure: { center: [0, 0, 0], halfExtentsNm: [halfExtentNm, halfExtentNm, halfExtentNm], boundary: { kind: 'multipole', order: 2 } },
+    refinement: { order: 2, targetRelError: 0.01, maxElements: 500_000 },
+  });
+}
+
+/**
+ * A six-donor P chain along [100] at a 4 nm target pitch (snapped to the lattice), in two saved
+ * versions: first a tight 15 nm box, then the box widened to 30 nm (the far-field check's advice).
+ */
+export function demoChainVersions(): DesignDocument[] {
+  const sites = generateArray({ kind: 'chain', nx: 6, spacingNm: 4, latticeConstantNm: SI_LATTICE_CONSTANT_NM, idPrefix: 'c' });
+  return [demoDocument(DEMO_CHAIN6_NAME, sites, 15), demoDocument(DEMO_CHAIN6_NAME, sites, 30)];
+}
+
+/** A 3 × 3 square array of P donors, 8 lattice constants (≈ 4.34 nm) apart, in a 30 nm box. */
+export function demoSquareDesign(): DesignDocument {
+  const sites = generateArray({ kind: 'square', nx: 3, ny: 3, spacingNm: 8 * SI_LATTICE_CONSTANT_NM, latticeConstantNm: SI_LATTICE_CONSTANT_NM, idPrefix: 'q' });
+  return demoDocument(DEMO_SQUARE_NAME, sites, 30);
+}
+
 export async function seedDemoIfEmpty(knex: Knex, opts: { bcryptRounds?: number } = {}): Promise<DemoSeedResult> {
   const rounds = opts.bcryptRounds ?? 12;
   const seeded = await knex.transaction(async (trx) => {
@@ -92,7 +125,13 @@ export async function seedDemoIfEmpty(knex: Knex, opts: { bcryptRounds?: number 
       createdBy: ownerId,
     });
     for (let i = 0; i < DEMO_ACCOUNTS.length; i++) await membershipsRepo(trx).insert(project.id, ids[i], DEMO_ACCOUNTS[i].projectRole);
-    await designsRepo(trx).insert(project.id, demoDesign(), ownerId);
+    const designs = designsRepo(trx);
+    await designs.insert(project.id, designWriteSync(demoDesign()), ownerId);
+    const [chainV1, chainV2] = demoChainVersions();
+    const chainId = await designs.insert(project.id, designWriteSync(chainV1), ownerId);
+    // the second version saved by the editor, as a teammate would
+    await designs.update(project.id, chainId, designWriteSync(chainV2), 1, ids[1]);
+    await designs.insert(project.id, designWriteSync(demoSquareDesign()), ids[1]);
     await auditRepo(trx).insert({ projectId: project.id, actorId: ownerId, action: 'project.create', detail: { name: project.name, seeded: true } });
     return true;
   });

@@ -22,8 +22,8 @@ export const STATUS_BY_CODE: Record<ErrorCode, number> = {
   internal: 500,
 };
 
-export function sendError(res: Parameters<RequestHandler>[1], code: ErrorCode, message: string, details?: AppError['details']): void {
-  const body: ErrorBody = { error: details ? { code, message, details } : { code, message } };
+export function sendError(res: Parameters<RequestHandler>[1], code: ErrorCode, message: string, details?: AppError['details'], current?: AppError['current']): void {
+  const body: ErrorBody = { error: { code, message, ...(details ? { details } : {}), ...(current ? { current } : {}) } };
   res.status(STATUS_BY_CODE[code]).json(body);
 }
 
@@ -46,7 +46,7 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
       return;
     }
     if (err instanceof AppError) {
-      sendError(res, err.code, err.message, err.details);
+      sendError(res, err.code, err.message, err.details, err.current);
       return;
     }
     const e = (err ?? {}) as HttpishError;

@@ -1,41 +1,188 @@
-import type { DesignDocument } from '@contracts/design';
+/**
+ * Designs of a project and their stored versions.
+ *
+ * `designs` holds each design's current document and the figures the project page lists
+ * (name, site count, worst far-field bound); `design_versions` holds every saved document and
+ * is append-only: this module has no update or delete path for it (a database trigger refuses
+ * UPDATE too; rows go only with their design).
+ *
+ * Documents travel as JSON text prepared by the caller (`documentJson`), so a large document is
+ * stringified once per save.
+ */
 import { type Db, iso } from './db';
 
 export interface DesignRecord {
+  id: number;
   projectId: number;
+  name: string;
   document: unknown;
   version: number;
+  siteCount: number;
+  worstRelBound: number | null;
   updatedAt: string;
+  /** display name of who saved last; null when unknown */
+  updatedBy: string | null;
+}
+
+export type DesignSummaryRecord = Omit<DesignRecord, 'document' | 'projectId'>;
+
+export interface DesignVersionRecord {
+  version: number;
+  name: string;
+  siteCount: number;
+  sha256: string;
+  createdAt: string;
+  createdBy: string | null;
+}
+
+/** What a save writes: the current row and the new version row get the same figures. */
+export interface DesignWrite {
+  name: string;
+  documentJson: string;
+  siteCount: number;
+  worstRelBound: number | null;
+  sha256: string;
 }
 
 interface DesignRow {
+  id: number;
   project_id: number;
-  document: unknown;
+  name: string;
+  document?: unknown;
   version: number;
+  site_count: number;
+  worst_rel_bound: number | null;
   updated_at: Date;
+  updated_by_name: string | null;
 }
 
-const toDesign = (r: DesignRow): DesignRecord => ({ projectId: r.project_id, document: r.document, version: r.version, updatedAt: iso(r.updated_at) });
+const toDesign = (r: DesignRow): DesignRecord => ({
+  id: r.id,
+  projectId: r.project_id,
+  name: r.name,
+  document: r.document,
+  version: r.version,
+  siteCount: r.site_count,
+  worstRelBound: r.worst_rel_bound === null ? null : Number(r.worst_rel_bound),
+  updatedAt: iso(r.updated_at),
+  updatedBy: r.updated_by_name,
+});
+
+interface VersionRow {
+  version: number;
+  name: string;
+  site_count: number;
+  sha256: string;
+  created_at: Date;
+  created_by_name: string | null;
+  document?: unknown;
+}
+
+const toVersion = (r: VersionRow): DesignVersionRecord => ({
+  version: r.version,
+  name: r.name,
+  siteCount: r.site_count,
+  sha256: r.sha256,
+  createdAt: iso(r.created_at),
+  createdBy: r.created_by_name,
+});
+
+const SUMMARY_COLUMNS = ['d.id', 'd.project_id', 'd.name', 'd.version', 'd.site_count', 'd.worst_rel_bound', 'd.updated_at', 'u.display_name as updated_by_name'];
 
 export function designsRepo(db: Db) {
-  return {
-    async get(projectId: number): Promise<DesignRecord | null> {
-      const r = await db<DesignRow>('designs').where({ project_id: projectId }).first();
+  const base = () => db('designs as d').leftJoin('users as u', 'u.id', 'd.updated_by');
+  const repo = {
+    /** the project's designs, oldest first (the project's starting design leads) */
+    async listForProject(projectId: number): Promise<DesignSummaryRecord[]> {
+      const rows = (await base().select(SUMMARY_COLUMNS).where('d.project_id', projectId).orderBy('d.id')) as DesignRow[];
+      return rows.map((r) => {
+        const { document: _d, projectId: _p, ...rest } = toDesign(r);
+        return rest;
+      });
+    },
+
+    /** a design of the project, with its document; null when it is not there */
+    async get(projectId: number, designId: number): Promise<DesignRecord | null> {
+      const r = (await base().select([...SUMMARY_COLUMNS, 'd.document']).where({ 'd.project_id': projectId, 'd.id': designId }).first()) as DesignRow | undefined;
       return r ? toDesign(r) : null;
     },
-    async insert(projectId: number, document: DesignDocument, userId: number | null): Promise<DesignRecord> {
-      const [r] = await db('designs')
-        .insert({ project_id: projectId, document: JSON.stringify(document), updated_by: userId })
-        .returning('*');
-      return toDesign(r as DesignRow);
+
+    /** name and current version, who saved it and when (for a 409), without the document; null when the design is not there */
+    async current(projectId: number, designId: number): Promise<{ name: string; version: number; updatedAt: string; updatedBy: string | null } | null> {
+      const r = (await base().select(SUMMARY_COLUMNS).where({ 'd.project_id': projectId, 'd.id': designId }).first()) as DesignRow | undefined;
+      return r ? { name: r.name, version: r.version, updatedAt: iso(r.updated_at), updatedBy: r.updated_by_name } : null;
     },
-    /** null when `version` is stale */
-    async update(projectId: number, document: DesignDocument, version: number, userId: number): Promise<DesignRecord | null> {
-      const [r] = await db('designs')
-        .where({ project_id: projectId, version })
-        .update({ document: JSON.stringify(document), version: db.raw('version + 1'), updated_by: userId, updated_at: db.fn.now() })
-        .returning('*');
-      return r ? toDesign(r as DesignRow) : null;
+
+    /** a new design at version 1, with its version row */
+    async insert(projectId: number, w: DesignWrite, userId: number | null): Promise<number> {
+      const [r] = (await db('designs')
+        .insert({
+          project_id: projectId,
+          name: w.name,
+          document: w.documentJson,
+          site_count: w.siteCount,
+          worst_rel_bound: w.worstRelBound,
+          created_by: userId,
+          updated_by: userId,
+        })
+        .returning(['id', 'version'])) as { id: number; version: number }[];
+      await repo.insertVersion(r.id, r.version, w, userId);
+      return r.id;
+    },
+
+    /** the next version, when `version` is still current: writes the current row and a version row; null when stale or gone */
+    async update(projectId: number, designId: number, w: DesignWrite, version: number, userId: number): Promise<number | null> {
+      const [r] = (await db('designs')
+        .where({ project_id: projectId, id: designId, version })
+        .update({
+          name: w.name,
+          document: w.documentJson,
+          site_count: w.siteCount,
+          worst_rel_bound: w.worstRelBound,
+          version: db.raw('version + 1'),
+          updated_by: userId,
+          updated_at: db.fn.now(),
+        })
+        .returning(['version'])) as { version: number }[];
+      if (!r) return null;
+      await repo.insertVersion(designId, r.version, w, userId);
+      return r.version;
+    },
+
+    async insertVersion(designId: number, version: number, w: DesignWrite, userId: number | null): Promise<void> {
+      await db('design_versions').insert({
+        design_id: designId,
+        version,
+        name: w.name,
+        site_count: w.siteCount,
+        document: w.documentJson,
+        sha256: w.sha256,
+        created_by: userId,
+      });
+    },
+
+    async delete(projectId: number, designId: number): Promise<boolean> {
+      return (await db('designs').where({ project_id: projectId, id: designId }).delete()) > 0;
+    },
+
+    /** newest first */
+    async listVersions(designId: number): Promise<DesignVersionRecord[]> {
+      const rows = (await db('design_versions as v')
+        .leftJoin('users as u', 'u.id', 'v.created_by')
+        .select('v.version', 'v.name', 'v.site_count', 'v.sha256', 'v.created_at', 'u.display_name as created_by_name')
+        .where('v.design_id', designId)
+        .orderBy('v.version', 'desc')) as VersionRow[];
+      return rows.map(toVersion);
+    },
+
+    async getVersion(designId: number, version: number): Promise<(DesignVersionRecord & { document: unknown }) | null> {
+      const r = (await db('design_versions as v')
+        .leftJoin('users as u', 'u.id', 'v.created_by')
+        .select('v.version', 'v.name', 'v.site_count', 'v.sha256', 'v.created_at', 'u.display_name as created_by_name', 'v.document')
+        .where({ 'v.design_id': designId, 'v.version': version })
+        .first()) as VersionRow | undefined;
+      return r ? { ...toVersion(r), document: r.document } : null;
     },
   };
+  return repo;
 }

@@ -6,7 +6,7 @@ import { accountRoutes } from './account';
 import { projectRoutes } from './projects';
 import { memberRoutes } from './members';
 import { invitationRoutes } from './invitations';
-import { designRoutes } from './design';
+import { designRoutes } from './designs';
 import { auditRoutes } from './audit';
 import { adminRoutes } from './admin';
 

@@ -22,7 +22,12 @@ export const AUDIT_ACTIONS = [
   'member.role_change',
   'member.remove',
   'member.leave',
+  'design.create',
+  /** a save: detail.version is the new design version */
   'design.update',
+  /** a save that changed the name (written beside its design.update) */
+  'design.rename',
+  'design.delete',
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

@@ -1,20 +1,27 @@
 /**
- * A project's design document: one per project, versioned for optimistic concurrency.
- * Every document that reaches the database has passed `designSchema`.
+ * The designs of a project: many per project, each save kept as an append-only design version.
+ * Every document that reaches the database has passed `designSchema`; the design's `name` and
+ * its document's `name` are kept equal.
+ *
+ * A save stores two figures beside the document (server/workers/designFigures.ts): the sha256
+ * of the canonical JSON and the far-field check's worst relative bound, computed before the
+ * transaction (in a worker thread for large designs) so no database lock waits on them.
  */
 import { designSchema, type DesignDocument } from '@contracts/design';
-import { designsRepo } from '../repositories/designs';
+import type { DesignDetail, DesignSummary } from '@contracts/api';
+import { designsRepo, type DesignRecord, type DesignVersionRecord, type DesignWrite } from '../repositories/designs';
 import { projectsRepo } from '../repositories/projects';
 import type { Db } from '../repositories/db';
-import { AppError, staleWrite } from './errors';
+import { AppError, notFound, staleWrite } from './errors';
 import { recordAudit } from './audit';
 import type { ServiceDeps } from './context';
+import { computeFigures, figureComputer } from '../workers/designFigures';
 
 import { SI_EPSILON_R, SI_LATTICE_CONSTANT_NM } from '../../geometry/units';
 
 /**
- * The design a new project starts with: silicon host, no sites yet, a 40 nm box with a
- * multipole boundary. The numbers are starting points the user is expected to change.
+ * The design a new project (or an empty new design) starts with: silicon host, no sites yet,
+ * a 40 nm box with a multipole boundary. The numbers are starting points the user is expected to change.
  */
 export function emptyDesign(name: string): DesignDocument {
   return {
@@ -28,47 +35,137 @@ export function emptyDesign(name: string): DesignDocument {
   };
 }
 
-export interface ProjectDesign {
-  design: DesignDocument;
-  version: number;
-  updatedAt: string;
+/** What a save writes, for a document that passed the schema (synchronous: small designs only). */
+export function designWriteSync(doc: DesignDocument): DesignWrite {
+  const f = computeFigures(doc);
+  return { name: doc.name, documentJson: JSON.stringify(doc), siteCount: doc.sites.length, ...f };
 }
 
+export type DesignCreateInput = { name: string; copyOf: number } | { name: string; document?: DesignDocument };
+
+function storedDocument(rec: { document: unknown }): DesignDocument {
+  const parsed = designSchema.safeParse(rec.document);
+  if (!parsed.success) {
+    // a stored document that no longer matches the schema (e.g. after a format change) must not be served as valid
+    throw new AppError('unprocessable', 'The stored design does not match the current design format. Save a corrected design to replace it.');
+  }
+  return parsed.data;
+}
+
+const toDetail = (rec: DesignRecord, document: DesignDocument): DesignDetail => ({
+  id: rec.id,
+  name: rec.name,
+  document,
+  version: rec.version,
+  updatedAt: rec.updatedAt,
+  updatedBy: rec.updatedBy,
+});
+
 export function designService(deps: ServiceDeps) {
-  return {
+  const { db } = deps;
+  const figures = figureComputer();
+
+  async function prepare(doc: DesignDocument): Promise<DesignWrite> {
+    const documentJson = JSON.stringify(doc);
+    const f = await figures.compute(doc, documentJson);
+    return { name: doc.name, documentJson, siteCount: doc.sites.length, ...f };
+  }
+
+  async function mustGet(projectId: number, designId: number): Promise<DesignRecord> {
+    const rec = await designsRepo(db).get(projectId, designId);
+    if (!rec) throw notFound('The design');
+    return rec;
+  }
+
+  const service = {
     /** create the starting design inside the project-creation transaction */
-    async createFor(trx: Db, projectId: number, name: string, userId: number): Promise<void> {
-      await designsRepo(trx).insert(projectId, emptyDesign(name), userId);
+    async createFor(trx: Db, projectId: number, name: string, userId: number): Promise<number> {
+      return designsRepo(trx).insert(projectId, designWriteSync(emptyDesign(name)), userId);
     },
 
-    async get(projectId: number): Promise<ProjectDesign> {
-      let rec = await designsRepo(deps.db).get(projectId);
-      // projects created outside the API (hand-written SQL, older data) get their design on first read
-      rec ??= await designsRepo(deps.db).insert(projectId, emptyDesign('Untitled design'), null);
-      const parsed = designSchema.safeParse(rec.document);
-      if (!parsed.success) {
-        // a stored document that no longer matches the schema (e.g. after a format change) must not be served as valid
-        throw new AppError('unprocessable', 'The stored design does not match the current design format. Save a corrected design to replace it.');
+    async list(projectId: number): Promise<DesignSummary[]> {
+      return designsRepo(db).listForProject(projectId);
+    },
+
+    async get(projectId: number, designId: number): Promise<DesignDetail> {
+      const rec = await mustGet(projectId, designId);
+      return toDetail(rec, storedDocument(rec));
+    },
+
+    async create(projectId: number, input: DesignCreateInput, userId: number): Promise<DesignDetail> {
+      let source: DesignDocument;
+      let copyOf: number | undefined;
+      if ('copyOf' in input) {
+        const from = await designsRepo(db).get(projectId, input.copyOf);
+        if (!from) throw new AppError('validation_failed', 'Some fields of the design form need attention.', [{ path: ['copyOf'], message: 'is not a design of this project' }]);
+        source = storedDocument(from);
+        copyOf = from.id;
+      } else {
+        source = input.document ?? emptyDesign(input.name);
       }
-      return { design: parsed.data, version: rec.version, updatedAt: rec.updatedAt };
-    },
-
-    async put(projectId: number, design: DesignDocument, version: number, userId: number): Promise<ProjectDesign> {
-      return deps.db.transaction(async (trx) => {
-        const designs = designsRepo(trx);
-        if (!(await designs.get(projectId))) await designs.insert(projectId, emptyDesign(design.name), userId);
-        const rec = await designs.update(projectId, design, version, userId);
-        if (!rec) throw staleWrite('The design');
+      const doc: DesignDocument = { ...source, name: input.name };
+      const w = await prepare(doc);
+      const id = await db.transaction(async (trx) => {
+        const newId = await designsRepo(trx).insert(projectId, w, userId);
         await projectsRepo(trx).touch(projectId);
         await recordAudit(trx, {
           projectId,
           actorId: userId,
-          action: 'design.update',
-          detail: { version: rec.version, sites: design.sites.length, name: design.name },
+          action: 'design.create',
+          detail: { designId: newId, name: doc.name, sites: doc.sites.length, ...(copyOf !== undefined ? { copyOf } : {}) },
         });
-        return { design, version: rec.version, updatedAt: rec.updatedAt };
+        return newId;
+      });
+      return service.get(projectId, id);
+    },
+
+    async update(projectId: number, designId: number, input: { document: DesignDocument; version: number; name?: string }, userId: number): Promise<DesignDetail> {
+      const doc: DesignDocument = { ...input.document, name: input.name ?? input.document.name };
+      const w = await prepare(doc);
+      await db.transaction(async (trx) => {
+        const repo = designsRepo(trx);
+        const before = await repo.current(projectId, designId);
+        if (!before) throw notFound('The design');
+        const version = await repo.update(projectId, designId, w, input.version, userId);
+        if (version === null) {
+          const { name: _name, ...now } = before;
+          // `before` was read in this transaction; re-read in case the version moved after it
+          const latest = (await repo.current(projectId, designId)) ?? now;
+          throw staleWrite('The design', { version: latest.version, updatedAt: latest.updatedAt, updatedBy: latest.updatedBy });
+        }
+        await projectsRepo(trx).touch(projectId);
+        await recordAudit(trx, { projectId, actorId: userId, action: 'design.update', detail: { designId, version, sites: doc.sites.length, name: doc.name } });
+        if (before.name !== doc.name) {
+          await recordAudit(trx, { projectId, actorId: userId, action: 'design.rename', detail: { designId, version, from: before.name, to: doc.name } });
+        }
+      });
+      return service.get(projectId, designId);
+    },
+
+    async remove(projectId: number, designId: number, userId: number): Promise<void> {
+      await db.transaction(async (trx) => {
+        const rec = await designsRepo(trx).current(projectId, designId);
+        if (!rec || !(await designsRepo(trx).delete(projectId, designId))) throw notFound('The design');
+        await projectsRepo(trx).touch(projectId);
+        await recordAudit(trx, { projectId, actorId: userId, action: 'design.delete', detail: { designId, name: rec.name, version: rec.version } });
       });
     },
+
+    async versions(projectId: number, designId: number): Promise<DesignVersionRecord[]> {
+      if (!(await designsRepo(db).current(projectId, designId))) throw notFound('The design');
+      return designsRepo(db).listVersions(designId);
+    },
+
+    async version(projectId: number, designId: number, version: number): Promise<DesignVersionRecord & { document: DesignDocument }> {
+      if (!(await designsRepo(db).current(projectId, designId))) throw notFound('The design');
+      const v = await designsRepo(db).getVersion(designId, version);
+      if (!v) throw notFound('That version of the design');
+      return { ...v, document: storedDocument(v) };
+    },
+
+    /** stop the worker thread (server shutdown) */
+    close: () => figures.close(),
   };
+  return service;
 }
 export type DesignService = ReturnType<typeof designService>;

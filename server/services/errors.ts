@@ -10,11 +10,19 @@ export interface FieldIssue {
   message: string;
 }
 
+/** On a 409 `stale_write` of a design: the version that is now current, who saved it and when. */
+export interface CurrentVersion {
+  version: number;
+  updatedAt: string;
+  updatedBy: string | null;
+}
+
 export class AppError extends Error {
   constructor(
     readonly code: ErrorCode,
     message: string,
     readonly details?: FieldIssue[],
+    readonly current?: CurrentVersion,
   ) {
     super(message);
     this.name = 'AppError';
@@ -25,8 +33,15 @@ export const notFound = (what = 'The requested item') => new AppError('not_found
 export const forbidden = (message = 'Your role does not allow this.') => new AppError('forbidden', message);
 export const unauthenticated = (message = 'Sign in to continue.') => new AppError('unauthenticated', message);
 export const conflict = (message: string) => new AppError('conflict', message);
-export const staleWrite = (what: string) =>
-  new AppError('stale_write', `${what} was changed by someone else since you loaded it. Reload to see the latest version, then apply your change again.`);
+export const staleWrite = (what: string, current?: CurrentVersion) =>
+  new AppError(
+    'stale_write',
+    current
+      ? `${what} was saved by ${current.updatedBy ?? 'someone else'} at ${current.updatedAt} (version ${current.version}) since you loaded it. Reload to see the latest version, or keep yours as a copy.`
+      : `${what} was changed by someone else since you loaded it. Reload to see the latest version, then apply your change again.`,
+    undefined,
+    current,
+  );
 
 /** zod issues → field issues for the client's inline form errors. */
 export function issuesToDetails(issues: readonly z.core.$ZodIssue[]): FieldIssue[] {

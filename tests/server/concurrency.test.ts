@@ -4,7 +4,7 @@
  * keeps at least one owner.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { projectDesignSchema } from '@contracts/api';
+import { designListSchema, designResponseSchema, errorBodySchema } from '@contracts/api';
 import { addMember, newUser, startTestEnv, type TestEnv } from './helpers';
 import { emptyDesign } from '../../server/services/designs';
 
@@ -38,22 +38,42 @@ describe('stale writes', () => {
     expect(now.body).toMatchObject({ name: 'Owner wins', version: 2 });
   });
 
-  it('design: PUT with an old version is refused; with the current one it saves and audits', async () => {
+  it('design: PUT with an old version is refused with who saved last; with the current one it saves and audits', async () => {
     const { owner, editor, projectId } = await projectWithEditor();
-    const current = projectDesignSchema.parse((await editor.client.get(`/api/projects/${projectId}/design`)).body);
+    const [first] = designListSchema.parse((await editor.client.get(`/api/projects/${projectId}/designs`)).body).designs;
+    const url = `/api/projects/${projectId}/designs/${first.id}`;
+    const current = designResponseSchema.parse((await editor.client.get(url)).body).design;
     const mine = { ...emptyDesign('Editor draft'), sites: [{ id: 'D1', species: 'As', position: [0, 0, 0], electrons: 1 }] };
-    const ok = await editor.client.put(`/api/projects/${projectId}/design`, { design: mine, version: current.version });
+    const ok = await editor.client.put(url, { document: mine, version: current.version });
     expect(ok.status).toBe(200);
-    expect(ok.body.version).toBe(current.version + 1);
-    const stale = await owner.client.put(`/api/projects/${projectId}/design`, { design: emptyDesign('Owner draft'), version: current.version });
+    expect(ok.body.design.version).toBe(current.version + 1);
+    const stale = await owner.client.put(url, { document: emptyDesign('Owner draft'), version: current.version });
     expect(stale.status).toBe(409);
-    expect(stale.body.error.code).toBe('stale_write');
-    const after = projectDesignSchema.parse((await owner.client.get(`/api/projects/${projectId}/design`)).body);
-    expect(after.design.name).toBe('Editor draft');
-    expect(after.design.sites).toHaveLength(1);
+    const err = errorBodySchema.parse(stale.body).error;
+    expect(err.code).toBe('stale_write');
+    // the 409 names the version that is current now, who saved it and when
+    expect(err.current).toEqual({ version: current.version + 1, updatedAt: ok.body.design.updatedAt, updatedBy: editor.user.displayName });
+    const after = designResponseSchema.parse((await owner.client.get(url)).body).design;
+    expect(after.name).toBe('Editor draft');
+    expect(after.document.sites).toHaveLength(1);
     const audit = await env.knex('audit_events').where({ project_id: projectId, action: 'design.update' }).select('detail');
     expect(audit).toHaveLength(1);
-    expect(audit[0].detail).toMatchObject({ sites: 1, version: current.version + 1 });
+    expect(audit[0].detail).toMatchObject({ designId: first.id, sites: 1, version: current.version + 1 });
+    // the refused save left no version behind
+    expect(await env.knex('design_versions').where({ design_id: first.id }).count<{ n: string }[]>({ n: '*' })).toEqual([{ n: '2' }]);
+  });
+
+  it('design: two saves of one version at the same moment: one 200, one 409', async () => {
+    const { owner, editor, projectId } = await projectWithEditor();
+    const [first] = (await owner.client.get(`/api/projects/${projectId}/designs`)).body.designs;
+    const url = `/api/projects/${projectId}/designs/${first.id}`;
+    const [a, b] = await Promise.all([
+      owner.client.put(url, { document: emptyDesign('Owner'), version: 1 }),
+      editor.client.put(url, { document: emptyDesign('Editor'), version: 1 }),
+    ]);
+    expect([a.status, b.status].sort()).toEqual([200, 409]);
+    const versions = await env.knex('design_versions').where({ design_id: first.id }).orderBy('version').pluck('version');
+    expect(versions).toEqual([1, 2]);
   });
 
   it('account: renaming with an old version is refused', async () => {

@@ -25,7 +25,10 @@ import {
   memberSchema,
   meResponseSchema,
   okResponseSchema,
-  projectDesignSchema,
+  designListSchema,
+  designResponseSchema,
+  designVersionListSchema,
+  designVersionResponseSchema,
   projectListSchema,
   projectSchema,
   signUpResponseSchema,
@@ -55,6 +58,8 @@ type Rule = { kind: 'public' } | { kind: 'user' } | { kind: 'project'; capabilit
 
 interface Fixture {
   projectId: number;
+  /** the project's starting design (version 1) */
+  designId: number;
   users: Record<ProjectRole | 'target' | 'host', { user: User; email: string }>;
   invitationId: number;
   /** an open invitation to the acting user's own address, into a project they are not in */
@@ -81,6 +86,7 @@ interface RouteCase {
 }
 
 const p = (f: Fixture) => `/api/projects/${f.projectId}`;
+const d = (f: Fixture) => `/api/projects/${f.projectId}/designs/${f.designId}`;
 
 const ROUTES: RouteCase[] = [
   { method: 'get', path: '/health', rule: { kind: 'public' }, success: 200, url: () => '/api/health', schema: healthSchema },
@@ -224,15 +230,42 @@ const ROUTES: RouteCase[] = [
     url: (f) => `/api/invitations/${f.ownInviteToken}/accept`,
     schema: invitationAcceptResponseSchema,
   },
-  { method: 'get', path: '/projects/:projectId/design', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: (f) => `${p(f)}/design`, schema: projectDesignSchema },
+  { method: 'get', path: '/projects/:projectId/designs', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: (f) => `${p(f)}/designs`, schema: designListSchema },
+  {
+    method: 'post',
+    path: '/projects/:projectId/designs',
+    rule: { kind: 'project', capability: 'design.edit' },
+    success: 201,
+    url: (f) => `${p(f)}/designs`,
+    body: () => ({ name: 'Matrix second design' }),
+    schema: designResponseSchema,
+  },
+  { method: 'get', path: '/projects/:projectId/designs/:designId', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: d, schema: designResponseSchema },
   {
     method: 'put',
-    path: '/projects/:projectId/design',
+    path: '/projects/:projectId/designs/:designId',
     rule: { kind: 'project', capability: 'design.edit' },
     success: 200,
-    url: (f) => `${p(f)}/design`,
-    body: () => ({ design: emptyDesign('Matrix design'), version: 1 }),
-    schema: projectDesignSchema,
+    url: d,
+    body: () => ({ document: emptyDesign('Matrix design'), version: 1 }),
+    schema: designResponseSchema,
+  },
+  { method: 'delete', path: '/projects/:projectId/designs/:designId', rule: { kind: 'project', capability: 'design.edit' }, success: 204, url: d },
+  {
+    method: 'get',
+    path: '/projects/:projectId/designs/:designId/versions',
+    rule: { kind: 'project', capability: 'project.read' },
+    success: 200,
+    url: (f) => `${d(f)}/versions`,
+    schema: designVersionListSchema,
+  },
+  {
+    method: 'get',
+    path: '/projects/:projectId/designs/:designId/versions/:version',
+    rule: { kind: 'project', capability: 'project.read' },
+    success: 200,
+    url: (f) => `${d(f)}/versions/1`,
+    schema: designVersionResponseSchema,
   },
   { method: 'get', path: '/projects/:projectId/audit', rule: { kind: 'project', capability: 'audit.read' }, success: 200, url: (f) => `${p(f)}/audit`, schema: auditListSchema },
   // the role users are ordinary site members, so the admin route refuses all of them
@@ -312,7 +345,8 @@ async function buildFixture(route: RouteCase, who: Who): Promise<Fixture> {
     expect((await env.client().post('/api/auth/sign-up', { email, password: TEST_PASSWORD, displayName: 'Matrix verify' })).status).toBe(202);
     verifyToken = linkToken((await waitForMail(env.knex, email, VERIFY_SUBJECT, { sinceId })).text, env.mailBase, 'verify');
   }
-  return { projectId, users: roleUsers, invitationId, ownInviteToken, resetToken, verifyToken };
+  const designId = (await env.knex('designs').where({ project_id: projectId }).first('id')).id as number;
+  return { projectId, designId, users: roleUsers, invitationId, ownInviteToken, resetToken, verifyToken };
 }
 
 describe('role-by-route matrix', () => {

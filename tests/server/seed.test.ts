@@ -44,7 +44,7 @@ describe('migrations', () => {
     expect(await migrateLatestWith(knex)).toEqual(files);
     expect(await migrateLatestWith(knex)).toEqual([]);
     const tables = (await knex.raw(`select table_name from information_schema.tables where table_schema = ? order by 1`, [schema])).rows.map((r: { table_name: string }) => r.table_name);
-    for (const t of ['users', 'sessions', 'projects', 'memberships', 'invitations', 'password_resets', 'designs', 'audit_events', 'captured_mail']) expect(tables).toContain(t);
+    for (const t of ['users', 'sessions', 'projects', 'memberships', 'invitations', 'password_resets', 'designs', 'design_versions', 'audit_events', 'captured_mail']) expect(tables).toContain(t);
 
     await knex.migrate.rollback({ migrationSource: migrationSource() }, true);
     const after = (await knex.raw(`select count(*)::int as n from information_schema.tables where table_schema = ? and table_name = 'users'`, [schema])).rows[0].n;
@@ -74,7 +74,7 @@ describe('demo seed', () => {
   });
 
   it('stores a valid four-donor chain along [110], sites on diamond lattice points ~4.6 nm apart', async () => {
-    const doc = designSchema.parse((await knex('designs').first()).document);
+    const doc = designSchema.parse((await knex('designs').orderBy('id').first()).document);
     expect(doc.sites).toHaveLength(4);
     expect(doc.host.latticeConstantNm).toBe(A_SI);
     const q = A_SI / 4;
@@ -113,7 +113,9 @@ describe('demo seed', () => {
       const projects = (await c.get('/api/projects')).body.projects;
       expect(projects).toHaveLength(1);
       expect(projects[0].role).toBe('owner');
-      expect((await c.get(`/api/projects/${projects[0].id}/design`)).body.design.sites).toHaveLength(4);
+      const designs = (await c.get(`/api/projects/${projects[0].id}/designs`)).body.designs;
+      expect(designs.map((d: { siteCount: number }) => d.siteCount)).toEqual([4, 6, 9]);
+      expect((await c.get(`/api/projects/${projects[0].id}/designs/${designs[0].id}`)).body.design.document.sites).toHaveLength(4);
     } finally {
       await server?.stop();
     }

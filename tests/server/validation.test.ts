@@ -12,10 +12,12 @@ import { emptyDesign } from '../../server/services/designs';
 let env: TestEnv;
 let owner: { client: TestClient };
 let projectId: number;
+let designId: number;
 beforeAll(async () => {
   env = await startTestEnv({ bodyLimit: '64kb' });
   owner = await newUser(env, 'val');
   projectId = (await owner.client.post('/api/projects', { name: 'Validation' })).body.id;
+  designId = (await owner.client.get(`/api/projects/${projectId}/designs`)).body.designs[0].id;
 });
 afterAll(async () => {
   await env?.stop();
@@ -35,7 +37,8 @@ async function rawJson(c: TestClient, method: 'post' | 'put' | 'patch', path: st
 describe('malformed JSON → 400, nothing written', () => {
   const cases: [string, 'post' | 'put' | 'patch', () => string, string][] = [
     ['project create', 'post', () => '/api/projects', 'projects'],
-    ['design save', 'put', () => `/api/projects/${projectId}/design`, 'designs'],
+    ['design save', 'put', () => `/api/projects/${projectId}/designs/${designId}`, 'design_versions'],
+    ['design create', 'post', () => `/api/projects/${projectId}/designs`, 'designs'],
     ['invitation', 'post', () => `/api/projects/${projectId}/invitations`, 'invitations'],
     ['sign-up', 'post', () => '/api/auth/sign-up', 'users'],
   ];
@@ -81,24 +84,24 @@ describe('contract violations → 422 with field paths, nothing written', () => 
   });
 
   it('design with a negative permittivity and a site of an unknown species', async () => {
-    const before = await env.knex('designs').where({ project_id: projectId }).first();
+    const before = await env.knex('designs').where({ id: designId }).first();
     const bad = { ...emptyDesign('Bad'), host: { material: 'Si', epsilonR: -11.7, latticeConstantNm: 0.5431020511 }, sites: [{ id: 'X', species: 'Xe', position: [0, 0, 0], electrons: 1 }] };
-    const r = await owner.client.put(`/api/projects/${projectId}/design`, { design: bad, version: before.version });
+    const r = await owner.client.put(`/api/projects/${projectId}/designs/${designId}`, { document: bad, version: before.version });
     expect(r.status).toBe(422);
     const paths = expectCleanError(r.body).details!.map((d) => d.path.join('.'));
-    expect(paths).toContain('design.host.epsilonR');
-    expect(paths).toContain('design.sites.0.species');
-    const after = await env.knex('designs').where({ project_id: projectId }).first();
+    expect(paths).toContain('document.host.epsilonR');
+    expect(paths).toContain('document.sites.0.species');
+    const after = await env.knex('designs').where({ id: designId }).first();
     expect(after.version).toBe(before.version);
     expect(after.document).toEqual(before.document);
   });
 
   it('design position given as strings is refused', async () => {
-    const before = await env.knex('designs').where({ project_id: projectId }).first();
+    const before = await env.knex('designs').where({ id: designId }).first();
     const bad = { ...emptyDesign('Strings'), sites: [{ id: 'S', species: 'P', position: ['1', '2', '3'], electrons: 1 }] };
-    const r = await owner.client.put(`/api/projects/${projectId}/design`, { design: bad, version: before.version });
+    const r = await owner.client.put(`/api/projects/${projectId}/designs/${designId}`, { document: bad, version: before.version });
     expect(r.status).toBe(422);
-    expect((await env.knex('designs').where({ project_id: projectId }).first()).version).toBe(before.version);
+    expect((await env.knex('designs').where({ id: designId }).first()).version).toBe(before.version);
   });
 
   it('invitation with an unknown role', async () => {
