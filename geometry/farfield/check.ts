@@ -34,6 +34,7 @@ import { bondGraph, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
 import { snapToLattice, siteToNm } from '../lattice';
 import { clearanceFor, neglectedEnvelope, type Envelope } from './envelope';
 import { combinedMoments, orbitalMoments } from './moments';
+import { describeBoundary, elementBudgetWarning, findingsWarnings, pairsLimitedWarning } from './warnings';
 
 /** Stable warning codes: the UI and scripts may key on them; never rename, only add. */
 export const WARNING_CODES = [
@@ -128,12 +129,6 @@ export const MODEL_ASSUMPTIONS = [
   'All figures are estimates to be confirmed by your group\'s own validated methods before any fabrication or design decision.',
 ];
 
-function describeBoundary(b: Design['enclosure']['boundary']): string {
-  return b.kind === 'grounded' ? 'grounded' : `multipole(order ${b.order})`;
-}
-
-const pct = (x: number) => `${(100 * x).toPrecision(3)}%`;
-
 function dist(p: readonly number[], q: readonly number[]): number {
   const dx = p[0] - q[0], dy = p[1] - q[1], dz = p[2] - q[2];
   return Math.sqrt(dx * dx + dy * dy + dz * dz);
@@ -146,7 +141,7 @@ function dist(p: readonly number[], q: readonly number[]): number {
  * bisection so that sites with nearly equal targets share one search (a lower target only
  * asks for more room: conservative, by < 0.3 % in the target).
  */
-function requiredClearance(o: Orbital, okey: string, env: Envelope, target: number, tol: number, cache: Map<string, number>): number {
+export function requiredClearance(o: Orbital, okey: string, env: Envelope, target: number, tol: number, cache: Map<string, number>): number {
   const q = target > 0 ? Math.pow(2, Math.floor(Math.log2(target) * 256) / 256) : 0;
   const key = `${okey}|${q}`;
   const hit = cache.get(key);
@@ -223,12 +218,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
         pairJ.push(Math.max(i, j));
       }
     }
-    warnings.push({
-      code: 'pairs-limited',
-      severity: 'info',
-      message: `With ${n} sites only bond-graph neighbours (and donors of the same cluster) are checked as pairs.`,
-      siteIds: [],
-    });
+    warnings.push(pairsLimitedWarning(n));
   }
   const pairs: PairBound[] = [];
   const coincide: string[] = [];
@@ -315,60 +305,17 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     worst = Math.max(worst, p.vRelBound);
     if (p.vRelBound > tol) tooClose.push(p.a, p.b);
   }
-  const uniq = (ids: string[]) => [...new Set(ids)];
-  const fmt = (v: Vec3) => v.map((x) => (Number.isFinite(x) ? x.toPrecision(4) : '∞')).join(' × ');
-  if (n === 0) warnings.push({ code: 'no-sites', severity: 'warning', message: 'The design has no sites, so there is nothing to bound.', siteIds: [] });
-  if (outside.length)
-    warnings.push({
-      code: 'site-outside-enclosure',
-      severity: 'error',
-      message: `${outside.length} site(s) lie outside the enclosure or on its boundary; no boundary bound exists for them. Move them inside or enlarge the half-extents.`,
-      siteIds: outside,
-    });
-  if (tooClose.length)
-    warnings.push({
-      code: 'boundary-too-close',
-      severity: 'warning',
-      message: `The ${describeBoundary(boundary)} boundary is too close for the tolerance: the worst bound is ${pct(worst)} against a target of ${pct(tol)}. Half-extents of at least ${fmt(rec)} nm meet it${boundary.kind === 'grounded' ? '; a multipole boundary needs a far smaller box' : ''}.`,
-      siteIds: uniq(tooClose),
-    });
-  if (cut.length)
-    warnings.push({
-      code: 'density-cut',
-      severity: 'warning',
-      message: `The enclosure cuts off more than ${pct(tol / 10)} of the density of ${cut.length} site(s) (largest ${pct(worstCut)}); the boundary bound assumes the density lies inside.`,
-      siteIds: cut,
-    });
-  if (coincide.length)
-    warnings.push({ code: 'sites-coincide', severity: 'error', message: 'Some sites sit at the same position; give each its own lattice site.', siteIds: uniq(coincide) });
-  if (overlap.length)
-    warnings.push({
-      code: 'sites-overlap',
-      severity: 'warning',
-      message: `Some sites are closer than one lattice constant (${a} nm) without sharing a cluster label; their densities overlap strongly and the model of separate sites is doubtful.`,
-      siteIds: uniq(overlap),
-    });
-  if (offLattice.length)
-    warnings.push({ code: 'off-lattice', severity: 'info', message: `${offLattice.length} site(s) are not on a silicon lattice site (free placement).`, siteIds: offLattice });
-  if (aniso.length)
-    warnings.push({
-      code: 'anisotropic-envelope',
-      severity: 'info',
-      message: 'The anisotropic envelope is a single-valley model; a real donor state sums six valleys and is nearly isotropic apart from lattice-scale oscillations.',
-      siteIds: aniso,
-    });
-  if (noElectrons.length)
-    warnings.push({ code: 'no-electrons', severity: 'info', message: 'Sites with no electrons: their bounds are for the orbital an added electron would occupy.', siteIds: noElectrons });
+  warnings.push(
+    ...findingsWarnings({
+      siteCount: n, boundary, tolerance: tol, latticeConstantNm: a, worst, recommended: rec,
+      outside, tooClose, cut, worstCut, coincide, overlap, offLattice, aniso, noElectrons,
+    }),
+  );
   let elementsEstimate: number | null = null;
   if (options.estimateElements && rec.every(Number.isFinite)) {
     elementsEstimate = options.estimateElements(rec);
-    if (elementsEstimate > design.refinement.maxElements)
-      warnings.push({
-        code: 'element-budget',
-        severity: 'warning',
-        message: `The recommended enclosure would need about ${elementsEstimate} elements, more than the budget of ${design.refinement.maxElements}.`,
-        siteIds: [],
-      });
+    const budget = elementBudgetWarning(elementsEstimate, design.refinement.maxElements);
+    if (budget) warnings.push(budget);
   }
   const report: FarFieldReport = {
     boundary: describeBoundary(boundary),

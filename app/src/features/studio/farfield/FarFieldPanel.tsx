@@ -1,0 +1,221 @@
+/**
+ * The far-field panel of the design studio (region "Far-field check"): how much the domain box's
+ * boundary condition can err in U and V, the smallest box that meets the design's target error,
+ * the element count its graded mesh would need, the warnings, and what the model assumes.
+ * Numbers come from useFarField (the same geometry/farfield code as `npm run cli -- check`).
+ */
+import { useId, useMemo, useState } from 'react';
+import type { DesignDocument } from '@contracts/design';
+import type { FarFieldReport, FarFieldWarning, PairBound, SiteBound } from '../../../../../geometry/farfield';
+import { Button } from '../../../components/Button';
+import { EstimateNote } from '../../../components/EstimateNote';
+import { FigureTable, type FigureColumn } from './FigureTable';
+import { meV, nm, percent, sortPairs, sortSites, worstU, worstV, type Direction, type PairColumn, type SiteColumn } from './figures';
+
+export interface FarFieldPanelProps {
+  report: FarFieldReport | null;
+  computing: boolean;
+  error: string | null;
+  document: DesignDocument;
+  readOnly: boolean;
+  onApplyRecommended: (halfExtentsNm: [number, number, number]) => void;
+  /** the bounds are current and the element estimate is still coming (from useFarField) */
+  elementsPending?: boolean;
+}
+
+const SEVERITY_WORD: Record<FarFieldWarning['severity'], string> = { error: 'Problem', warning: 'Warning', info: 'Note' };
+const SEVERITY_STYLE: Record<FarFieldWarning['severity'], string> = {
+  error: 'border-garnet-300 bg-garnet-50 text-garnet-700',
+  warning: 'border-ember-300 bg-ember-50 text-ember-800',
+  info: 'border-wafer-200 bg-wafer-50 text-wafer-700',
+};
+
+function boundaryWords(b: DesignDocument['enclosure']['boundary']): string {
+  return b.kind === 'grounded' ? 'grounded walls' : `a multipole boundary to order ${b.order}`;
+}
+
+function Verdict({ value, target }: { value: number | null; target: number }) {
+  if (value === null) return <span className="font-semibold text-garnet-700">no bound</span>;
+  const over = value > target;
+  return <span className={over ? 'font-semibold text-ember-800' : 'font-semibold text-phosphor-700'}>{over ? 'over target' : 'within target'}</span>;
+}
+
+function Headline({ label, what, figure, target }: { label: string; what: string; figure: { value: number | null; count: number }; target: number }) {
+  return (
+    <div className="rounded-md border border-wafer-200 px-3 py-2">
+      <dt className="text-fine text-wafer-600">
+        {label} <span className="text-wafer-500">({what})</span>
+      </dt>
+      <dd className="num mt-0.5">
+        {figure.count === 0 ? (
+          <span className="text-note text-wafer-500">none to bound</span>
+        ) : (
+          <>
+            <span className="text-lead font-bold text-wafer-900">{percent(figure.value)}</span>{' '}
+            <span className="text-fine text-wafer-600">
+              target {percent(target)} · <Verdict value={figure.value} target={target} />
+            </span>
+          </>
+        )}
+      </dd>
+    </div>
+  );
+}
+
+const siteColumns: FigureColumn<SiteBound, SiteColumn>[] = [
+  { key: 'id', label: 'Site', cell: (s) => s.id },
+  { key: 'clearanceNm', label: 'Clearance', unit: 'nm', numeric: true, cell: (s) => nm(s.clearanceNm).replace(' nm', '') },
+  { key: 'requiredClearanceNm', label: 'Needed', unit: 'nm', numeric: true, cell: (s) => nm(s.requiredClearanceNm).replace(' nm', '') },
+  { key: 'uBoundEv', label: '|ΔU| bound', unit: 'meV', numeric: true, cell: (s) => meV(s.uBoundEv).replace(' meV', '') },
+  { key: 'uRelBound', label: 'Relative', unit: '%', numeric: true, cell: (s) => percent(s.uRelBound).replace(' %', '') },
+  { key: 'chargeOutside', label: 'Density outside', unit: '%', numeric: true, cell: (s) => percent(s.chargeOutside).replace(' %', '') },
+];
+
+const pairColumns: FigureColumn<PairBound, PairColumn>[] = [
+  { key: 'pair', label: 'Pair', cell: (p) => `${p.a}–${p.b}` },
+  { key: 'distanceNm', label: 'R', unit: 'nm', numeric: true, cell: (p) => nm(p.distanceNm).replace(' nm', '') },
+  { key: 'vEv', label: 'V', unit: 'meV', numeric: true, cell: (p) => `${meV(p.vEv).replace(' meV', '')}${p.vModel === 'point-charge' ? '*' : ''}` },
+  { key: 'vBoundEv', label: '|ΔV| bound', unit: 'meV', numeric: true, cell: (p) => meV(p.vBoundEv).replace(' meV', '') },
+  { key: 'vRelBound', label: 'Relative', unit: '%', numeric: true, cell: (p) => percent(p.vRelBound).replace(' %', '') },
+];
+
+function Figures({ report }: { report: FarFieldReport }) {
+  const [view, setView] = useState<'sites' | 'pairs'>('sites');
+  const [siteSort, setSiteSort] = useState<{ column: SiteColumn; direction: Direction }>({ column: 'uRelBound', direction: 'descending' });
+  const [pairSort, setPairSort] = useState<{ column: PairColumn; direction: Direction }>({ column: 'vRelBound', direction: 'descending' });
+  const sites = useMemo(() => sortSites(report.sites, siteSort.column, siteSort.direction), [report.sites, siteSort]);
+  const pairs = useMemo(() => sortPairs(report.pairs, pairSort.column, pairSort.direction), [report.pairs, pairSort]);
+  const flip = <K,>(cur: { column: K; direction: Direction }, column: K) =>
+    ({ column, direction: cur.column === column && cur.direction === 'descending' ? 'ascending' : 'descending' }) as { column: K; direction: Direction };
+  const tab = (which: 'sites' | 'pairs', label: string) => (
+    <button
+      type="button"
+      aria-pressed={view === which}
+      onClick={() => setView(which)}
+      className={`rounded-sm px-2 py-0.5 text-fine font-semibold ${view === which ? 'bg-wafer-800 text-white' : 'text-wafer-700 hover:bg-wafer-100'}`}
+    >
+      {label}
+    </button>
+  );
+  return (
+    <div className="space-y-2">
+      <div className="flex items-center gap-1" role="group" aria-label="Figures to list">
+        {tab('sites', `Per site (${report.sites.length})`)}
+        {tab('pairs', `Per pair (${report.pairs.length})`)}
+      </div>
+      {view === 'sites' ? (
+        <FigureTable caption="Far-field figures per site" rows={sites} columns={siteColumns} rowKey={(s) => s.id} sort={siteSort} onSort={(c) => setSiteSort((cur) => flip(cur, c))} />
+      ) : report.pairs.length ? (
+        <>
+          <FigureTable caption="Far-field figures per pair" rows={pairs} columns={pairColumns} rowKey={(p) => `${p.a}\u0000${p.b}`} sort={pairSort} onSort={(c) => setPairSort((cur) => flip(cur, c))} />
+          {report.pairs.some((p) => p.vModel === 'point-charge') && (
+            <p className="text-fine text-wafer-600">* point-charge value e²/(4πε R): these two orbitals have no closed form here.</p>
+          )}
+        </>
+      ) : (
+        <p className="text-note text-wafer-600">No pairs to bound.</p>
+      )}
+    </div>
+  );
+}
+
+function Warnings({ warnings }: { warnings: FarFieldWarning[] }) {
+  if (!warnings.length) return <p className="text-note text-phosphor-700">No warnings.</p>;
+  return (
+    <ul className="space-y-1.5" aria-label="Far-field warnings">
+      {warnings.map((w) => (
+        <li key={w.code} className={`rounded-md border px-2.5 py-1.5 text-note ${SEVERITY_STYLE[w.severity]}`} data-code={w.code}>
+          <span className="font-semibold">{SEVERITY_WORD[w.severity]}: </span>
+          {w.message}
+          {w.siteIds.length > 0 && (
+            <span className="text-fine">
+              {' '}
+              (sites {w.siteIds.slice(0, 8).join(', ')}
+              {w.siteIds.length > 8 ? ` and ${w.siteIds.length - 8} more` : ''})
+            </span>
+          )}
+        </li>
+      ))}
+    </ul>
+  );
+}
+
+function Body({ report, document, readOnly, onApplyRecommended, elementsPending }: Omit<FarFieldPanelProps, 'computing' | 'error'> & { report: FarFieldReport }) {
+  const target = report.tolerance;
+  const u = worstU(report);
+  const v = worstV(report);
+  const { halfExtentsNm: half, boundary } = document.enclosure;
+  const rec = report.recommendedHalfExtentsNm;
+  const recOk = rec.every(Number.isFinite);
+  const same = recOk && rec.every((x, k) => Math.abs(x - half[k]) <= 1e-9 * Math.max(1, x));
+  return (
+    <div className="space-y-4">
+      <div>
+        <dl className="grid gap-2 sm:grid-cols-2">
+          <Headline label="Worst bound on U" what="on-site energy" figure={u} target={target} />
+          <Headline label="Worst bound on V" what="between sites" figure={v} target={target} />
+        </dl>
+        <p className="mt-1.5 text-fine text-wafer-600">
+          For the domain box of half-extents <span className="num">{half.map((x) => x.toPrecision(4)).join(' × ')} nm</span> with {boundaryWords(boundary)}; relative to
+          each site&apos;s U and each pair&apos;s V in this model.
+        </p>
+      </div>
+
+      <div className="rounded-md border border-wafer-200 px-3 py-2">
+        <h3 className="text-fine font-semibold text-wafer-600">Smallest domain box meeting the target</h3>
+        <p className="num mt-0.5 text-body text-wafer-900">
+          {recOk ? `${rec.map((x) => x.toPrecision(4)).join(' × ')} nm (half-extents about the current centre)` : 'no box size meets the target'}
+        </p>
+        <p className="num text-fine text-wafer-600">
+          Graded mesh for that box:{' '}
+          {!recOk ? '—' : elementsPending || report.elementsEstimate === null ? 'estimating…' : `about ${report.elementsEstimate.toLocaleString('en-US')} elements (budget ${document.refinement.maxElements.toLocaleString('en-US')} elements)`}
+        </p>
+        {!readOnly && (
+          <Button className="mt-2" variant="secondary" disabled={!recOk || same} onClick={() => onApplyRecommended([rec[0], rec[1], rec[2]])}>
+            Apply recommended size
+          </Button>
+        )}
+      </div>
+
+      <div>
+        <h3 className="mb-1 text-fine font-semibold text-wafer-600">Warnings</h3>
+        <Warnings warnings={report.warnings} />
+      </div>
+
+      <Figures report={report} />
+
+      <details className="text-fine text-wafer-700">
+        <summary className="cursor-pointer font-semibold">What the model assumes</summary>
+        <ul className="mt-1 list-disc space-y-0.5 pl-5">
+          {report.assumptions.map((a) => (
+            <li key={a}>{a}</li>
+          ))}
+        </ul>
+      </details>
+      <EstimateNote assumptions="Bounds cover only the domain box's boundary condition, for effective-mass envelopes in a homogeneous host." />
+    </div>
+  );
+}
+
+export function FarFieldPanel(props: FarFieldPanelProps) {
+  const id = useId();
+  const { report, computing, error } = props;
+  return (
+    <section aria-labelledby={id} className="space-y-3 rounded-lg border border-wafer-200 bg-white p-4">
+      <header className="flex items-baseline justify-between gap-3">
+        <h2 id={id} className="text-lead font-bold text-wafer-900">
+          Far-field check
+        </h2>
+        <p aria-live="polite" className="text-fine text-wafer-500">
+          {computing ? 'updating…' : report ? 'up to date' : ''}
+        </p>
+      </header>
+      {error && (
+        <p role="alert" className="rounded-md border border-garnet-300 bg-garnet-50 px-2.5 py-1.5 text-note text-garnet-700">
+          {error}
+        </p>
+      )}
+      {report ? <Body {...props} report={report} /> : !error && <p className="text-note text-wafer-600">Working out the first check…</p>}
+    </section>
+  );
+}

@@ -1,0 +1,466 @@
+/**
+ * The far-field check with the design kept resident: the live panel sends edits as changes and
+ * gets the report back, without the whole document crossing the worker boundary each time and
+ * without recomputing what an edit cannot have changed.
+ *
+ * Same numbers as farFieldCheck (check.ts) on the resulting document — the invariant test in
+ * tests/geometry/farfield/session.test.ts runs random edit sequences against it. What is kept
+ * between updates, and what invalidates it:
+ *   per site   orbital, self energy, envelope key, lattice test          the site's own edit, host
+ *              clearance, δ_i, density outside the box                    the site's edit, enclosure
+ *              required clearance (bisection)                            its target or the tolerance
+ *              moments of the unit density (when asked for)              the site's edit, the centre
+ *   pair set   all pairs (≤ allPairsLimit sites) or the bond graph       positions, clusters, site list
+ *   x order    the overlap sweep's order (re-sorted: nearly sorted after a move, so cheap)
+ * Pair energies and bounds are recomputed on every update (O(pairs), cheap next to the rest);
+ * the bond graph is rebuilt after a position edit when there are more sites than allPairsLimit
+ * (Delaunay, O(N log N)): a local update could not promise delaunator's choice among
+ * cocircular points, so it would not give the same pairs as the full check.
+ *
+ * Report order and ties follow check.ts step by step; keep the two in step when either changes.
+ */
+import type { Design, Enclosure, Host, Orbital, Refinement, Site, Vec3 } from '../design/types';
+import { resolveOrbital } from '../design/presets';
+import { COULOMB_EV_NM } from '../units';
+import { chargeOutsideBox, pairEnergy, selfEnergy } from '../density';
+import { bondGraph, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
+import { snapToLattice, siteToNm } from '../lattice';
+import { neglectedEnvelope, type Envelope } from './envelope';
+import { harmonicCount } from './harmonics';
+import { orbitalMoments } from './moments';
+import { ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, requiredClearance, type FarFieldOptions, type FarFieldReport, type PairBound, type SiteBound } from './check';
+import { describeBoundary, elementBudgetWarning, findingsWarnings, pairsLimitedWarning } from './warnings';
+
+/**
+ * Edits since the last update. Applied in this order: `removed` (by id), `upserted` (a site with
+ * a known id replaces it in place, a new id is appended), then `order` (the full id order of the
+ * sites, sent only when it differs from what removal and appending give), then the fields.
+ */
+export interface FarFieldChanges {
+  removed?: string[];
+  upserted?: Site[];
+  order?: string[];
+  name?: string;
+  host?: Host;
+  enclosure?: Enclosure;
+  refinement?: Refinement;
+}
+
+/** FarFieldOptions, with the element estimator also given the current design. */
+export type FarFieldSessionOptions = Omit<FarFieldOptions, 'estimateElements'> & {
+  estimateElements?: (halfExtentsNm: Vec3, design: Design) => number;
+};
+
+export interface FarFieldSession {
+  /** apply the edits and return the report of the resulting design (no element estimate) */
+  applyChanges(changes: FarFieldChanges): FarFieldReport;
+  /** the report of the current design (cached until the next change) */
+  report(): FarFieldReport;
+  /**
+   * The report with the element estimate (options.estimateElements) and its budget warning,
+   * exactly as farFieldCheck with the same options gives it. Kept separate because the estimate
+   * can take longer than the bounds: the live panel shows the bounds first.
+   */
+  reportWithElements(): FarFieldReport;
+  /** the resident design (do not mutate) */
+  design(): Design;
+}
+
+interface SiteState {
+  site: Site;
+  orbital: Orbital;
+  okey: string;
+  self: number;
+  offLattice: boolean;
+  /** envelope for the current boundary; null when the boundary changed since */
+  env: Envelope | null;
+  /** enclosure stamp the box-dependent values belong to (−1: none yet) */
+  boxStamp: number;
+  clear: number;
+  delta: number;
+  chargeOutside: number;
+  /** target and stamp (tolerance, boundary) the required clearance belongs to */
+  reqTarget: number;
+  reqStamp: number;
+  req: number;
+  /** moments about momentsCenter (when asked for) */
+  moments: Float64Array | null;
+}
+
+function dist(p: readonly number[], q: readonly number[]): number {
+  const dx = p[0] - q[0], dy = p[1] - q[1], dz = p[2] - q[2];
+  return Math.sqrt(dx * dx + dy * dy + dz * dz);
+}
+
+const orbitalKey = (o: Orbital) => (o.model === 'anisotropic-1s' ? `a${o.radiusNm},${o.radiusZNm}` : o.model === 'gaussian' ? `g${o.sigmaNm}` : `h${o.radiusNm}`);
+
+const sameVec = (p: readonly number[], q: readonly number[]) => p[0] === q[0] && p[1] === q[1] && p[2] === q[2];
+
+/** Copies of the document parts the session keeps, so the caller's later mutations cannot reach it. */
+const copySite = (s: Site): Site => {
+  const c: Site = { id: s.id, species: s.species, position: [s.position[0], s.position[1], s.position[2]], electrons: s.electrons };
+  if (s.orbital !== undefined) c.orbital = { ...s.orbital };
+  if (s.cluster !== undefined) c.cluster = s.cluster;
+  return c;
+};
+const copyEnclosure = (e: Enclosure): Enclosure => ({ center: [...e.center], halfExtentsNm: [...e.halfExtentsNm], boundary: { ...e.boundary } });
+
+export function createFarFieldSession(initial: Design, options: FarFieldSessionOptions = {}): FarFieldSession {
+  let name = initial.name;
+  let host: Host = { ...initial.host };
+  let enclosure: Enclosure = copyEnclosure(initial.enclosure);
+  let refinement: Refinement = { ...initial.refinement };
+  let states: SiteState[] = [];
+  const limit = options.allPairsLimit ?? ALL_PAIRS_LIMIT;
+
+  let boxStamp = 0;
+  let reqStamp = 0;
+  let envByKey = new Map<string, Envelope>();
+  let reqCache = new Map<string, number>();
+  // pair set (site indices) and the overlap sweep order; null when they must be rebuilt
+  let pairI: Int32Array | null = null;
+  let pairJ: Int32Array | null = null;
+  let sweep: number[] | null = null;
+  let sweepStale = true;
+  let cached: FarFieldReport | null = null;
+  let cachedWithElements: FarFieldReport | null = null;
+  let momentsCenterKey = '';
+
+  const newState = (s: Site): SiteState => {
+    const site = copySite(s);
+    const orbital = resolveOrbital(site);
+    const a = host.latticeConstantNm;
+    const snapped = siteToNm(snapToLattice(site.position, a), a);
+    return {
+      site, orbital, okey: orbitalKey(orbital), self: selfEnergy(orbital),
+      offLattice: dist(snapped, site.position) > 1e-6,
+      env: null, boxStamp: -1, clear: 0, delta: 0, chargeOutside: 0,
+      reqTarget: NaN, reqStamp: -1, req: 0, moments: null,
+    };
+  };
+  const envFor = (st: SiteState): Envelope => {
+    if (st.env) return st.env;
+    let env = envByKey.get(st.okey);
+    if (!env) {
+      env = neglectedEnvelope(st.orbital, enclosure.boundary);
+      envByKey.set(st.okey, env);
+    }
+    st.env = env;
+    return env;
+  };
+  const structureChanged = () => {
+    pairI = pairJ = null;
+    sweep = null;
+  };
+
+  const reset = (d: Design) => {
+    states = d.sites.map(newState);
+    structureChanged();
+  };
+  reset(initial);
+
+  function applyChanges(c: FarFieldChanges): FarFieldReport {
+    let touched = false;
+    if (c.host) {
+      const h = c.host;
+      if (h.epsilonR !== host.epsilonR || h.latticeConstantNm !== host.latticeConstantNm || h.material !== host.material) {
+        const latticeChanged = h.latticeConstantNm !== host.latticeConstantNm;
+        host = { ...h };
+        // the lattice test and the overlap window depend on the lattice constant
+        if (latticeChanged) states = states.map((st) => newState(st.site));
+        touched = true;
+      }
+    }
+    if (c.removed?.length) {
+      const gone = new Set(c.removed);
+      const kept = states.filter((st) => !gone.has(st.site.id));
+      if (kept.length !== states.length) {
+        states = kept;
+        structureChanged();
+        touched = true;
+      }
+    }
+    if (c.upserted?.length) {
+      const at = new Map<string, number>();
+      states.forEach((st, i) => at.set(st.site.id, i));
+      for (const s of c.upserted) {
+        const i = at.get(s.id);
+        if (i === undefined) {
+          at.set(s.id, states.length);
+          states.push(newState(s));
+          structureChanged();
+        } else {
+          const old = states[i].site;
+          states[i] = newState(s);
+          if (!sameVec(old.position, s.position) || old.cluster !== s.cluster) {
+            // the bond graph depends on positions and clusters; all pairs do not
+            if (states.length > limit) pairI = pairJ = null;
+            sweepStale = true;
+          }
+        }
+        touched = true;
+      }
+    }
+    if (c.order) {
+      const byId = new Map(states.map((st) => [st.site.id, st] as const));
+      if (c.order.length !== states.length || c.order.some((id) => !byId.has(id))) {
+        throw new Error('far-field session: the new site order does not name the same sites');
+      }
+      if (c.order.some((id, i) => states[i].site.id !== id)) {
+        states = c.order.map((id) => byId.get(id) as SiteState);
+        structureChanged();
+        touched = true;
+      }
+    }
+    if (c.name !== undefined && c.name !== name) {
+      name = c.name;
+      touched = true;
+    }
+    if (c.enclosure) {
+      const e = c.enclosure;
+      if (e.boundary.kind !== enclosure.boundary.kind || (e.boundary.kind === 'multipole' && enclosure.boundary.kind === 'multipole' && e.boundary.order !== enclosure.boundary.order)) {
+        // envelopes, and the clearances required of them, belong to one boundary
+        envByKey = new Map();
+        for (const st of states) st.env = null;
+        reqStamp++;
+        reqCache = new Map();
+      }
+      if (!sameVec(e.center, enclosure.center) || !sameVec(e.halfExtentsNm, enclosure.halfExtentsNm) || e.boundary.kind !== enclosure.boundary.kind || (e.boundary.kind === 'multipole' && enclosure.boundary.kind === 'multipole' && e.boundary.order !== enclosure.boundary.order)) {
+        boxStamp++;
+        touched = true;
+      }
+      enclosure = copyEnclosure(e);
+    }
+    if (c.refinement) {
+      const r = c.refinement;
+      if (r.targetRelError !== refinement.targetRelError) {
+        reqStamp++;
+        reqCache = new Map();
+      }
+      if (r.targetRelError !== refinement.targetRelError || r.maxElements !== refinement.maxElements || r.order !== refinement.order) touched = true;
+      refinement = { ...r };
+    }
+    if (touched) cached = cachedWithElements = null;
+    return report();
+  }
+
+  function currentDesign(): Design {
+    return {
+      format: 'tetrawell-design',
+      version: 1,
+      name,
+      host: { ...host },
+      sites: states.map((st) => st.site),
+      enclosure: copyEnclosure(enclosure),
+      refinement: { ...refinement },
+    };
+  }
+
+  function report(): FarFieldReport {
+    if (cached) return cached;
+    cached = compute();
+    return cached;
+  }
+
+  function compute(): FarFieldReport {
+    const eps = host.epsilonR;
+    const a = host.latticeConstantNm;
+    const tol = refinement.targetRelError;
+    const { center, halfExtentsNm: half, boundary } = enclosure;
+    const ev = COULOMB_EV_NM / eps;
+    const n = states.length;
+    const warnings: FarFieldReport['warnings'] = [];
+
+    // ---- per site: box-dependent values for sites whose stamp is old
+    const target = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      const st = states[i];
+      if (st.boxStamp !== boxStamp) {
+        const p = st.site.position;
+        let d = Infinity;
+        for (let k = 0; k < 3; k++) d = Math.min(d, half[k] - Math.abs(p[k] - center[k]));
+        st.clear = d;
+        st.delta = d > 0 ? envFor(st)(d) : Infinity;
+        st.chargeOutside = chargeOutsideBox(st.orbital, p, center, half);
+        st.boxStamp = boxStamp;
+      }
+      target[i] = tol * st.self;
+    }
+
+    // ---- pairs
+    if (!pairI || !pairJ) {
+      const I: number[] = [];
+      const J: number[] = [];
+      if (n <= limit) {
+        for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) {
+          I.push(i);
+          J.push(j);
+        }
+      } else {
+        const pos = new Float64Array(3 * n);
+        for (let i = 0; i < n; i++) for (let k = 0; k < 3; k++) pos[3 * i + k] = states[i].site.position[k];
+        const g = bondGraph(pos, { groups: states.map((st) => st.site.cluster), shellFactor: options.shellFactor ?? DEFAULT_SHELL_FACTOR });
+        for (const mem of g.members) for (let u = 0; u < mem.length; u++) for (let v = u + 1; v < mem.length; v++) {
+          I.push(Math.min(mem[u], mem[v]));
+          J.push(Math.max(mem[u], mem[v]));
+        }
+        for (let e = 0; e < g.edges.length / 2; e++) {
+          for (const i of g.members[g.edges[2 * e]]) for (const j of g.members[g.edges[2 * e + 1]]) {
+            I.push(Math.min(i, j));
+            J.push(Math.max(i, j));
+          }
+        }
+      }
+      pairI = Int32Array.from(I);
+      pairJ = Int32Array.from(J);
+    }
+    if (n > limit) warnings.push(pairsLimitedWarning(n));
+    const pairs: PairBound[] = [];
+    const coincide: string[] = [];
+    const overlap: string[] = [];
+    const grounded = boundary.kind === 'grounded';
+    for (let t = 0; t < pairI.length; t++) {
+      const i = pairI[t], j = pairJ[t];
+      const si = states[i], sj = states[j];
+      const R = dist(si.site.position, sj.site.position);
+      if (R < 1e-6) {
+        coincide.push(si.site.id, sj.site.id);
+        continue;
+      }
+      const exact = pairEnergy(si.orbital, sj.orbital, R);
+      const v = exact ?? 1 / R;
+      const dl = grounded ? Math.min(si.delta, sj.delta) : Math.max(si.delta, sj.delta);
+      const bounded = Number.isFinite(dl);
+      pairs.push({ a: si.site.id, b: sj.site.id, distanceNm: R, vEv: ev * v, vModel: exact === null ? 'point-charge' : 'closed-form', vBoundEv: bounded ? ev * dl : null, vRelBound: bounded ? dl / v : null });
+      if (tol * v < target[i]) target[i] = tol * v;
+      if (tol * v < target[j]) target[j] = tol * v;
+    }
+
+    // ---- overlap sweep along x (same order and ties as check.ts: x, then index)
+    const byX = (u: number, v: number) => states[u].site.position[0] - states[v].site.position[0] || u - v;
+    if (!sweep) {
+      sweep = Array.from({ length: n }, (_, i) => i).sort(byX);
+      sweepStale = false;
+    } else if (sweepStale) {
+      sweep.sort(byX); // nearly sorted after a move: TimSort is close to linear
+      sweepStale = false;
+    }
+    for (let p = 0; p < n; p++) {
+      const i = sweep[p];
+      const pi = states[i].site.position;
+      for (let q = p + 1; q < n; q++) {
+        const j = sweep[q];
+        const pj = states[j].site.position;
+        if (pj[0] - pi[0] >= a) break;
+        const R = dist(pi, pj);
+        if (R < 1e-6) coincide.push(states[i].site.id, states[j].site.id);
+        else if (R < a && !(states[i].site.cluster !== undefined && states[i].site.cluster === states[j].site.cluster)) overlap.push(states[i].site.id, states[j].site.id);
+      }
+    }
+
+    // ---- site results, recommended box
+    const out: SiteBound[] = new Array(n);
+    const rec: Vec3 = n === 0 ? [half[0], half[1], half[2]] : [0, 0, 0];
+    const outside: string[] = [];
+    const cut: string[] = [];
+    let worstCut = 0;
+    const tooClose: string[] = [];
+    const noElectrons: string[] = [];
+    const offLattice: string[] = [];
+    const aniso: string[] = [];
+    let worst = 0;
+    for (let i = 0; i < n; i++) {
+      const st = states[i];
+      const s = st.site;
+      const inside = st.clear > 0;
+      if (st.reqStamp !== reqStamp || st.reqTarget !== target[i]) {
+        st.req = requiredClearance(st.orbital, st.okey, envFor(st), target[i], tol, reqCache);
+        st.reqTarget = target[i];
+        st.reqStamp = reqStamp;
+      }
+      const req = st.req;
+      for (let k = 0; k < 3; k++) rec[k] = Math.max(rec[k], Math.abs(s.position[k] - center[k]) + req);
+      const co = st.chargeOutside;
+      out[i] = {
+        id: s.id,
+        chargeOutside: co,
+        uBoundEv: inside ? ev * st.delta : null,
+        uRelBound: inside ? st.delta / st.self : null,
+        uEv: ev * st.self,
+        clearanceNm: st.clear,
+        requiredClearanceNm: req,
+      };
+      if (!inside) outside.push(s.id);
+      else {
+        worst = Math.max(worst, st.delta / st.self);
+        if (st.delta / st.self > tol) tooClose.push(s.id);
+      }
+      if (inside && co > tol / 10) {
+        cut.push(s.id);
+        if (co > worstCut) worstCut = co;
+      }
+      if (s.electrons === 0) noElectrons.push(s.id);
+      if (st.orbital.model === 'anisotropic-1s') aniso.push(s.id);
+      if (st.offLattice) offLattice.push(s.id);
+    }
+    for (const p of pairs) {
+      if (p.vRelBound === null) continue;
+      worst = Math.max(worst, p.vRelBound);
+      if (p.vRelBound > tol) tooClose.push(p.a, p.b);
+    }
+    warnings.push(
+      ...findingsWarnings({
+        siteCount: n, boundary, tolerance: tol, latticeConstantNm: a, worst, recommended: rec,
+        outside, tooClose, cut, worstCut, coincide, overlap, offLattice, aniso, noElectrons,
+      }),
+    );
+    const r: FarFieldReport = {
+      boundary: describeBoundary(boundary),
+      tolerance: tol,
+      sites: out,
+      pairs,
+      worstRelBound: outside.length ? null : worst,
+      recommendedHalfExtentsNm: rec,
+      elementsEstimate: null,
+      warnings,
+      assumptions: MODEL_ASSUMPTIONS,
+    };
+    if (options.moments) r.moments = moments();
+    return r;
+  }
+
+  /** Moments as check.ts gives them: per-site arrays cached, the array sum redone in site order. */
+  function moments(): NonNullable<FarFieldReport['moments']> {
+    const c: Vec3 = options.momentsCenter ? [...options.momentsCenter] : [enclosure.center[0], enclosure.center[1], enclosure.center[2]];
+    const key = c.join(',');
+    if (key !== momentsCenterKey) {
+      for (const st of states) st.moments = null;
+      momentsCenterKey = key;
+    }
+    const nh = harmonicCount(4);
+    const total = new Float64Array(nh);
+    const sites: { id: string; values: number[] }[] = [];
+    for (const st of states) {
+      if (!st.moments) st.moments = orbitalMoments(st.orbital, st.site.position, c, 4);
+      const w = st.site.electrons;
+      if (w !== 0) for (let i = 0; i < nh; i++) total[i] += w * st.moments[i];
+      sites.push({ id: st.site.id, values: Array.from(st.moments) });
+    }
+    return { center: c, order: 4, values: Array.from(total), sites };
+  }
+
+  function reportWithElements(): FarFieldReport {
+    if (cachedWithElements) return cachedWithElements;
+    const r = report();
+    if (!options.estimateElements || !r.recommendedHalfExtentsNm.every(Number.isFinite)) {
+      cachedWithElements = r;
+      return r;
+    }
+    const est = options.estimateElements(r.recommendedHalfExtentsNm, currentDesign());
+    const budget = elementBudgetWarning(est, refinement.maxElements);
+    cachedWithElements = { ...r, elementsEstimate: est, warnings: budget ? [...r.warnings, budget] : r.warnings };
+    return cachedWithElements;
+  }
+
+  return { applyChanges, report, reportWithElements, design: currentDesign };
+}
