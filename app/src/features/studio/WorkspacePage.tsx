@@ -350,7 +350,7 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, autosave, s
         </section>
       )}
 
-      <div className="grid flex-1 grid-cols-1 gap-2 p-2 lg:grid-cols-[17rem_minmax(0,1fr)_20rem]">
+      <div className="grid flex-1 grid-cols-1 gap-2 p-2 lg:grid-cols-[17rem_minmax(0,1fr)_24rem]">
         {!readOnly ? (
           <aside aria-label="Build" className="order-2 space-y-3 overflow-y-auto rounded-md bg-white p-3 lg:order-1 lg:max-h-[calc(100vh-6rem)]">
             <section aria-label="Tools" className="space-y-1.5">
@@ -444,6 +444,7 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, autosave, s
             report={farField.report}
             computing={farField.computing}
             error={farField.error}
+            elementsPending={farField.elementsPending}
             document={shown}
             readOnly={readOnly}
             onApplyRecommended={(h) => store.getState().setEnclosure({ ...store.getState().document.enclosure, halfExtentsNm: h })}
