@@ -12,6 +12,8 @@ import { apiWrite, closeTestDb, createProject, signIn, signUp, testDb, uniqueEma
 import { generateArray } from '../../geometry/arrays';
 
 test.afterAll(closeTestDb);
+// software WebGL on a shared two-core machine: give each story room
+test.describe.configure({ timeout: 150_000 });
 
 const A = 0.5431020511;
 
@@ -36,8 +38,8 @@ async function readDesign(page: Page, projectId: number, designId: number): Prom
 
 async function openWorkspace(page: Page, projectId: number, designId: number) {
   await page.goto(`/projects/${projectId}/designs/${designId}`);
-  await expect(page.getByRole('region', { name: 'Design canvas' })).toBeVisible();
-  await expect(page.locator('canvas')).toBeVisible();
+  await expect(page.getByRole('region', { name: 'Design canvas' })).toBeVisible({ timeout: 30_000 });
+  await expect(page.locator('canvas')).toBeVisible({ timeout: 30_000 });
 }
 
 const sitesTable = (page: Page) => page.getByRole('table', { name: 'Sites' });
@@ -58,7 +60,7 @@ async function canvasInstances(page: Page): Promise<Record<string, number>> {
 }
 
 async function freshOwner(page: Page, who: string) {
-  const email = uniqueEmail(who);
+  const email = uniqueEmail(who.split(' ')[0].toLowerCase());
   await signUp(page, { email, name: who });
   return email;
 }
@@ -232,7 +234,7 @@ test('a viewer sees the design read-only, with no edit tools', async ({ page, br
   // reading is still there: the figures, the assumptions and the downloads
   await expect(viewer.getByRole('region', { name: 'Far-field check' })).toBeVisible();
   await expect(viewer.getByRole('region', { name: 'Model assumptions' })).toContainText('acceptor');
-  await viewer.getByText('Download').click();
+  await viewer.locator('summary', { hasText: 'Download' }).click();
   await expect(viewer.getByRole('link', { name: /Placement list/ })).toBeVisible();
   await viewer.screenshot({ path: 'tests/artifacts/studio-viewer.png', fullPage: true });
   // and the server refuses a viewer's write anyway
@@ -241,7 +243,7 @@ test('a viewer sees the design read-only, with no edit tools', async ({ page, br
 });
 
 test('10,000 sites: draw calls within species + 10, frame time printed while orbiting', async ({ page }) => {
-  test.setTimeout(180_000);
+  test.setTimeout(240_000);
   await freshOwner(page, 'Wen Abara');
   const projectId = await createProject(page, 'Large array');
   const template = (await readDesign(page, projectId, (await newDesign(page, projectId, 'Template')).id)).document;
@@ -259,6 +261,7 @@ test('10,000 sites: draw calls within species + 10, frame time printed while orb
   const bb = (await canvas.boundingBox())!;
   await page.evaluate(() => {
     window.__tetrawellCanvasStats!.frameMs.length = 0;
+    window.__tetrawellCanvasStats!.intervalMs.length = 0;
   });
   // orbit: right-drag in the select tool, in steps
   await page.mouse.move(bb.x + bb.width / 2, bb.y + bb.height / 2);
@@ -267,9 +270,11 @@ test('10,000 sites: draw calls within species + 10, frame time printed while orb
   await page.mouse.up({ button: 'right' });
   const stats = await page.evaluate(() => ({ ...window.__tetrawellCanvasStats! }));
   const species = Object.keys(stats.instances).length;
-  const sorted = [...stats.frameMs].sort((p, q) => p - q);
-  const median = sorted[Math.floor(sorted.length / 2)];
-  console.log(`canvas at 10,000 sites: ${stats.drawCalls} draw calls (${species} species), ${stats.triangles} triangles, median frame ${median?.toFixed(1)} ms over ${sorted.length} frames while orbiting (SwiftShader, no GPU)`);
+  const median = (xs: number[]) => [...xs].sort((p, q) => p - q)[Math.floor(xs.length / 2)];
+  console.log(
+    `canvas at 10,000 sites: ${stats.drawCalls} draw calls (${species} species), ${stats.triangles} triangles; while orbiting: ` +
+      `median render ${median(stats.frameMs)?.toFixed(1)} ms over ${stats.frameMs.length} frames, median interval between frames ${median(stats.intervalMs)?.toFixed(1)} ms (SwiftShader software WebGL, no GPU)`,
+  );
   expect(stats.drawCalls).toBeGreaterThan(0);
   expect(stats.drawCalls).toBeLessThanOrEqual(species + 10);
   await page.screenshot({ path: 'tests/artifacts/studio-10k.png', fullPage: true });
