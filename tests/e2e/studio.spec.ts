@@ -177,7 +177,7 @@ test('a second browser saving the same design gets the stale-save choice', async
   // the second, still on version 1, builds a chain: its save is refused, nothing is overwritten
   const form = other.getByRole('form', { name: 'Array builder' });
   await form.getByLabel('Array shape').selectOption('chain');
-  await form.getByLabel('Sites').fill('6');
+  await form.getByLabel(/^Sites/).fill('6');
   await form.getByRole('button', { name: 'Build array' }).click();
   const choice = other.getByRole('alertdialog', { name: 'Someone saved this design first' });
   await expect(choice).toBeVisible({ timeout: 15_000 });
@@ -266,7 +266,7 @@ test('10,000 sites: draw calls within species + 10, frame time printed while orb
   // orbit: right-drag in the select tool, in steps
   await page.mouse.move(bb.x + bb.width / 2, bb.y + bb.height / 2);
   await page.mouse.down({ button: 'right' });
-  for (let k = 0; k < 60; k++) await page.mouse.move(bb.x + bb.width / 2 + 4 * k, bb.y + bb.height / 2 + k, { steps: 1 });
+  for (let k = 0; k < 24; k++) await page.mouse.move(bb.x + bb.width / 2 + 8 * k, bb.y + bb.height / 2 + 2 * k, { steps: 1 });
   await page.mouse.up({ button: 'right' });
   const stats = await page.evaluate(() => ({ ...window.__tetrawellCanvasStats! }));
   const species = Object.keys(stats.instances).length;

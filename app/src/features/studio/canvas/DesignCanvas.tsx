@@ -74,10 +74,10 @@ export interface DesignCanvasProps {
 const tmpMatrix = new THREE.Matrix4();
 const tmpColor = new THREE.Color();
 
-function SpeciesInstances({ species, sites, a, selected, onPick }: { species: Species; sites: { id: string; position: number[] }[]; a: number; selected: ReadonlySet<string>; onPick: (id: string, e: ThreeEvent<MouseEvent>) => void }) {
+function SpeciesInstances({ species, sites, unit, selected, onPick }: { species: Species; sites: { id: string; position: number[] }[]; unit: number; selected: ReadonlySet<string>; onPick: (id: string, e: ThreeEvent<MouseEvent>) => void }) {
   const ref = useRef<THREE.InstancedMesh>(null);
   const style = SPECIES_STYLE[species];
-  const r = style.radiusA * a;
+  const r = style.radiusA * unit;
   useLayoutEffect(() => {
     const mesh = ref.current;
     if (!mesh) return;
@@ -92,7 +92,7 @@ function SpeciesInstances({ species, sites, a, selected, onPick }: { species: Sp
   }, [sites, selected, r, style.css]);
   return (
     <instancedMesh
-      key={sites.length}
+      key={sites.length > 2000 ? `${sites.length}-coarse` : sites.length}
       ref={ref}
       name={`sites-${species}`}
       args={[undefined, undefined, sites.length]}
@@ -102,7 +102,8 @@ function SpeciesInstances({ species, sites, a, selected, onPick }: { species: Sp
         onPick(sites[e.instanceId].id, e);
       }}
     >
-      <sphereGeometry args={[1, 16, 12]} />
+      {/* fewer facets for large arrays: 10,000 spheres stay at about a million triangles */}
+      <sphereGeometry args={sites.length > 2000 ? [1, 8, 6] : [1, 16, 12]} />
       <meshStandardMaterial color="#ffffff" roughness={0.45} metalness={0.05} />
     </instancedMesh>
   );
@@ -263,7 +264,7 @@ function DomainBox({ doc, report, readOnly, onPreview, onCommit }: { doc: Design
       {!readOnly && (
         <instancedMesh ref={handles} args={[undefined, undefined, 6]} onPointerDown={startDrag} name="domain-box-handles">
           <boxGeometry args={[1, 1, 1]} />
-          <meshStandardMaterial color="#0b5f57" />
+          <meshStandardMaterial color="#3fd0bd" emissive="#0d7a6e" />
         </instancedMesh>
       )}
     </group>
@@ -503,6 +504,23 @@ export default function DesignCanvas(props: DesignCanvasProps) {
     }
     return m;
   }, [doc.sites]);
+  // Display size of the spheres (not a physical radius): a lattice constant, or a fifth of the
+  // typical site spacing when sites are far apart, so that sparse arrays stay visible
+  const unit = useMemo(() => {
+    const n = doc.sites.length;
+    if (n < 2) return a;
+    // typical spacing from a sample of up to 200 sites (their nearest neighbour among all)
+    const step = Math.max(1, Math.floor(n / 200));
+    const d: number[] = [];
+    for (let i = 0; i < n; i += step) {
+      let best = Infinity;
+      const p = doc.sites[i].position;
+      for (let j = 0; j < n; j++) if (j !== i) best = Math.min(best, (doc.sites[j].position[0] - p[0]) ** 2 + (doc.sites[j].position[1] - p[1]) ** 2 + (doc.sites[j].position[2] - p[2]) ** 2);
+      d.push(Math.sqrt(best));
+    }
+    d.sort((u, v) => u - v);
+    return Math.max(a, 0.2 * d[Math.floor(d.length / 2)]);
+  }, [doc.sites, a]);
   const warnedPositions = useMemo(() => {
     if (!report) return [];
     const ids = new Set(report.warnings.filter((w) => w.severity !== 'info').flatMap((w) => w.siteIds));
@@ -576,8 +594,9 @@ export default function DesignCanvas(props: DesignCanvasProps) {
         }}
       >
         <color attach="background" args={['#0b131a']} />
-        <ambientLight intensity={0.55} />
-        <directionalLight position={[30, -40, 60]} intensity={1.6} />
+        <ambientLight intensity={1.1} />
+        <directionalLight position={[30, -40, 60]} intensity={2.2} />
+        <directionalLight position={[-40, 30, -20]} intensity={0.6} />
         <OrbitControls
           makeDefault
           target={c}
@@ -586,9 +605,9 @@ export default function DesignCanvas(props: DesignCanvasProps) {
         />
         <Rig doc={doc} onViewApi={onViewApi} onScale={onScale} />
         {SPECIES_ORDER.filter((sp) => bySpecies.has(sp)).map((sp) => (
-          <SpeciesInstances key={sp} species={sp} sites={bySpecies.get(sp)!} a={a} selected={selected} onPick={onPick} />
+          <SpeciesInstances key={sp} species={sp} sites={bySpecies.get(sp)!} unit={unit} selected={selected} onPick={onPick} />
         ))}
-        <WarnedSites positions={warnedPositions} radius={0.9 * a} />
+        <WarnedSites positions={warnedPositions} radius={1.1 * unit} />
         <Bonds doc={doc} />
         <DomainBox doc={doc} report={report} readOnly={readOnly} onPreview={props.onPreview} onCommit={props.onCommitEnclosure} />
         {!readOnly && tool === 'place' && <PlacementGuide doc={doc} layerK={props.layerK} species={props.placeSpecies} onPlace={props.onPlace} />}
@@ -607,7 +626,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
           <span ref={scaleLabel} className="num">— nm</span>
         </div>
       </div>
-      <ul aria-label="Species legend" className="absolute right-2 top-2 space-y-0.5 rounded bg-wafer-950/80 px-2 py-1.5 text-fine text-wafer-100">
+      <ul aria-label="Species legend" className="pointer-events-none absolute bottom-2 right-2 space-y-0.5 rounded bg-wafer-950/80 px-2 py-1.5 text-fine text-wafer-100">
         {legend.map((sp) => (
           <li key={sp} className="flex items-center gap-1.5">
             <span aria-hidden="true" className="inline-block rounded-full" style={{ background: SPECIES_STYLE[sp].css, width: 6 + 8 * SPECIES_STYLE[sp].radiusA, height: 6 + 8 * SPECIES_STYLE[sp].radiusA }} />
