@@ -279,3 +279,65 @@ test('10,000 sites: draw calls within species + 10, frame time printed while orb
   expect(stats.drawCalls).toBeLessThanOrEqual(species + 10);
   await page.screenshot({ path: 'tests/artifacts/studio-10k.png', fullPage: true });
 });
+
+test('a CSV with one bad row shows that row\'s line number and changes nothing; a clean one goes in as an undoable edit', async ({ page }) => {
+  await freshOwner(page, 'Greta Amundsen');
+  const projectId = await createProject(page, 'Measured positions');
+  const design = await newDesign(page, projectId, 'From the microscope');
+  await openWorkspace(page, projectId, design.id);
+
+  // line 1 header, lines 2–5 rows; line 4 has text where a number belongs
+  const rows = ['id,species,x_nm,y_nm,z_nm', `m1,P,0,0,0`, `m2,P,${(8 * A).toFixed(10)},0,0`, `m3,P,four,0,0`, `m4,As,0,${(8 * A).toFixed(10)},0`];
+  const input = page.getByLabel('File to import');
+  await input.setInputFiles({ name: 'measured.csv', mimeType: 'text/csv', buffer: Buffer.from(rows.join('\n') + '\n') });
+  await page.getByRole('button', { name: 'Check the file' }).click();
+  const problems = page.getByRole('list', { name: 'Problems in the file' });
+  await expect(problems).toContainText('line 4');
+  await expect(problems.getByRole('listitem')).toHaveCount(1);
+  await expect(page.getByRole('button', { name: 'Use these sites' })).toHaveCount(0);
+  await expect(sitesTable(page).getByRole('row')).toHaveCount(1);
+  await page.screenshot({ path: 'tests/artifacts/studio-import-bad-row.png', fullPage: true });
+
+  rows[3] = `m3,P,${(-8 * A).toFixed(10)},0,0`;
+  await input.setInputFiles({ name: 'measured.csv', mimeType: 'text/csv', buffer: Buffer.from(rows.join('\n') + '\n') });
+  await page.getByRole('button', { name: 'Check the file' }).click();
+  await page.getByRole('button', { name: 'Use these sites' }).click();
+  await expect(sitesTable(page).getByRole('row')).toHaveCount(1 + 4);
+  await page.getByRole('button', { name: 'Undo' }).click();
+  await expect(sitesTable(page).getByRole('row')).toHaveCount(1);
+});
+
+test('the placement list downloads and reads back to the same positions', async ({ page }) => {
+  await freshOwner(page, 'Paulo Renn');
+  const projectId = await createProject(page, 'Hand-off');
+  const design = await newDesign(page, projectId, 'For fabrication');
+  await openWorkspace(page, projectId, design.id);
+  await buildSquare(page);
+  await expect(saveState(page)).toContainText('Saved as version 2', { timeout: 15_000 });
+  const before = (await readDesign(page, projectId, design.id)).document.sites;
+
+  await page.locator('summary', { hasText: 'Download' }).click();
+  const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: /Placement list/ }).click()]);
+  const path = await download.path();
+  const text = (await import('node:fs')).readFileSync(path!, 'utf8');
+  // every data line: id species electrons i j k x_nm y_nm z_nm offset_nm; position = (i, j, k)·a/4 on the lattice
+  const lines = text.split('\n').filter((l) => l.trim() && !l.startsWith('#'));
+  expect(lines).toHaveLength(9);
+  for (const line of lines) {
+    const [id, , , i, j, k, x, y, z] = line.trim().split(/\s+/);
+    const site = before.find((s) => s.id === id)!;
+    expect([Number(x), Number(y), Number(z)]).toEqual(site.position);
+    [i, j, k].forEach((v, n) => expect((Number(v) * A) / 4).toBeCloseTo(site.position[n], 12));
+  }
+
+  // read it back through the import panel: the same sites at the same positions
+  await page.getByLabel('File to import').setInputFiles({ name: download.suggestedFilename(), mimeType: 'text/plain', buffer: Buffer.from(text) });
+  await page.getByRole('button', { name: 'Check the file' }).click();
+  await expect(page.getByRole('group', { name: 'Import preview' })).toContainText('9 sites read, no problems');
+  await page.getByRole('button', { name: 'Use these sites' }).click();
+  await page.getByRole('button', { name: 'Save now' }).click();
+  await expect(saveState(page)).toContainText('Saved as version 3', { timeout: 15_000 });
+  const after = (await readDesign(page, projectId, design.id)).document.sites;
+  expect(after.map((s) => [s.id, s.species, s.position])).toEqual(before.map((s) => [s.id, s.species, s.position]));
+  await page.screenshot({ path: 'tests/artifacts/studio-placement-roundtrip.png', fullPage: true });
+});

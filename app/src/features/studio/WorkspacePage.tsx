@@ -431,15 +431,18 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, autosave, s
             </Suspense>
             <ViewButtons viewRef={viewRef} />
           </div>
-          <div className="h-72">
+        </div>
+
+        <div className="order-4 min-w-0 lg:col-span-2">
+          <div className="h-80">
             <SiteTable readOnly={readOnly} />
           </div>
-          <p className="text-fine text-wafer-600">
-            Positions and distances are geometry (nm); lattice indices count a/4 steps with a = {a} nm. Orbitals marked “species preset” use the model defaults.
+          <p className="mt-1 text-fine text-wafer-600">
+            Positions and distances are geometry (nm); lattice indices count a/4 steps with a = {a} nm. Orbitals marked “species preset” use the model defaults; double-click a cell (or Enter) to edit it.
           </p>
         </div>
 
-        <aside aria-label="Checks and settings" className="order-3 space-y-3 overflow-y-auto rounded-md bg-white p-3 lg:max-h-[calc(100vh-6rem)]">
+        <aside aria-label="Checks and settings" className="order-3 space-y-3 overflow-y-auto rounded-md bg-white p-3 lg:col-start-3 lg:row-span-2 lg:row-start-1 lg:max-h-[calc(100vh-4rem)]">
           <FarFieldPanel
             report={farField.report}
             computing={farField.computing}
