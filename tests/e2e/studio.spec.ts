@@ -36,10 +36,10 @@ async function readDesign(page: Page, projectId: number, designId: number): Prom
   return ((await res.json()) as { design: Detail }).design;
 }
 
-async function openWorkspace(page: Page, projectId: number, designId: number) {
+async function openWorkspace(page: Page, projectId: number, designId: number, timeout = 30_000) {
   await page.goto(`/projects/${projectId}/designs/${designId}`);
-  await expect(page.getByRole('region', { name: 'Design canvas' })).toBeVisible({ timeout: 30_000 });
-  await expect(page.locator('canvas')).toBeVisible({ timeout: 30_000 });
+  await expect(page.getByRole('region', { name: 'Design canvas' })).toBeVisible({ timeout });
+  await expect(page.locator('canvas')).toBeVisible({ timeout });
 }
 
 const sitesTable = (page: Page) => page.getByRole('table', { name: 'Sites' });
@@ -192,11 +192,18 @@ test('a second browser saving the same design gets the stale-save choice', async
   const copyId = Number(/\/designs\/(\d+)$/.exec(other.url())![1]);
   expect((await readDesign(page, projectId, copyId)).document.sites).toHaveLength(6);
   expect((await readDesign(page, projectId, design.id)).document.sites).toHaveLength(9);
+});
 
-  // reload theirs in a third stale window: the grid comes back
+test('"Reload theirs" replaces the stale edits with the version saved elsewhere', async ({ page, browser }) => {
+  const email = await freshOwner(page, 'Lucia Ferrand');
+  const projectId = await createProject(page, 'Two windows again');
+  const sites = generateArray({ kind: 'square', nx: 3, ny: 3, spacingNm: 8 * A, latticeConstantNm: A });
+  const template = (await readDesign(page, projectId, (await newDesign(page, projectId, 'Template')).id)).document;
+  const design = await newDesign(page, projectId, 'Contested', { ...template, name: 'Contested', sites });
   const third = await secondSession(browser, email);
   await openWorkspace(third, projectId, design.id);
-  await apiWrite(page.request, 'PUT', `/api/projects/${projectId}/designs/${design.id}`, { document: { ...(await readDesign(page, projectId, design.id)).document, name: 'Contested v3' }, version: 2 });
+  const put = await apiWrite(page.request, 'PUT', `/api/projects/${projectId}/designs/${design.id}`, { document: { ...design.document, name: 'Contested v2' }, version: design.version });
+  expect(put.status()).toBe(200);
   await third.locator('tr[data-site-id="s1"]').click();
   await third.keyboard.press('Delete');
   const again = third.getByRole('alertdialog', { name: 'Someone saved this design first' });
@@ -204,7 +211,8 @@ test('a second browser saving the same design gets the stale-save choice', async
   await again.getByRole('button', { name: 'Reload theirs' }).click();
   await expect(again).toHaveCount(0);
   await expect(sitesTable(third).getByRole('row')).toHaveCount(10);
-  await expect(third.getByLabel('Design name')).toHaveValue('Contested v3');
+  await expect(third.getByLabel('Design name')).toHaveValue('Contested v2');
+  await expect(saveState(third)).toContainText('Saved as version 2');
 });
 
 test('a viewer sees the design read-only, with no edit tools', async ({ page, browser }) => {
@@ -251,8 +259,8 @@ test('10,000 sites: draw calls within species + 10, frame time printed while orb
   const sites = generateArray({ kind: 'square', nx: 100, ny: 100, spacingNm: 4, latticeConstantNm: A });
   expect(sites).toHaveLength(10_000);
   const design = await newDesign(page, projectId, 'Ten thousand', { ...template, name: 'Ten thousand', sites, enclosure: { center: [0, 0, 0], halfExtentsNm: [260, 260, 60], boundary: { kind: 'grounded' } } });
-  await openWorkspace(page, projectId, design.id);
-  await expect.poll(() => canvasInstances(page), { timeout: 30_000 }).toEqual({ P: 10_000 });
+  await openWorkspace(page, projectId, design.id, 120_000);
+  await expect.poll(() => canvasInstances(page), { timeout: 60_000 }).toEqual({ P: 10_000 });
   await expect(sitesTable(page)).toHaveAttribute('aria-rowcount', '10001');
   // virtualised: far fewer rows in the DOM than sites
   expect(await sitesTable(page).locator('tbody tr').count()).toBeLessThan(100);
