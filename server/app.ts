@@ -36,6 +36,8 @@ export interface AppDeps {
   /** folder holding the built client's index.html, or null */
   staticDir: string | null;
   bodyLimit: string;
+  /** larger JSON limit for the requests that carry a design document */
+  designBodyLimit: string;
   logger: Logger;
 }
 
@@ -96,16 +98,27 @@ export function createApp(deps: AppDeps): Express {
       strictTransportSecurity: behindHttps ? { maxAge: 31_536_000, includeSubDomains: true } : false,
     }),
   );
-  app.use(
+  const jsonBody = (limit: string) =>
     express.json({
-      limit: deps.bodyLimit,
+      limit,
       // PostgreSQL text and jsonb cannot hold U+0000; refuse it at the door (400) rather than fail in the database (500)
       reviver: (_key, value: unknown) => {
         if (typeof value === 'string' && value.includes('\u0000')) throw new SyntaxError('NUL character in a string');
         return value;
       },
-    }),
-  );
+    });
+  // design documents may be ~10 MB (100,000 sites): their create and save get a larger limit; body-parser
+  // marks the body as read, so the general parser below leaves it alone
+  const designJson = jsonBody(deps.designBodyLimit);
+  const designDocumentBody: RequestHandler = (req, res, next) => {
+    // only the exact paths (req.path is what is left below the mount point): not /imports, /versions, …
+    if ((req.method === 'POST' || req.method === 'PUT') && req.path === '/') designJson(req, res, next);
+    else next();
+  };
+  // one mount per path: Express matches a path list as one layer, with only the first matching path
+  app.use('/api/projects/:projectId/designs', designDocumentBody);
+  app.use('/api/projects/:projectId/designs/:designId', designDocumentBody);
+  app.use(jsonBody(deps.bodyLimit));
 
   app.use(
     session({

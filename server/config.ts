@@ -69,6 +69,12 @@ export interface ServerOptions {
   logger?: Logger;
   /** JSON body size limit (express.json syntax) */
   bodyLimit?: string;
+  /**
+   * JSON body limit of the requests that carry a whole design document (POST and PUT of
+   * /api/projects/:projectId/designs[/:designId]); default 24mb: a design of MAX_SITES = 100,000
+   * sites is about 9 MB of JSON, more with orbital overrides and long ids
+   */
+  designBodyLimit?: string;
   /** bcrypt cost factor; 12 by default (OWASP password storage guidance recommends ≥10; common practice) */
   bcryptRounds?: number;
   invitationTtlHours?: number;

@@ -74,6 +74,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     rateLimits: { ...DEFAULT_RATE_LIMITS, ...opts.rateLimits },
     staticDir: opts.staticDir === undefined ? DEFAULT_STATIC_DIR : opts.staticDir,
     bodyLimit: opts.bodyLimit ?? '5mb',
+    designBodyLimit: opts.designBodyLimit ?? '24mb',
     logger,
   });
 

@@ -1,7 +1,8 @@
 /**
  * Demo data for a fresh installation, in an invented scenario: the "Atomic Dopant Architecture
- * Lab" of the fictional Fenwick Moor University. Two people, one project with a four-donor
- * chain, so a first sign-in shows something to look at.
+ * Lab" of the fictional Fenwick Moor University. Two people, one project with three designs (a
+ * four-donor chain, a six-donor chain saved in two versions, a 3 × 3 square array), so a first
+ * sign-in shows something to look at.
  *
  * Seeds only an empty database (no users at all); never touches an installation in use.
  * The demo password is deliberately public (printed by `npm start`): change it or remove the

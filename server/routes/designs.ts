@@ -8,16 +8,61 @@
  *   DELETE /projects/:projectId/designs/:designId                    design.edit
  *   GET    /projects/:projectId/designs/:designId/versions           project.read
  *   GET    /projects/:projectId/designs/:designId/versions/:version  project.read
+ *   POST   /projects/:projectId/designs/:designId/imports            design.edit (writes nothing; it
+ *                                                                    prepares an edit, so viewers get 403)
+ *   GET    /projects/:projectId/designs/:designId/export?format=…    project.export
+ *
+ * Imports are multipart/form-data with one file field `file` (multer, in memory), at most
+ * IMPORT_MAX_BYTES: a larger file is refused with 413 before the rest is read.
  */
+import type { Request, Response } from 'express';
+import multer from 'multer';
 import {
   designCreateBodySchema,
+  designExportQuerySchema,
   designParamsSchema,
   designUpdateBodySchema,
   designVersionParamsSchema,
 } from '@contracts/api';
-import { parseOr422 } from '../services/errors';
+import { AppError, parseOr422 } from '../services/errors';
 import { currentUser, projectAccess } from '../http/access';
 import type { RouteModule } from './context';
+
+/** Largest uploaded site file: a 100,000-site CSV with long ids is about 8 MB. */
+export const IMPORT_MAX_BYTES = 16 * 1024 * 1024;
+
+const upload = multer({
+  storage: multer.memoryStorage(),
+  limits: { fileSize: IMPORT_MAX_BYTES, files: 1, fields: 5, parts: 6, fieldSize: 1024 },
+}).single('file');
+
+/** Run multer and turn its errors into our error codes. */
+function receiveFile(req: Request, res: Response): Promise<Express.Multer.File> {
+  return new Promise((resolve, reject) => {
+    upload(req, res, (err: unknown) => {
+      if (err instanceof multer.MulterError) {
+        if (err.code === 'LIMIT_FILE_SIZE') {
+          reject(new AppError('payload_too_large', `The file is larger than ${IMPORT_MAX_BYTES / (1024 * 1024)} MB, the most an import reads. Split it into parts.`));
+        } else if (err.code === 'LIMIT_UNEXPECTED_FILE' || err.code === 'LIMIT_FILE_COUNT') {
+          reject(new AppError('validation_failed', 'Send exactly one file, in the form field "file".', [{ path: ['file'], message: 'send one file in the field "file"' }]));
+        } else {
+          reject(new AppError('bad_request', `The upload could not be read (${err.message}).`));
+        }
+        return;
+      }
+      if (err) {
+        // busboy: a body that is not well-formed multipart
+        reject(new AppError('bad_request', 'The upload is not a well-formed multipart/form-data request.'));
+        return;
+      }
+      if (!req.file) {
+        reject(new AppError('validation_failed', 'Attach the file to import in the form field "file" (multipart/form-data).', [{ path: ['file'], message: 'is missing' }]));
+        return;
+      }
+      resolve(req.file);
+    });
+  });
+}
 
 export const designRoutes: RouteModule = (router, { services, access }) => {
   const base = '/projects/:projectId/designs';
@@ -27,7 +72,10 @@ export const designRoutes: RouteModule = (router, { services, access }) => {
   });
 
   router.post(base, access.requireCapability('design.edit'), async (req, res) => {
-    const body = parseOr422(designCreateBodySchema, req.body, 'design form');
+    // parse with the branch the body means, so field errors carry their paths (a failed union would not)
+    const [copyBranch, documentBranch] = designCreateBodySchema.options;
+    const isCopy = typeof req.body === 'object' && req.body !== null && 'copyOf' in req.body;
+    const body = parseOr422(isCopy ? copyBranch : documentBranch, req.body, 'design form');
     res.status(201).json({ design: await services.designs.create(projectAccess(res).projectId, body, currentUser(req).id) });
   });
 
@@ -56,5 +104,22 @@ export const designRoutes: RouteModule = (router, { services, access }) => {
   router.get(`${base}/:designId/versions/:version`, access.requireCapability('project.read'), async (req, res) => {
     const { designId, version } = parseOr422(designVersionParamsSchema, req.params, 'address');
     res.json({ version: await services.designs.version(projectAccess(res).projectId, designId, version) });
+  });
+
+  router.post(`${base}/:designId/imports`, access.requireCapability('design.edit'), async (req, res) => {
+    const { designId } = parseOr422(designParamsSchema, req.params, 'address');
+    const file = await receiveFile(req, res);
+    const bytes = new Uint8Array(file.buffer.buffer, file.buffer.byteOffset, file.buffer.byteLength);
+    res.json(await services.designs.importFile(projectAccess(res).projectId, designId, { bytes, name: file.originalname ?? '' }));
+  });
+
+  router.get(`${base}/:designId/export`, access.requireCapability('project.export'), async (req, res) => {
+    const { designId } = parseOr422(designParamsSchema, req.params, 'address');
+    const { format } = parseOr422(designExportQuerySchema, req.query, 'export address');
+    const out = await services.designs.exportFile(projectAccess(res).projectId, designId, format);
+    res.attachment(out.fileName);
+    res.type(out.contentType);
+    res.setHeader('Cache-Control', 'no-store');
+    res.send(out.body);
   });
 };

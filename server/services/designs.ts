@@ -8,7 +8,9 @@
  * transaction (in a worker thread for large designs) so no database lock waits on them.
  */
 import { designSchema, type DesignDocument } from '@contracts/design';
-import type { DesignDetail, DesignSummary } from '@contracts/api';
+import type { DesignDetail, DesignSummary, designExportFormats } from '@contracts/api';
+
+type DesignExportFormat = (typeof designExportFormats)[number];
 import { designsRepo, type DesignRecord, type DesignVersionRecord, type DesignWrite } from '../repositories/designs';
 import { projectsRepo } from '../repositories/projects';
 import type { Db } from '../repositories/db';
@@ -16,6 +18,7 @@ import { AppError, notFound, staleWrite } from './errors';
 import { recordAudit } from './audit';
 import type { ServiceDeps } from './context';
 import { computeFigures, figureComputer } from '../workers/designFigures';
+import { ImportRefused, writeCsv, writePlacement, writeXyz, type ImportIssue, type Site } from '../formats';
 
 import { SI_EPSILON_R, SI_LATTICE_CONSTANT_NM } from '../../geometry/units';
 
@@ -39,6 +42,19 @@ export function emptyDesign(name: string): DesignDocument {
 export function designWriteSync(doc: DesignDocument): DesignWrite {
   const f = computeFigures(doc);
   return { name: doc.name, documentJson: JSON.stringify(doc), siteCount: doc.sites.length, ...f };
+}
+
+/** A file name from a design name: ASCII letters, digits and dashes, at most 80 characters. */
+export function fileBaseName(name: string): string {
+  const slug = name
+    .normalize('NFKD')
+    .replace(/[\u0300-\u036f]/g, '')
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .replace(/^-+|-+$/g, '')
+    .slice(0, 80)
+    .replace(/-+$/, '');
+  return slug || 'design';
 }
 
 export type DesignCreateInput = { name: string; copyOf: number } | { name: string; document?: DesignDocument };
@@ -69,6 +85,13 @@ export function designService(deps: ServiceDeps) {
     const documentJson = JSON.stringify(doc);
     const f = await figures.compute(doc, documentJson);
     return { name: doc.name, documentJson, siteCount: doc.sites.length, ...f };
+  }
+
+  /** the answer to a save: the document just written (no re-read and re-parse of a large jsonb) and the row's metadata */
+  async function saved(projectId: number, designId: number, doc: DesignDocument): Promise<DesignDetail> {
+    const cur = await designsRepo(db).current(projectId, designId);
+    if (!cur) throw notFound('The design');
+    return { id: designId, name: cur.name, document: doc, version: cur.version, updatedAt: cur.updatedAt, updatedBy: cur.updatedBy };
   }
 
   async function mustGet(projectId: number, designId: number): Promise<DesignRecord> {
@@ -116,7 +139,7 @@ export function designService(deps: ServiceDeps) {
         });
         return newId;
       });
-      return service.get(projectId, id);
+      return saved(projectId, id, doc);
     },
 
     async update(projectId: number, designId: number, input: { document: DesignDocument; version: number; name?: string }, userId: number): Promise<DesignDetail> {
@@ -139,7 +162,7 @@ export function designService(deps: ServiceDeps) {
           await recordAudit(trx, { projectId, actorId: userId, action: 'design.rename', detail: { designId, version, from: before.name, to: doc.name } });
         }
       });
-      return service.get(projectId, designId);
+      return saved(projectId, designId, doc);
     },
 
     async remove(projectId: number, designId: number, userId: number): Promise<void> {
@@ -161,6 +184,42 @@ export function designService(deps: ServiceDeps) {
       const v = await designsRepo(db).getVersion(designId, version);
       if (!v) throw notFound('That version of the design');
       return { ...v, document: storedDocument(v) };
+    },
+
+    /**
+     * Parse and check an uploaded site file against the design's current domain box and lattice.
+     * Writes nothing: the client previews the result and saves with a PUT when the user accepts.
+     */
+    async importFile(projectId: number, designId: number, file: { bytes: Uint8Array; name: string }): Promise<{ sites: Site[]; errors: ImportIssue[] }> {
+      const doc = storedDocument(await mustGet(projectId, designId));
+      try {
+        const { sites, errors } = await figures.importSites(file.bytes, file.name, { enclosure: doc.enclosure, latticeConstantNm: doc.host.latticeConstantNm });
+        return { sites, errors };
+      } catch (e) {
+        if (e instanceof ImportRefused) throw new AppError('unprocessable', e.message);
+        throw e;
+      }
+    },
+
+    /** The design as a download: body, content type and a file name made from the design name. */
+    async exportFile(projectId: number, designId: number, format: DesignExportFormat): Promise<{ body: string; contentType: string; fileName: string }> {
+      const rec = await mustGet(projectId, designId);
+      const doc = storedDocument(rec);
+      const base = fileBaseName(rec.name);
+      switch (format) {
+        case 'json':
+          return { body: `${JSON.stringify(doc, null, 2)}\n`, contentType: 'application/json; charset=utf-8', fileName: `${base}.json` };
+        case 'csv':
+          return { body: writeCsv(doc.sites), contentType: 'text/csv; charset=utf-8', fileName: `${base}.csv` };
+        case 'xyz':
+          return {
+            body: writeXyz(doc.sites, `${doc.name} | Tetrawell design ${rec.id} version ${rec.version}, positions in angstrom`),
+            contentType: 'chemical/x-xyz; charset=utf-8',
+            fileName: `${base}.xyz`,
+          };
+        case 'placement':
+          return { body: writePlacement(doc.sites, { name: doc.name, latticeConstantNm: doc.host.latticeConstantNm }), contentType: 'text/plain; charset=utf-8', fileName: `${base}.placement.txt` };
+      }
     },
 
     /** stop the worker thread (server shutdown) */

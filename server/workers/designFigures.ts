@@ -7,7 +7,8 @@
  * a small design is computed in place and a large one in a piscina worker thread: the event
  * loop stays free for other requests (health checks, other users) while a 100k-site design is
  * checked. The worker receives the document as JSON text (one string copy, no structured clone
- * of 100k objects) and parses it itself.
+ * of 100k objects) and parses it itself. Large uploads (`importSites`, server/formats) are read
+ * in the same worker.
  */
 import { createHash } from 'node:crypto';
 import { existsSync } from 'node:fs';
@@ -17,6 +18,7 @@ import { farFieldCheck } from '../../geometry/farfield';
 import type { Design } from '../../geometry/design/types';
 import type { DesignDocument } from '@contracts/design';
 import { canonicalJson } from '../formats/canonical';
+import { importSites, ImportRefused, type ImportContext, type ImportResult } from '../formats';
 
 export interface DesignFigures {
   sha256: string;
@@ -42,8 +44,16 @@ export function computeFigures(doc: DesignDocument): DesignFigures {
 /** Below this many sites the figures are computed in place (≲ 4 ms); at or above, in a worker. */
 export const WORKER_THRESHOLD_SITES = 2_000;
 
+/** Uploads smaller than this are parsed in place; larger ones in the worker. */
+export const WORKER_THRESHOLD_BYTES = 256 * 1024;
+
+/** What the worker returns for an import: the result, or the refusal to rethrow on this side. */
+export type ImportOutcome = { ok: true; result: ImportResult } | { ok: false; reason: 'not_text' | 'unknown_format' | 'too_many_rows'; message: string };
+
 export interface FigureComputer {
   compute(doc: DesignDocument, documentJson: string): Promise<DesignFigures>;
+  /** `importSites` of server/formats, in the worker for large files (ImportRefused is rethrown here) */
+  importSites(bytes: Uint8Array, fileName: string, ctx: ImportContext): Promise<ImportResult>;
   close(): Promise<void>;
 }
 
@@ -55,15 +65,22 @@ function workerFile(): { filename: string; execArgv: string[] } {
   return { filename: js, execArgv: [] };
 }
 
-export function figureComputer(opts: { threshold?: number } = {}): FigureComputer {
+export function figureComputer(opts: { threshold?: number; thresholdBytes?: number } = {}): FigureComputer {
   const threshold = opts.threshold ?? WORKER_THRESHOLD_SITES;
+  const thresholdBytes = opts.thresholdBytes ?? WORKER_THRESHOLD_BYTES;
   let pool: Piscina | null = null;
+  // one thread: saves of huge designs and big uploads are rare; it lives 30 s after the last one
+  const getPool = () => (pool ??= new Piscina({ ...workerFile(), minThreads: 0, maxThreads: 1, idleTimeout: 30_000 }));
   return {
     async compute(doc, documentJson) {
       if (doc.sites.length < threshold) return computeFigures(doc);
-      // one thread: saves of huge designs are rare; it lives 30 s after the last one
-      pool ??= new Piscina({ ...workerFile(), minThreads: 0, maxThreads: 1, idleTimeout: 30_000 });
-      return (await pool.run(documentJson)) as DesignFigures;
+      return (await getPool().run(documentJson)) as DesignFigures;
+    },
+    async importSites(bytes, fileName, ctx) {
+      if (bytes.byteLength < thresholdBytes) return importSites(bytes, fileName, ctx);
+      const out = (await getPool().run({ bytes, fileName, ctx }, { name: 'importFile' })) as ImportOutcome;
+      if (!out.ok) throw new ImportRefused(out.reason, out.message);
+      return out.result;
     },
     async close() {
       const p = pool;

@@ -16,6 +16,8 @@ import type { DesignDocument } from '@contracts/design';
 import { addMember, countRows, newUser, startTestEnv, type TestClient, type TestEnv } from './helpers';
 import { emptyDesign } from '../../server/services/designs';
 import { farFieldCheck } from '../../geometry/farfield';
+import { generateArray } from '../../geometry/arrays';
+import { MAX_SITES } from '@contracts/design';
 import type { Design } from '../../geometry/design/types';
 
 let env: TestEnv;
@@ -109,6 +111,15 @@ describe('create', () => {
     expect(copy.id).not.toBe(src.id);
     expect(copy.version).toBe(1);
     expect(copy.document).toEqual({ ...src.document, name: 'Copy of original' });
+  });
+
+  it('field errors of a create name their field (name, document path)', async () => {
+    const { owner, base } = await project('dz-bad');
+    const r = await owner.client.post(base, { name: '  ' });
+    expect(r.status).toBe(422);
+    expect(errorBodySchema.parse(r.body).error.details?.map((d) => d.path)).toEqual([['name']]);
+    const doc = await owner.client.post(base, { name: 'x', document: { ...twoDonors('x'), sites: [{ id: 'a', species: 'Kr', position: [0, 0, 0], electrons: 1 }] } });
+    expect(doc.body.error.details.map((d: { path: unknown[] }) => d.path.join('.'))).toEqual(['document.sites.0.species']);
   });
 
   it('refuses a copy of a design of another project (422 on copyOf) and both shapes at once', async () => {
@@ -213,5 +224,52 @@ describe('versions', () => {
     const { first } = await project('dz-ro');
     await expect(env.knex('design_versions').where({ design_id: first.id, version: 1 }).update({ name: 'tampered' })).rejects.toThrow(/append-only/);
     expect((await env.knex('design_versions').where({ design_id: first.id, version: 1 }).first()).name).toBe('Designs dz-ro');
+  });
+});
+
+describe('the largest designs', () => {
+  /** a rectangular array of n × 250 P donors at 8a (lattice corners) in a box that holds it */
+  function big(nx: number, name: string): DesignDocument {
+    const sites = generateArray({ kind: 'rectangular', nx, ny: 250, spacingNm: 8 * A_SI, latticeConstantNm: A_SI });
+    return { ...emptyDesign(name), sites, enclosure: { center: [0, 0, 0], halfExtentsNm: [nx * 2.2 + 40, 250 * 2.2 + 40, 40], boundary: { kind: 'multipole', order: 2 } } };
+  }
+
+  it('a 100,000-site design (about 9 MB of JSON) saves, with its far-field bound from the worker thread', async () => {
+    const { owner, first, base } = await project('dz-big');
+    const doc = big(400, 'Hundred thousand');
+    expect(doc.sites).toHaveLength(MAX_SITES);
+    const url = `${base}/${first.id}`;
+    // health answers while the save runs (printed, not asserted: timings depend on the machine)
+    const started = Date.now();
+    const save = owner.client.put(url, { document: doc, version: 1 });
+    const healthMs: number[] = [];
+    let done = false;
+    void save.then(() => (done = true));
+    while (!done && Date.now() - started < 60_000) {
+      const t = Date.now();
+      await env.client().get('/api/health');
+      healthMs.push(Date.now() - t);
+      await new Promise((r) => setTimeout(r, 50));
+    }
+    const r = await save;
+    expect(r.status, JSON.stringify(r.body).slice(0, 300)).toBe(200);
+    console.log(`[designs] 100k-site PUT ${Date.now() - started} ms; /api/health during it: max ${Math.max(...healthMs)} ms over ${healthMs.length} calls`);
+    const row = designListSchema.parse((await owner.client.get(base)).body).designs[0];
+    expect(row.siteCount).toBe(MAX_SITES);
+    expect(row.worstRelBound).not.toBeNull();
+    expect(Number.isFinite(row.worstRelBound)).toBe(true);
+  });
+
+  it('a design of 100,001 sites is refused with a plain message and nothing is written', async () => {
+    const { owner, first, base } = await project('dz-toobig');
+    const doc = big(400, 'One too many');
+    doc.sites.push({ id: 'extra', species: 'P', position: [0, 0, 1], electrons: 1 });
+    const before = await countRows(env.knex, 'design_versions');
+    const r = await owner.client.put(`${base}/${first.id}`, { document: doc, version: 1 });
+    expect(r.status).toBe(422);
+    const e = errorBodySchema.parse(r.body).error;
+    expect(e.details?.[0].path).toEqual(['document', 'sites']);
+    expect(e.details?.[0].message).toMatch(/100,001 sites; a design may hold at most 100,000/);
+    expect(await countRows(env.knex, 'design_versions')).toBe(before);
   });
 });

@@ -29,6 +29,7 @@ import {
   designResponseSchema,
   designVersionListSchema,
   designVersionResponseSchema,
+  designImportResponseSchema,
   projectListSchema,
   projectSchema,
   signUpResponseSchema,
@@ -77,6 +78,8 @@ interface RouteCase {
   success: number;
   url(f: Fixture): string;
   body?(f: Fixture, c: TestClient): unknown | Promise<unknown>;
+  /** send this file as multipart/form-data field `file` instead of a JSON body */
+  file?: { name: string; content: string };
   /** extra set-up the case needs (kept out of the other cases) */
   needs?: { ownInvite?: boolean; reset?: boolean; openInvitation?: boolean; verify?: boolean };
   /** the contract the success body must match (server/contracts/api.ts) */
@@ -267,6 +270,22 @@ const ROUTES: RouteCase[] = [
     url: (f) => `${d(f)}/versions/1`,
     schema: designVersionResponseSchema,
   },
+  {
+    method: 'post',
+    path: '/projects/:projectId/designs/:designId/imports',
+    rule: { kind: 'project', capability: 'design.edit' },
+    success: 200,
+    url: (f) => `${d(f)}/imports`,
+    file: { name: 'two.csv', content: 'id,species,x_nm,y_nm,z_nm\na,P,0,0,0\nb,As,1.08620410,1.08620410,0\n' },
+    schema: designImportResponseSchema,
+  },
+  {
+    method: 'get',
+    path: '/projects/:projectId/designs/:designId/export',
+    rule: { kind: 'project', capability: 'project.export' },
+    success: 200,
+    url: (f) => `${d(f)}/export?format=placement`,
+  },
   { method: 'get', path: '/projects/:projectId/audit', rule: { kind: 'project', capability: 'audit.read' }, success: 200, url: (f) => `${p(f)}/audit`, schema: auditListSchema },
   // the role users are ordinary site members, so the admin route refuses all of them
   { method: 'get', path: '/admin/mail', rule: { kind: 'site-admin' }, success: 200, url: () => '/api/admin/mail', schema: capturedMailListSchema },
@@ -357,7 +376,12 @@ describe('role-by-route matrix', () => {
         const f = await buildFixture(route, who);
         const c = await signedInClient(who);
         const body = route.body ? await route.body(f, c) : undefined;
-        const r = await c.request(route.method, route.url(f), body);
+        const r = route.file
+          ? await c.agent
+              .post(route.url(f))
+              .set('x-csrf-token', c.csrf ?? (await c.refreshCsrf()))
+              .attach('file', Buffer.from(route.file.content), route.file.name)
+          : await c.request(route.method, route.url(f), body);
         expect(r.status, JSON.stringify(r.body)).toBe(want);
         if (want >= 400) expect(r.body.error).toBeDefined();
         if (r.status === route.success && route.schema) route.schema.parse(r.body);

@@ -103,6 +103,35 @@ describe('demo seed', () => {
     }
   });
 
+  it('holds three designs: the four-donor chain, a six-donor chain in two versions and a 3 × 3 square at 8a', async () => {
+    const designs = await knex('designs').orderBy('id');
+    expect(designs.map((d) => [d.site_count, d.version])).toEqual([
+      [4, 1],
+      [6, 2],
+      [9, 1],
+    ]);
+    for (const d of designs) {
+      const doc = designSchema.parse(d.document);
+      expect(d.name).toBe(doc.name);
+      // every seeded design is inside its box, so the far-field check gives a finite bound
+      expect(d.worst_rel_bound).toBeGreaterThan(0);
+      expect(d.worst_rel_bound).toBeLessThan(1);
+    }
+    const chain = designSchema.parse(designs[1].document);
+    const gaps = chain.sites.slice(1).map((s, i) => Math.hypot(...s.position.map((x, k) => x - chain.sites[i].position[k])));
+    // snapping moves each site by at most the covering radius of the lattice, ≤ a/2 (that of its FCC
+    // sublattice alone: the octahedral hole; from memory), so each step is within a of 4 nm
+    for (const g of gaps) expect(Math.abs(g - 4)).toBeLessThan(A_SI);
+    const square = designSchema.parse(designs[2].document);
+    const xs = [...new Set(square.sites.map((s) => s.position[0].toFixed(9)))].map(Number).sort((a, b) => a - b);
+    expect(xs).toHaveLength(3);
+    expect(xs[1] - xs[0]).toBeCloseTo(8 * A_SI, 9);
+    const versions = await knex('design_versions').where({ design_id: designs[1].id }).orderBy('version');
+    expect(versions.map((v) => v.version)).toEqual([1, 2]);
+    expect(versions[0].document.enclosure.halfExtentsNm).toEqual([15, 15, 15]);
+    expect(versions[1].document.enclosure.halfExtentsNm).toEqual([30, 30, 30]);
+  });
+
   it('lets the printed demo account sign in to the real server', async () => {
     let server: RunningServer | null = null;
     try {
