@@ -111,7 +111,7 @@ export function bondGraph(positions: Float64Array, options: BondGraphOptions = {
       }
     }
   }
-  const keys = keysBuf.subarray(0, nk).sort();
+  const keys = sortKeys(keysBuf, nk, m);
   // --- lengths and the distance rule
   const len = (p: number, q: number) => {
     const dx = centroids[3 * p] - centroids[3 * q];
@@ -120,33 +120,36 @@ export function bondGraph(positions: Float64Array, options: BondGraphOptions = {
     return Math.sqrt(dx * dx + dy * dy + dz * dz);
   };
   const nn = new Float64Array(m).fill(Infinity);
-  const L = new Float64Array(keys.length);
-  keys.forEach((key, t) => {
+  const L = new Float64Array(nk);
+  for (let t = 0; t < nk; t++) {
+    const key = keys[t];
     const p = Math.floor(key / m), q = key - p * m;
     L[t] = len(p, q);
     if (L[t] < nn[p]) nn[p] = L[t];
     if (L[t] < nn[q]) nn[q] = L[t];
-  });
+  }
   let kept = 0;
-  const keep = new Uint8Array(keys.length);
-  keys.forEach((key, t) => {
+  const keep = new Uint8Array(nk);
+  for (let t = 0; t < nk; t++) {
+    const key = keys[t];
     const p = Math.floor(key / m), q = key - p * m;
     if (L[t] <= factor * Math.min(nn[p], nn[q]) * (1 + 1e-12)) {
       keep[t] = 1;
       kept++;
     }
-  });
+  }
   const edges = new Uint32Array(2 * kept);
   const lengths = new Float64Array(kept);
   let e = 0;
-  keys.forEach((key, t) => {
-    if (!keep[t]) return;
+  for (let t = 0; t < nk; t++) {
+    if (!keep[t]) continue;
+    const key = keys[t];
     const p = Math.floor(key / m);
     edges[2 * e] = p;
     edges[2 * e + 1] = key - p * m;
     lengths[e] = L[t];
     e++;
-  });
+  }
   return { members, centroids, edges, lengths };
 }
 
@@ -179,4 +182,31 @@ function collinearOrder(xy: Float64Array): number[] | null {
     along[i] = dx * ux + dy * uy;
   }
   return Array.from({ length: n }, (_, i) => i).sort((p, q) => along[p] - along[q] || p - q);
+}
+
+/**
+ * The first nk keys p·m + q in ascending order — the order of a numeric sort — in O(nk + m):
+ * a counting sort on p, then insertion sort of each node's few keys (a planar triangulation
+ * gives a node 6 on average). The live far-field check rebuilds the bond graph on every moved
+ * site, where a comparison sort of the keys cost more than the triangulation.
+ */
+function sortKeys(buf: Float64Array, nk: number, m: number): Float64Array {
+  const start = new Uint32Array(m + 1);
+  for (let t = 0; t < nk; t++) start[Math.floor(buf[t] / m) + 1]++;
+  for (let p = 0; p < m; p++) start[p + 1] += start[p];
+  const fill = start.slice(0, m);
+  const out = new Float64Array(nk);
+  for (let t = 0; t < nk; t++) out[fill[Math.floor(buf[t] / m)]++] = buf[t];
+  for (let p = 0; p < m; p++) {
+    for (let u = start[p] + 1; u < start[p + 1]; u++) {
+      const k = out[u];
+      let v = u - 1;
+      while (v >= start[p] && out[v] > k) {
+        out[v + 1] = out[v];
+        v--;
+      }
+      out[v + 1] = k;
+    }
+  }
+  return out;
 }

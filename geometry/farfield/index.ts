@@ -9,5 +9,5 @@ export { clearanceFor, keptOrder, neglectedEnvelope } from './envelope';
 export type { Envelope } from './envelope';
 export { harmonicCount, irregularHarmonics, MAX_ORDER, multipolePotential, regularHarmonics } from './harmonics';
 export { combinedMoments, orbitalMoments } from './moments';
-export { createFarFieldSession } from './session';
+export { createFarFieldSession, withElementEstimate } from './session';
 export type { FarFieldChanges, FarFieldSession, FarFieldSessionOptions } from './session';

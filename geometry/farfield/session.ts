@@ -85,6 +85,9 @@ interface SiteState {
   req: number;
   /** moments about momentsCenter (when asked for) */
   moments: Float64Array | null;
+  /** the last SiteBound given out, and the energy scale it was computed with */
+  bound: SiteBound | null;
+  boundEv: number;
 }
 
 function dist(p: readonly number[], q: readonly number[]): number {
@@ -120,8 +123,22 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   // pair set (site indices) and the overlap sweep order; null when they must be rebuilt
   let pairI: Int32Array | null = null;
   let pairJ: Int32Array | null = null;
+  // after a move (site indices unchanged) the old pair set, whose cached results the rebuilt set
+  // takes over pair by pair; null after a change of the site list
+  let prevPairI: Int32Array | null = null;
+  let prevPairJ: Int32Array | null = null;
   let sweep: number[] | null = null;
   let sweepStale = true;
+  // per pair of the pair set: the PairBound given out last time, the two site states, box stamp
+  // and energy scale it was computed from, and V in nm⁻¹ (for the targets)
+  let pairObj: (PairBound | null)[] = [];
+  let pairStA: (SiteState | null)[] = [];
+  let pairStB: (SiteState | null)[] = [];
+  let pairV = new Float64Array(0);
+  let pairBox = new Float64Array(0);
+  let pairEv = NaN;
+  // what the overlap sweep found (null: sweep again)
+  let sweepFound: { coincide: string[]; overlap: string[] } | null = null;
   let cached: FarFieldReport | null = null;
   let cachedWithElements: FarFieldReport | null = null;
   let momentsCenterKey = '';
@@ -135,7 +152,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       site, orbital, okey: orbitalKey(orbital), self: selfEnergy(orbital),
       offLattice: dist(snapped, site.position) > 1e-6,
       env: null, boxStamp: -1, clear: 0, delta: 0, chargeOutside: 0,
-      reqTarget: NaN, reqStamp: -1, req: 0, moments: null,
+      reqTarget: NaN, reqStamp: -1, req: 0, moments: null, bound: null, boundEv: NaN,
     };
   };
   const envFor = (st: SiteState): Envelope => {
@@ -150,7 +167,9 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   };
   const structureChanged = () => {
     pairI = pairJ = null;
+    prevPairI = prevPairJ = null;
     sweep = null;
+    sweepFound = null;
   };
 
   const reset = (d: Design) => {
@@ -167,7 +186,10 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
         const latticeChanged = h.latticeConstantNm !== host.latticeConstantNm;
         host = { ...h };
         // the lattice test and the overlap window depend on the lattice constant
-        if (latticeChanged) states = states.map((st) => newState(st.site));
+        if (latticeChanged) {
+          states = states.map((st) => newState(st.site));
+          sweepFound = null;
+        }
         touched = true;
       }
     }
@@ -194,8 +216,13 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
           states[i] = newState(s);
           if (!sameVec(old.position, s.position) || old.cluster !== s.cluster) {
             // the bond graph depends on positions and clusters; all pairs do not
-            if (states.length > limit) pairI = pairJ = null;
+            if (states.length > limit && pairI && pairJ) {
+              prevPairI = pairI;
+              prevPairJ = pairJ;
+              pairI = pairJ = null;
+            }
             sweepStale = true;
+            sweepFound = null;
           }
         }
         touched = true;
@@ -283,6 +310,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
         st.delta = d > 0 ? envFor(st)(d) : Infinity;
         st.chargeOutside = chargeOutsideBox(st.orbital, p, center, half);
         st.boxStamp = boxStamp;
+        st.bound = null;
       }
       target[i] = tol * st.self;
     }
@@ -313,6 +341,11 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       }
       pairI = Int32Array.from(I);
       pairJ = Int32Array.from(J);
+      carryPairs(pairI, pairJ);
+    }
+    if (ev !== pairEv) {
+      pairBox.fill(-1);
+      pairEv = ev;
     }
     if (n > limit) warnings.push(pairsLimitedWarning(n));
     const pairs: PairBound[] = [];
@@ -322,41 +355,43 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
     for (let t = 0; t < pairI.length; t++) {
       const i = pairI[t], j = pairJ[t];
       const si = states[i], sj = states[j];
-      const R = dist(si.site.position, sj.site.position);
-      if (R < 1e-6) {
+      let pb: PairBound | null;
+      let v: number;
+      if (pairStA[t] === si && pairStB[t] === sj && pairBox[t] === boxStamp) {
+        pb = pairObj[t];
+        v = pairV[t];
+      } else {
+        const R = dist(si.site.position, sj.site.position);
+        if (R < 1e-6) {
+          pb = null;
+          v = NaN;
+        } else {
+          const exact = pairEnergy(si.orbital, sj.orbital, R);
+          v = exact ?? 1 / R;
+          const dl = grounded ? Math.min(si.delta, sj.delta) : Math.max(si.delta, sj.delta);
+          const bounded = Number.isFinite(dl);
+          pb = { a: si.site.id, b: sj.site.id, distanceNm: R, vEv: ev * v, vModel: exact === null ? 'point-charge' : 'closed-form', vBoundEv: bounded ? ev * dl : null, vRelBound: bounded ? dl / v : null };
+        }
+        pairObj[t] = pb;
+        pairStA[t] = si;
+        pairStB[t] = sj;
+        pairBox[t] = boxStamp;
+        pairV[t] = v;
+      }
+      if (pb === null) {
         coincide.push(si.site.id, sj.site.id);
         continue;
       }
-      const exact = pairEnergy(si.orbital, sj.orbital, R);
-      const v = exact ?? 1 / R;
-      const dl = grounded ? Math.min(si.delta, sj.delta) : Math.max(si.delta, sj.delta);
-      const bounded = Number.isFinite(dl);
-      pairs.push({ a: si.site.id, b: sj.site.id, distanceNm: R, vEv: ev * v, vModel: exact === null ? 'point-charge' : 'closed-form', vBoundEv: bounded ? ev * dl : null, vRelBound: bounded ? dl / v : null });
+      pairs.push(pb);
       if (tol * v < target[i]) target[i] = tol * v;
       if (tol * v < target[j]) target[j] = tol * v;
     }
 
-    // ---- overlap sweep along x (same order and ties as check.ts: x, then index)
-    const byX = (u: number, v: number) => states[u].site.position[0] - states[v].site.position[0] || u - v;
-    if (!sweep) {
-      sweep = Array.from({ length: n }, (_, i) => i).sort(byX);
-      sweepStale = false;
-    } else if (sweepStale) {
-      sweep.sort(byX); // nearly sorted after a move: TimSort is close to linear
-      sweepStale = false;
-    }
-    for (let p = 0; p < n; p++) {
-      const i = sweep[p];
-      const pi = states[i].site.position;
-      for (let q = p + 1; q < n; q++) {
-        const j = sweep[q];
-        const pj = states[j].site.position;
-        if (pj[0] - pi[0] >= a) break;
-        const R = dist(pi, pj);
-        if (R < 1e-6) coincide.push(states[i].site.id, states[j].site.id);
-        else if (R < a && !(states[i].site.cluster !== undefined && states[i].site.cluster === states[j].site.cluster)) overlap.push(states[i].site.id, states[j].site.id);
-      }
-    }
+    // ---- overlap sweep along x (same order and ties as check.ts: x, then index); what it finds
+    // depends on positions, clusters and the lattice constant only, so it is kept until they change
+    if (!sweepFound) sweepFound = overlapSweep(a, n);
+    coincide.push(...sweepFound.coincide);
+    overlap.push(...sweepFound.overlap);
 
     // ---- site results, recommended box
     const out: SiteBound[] = new Array(n);
@@ -381,15 +416,21 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       const req = st.req;
       for (let k = 0; k < 3; k++) rec[k] = Math.max(rec[k], Math.abs(s.position[k] - center[k]) + req);
       const co = st.chargeOutside;
-      out[i] = {
-        id: s.id,
-        chargeOutside: co,
-        uBoundEv: inside ? ev * st.delta : null,
-        uRelBound: inside ? st.delta / st.self : null,
-        uEv: ev * st.self,
-        clearanceNm: st.clear,
-        requiredClearanceNm: req,
-      };
+      let sb = st.bound;
+      if (!sb || st.boundEv !== ev || sb.requiredClearanceNm !== req) {
+        sb = {
+          id: s.id,
+          chargeOutside: co,
+          uBoundEv: inside ? ev * st.delta : null,
+          uRelBound: inside ? st.delta / st.self : null,
+          uEv: ev * st.self,
+          clearanceNm: st.clear,
+          requiredClearanceNm: req,
+        };
+        st.bound = sb;
+        st.boundEv = ev;
+      }
+      out[i] = sb;
       if (!inside) outside.push(s.id);
       else {
         worst = Math.max(worst, st.delta / st.self);
@@ -429,6 +470,74 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
     return r;
   }
 
+  /**
+   * New per-pair caches for a rebuilt pair set. After a move the site indices are the same, so a
+   * pair (i, j) found in the previous set keeps its cached result (looked up through the old
+   * pairs grouped by i: a few per site); the cache still checks the two site states and the box.
+   */
+  function carryPairs(I: Int32Array, J: Int32Array): void {
+    const m = I.length;
+    const obj: (PairBound | null)[] = new Array(m).fill(null);
+    const stA: (SiteState | null)[] = new Array(m).fill(null);
+    const stB: (SiteState | null)[] = new Array(m).fill(null);
+    const val = new Float64Array(m);
+    const box = new Float64Array(m).fill(-1);
+    const oldI = prevPairI, oldJ = prevPairJ;
+    if (oldI && oldJ && oldI.length === pairObj.length) {
+      const n = states.length;
+      const start = new Uint32Array(n + 1);
+      for (let t = 0; t < oldI.length; t++) start[oldI[t] + 1]++;
+      for (let i = 0; i < n; i++) start[i + 1] += start[i];
+      const fill = start.slice(0, n);
+      const byI = new Uint32Array(oldI.length);
+      for (let t = 0; t < oldI.length; t++) byI[fill[oldI[t]]++] = t;
+      for (let t = 0; t < m; t++) {
+        const i = I[t], j = J[t];
+        for (let u = start[i]; u < start[i + 1]; u++) {
+          const o = byI[u];
+          if (oldJ[o] !== j) continue;
+          obj[t] = pairObj[o];
+          stA[t] = pairStA[o];
+          stB[t] = pairStB[o];
+          val[t] = pairV[o];
+          box[t] = pairBox[o];
+          break;
+        }
+      }
+    }
+    pairObj = obj;
+    pairStA = stA;
+    pairStB = stB;
+    pairV = val;
+    pairBox = box;
+    prevPairI = prevPairJ = null;
+  }
+
+  function overlapSweep(a: number, n: number): { coincide: string[]; overlap: string[] } {
+    const found = { coincide: [] as string[], overlap: [] as string[] };
+    const byX = (u: number, v: number) => states[u].site.position[0] - states[v].site.position[0] || u - v;
+    if (!sweep) {
+      sweep = Array.from({ length: n }, (_, i) => i).sort(byX);
+      sweepStale = false;
+    } else if (sweepStale) {
+      sweep.sort(byX); // nearly sorted after a move: TimSort is close to linear
+      sweepStale = false;
+    }
+    for (let p = 0; p < n; p++) {
+      const i = sweep[p];
+      const pi = states[i].site.position;
+      for (let q = p + 1; q < n; q++) {
+        const j = sweep[q];
+        const pj = states[j].site.position;
+        if (pj[0] - pi[0] >= a) break;
+        const R = dist(pi, pj);
+        if (R < 1e-6) found.coincide.push(states[i].site.id, states[j].site.id);
+        else if (R < a && !(states[i].site.cluster !== undefined && states[i].site.cluster === states[j].site.cluster)) found.overlap.push(states[i].site.id, states[j].site.id);
+      }
+    }
+    return found;
+  }
+
   /** Moments as check.ts gives them: per-site arrays cached, the array sum redone in site order. */
   function moments(): NonNullable<FarFieldReport['moments']> {
     const c: Vec3 = options.momentsCenter ? [...options.momentsCenter] : [enclosure.center[0], enclosure.center[1], enclosure.center[2]];
@@ -456,11 +565,19 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       cachedWithElements = r;
       return r;
     }
-    const est = options.estimateElements(r.recommendedHalfExtentsNm, currentDesign());
-    const budget = elementBudgetWarning(est, refinement.maxElements);
-    cachedWithElements = { ...r, elementsEstimate: est, warnings: budget ? [...r.warnings, budget] : r.warnings };
+    cachedWithElements = withElementEstimate(r, options.estimateElements(r.recommendedHalfExtentsNm, currentDesign()), refinement.maxElements);
     return cachedWithElements;
   }
 
   return { applyChanges, report, reportWithElements, design: currentDesign };
+}
+
+/**
+ * A report with an element estimate added as farFieldCheck adds it: `elementsEstimate`, and the
+ * element-budget warning last when the estimate exceeds the budget. For callers that work out
+ * the estimate elsewhere (the studio runs it in a second worker so the bounds stay live).
+ */
+export function withElementEstimate(r: FarFieldReport, estimate: number, maxElements: number): FarFieldReport {
+  const budget = elementBudgetWarning(estimate, maxElements);
+  return { ...r, elementsEstimate: estimate, warnings: budget ? [...r.warnings, budget] : r.warnings };
 }

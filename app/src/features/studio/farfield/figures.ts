@@ -44,22 +44,35 @@ export type SiteColumn = 'id' | 'clearanceNm' | 'requiredClearanceNm' | 'uBoundE
 export type PairColumn = 'pair' | 'distanceNm' | 'vEv' | 'vBoundEv' | 'vRelBound';
 export type Direction = 'ascending' | 'descending';
 
-/** null (no bound) sorts above every number when descending: the unbounded entries matter most. */
-function cmpNum(a: number | null, b: number | null): number {
-  const x = a === null ? Infinity : a;
-  const y = b === null ? Infinity : b;
-  return x === y ? 0 : x < y ? -1 : 1;
-}
-
 const collator = new Intl.Collator(undefined, { numeric: true });
 
-export function sortSites(rows: readonly SiteBound[], col: SiteColumn, dir: Direction): SiteBound[] {
+/**
+ * Rows in the order of one column; ties keep the report's order (the document's site order), so
+ * the sort is stable and cheap: numbers are read once into a typed array, and names are compared
+ * only when sorting by name. null (no bound) counts as larger than every number, so unbounded
+ * entries come first when descending.
+ */
+function orderBy<T>(rows: readonly T[], dir: Direction, num: ((r: T) => number | null) | null, name: (r: T) => string): T[] {
   const sign = dir === 'ascending' ? 1 : -1;
-  return rows.slice().sort((a, b) => sign * (col === 'id' ? collator.compare(a.id, b.id) : cmpNum(a[col], b[col])) || collator.compare(a.id, b.id));
+  const idx = Array.from({ length: rows.length }, (_, i) => i);
+  if (num) {
+    const key = new Float64Array(rows.length);
+    for (let i = 0; i < rows.length; i++) {
+      const v = num(rows[i]);
+      key[i] = v === null ? Infinity : v;
+    }
+    idx.sort((u, v) => (key[u] === key[v] ? u - v : key[u] < key[v] ? -sign : sign));
+  } else {
+    const names = rows.map(name);
+    idx.sort((u, v) => sign * collator.compare(names[u], names[v]) || u - v);
+  }
+  return idx.map((i) => rows[i]);
+}
+
+export function sortSites(rows: readonly SiteBound[], col: SiteColumn, dir: Direction): SiteBound[] {
+  return orderBy(rows, dir, col === 'id' ? null : (s) => s[col], (s) => s.id);
 }
 
 export function sortPairs(rows: readonly PairBound[], col: PairColumn, dir: Direction): PairBound[] {
-  const sign = dir === 'ascending' ? 1 : -1;
-  const name = (p: PairBound) => `${p.a}–${p.b}`;
-  return rows.slice().sort((a, b) => sign * (col === 'pair' ? collator.compare(name(a), name(b)) : cmpNum(a[col], b[col])) || collator.compare(name(a), name(b)));
+  return orderBy(rows, dir, col === 'pair' ? null : (p) => p[col], (p) => `${p.a}–${p.b}`);
 }

@@ -1,39 +1,41 @@
 /**
- * What the far-field worker does, without the worker: a resident session of the design and the
- * element estimate the command line prints (`npm run cli -- check`: estimateDesignElements with no
- * cap, rounded). Kept apart from farfield.worker.ts so tests run it in Node and compare it with
- * the CLI.
+ * What the far-field workers do, without the workers: a resident session of the design (the
+ * bounds), and the element estimate the command line prints (`npm run cli -- check`:
+ * estimateDesignElements with no cap, rounded). Kept apart from the worker files so tests run
+ * them in Node and compare them with the CLI.
  */
-import { createFarFieldSession, type FarFieldChanges, type FarFieldReport, type FarFieldSession } from '../../../../../geometry/farfield';
+import { createFarFieldSession, type FarFieldChanges, type FarFieldSession } from '../../../../../geometry/farfield';
 import { estimateDesignElements } from '../../../../../geometry/mesh/index';
-import type { Design } from '../../../../../geometry/design/types';
+import type { Design, Vec3 } from '../../../../../geometry/design/types';
+import { packReport, type PackedReport } from './transport';
 
 export interface FarFieldWorkerApi {
-  /** take a whole design (first document, or after an error); returns the bounds */
-  reset(design: Design): FarFieldReport;
-  /** apply edits to the resident design; returns the bounds (no element estimate) */
-  apply(changes: FarFieldChanges): FarFieldReport;
-  /** the current report with the element estimate and its budget warning */
-  withElements(): FarFieldReport;
+  /** take a whole design (first document, or after an error); returns the bounds, packed (unpackReport) */
+  reset(design: Design): PackedReport;
+  /** apply edits to the resident design; returns the bounds (no element estimate), packed */
+  apply(changes: FarFieldChanges): PackedReport;
+}
+
+export interface ElementsWorkerApi {
+  /** elements the graded mesh of `design` would need with these half-extents */
+  estimate(design: Design, halfExtentsNm: Vec3): number;
+}
+
+/** The CLI's element count for a box: the mesher's estimate, uncapped, rounded. */
+export function estimateElementsFor(design: Design, halfExtentsNm: Vec3): number {
+  return Math.round(estimateDesignElements({ ...design, enclosure: { ...design.enclosure, halfExtentsNm } }, { maxElements: Infinity, hardCap: Infinity }).estimate);
 }
 
 export function createWorkerCore(): FarFieldWorkerApi {
   let session: FarFieldSession | null = null;
   return {
     reset(design) {
-      session = createFarFieldSession(design, {
-        estimateElements: (halfExtentsNm, d) =>
-          Math.round(estimateDesignElements({ ...d, enclosure: { ...d.enclosure, halfExtentsNm } }, { maxElements: Infinity, hardCap: Infinity }).estimate),
-      });
-      return session.report();
+      session = createFarFieldSession(design);
+      return packReport(session.report());
     },
     apply(changes) {
       if (!session) throw new Error('the far-field worker has no design yet');
-      return session.applyChanges(changes);
-    },
-    withElements() {
-      if (!session) throw new Error('the far-field worker has no design yet');
-      return session.reportWithElements();
+      return packReport(session.applyChanges(changes));
     },
   };
 }
