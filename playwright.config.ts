@@ -37,7 +37,10 @@ export default defineConfig({
       args: [
         '--headless',
         '--no-sandbox',
-        '--disable-gpu',
+        // WebGL for the design canvas without a GPU: ANGLE on SwiftShader (software rendering)
+        '--use-angle=swiftshader',
+        '--enable-unsafe-swiftshader',
+        '--ignore-gpu-blocklist',
         '--disable-background-networking',
         '--disable-component-update',
         '--disable-sync',

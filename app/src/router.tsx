@@ -1,4 +1,6 @@
+import { lazy, Suspense } from 'react';
 import { createBrowserRouter, Navigate } from 'react-router';
+import { Loading } from './components/QueryState';
 import { AppShell } from './components/AppShell';
 import { NotFoundPage } from './components/NotFoundPage';
 import { AccountPage } from './features/account/AccountPage';
@@ -12,6 +14,9 @@ import { VerifyEmailPage } from './features/auth/VerifyEmailPage';
 import { AcceptInvitationPage } from './features/invitations/AcceptInvitationPage';
 import { ProjectListPage } from './features/projects/ProjectListPage';
 import { ProjectPage } from './features/projects/ProjectPage';
+
+// The design workspace carries three.js: a lazy route, so its chunk loads only there.
+const WorkspacePage = lazy(() => import('./features/studio/WorkspacePage'));
 
 /**
  * Routes. A route whose page should fill the frame edge to edge (the design workspace) sets
@@ -37,6 +42,14 @@ export const router = createBrowserRouter([
           { index: true, element: <Navigate to="/projects" replace /> },
           { path: '/projects', element: <ProjectListPage /> },
           { path: '/projects/:projectId', element: <ProjectPage /> },
+          {
+            path: '/projects/:projectId/designs/:designId',
+            element: (
+              <Suspense fallback={<Loading label="Opening the design workspace…" />}>
+                <WorkspacePage />
+              </Suspense>
+            ),
+          },
           { path: '/account', element: <AccountPage /> },
           { path: '/admin/mail', element: <MailRoomPage /> },
         ],

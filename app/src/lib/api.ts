@@ -19,19 +19,28 @@ export interface FieldIssue {
   message: string;
 }
 
+export interface StaleCurrent {
+  version: number;
+  updatedAt: string;
+  updatedBy: string | null;
+}
+
 export type ApiErrorCode = ErrorCode | 'network' | 'unexpected_response';
 
 export class ApiError extends Error {
   readonly status: number;
   readonly code: ApiErrorCode;
   readonly details: FieldIssue[];
+  /** On a 409 `stale_write` of a design: the version that is now current, who saved it and when. */
+  readonly current: StaleCurrent | null;
 
-  constructor(status: number, code: ApiErrorCode, message: string, details: FieldIssue[] = []) {
+  constructor(status: number, code: ApiErrorCode, message: string, details: FieldIssue[] = [], current: StaleCurrent | null = null) {
     super(message);
     this.name = 'ApiError';
     this.status = status;
     this.code = code;
     this.details = details;
+    this.current = current;
   }
 
   /** A write lost a race: someone saved a newer version first (HTTP 409). */
@@ -102,7 +111,9 @@ export async function api<T>(path: string, options: RequestOptions = {}, schema?
 // Without a schema the caller asked for `unknown`, so the unchecked cast to T is sound there.
 async function send<T>(path: string, options: RequestOptions, schema?: z.ZodType<T>, token?: string): Promise<T> {
   const headers: Record<string, string> = { accept: 'application/json' };
-  if (options.body !== undefined) headers['content-type'] = 'application/json';
+  // A FormData body (a file upload) sets its own multipart content type with the boundary.
+  const isForm = typeof FormData !== 'undefined' && options.body instanceof FormData;
+  if (options.body !== undefined && !isForm) headers['content-type'] = 'application/json';
   if (token) headers['x-csrf-token'] = token;
 
   let res: Response;
@@ -110,7 +121,7 @@ async function send<T>(path: string, options: RequestOptions, schema?: z.ZodType
     res = await fetch(path, {
       method: options.method ?? 'GET',
       headers,
-      body: options.body === undefined ? undefined : JSON.stringify(options.body),
+      body: options.body === undefined ? undefined : isForm ? (options.body as FormData) : JSON.stringify(options.body),
       credentials: 'same-origin',
       signal: options.signal,
     });
@@ -158,8 +169,8 @@ function codeForStatus(status: number): ErrorCode {
 export function toApiError(status: number, payload: unknown): ApiError {
   const parsed = errorBodySchema.safeParse(payload);
   if (parsed.success) {
-    const { code, message, details } = parsed.data.error;
-    return new ApiError(status, code, message, details ?? []);
+    const { code, message, details, current } = parsed.data.error;
+    return new ApiError(status, code, message, details ?? [], current ?? null);
   }
   const message = status === 429 ? 'Too many attempts. Wait a minute and try again.' : `The server answered ${status}. Try again in a moment.`;
   return new ApiError(status, codeForStatus(status), message);
