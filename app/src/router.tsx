@@ -44,6 +44,7 @@ export const router = createBrowserRouter([
           { path: '/projects/:projectId', element: <ProjectPage /> },
           {
             path: '/projects/:projectId/designs/:designId',
+            handle: { fullBleed: true },
             element: (
               <Suspense fallback={<Loading label="Opening the design workspace…" />}>
                 <WorkspacePage />

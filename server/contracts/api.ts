@@ -147,12 +147,6 @@ export const invitationPreviewSchema = z.object({ projectName: z.string(), role:
 /** Answer to accepting an invitation: the project as the new member now sees it. */
 export const invitationAcceptResponseSchema = z.object({ project: projectSchema });
 
-// ---------- design of a project (old single-design route, removed from the server) ----------
-// Kept only so the app's old getDesign.ts/saveDesign.ts still type-check until they move to the
-// designs routes below; no route serves these shapes any more. Delete with those files.
-export const projectDesignSchema = z.object({ design: designSchema, version: z.number().int(), updatedAt: z.string() });
-export const projectDesignUpdateBodySchema = z.object({ design: designSchema, version: versionSchema });
-
 // ---------- designs (many per project, every save kept as a design version) ----------
 // Route and field names are a public contract (scripts outside the repository use them).
 export const designParamsSchema = z.object({ projectId: idSchema, designId: idSchema });

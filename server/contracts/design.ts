@@ -29,6 +29,14 @@ import { z } from 'zod';
 export const DESIGN_FORMAT = 'tetrawell-design';
 export const CURRENT_DESIGN_VERSION = 1;
 export const MAX_SITES = 100_000;
+/**
+ * Donors sharing a cluster label form one array site: the generators make clusters of 1–4 donors, and a
+ * hand-made cluster of up to 8 leaves room (common practice). The far-field check pairs every donor of a
+ * cluster with every donor of each neighbouring cluster, so an unbounded cluster would make its pair list
+ * grow like the square of the cluster size (a 100,000-site design in 50 clusters: ~10⁸ pairs, past what
+ * V8 can hold) instead of like the site count.
+ */
+export const MAX_CLUSTER_SIZE = 8;
 export const MAX_LENGTH_NM = 1e6;
 export const MAX_RADIUS_NM = 1e3;
 export const MIN_RADIUS_NM = 1e-4;
@@ -90,6 +98,19 @@ export const designSchema = z
       const at = first.get(s.id);
       if (at === undefined) first.set(s.id, i);
       else ctx.addIssue({ code: 'custom', path: ['sites', i, 'id'], message: `repeats the id "${s.id}" of site ${at}; every site needs its own id` });
+    });
+    const members = new Map<string, number>();
+    doc.sites.forEach((s, i) => {
+      if (s.cluster === undefined) return;
+      const k = (members.get(s.cluster) ?? 0) + 1;
+      members.set(s.cluster, k);
+      // reported once per cluster, at the first site past the limit
+      if (k === MAX_CLUSTER_SIZE + 1)
+        ctx.addIssue({
+          code: 'custom',
+          path: ['sites', i, 'cluster'],
+          message: `puts a ${MAX_CLUSTER_SIZE + 1}th site into cluster "${s.cluster}"; a cluster is one array site of at most ${MAX_CLUSTER_SIZE} donors`,
+        });
     });
   });
 

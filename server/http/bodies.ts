@@ -1,12 +1,13 @@
 /**
  * JSON request bodies, sized per route (issue 8, item 7):
  *
- *   design saves (PUT /api/projects/:id/design)   up to `designLimit` (40 MB by default: a 100,000-site document
- *                                                  with every optional field is ~17 MB, see tests/bench/load.bench.ts);
- *                                                  above `offThreadBytes` the body stays a raw Buffer for the
- *                                                  off-thread reader (server/http/designBody.ts)
- *   every other route                              up to min(designLimit, 1 MB): no other field takes more than a
- *                                                  few kilobytes, so a larger body is refused with 413 before parsing
+ *   design bodies: POST /api/projects/:id/designs and PUT /api/projects/:id/designs/:designId
+ *     up to `designLimit` (40 MB by default: a 100,000-site document with every optional field is ~17 MB, see
+ *     tests/bench/load.bench.ts); above `offThreadBytes` the body stays a raw Buffer for the off-thread reader
+ *     (server/http/designBody.ts)
+ *   every other route
+ *     up to min(designLimit, 1 MB): no other field takes more than a few kilobytes, so a larger body is refused
+ *     with 413 before parsing
  */
 import express, { type Request, type RequestHandler } from 'express';
 
@@ -21,9 +22,11 @@ export function parseByteSize(size: string | number): number {
 
 export const OTHER_BODY_LIMIT_BYTES = 1024 * 1024;
 
-/** Routes that take whole design documents. */
+/** Routes that take whole design documents: create (POST …/designs) and save (PUT …/designs/:designId). */
 export function isDesignBodyRoute(req: Request): boolean {
-  return req.method === 'PUT' && /^\/api\/projects\/[^/]+\/design\/?$/.test(req.path);
+  if (req.method === 'POST') return /^\/api\/projects\/[^/]+\/designs\/?$/.test(req.path);
+  if (req.method === 'PUT') return /^\/api\/projects\/[^/]+\/designs\/[^/]+\/?$/.test(req.path);
+  return false;
 }
 
 function isJson(req: Request): boolean {

@@ -1,32 +1,27 @@
 /**
- * Reading a design update body (PUT /api/projects/:projectId/design) without holding up the request thread.
+ * Reading a design body (POST /api/projects/:projectId/designs, PUT …/designs/:designId) without holding up the
+ * request thread.
  *
- *   small body (≤ offThreadBytes)   parsed by express.json and checked with zod here, as every other route
- *   large body                      kept raw by jsonBodies (server/http/bodies.ts) and parsed, checked and
- *                                   re-serialised in a worker thread (designBody.worker.ts, piscina); the
- *                                   request thread only handles the validated JSON text
+ *   small body (≤ offThreadBytes)   parsed by express.json; the route checks it with zod, as every other route
+ *   large body                      kept raw by jsonBodies (server/http/bodies.ts) and parsed, checked,
+ *                                   re-serialised and measured (sha256, worst bound) in a worker thread
+ *                                   (designBody.worker.ts, piscina); the request thread only handles JSON text
  *
- * Either way the caller gets the same shape and the same errors (400 / 422 with field paths).
+ * Either way the caller gets the same errors (400 / 422 with field paths).
  */
 import { fileURLToPath } from 'node:url';
 import { existsSync } from 'node:fs';
 import type { Request } from 'express';
 import Piscina from 'piscina';
-import { projectDesignUpdateBodySchema } from '@contracts/api';
-import type { DesignDocument } from '@contracts/design';
-import { AppError, parseOr422 } from '../services/errors';
-import type { DesignBodyResult, DesignBodyTask } from './designBody.worker';
+import type { DesignWrite } from '../repositories/designs';
+import { AppError } from '../services/errors';
+import type { DesignBodyKind, DesignBodyResult, DesignBodyTask } from './designBody.worker';
 
-export interface DesignUpdate {
-  /** the document, or its validated JSON text for a large one */
-  document: DesignDocument | { json: string };
-  name: string;
-  siteCount: number;
-  version: number;
-}
+/** A large body comes back ready to write (`prepared`); a small one as parsed JSON for the route's own zod check. */
+export type DesignBody = { prepared: DesignWrite; version: number | null } | { prepared?: undefined; body: unknown };
 
 export interface DesignBodyReader {
-  read(req: Request): Promise<DesignUpdate>;
+  read(req: Request, kind: DesignBodyKind): Promise<DesignBody>;
   destroy(): Promise<void>;
 }
 
@@ -45,20 +40,17 @@ export function createDesignBodyReader(options: { maxThreads?: number } = {}): D
     (pool ??= new Piscina({ ...workerFile(), minThreads: 0, maxThreads: Math.max(1, options.maxThreads ?? 1), idleTimeout: 60_000 }));
 
   return {
-    async read(req) {
-      if (Buffer.isBuffer(req.body)) {
-        const buf = req.body;
-        // hand the bytes over without a copy when the Buffer owns its whole ArrayBuffer
-        const own = buf.byteOffset === 0 && buf.byteLength === buf.buffer.byteLength;
-        const bytes = own ? new Uint8Array(buf.buffer, 0, buf.byteLength) : new Uint8Array(buf);
-        req.body = undefined;
-        const task: DesignBodyTask = { bytes };
-        const r = (await getPool().run(task, { transferList: [bytes.buffer as ArrayBuffer] })) as DesignBodyResult;
-        if (!r.ok) throw new AppError(r.code, r.message, r.details);
-        return { document: { json: r.json }, name: r.name, siteCount: r.siteCount, version: r.version };
-      }
-      const body = parseOr422(projectDesignUpdateBodySchema, req.body, 'design');
-      return { document: body.design, name: body.design.name, siteCount: body.design.sites.length, version: body.version };
+    async read(req, kind) {
+      if (!Buffer.isBuffer(req.body)) return { body: req.body };
+      const buf = req.body;
+      // hand the bytes over without a copy when the Buffer owns its whole ArrayBuffer
+      const own = buf.byteOffset === 0 && buf.byteLength === buf.buffer.byteLength;
+      const bytes = own ? new Uint8Array(buf.buffer, 0, buf.byteLength) : new Uint8Array(buf);
+      req.body = undefined;
+      const task: DesignBodyTask = { bytes, kind };
+      const r = (await getPool().run(task, { transferList: [bytes.buffer as ArrayBuffer] })) as DesignBodyResult;
+      if (!r.ok) throw new AppError(r.code, r.message, r.details);
+      return 'write' in r ? { prepared: r.write, version: r.version } : { body: r.body };
     },
     async destroy() {
       await pool?.destroy();

@@ -1,28 +1,44 @@
 /**
- * Worker-thread side of large design saves (issue 8, item 7): JSON.parse, the unstorable-text check and the zod
- * contract of a design update body, off the request thread. A 100,000-site document is ~17 MB of JSON; parsing
- * and validating it took seconds of main-thread time on the 2-core test machine, during which /api/health and
- * every other request waited. The answer is the validated design as JSON text (a string is copied in one block,
- * unlike an object graph, whose structured-clone deserialisation costs as much as JSON.parse) plus the few
- * fields the service needs.
+ * Worker-thread side of large design bodies (issue 8, item 7): JSON.parse, the unstorable-text check, the zod
+ * contract of a design create or save, and the figures stored beside the document (sha256 and the far-field
+ * worst bound, server/workers/designFigures.ts), all off the request thread. A 100,000-site document is ~17 MB
+ * of JSON; parsing and validating it took seconds of main-thread time on the 2-core test machine, during which
+ * /api/health and every other request waited. The answer is the validated document as JSON text (a string is
+ * copied in one block, unlike an object graph, whose structured-clone deserialisation costs as much as
+ * JSON.parse) with the fields the repository writes.
  *
- * Imports only the contracts (zod) and the small text check: nothing here touches the database.
+ * Nothing here touches the database.
  */
-import { projectDesignUpdateBodySchema } from '../contracts/api';
+import { designCreateBodySchema, designUpdateBodySchema } from '../contracts/api';
+import type { DesignDocument } from '../contracts/design';
+import type { DesignWrite } from '../repositories/designs';
 import { issuesToDetails, type FieldIssue } from '../services/errors';
+import { computeFigures } from '../workers/designFigures';
 import { findTextProblems, textProblemsAnswer } from './wellFormed';
+
+/** `create`: POST …/designs ({ name, document? } or { name, copyOf }); `update`: PUT …/designs/:designId. */
+export type DesignBodyKind = 'create' | 'update';
 
 export interface DesignBodyTask {
   bytes: Uint8Array;
+  kind: DesignBodyKind;
 }
 
 export type DesignBodyResult =
-  | { ok: true; json: string; name: string; siteCount: number; version: number }
+  /** a document body, validated and ready to write; `version` is the one the save names (update only) */
+  | { ok: true; write: DesignWrite; version: number | null }
+  /** a body without a document ({ name, copyOf } or { name }): small, handed back for the ordinary path */
+  | { ok: true; body: unknown }
   | { ok: false; code: 'bad_request' | 'validation_failed'; message: string; details?: FieldIssue[] };
 
 const BAD_JSON = 'The request body is not valid JSON (or holds a NUL character, which the server does not store).';
 
-export function parseDesignUpdate(bytes: Uint8Array): DesignBodyResult {
+function prepared(doc: DesignDocument, version: number | null): DesignBodyResult {
+  const documentJson = JSON.stringify(doc);
+  return { ok: true, version, write: { name: doc.name, documentJson, siteCount: doc.sites.length, ...computeFigures(doc) } };
+}
+
+export function parseDesignBody(bytes: Uint8Array, kind: DesignBodyKind): DesignBodyResult {
   // body-parser's JSON reader also drops a leading byte-order mark and decodes UTF-8
   let text = new TextDecoder('utf-8').decode(bytes);
   if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
@@ -34,11 +50,25 @@ export function parseDesignUpdate(bytes: Uint8Array): DesignBodyResult {
   }
   const problems = findTextProblems(body);
   if (problems.length > 0) return { ok: false, ...textProblemsAnswer(problems) };
-  const r = projectDesignUpdateBodySchema.safeParse(body);
-  if (!r.success) return { ok: false, code: 'validation_failed', message: 'Some fields of the design need attention.', details: issuesToDetails(r.error.issues) };
-  return { ok: true, json: JSON.stringify(r.data.design), name: r.data.design.name, siteCount: r.data.design.sites.length, version: r.data.version };
+  const invalid = (issues: Parameters<typeof issuesToDetails>[0]): DesignBodyResult => ({
+    ok: false,
+    code: 'validation_failed',
+    message: 'Some fields of the design need attention.',
+    details: issuesToDetails(issues),
+  });
+  if (kind === 'update') {
+    const r = designUpdateBodySchema.safeParse(body);
+    if (!r.success) return invalid(r.error.issues);
+    return prepared({ ...r.data.document, name: r.data.name ?? r.data.document.name }, r.data.version);
+  }
+  const documentBranch = designCreateBodySchema.options[1];
+  if (typeof body !== 'object' || body === null || !('document' in body)) return { ok: true, body };
+  const r = documentBranch.safeParse(body);
+  if (!r.success) return invalid(r.error.issues);
+  if (!r.data.document) return { ok: true, body };
+  return prepared({ ...r.data.document, name: r.data.name }, null);
 }
 
 export default function run(task: DesignBodyTask): DesignBodyResult {
-  return parseDesignUpdate(task.bytes);
+  return parseDesignBody(task.bytes, task.kind);
 }

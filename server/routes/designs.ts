@@ -27,6 +27,7 @@ import {
 import { AppError, parseOr422 } from '../services/errors';
 import { currentUser, projectAccess } from '../http/access';
 import type { RouteModule } from './context';
+import type { DesignMeta } from '../services/designs';
 
 /** Largest uploaded site file: a 100,000-site CSV with long ids is about 8 MB. */
 export const IMPORT_MAX_BYTES = 16 * 1024 * 1024;
@@ -64,7 +65,16 @@ function receiveFile(req: Request, res: Response): Promise<Express.Multer.File> 
   });
 }
 
-export const designRoutes: RouteModule = (router, { services, access }) => {
+/**
+ * `{ design: { …meta, document } }` with the document spliced in as the JSON text it was stored from: a large
+ * document is never parsed or stringified on the request thread.
+ */
+function sendDesignText(res: Response, status: number, meta: DesignMeta, documentJson: string): void {
+  const head = JSON.stringify(meta);
+  res.status(status).type('application/json').send(`{"design":${head.slice(0, -1)},"document":${documentJson}}}`);
+}
+
+export const designRoutes: RouteModule = (router, { services, access, designBodies }) => {
   const base = '/projects/:projectId/designs';
 
   router.get(base, access.requireCapability('project.read'), async (_req, res) => {
@@ -72,11 +82,17 @@ export const designRoutes: RouteModule = (router, { services, access }) => {
   });
 
   router.post(base, access.requireCapability('design.edit'), async (req, res) => {
+    const { projectId } = projectAccess(res);
+    const read = await designBodies.read(req, 'create');
+    if (read.prepared) {
+      sendDesignText(res, 201, await services.designs.createPrepared(projectId, read.prepared, currentUser(req).id), read.prepared.documentJson);
+      return;
+    }
     // parse with the branch the body means, so field errors carry their paths (a failed union would not)
     const [copyBranch, documentBranch] = designCreateBodySchema.options;
-    const isCopy = typeof req.body === 'object' && req.body !== null && 'copyOf' in req.body;
-    const body = parseOr422(isCopy ? copyBranch : documentBranch, req.body, 'design form');
-    res.status(201).json({ design: await services.designs.create(projectAccess(res).projectId, body, currentUser(req).id) });
+    const isCopy = typeof read.body === 'object' && read.body !== null && 'copyOf' in read.body;
+    const body = parseOr422(isCopy ? copyBranch : documentBranch, read.body, 'design form');
+    res.status(201).json({ design: await services.designs.create(projectId, body, currentUser(req).id) });
   });
 
   router.get(`${base}/:designId`, access.requireCapability('project.read'), async (req, res) => {
@@ -86,8 +102,15 @@ export const designRoutes: RouteModule = (router, { services, access }) => {
 
   router.put(`${base}/:designId`, access.requireCapability('design.edit'), async (req, res) => {
     const { designId } = parseOr422(designParamsSchema, req.params, 'address');
-    const body = parseOr422(designUpdateBodySchema, req.body, 'design');
-    res.json({ design: await services.designs.update(projectAccess(res).projectId, designId, body, currentUser(req).id) });
+    const { projectId } = projectAccess(res);
+    const read = await designBodies.read(req, 'update');
+    if (read.prepared) {
+      const meta = await services.designs.updatePrepared(projectId, designId, read.prepared, read.version ?? 0, currentUser(req).id);
+      sendDesignText(res, 200, meta, read.prepared.documentJson);
+      return;
+    }
+    const body = parseOr422(designUpdateBodySchema, read.body, 'design');
+    res.json({ design: await services.designs.update(projectId, designId, body, currentUser(req).id) });
   });
 
   router.delete(`${base}/:designId`, access.requireCapability('design.edit'), async (req, res) => {

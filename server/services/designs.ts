@@ -68,6 +68,9 @@ function storedDocument(rec: { document: unknown }): DesignDocument {
   return parsed.data;
 }
 
+/** A design's answer without its document (a large document is sent as the JSON text it was stored from). */
+export type DesignMeta = Omit<DesignDetail, 'document'>;
+
 const toDetail = (rec: DesignRecord, document: DesignDocument): DesignDetail => ({
   id: rec.id,
   name: rec.name,
@@ -100,6 +103,48 @@ export function designService(deps: ServiceDeps) {
     return rec;
   }
 
+  /** the metadata of a design just written (everything of DesignDetail but the document) */
+  async function savedMeta(projectId: number, designId: number): Promise<DesignMeta> {
+    const cur = await designsRepo(db).current(projectId, designId);
+    if (!cur) throw notFound('The design');
+    return { id: designId, name: cur.name, version: cur.version, updatedAt: cur.updatedAt, updatedBy: cur.updatedBy };
+  }
+
+  async function insertDesign(projectId: number, w: DesignWrite, userId: number, copyOf: number | undefined): Promise<number> {
+    return db.transaction(async (trx) => {
+      const newId = await designsRepo(trx).insert(projectId, w, userId);
+      await projectsRepo(trx).touch(projectId);
+      await recordAudit(trx, {
+        projectId,
+        actorId: userId,
+        action: 'design.create',
+        detail: { designId: newId, name: w.name, sites: w.siteCount, ...(copyOf !== undefined ? { copyOf } : {}) },
+      });
+      return newId;
+    });
+  }
+
+  /** the next version of a design, or 409 with who saved the current one */
+  async function writeVersion(projectId: number, designId: number, w: DesignWrite, expected: number, userId: number): Promise<void> {
+    await db.transaction(async (trx) => {
+      const repo = designsRepo(trx);
+      const before = await repo.current(projectId, designId);
+      if (!before) throw notFound('The design');
+      const version = await repo.update(projectId, designId, w, expected, userId);
+      if (version === null) {
+        const { name: _name, ...now } = before;
+        // `before` was read in this transaction; re-read in case the version moved after it
+        const latest = (await repo.current(projectId, designId)) ?? now;
+        throw staleWrite('The design', { version: latest.version, updatedAt: latest.updatedAt, updatedBy: latest.updatedBy });
+      }
+      await projectsRepo(trx).touch(projectId);
+      await recordAudit(trx, { projectId, actorId: userId, action: 'design.update', detail: { designId, version, sites: w.siteCount, name: w.name } });
+      if (before.name !== w.name) {
+        await recordAudit(trx, { projectId, actorId: userId, action: 'design.rename', detail: { designId, version, from: before.name, to: w.name } });
+      }
+    });
+  }
+
   const service = {
     /** create the starting design inside the project-creation transaction */
     async createFor(trx: Db, projectId: number, name: string, userId: number): Promise<number> {
@@ -127,42 +172,29 @@ export function designService(deps: ServiceDeps) {
         source = input.document ?? emptyDesign(input.name);
       }
       const doc: DesignDocument = { ...source, name: input.name };
-      const w = await prepare(doc);
-      const id = await db.transaction(async (trx) => {
-        const newId = await designsRepo(trx).insert(projectId, w, userId);
-        await projectsRepo(trx).touch(projectId);
-        await recordAudit(trx, {
-          projectId,
-          actorId: userId,
-          action: 'design.create',
-          detail: { designId: newId, name: doc.name, sites: doc.sites.length, ...(copyOf !== undefined ? { copyOf } : {}) },
-        });
-        return newId;
-      });
+      const id = await insertDesign(projectId, await prepare(doc), userId, copyOf);
       return saved(projectId, id, doc);
+    },
+
+    /**
+     * Create from a document already validated, serialised and measured off the request thread (a large body,
+     * server/http/designBody.ts); answers the metadata, the caller sends `w.documentJson` as the document.
+     */
+    async createPrepared(projectId: number, w: DesignWrite, userId: number): Promise<DesignMeta> {
+      const id = await insertDesign(projectId, w, userId, undefined);
+      return savedMeta(projectId, id);
     },
 
     async update(projectId: number, designId: number, input: { document: DesignDocument; version: number; name?: string }, userId: number): Promise<DesignDetail> {
       const doc: DesignDocument = { ...input.document, name: input.name ?? input.document.name };
-      const w = await prepare(doc);
-      await db.transaction(async (trx) => {
-        const repo = designsRepo(trx);
-        const before = await repo.current(projectId, designId);
-        if (!before) throw notFound('The design');
-        const version = await repo.update(projectId, designId, w, input.version, userId);
-        if (version === null) {
-          const { name: _name, ...now } = before;
-          // `before` was read in this transaction; re-read in case the version moved after it
-          const latest = (await repo.current(projectId, designId)) ?? now;
-          throw staleWrite('The design', { version: latest.version, updatedAt: latest.updatedAt, updatedBy: latest.updatedBy });
-        }
-        await projectsRepo(trx).touch(projectId);
-        await recordAudit(trx, { projectId, actorId: userId, action: 'design.update', detail: { designId, version, sites: doc.sites.length, name: doc.name } });
-        if (before.name !== doc.name) {
-          await recordAudit(trx, { projectId, actorId: userId, action: 'design.rename', detail: { designId, version, from: before.name, to: doc.name } });
-        }
-      });
+      await writeVersion(projectId, designId, await prepare(doc), input.version, userId);
       return saved(projectId, designId, doc);
+    },
+
+    /** Save a document prepared off the request thread (see createPrepared). */
+    async updatePrepared(projectId: number, designId: number, w: DesignWrite, version: number, userId: number): Promise<DesignMeta> {
+      await writeVersion(projectId, designId, w, version, userId);
+      return savedMeta(projectId, designId);
     },
 
     async remove(projectId: number, designId: number, userId: number): Promise<void> {

@@ -91,7 +91,7 @@ function bigDesignBody(name: string, version: number): string {
       position: [((i % 100) - 50) * A, ((Math.floor(i / 100) % 100) - 50) * A, Math.floor(i / 10_000) * A],
       electrons: 1,
       orbital: { model: 'hydrogenic-1s', radiusNm: 2.5 },
-      cluster: `c${i % 50}`,
+      cluster: `c${Math.floor(i / 2)}`, // two-donor array sites
     });
   }
   const design = {
@@ -103,7 +103,7 @@ function bigDesignBody(name: string, version: number): string {
     enclosure: { center: [0, 0, 0], halfExtentsNm: [60, 60, 60], boundary: { kind: 'multipole', order: 2 } },
     refinement: { order: 2, targetRelError: 0.01, maxElements: 500_000 },
   };
-  return JSON.stringify({ design, version });
+  return JSON.stringify({ document: design, version });
 }
 
 /**
@@ -177,6 +177,12 @@ export async function run(): Promise<void> {
     const bodyText = bigDesignBody('Bench array (invented example)', 1);
     console.log(`\n/api/health while ${PUT_ROUNDS} rounds of ${PUTS_PER_ROUND} concurrent ${MAX_SITES.toLocaleString('en-US')}-site PUTs run (${(bodyText.length / 1e6).toFixed(1)} MB each):`);
     const versions = new Map<number, number>(projectIds.slice(0, PUTS_PER_ROUND).map((id) => [id, 1]));
+    // each project's starting design (every new project has one)
+    const designPaths = new Map<number, string>();
+    for (const id of versions.keys()) {
+      const list = (await (await s.send('GET', `/api/projects/${id}/designs`)).json()) as { designs: { id: number }[] };
+      designPaths.set(id, `/api/projects/${id}/designs/${list.designs[0].id}`);
+    }
     const putTimes: number[] = [];
     const statuses: number[] = [];
     const health = healthPoller(url, 180_000);
@@ -188,11 +194,12 @@ export async function run(): Promise<void> {
           const v = versions.get(id)!;
           const body = v === 1 ? bodyText : bodyText.replace(/"version":1}$/, `"version":${v}}`);
           const t = performance.now();
-          const res = await s.send('PUT', `/api/projects/${id}/design`, body);
+          const res = await s.send('PUT', designPaths.get(id)!, body);
           const text = await res.text();
           putTimes.push(performance.now() - t);
           statuses.push(res.status);
-          const m = /"version":(\d+),"updatedAt":"[^"]*"}$/.exec(text.slice(-120));
+          // the answer's metadata comes before its document: { "design": { id, name, version, … , "document": … } }
+          const m = /^\{"design":\{[^{]*?"version":(\d+)/.exec(text.slice(0, 1000));
           if (m) versions.set(id, Number(m[1]));
         }),
       );

@@ -51,24 +51,33 @@ describe('lone UTF-16 surrogates are refused with 422 naming the field', () => {
     expect((await owner.client.get(`/api/projects/${projectId}`)).body.version).toBe(p.version);
   });
 
-  it('PUT /api/projects/:id/design with a lone surrogate in a site id: 422 at the site id, design unchanged', async () => {
-    const cur = (await owner.client.get(`/api/projects/${projectId}/design`)).body;
-    const design = {
-      ...cur.design,
+  /** the project's first design: its address and what GET answers */
+  async function firstDesign() {
+    const designId = (await owner.client.get(`/api/projects/${projectId}/designs`)).body.designs[0].id as number;
+    const path = `/api/projects/${projectId}/designs/${designId}`;
+    return { path, ...((await owner.client.get(path)).body.design as { document: Record<string, unknown>; version: number }) };
+  }
+
+  it('PUT /api/projects/:id/designs/:designId with a lone surrogate in a site id: 422 at the site id, design unchanged', async () => {
+    const cur = await firstDesign();
+    const document = {
+      ...cur.document,
       sites: [
         { id: 'ok', species: 'P', position: [0, 0, 0], electrons: 1 },
         { id: `p${LONE_HIGH}`, species: 'P', position: [1, 0, 0], electrons: 1 },
       ],
     };
-    const r = await owner.client.put(`/api/projects/${projectId}/design`, { design, version: cur.version });
-    expect422At(r, ['design', 'sites', 1, 'id']);
-    expect((await owner.client.get(`/api/projects/${projectId}/design`)).body.version).toBe(cur.version);
+    const r = await owner.client.put(cur.path, { document, version: cur.version });
+    expect422At(r, ['document', 'sites', 1, 'id']);
+    expect((await firstDesign()).version).toBe(cur.version);
   });
 
   it('a lone surrogate in a design name or an object key is refused too', async () => {
-    const cur = (await owner.client.get(`/api/projects/${projectId}/design`)).body;
-    const named = await owner.client.put(`/api/projects/${projectId}/design`, { design: { ...cur.design, name: `n${LONE_LOW}` }, version: cur.version });
-    expect422At(named, ['design', 'name']);
+    const cur = await firstDesign();
+    const named = await owner.client.put(cur.path, { document: cur.document, name: `n${LONE_LOW}`, version: cur.version });
+    expect422At(named, ['name']);
+    const created = await owner.client.post(`/api/projects/${projectId}/designs`, { name: `d${LONE_LOW}` });
+    expect422At(created, ['name']);
     const keyed = await owner.client.post('/api/projects', { name: 'fine', [`k${LONE_HIGH}`]: 1 });
     expect422At(keyed, [`k${LONE_HIGH}`]);
   });
@@ -116,7 +125,7 @@ describe('ids are plain decimal integers', () => {
 
 describe('Cache-Control: no-store on API answers', () => {
   it('signed-in reads carry no-store', async () => {
-    for (const path of ['/api/projects', `/api/projects/${projectId}`, `/api/projects/${projectId}/design`, '/api/auth/me']) {
+    for (const path of ['/api/projects', `/api/projects/${projectId}`, `/api/projects/${projectId}/designs`, '/api/auth/me']) {
       const r = await owner.client.get(path);
       expect(r.status).toBe(200);
       expect(r.headers['cache-control']).toBe('no-store');

@@ -5,7 +5,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { errorBodySchema } from '@contracts/api';
-import { MAX_SITES } from '@contracts/design';
+import { designSchema, MAX_SITES } from '@contracts/design';
+import { computeFigures } from '../../server/workers/designFigures';
 import { newUser, startTestEnv, type TestClient, type TestEnv } from './helpers';
 
 let env: TestEnv;
@@ -35,7 +36,7 @@ function bigDesign(base: Record<string, unknown>, n: number, patch?: (site: Reco
       position: [((i % 100) - 50) * A, ((Math.floor(i / 100) % 100) - 50) * A, Math.floor(i / 10_000) * A],
       electrons: 1,
       orbital: { model: 'hydrogenic-1s', radiusNm: 2.5 },
-      cluster: `c${i % 50}`,
+      cluster: `c${Math.floor(i / 2)}`, // two-donor array sites
     };
     patch?.(site, i);
     sites.push(site);
@@ -43,58 +44,62 @@ function bigDesign(base: Record<string, unknown>, n: number, patch?: (site: Reco
   return { ...base, name: `Large array of ${n} sites (invented example)`, sites, enclosure: { center: [0, 0, 0], halfExtentsNm: [60, 60, 60], boundary: { kind: 'multipole', order: 2 } } };
 }
 
+/** the project's first design (every new project starts with one) */
 async function current(id = projectId) {
-  return (await owner.client.get(`/api/projects/${id}/design`)).body as { design: Record<string, unknown>; version: number };
+  const list = (await owner.client.get(`/api/projects/${id}/designs`)).body as { designs: { id: number }[] };
+  const designId = list.designs[0].id;
+  const d = (await owner.client.get(`/api/projects/${id}/designs/${designId}`)).body.design as { document: Record<string, unknown>; version: number };
+  return { design: d.document, version: d.version, path: `/api/projects/${id}/designs/${designId}` };
 }
 
 describe('a design at the site limit', () => {
-  it('refuses one site too many with 422 at ["design","sites"]', async () => {
+  it('refuses one site too many with 422 at ["document","sites"]', async () => {
     const cur = await current();
-    const r = await owner.client.put(`/api/projects/${projectId}/design`, { design: bigDesign(cur.design, MAX_SITES + 1), version: cur.version });
+    const r = await owner.client.put(cur.path, { document: bigDesign(cur.design, MAX_SITES + 1), version: cur.version });
     expect(r.status).toBe(422);
-    expect(errorBodySchema.parse(r.body).error.details?.map((d) => d.path)).toContainEqual(['design', 'sites']);
+    expect(errorBodySchema.parse(r.body).error.details?.map((d) => d.path)).toContainEqual(['document', 'sites']);
   });
 
   it('names the field of a bad site deep in a large document, as for a small one', async () => {
     const cur = await current();
-    const large = await owner.client.put(`/api/projects/${projectId}/design`, {
-      design: bigDesign(cur.design, 20_000, (s, i) => i === 19_999 && (s.electrons = 3)),
+    const large = await owner.client.put(cur.path, {
+      document: bigDesign(cur.design, 20_000, (s, i) => i === 19_999 && (s.electrons = 3)),
       version: cur.version,
     });
-    const small = await owner.client.put(`/api/projects/${projectId}/design`, {
-      design: bigDesign(cur.design, 3, (s, i) => i === 2 && (s.electrons = 3)),
+    const small = await owner.client.put(cur.path, {
+      document: bigDesign(cur.design, 3, (s, i) => i === 2 && (s.electrons = 3)),
       version: cur.version,
     });
     for (const [r, i] of [[large, 19_999], [small, 2]] as const) {
       expect(r.status).toBe(422);
       const e = errorBodySchema.parse(r.body).error;
       expect(e.code).toBe('validation_failed');
-      expect(e.details?.map((d) => d.path)).toContainEqual(['design', 'sites', i, 'electrons']);
+      expect(e.details?.map((d) => d.path)).toContainEqual(['document', 'sites', i, 'electrons']);
     }
     expect((await current()).version).toBe(cur.version);
   });
 
   it('refuses a lone surrogate and malformed JSON in a large body like in a small one', async () => {
     const cur = await current();
-    const sur = await owner.client.put(`/api/projects/${projectId}/design`, {
-      design: bigDesign(cur.design, 20_000, (s, i) => i === 12_345 && (s.id = 'bad\ud800')),
+    const sur = await owner.client.put(cur.path, {
+      document: bigDesign(cur.design, 20_000, (s, i) => i === 12_345 && (s.id = 'bad\ud800')),
       version: cur.version,
     });
     expect(sur.status).toBe(422);
-    expect(errorBodySchema.parse(sur.body).error.details?.map((d) => d.path)).toContainEqual(['design', 'sites', 12_345, 'id']);
+    expect(errorBodySchema.parse(sur.body).error.details?.map((d) => d.path)).toContainEqual(['document', 'sites', 12_345, 'id']);
 
     const token = owner.client.csrf ?? (await owner.client.refreshCsrf());
-    const broken = JSON.stringify({ design: bigDesign(cur.design, 20_000), version: cur.version }).slice(0, -2);
-    const r = await owner.client.agent.put(`/api/projects/${projectId}/design`).set('x-csrf-token', token).set('Content-Type', 'application/json').send(broken);
+    const broken = JSON.stringify({ document: bigDesign(cur.design, 20_000), version: cur.version }).slice(0, -2);
+    const r = await owner.client.agent.put(cur.path).set('x-csrf-token', token).set('Content-Type', 'application/json').send(broken);
     expect(r.status).toBe(400);
     expect(errorBodySchema.parse(r.body).error.code).toBe('bad_request');
   });
 
   it('a stale version of a large document is a 409 and writes nothing', async () => {
     const first = await current();
-    expect((await owner.client.put(`/api/projects/${projectId}/design`, { design: bigDesign(first.design, 2), version: first.version })).status).toBe(200);
+    expect((await owner.client.put(first.path, { document: bigDesign(first.design, 2), version: first.version })).status).toBe(200);
     const cur = await current();
-    const r = await owner.client.put(`/api/projects/${projectId}/design`, { design: bigDesign(cur.design, 20_000), version: cur.version - 1 });
+    const r = await owner.client.put(cur.path, { document: bigDesign(cur.design, 20_000), version: cur.version - 1 });
     expect(r.status).toBe(409);
     expect((await current()).version).toBe(cur.version);
   });
@@ -107,17 +112,33 @@ describe('a design at the site limit', () => {
   it(`accepts ${MAX_SITES.toLocaleString('en-US')} sites (not 413) and stores them all`, async () => {
     const cur = await current(bigProjectId);
     const design = bigDesign(cur.design, MAX_SITES);
-    const body = JSON.stringify({ design, version: cur.version });
+    const body = JSON.stringify({ document: design, version: cur.version });
     // far above the old 5 MB limit: this is what answered 413 before
     expect(body.length).toBeGreaterThan(5 * 1024 * 1024);
-    const r = await owner.client.put(`/api/projects/${bigProjectId}/design`, JSON.parse(body));
+    const r = await owner.client.put(cur.path, JSON.parse(body));
     expect(r.status).toBe(200);
-    expect(r.body.version).toBe(cur.version + 1);
-    expect(r.body.design.sites).toHaveLength(MAX_SITES);
-    expect(r.body.design.sites[MAX_SITES - 1].id).toBe(`site-${MAX_SITES - 1}`);
+    expect(r.body.design.version).toBe(cur.version + 1);
+    expect(r.body.design.document.sites).toHaveLength(MAX_SITES);
+    expect(r.body.design.document.sites[MAX_SITES - 1].id).toBe(`site-${MAX_SITES - 1}`);
     const stored = await env.knex('designs').where({ project_id: bigProjectId }).first(env.knex.raw(`jsonb_array_length(document->'sites') as n`));
     expect(Number(stored.n)).toBe(MAX_SITES);
     const audit = await env.knex('audit_events').where({ project_id: bigProjectId, action: 'design.update' }).orderBy('id', 'desc').first();
     expect(audit.detail).toMatchObject({ sites: MAX_SITES, version: cur.version + 1 });
+  });
+
+  it('creates a large design off the request thread with the same stored figures as the in-place code', async () => {
+    const cur = await current();
+    const document = bigDesign(cur.design, 20_000);
+    const r = await owner.client.post(`/api/projects/${projectId}/designs`, { name: 'Large copy (invented example)', document });
+    expect(r.status).toBe(201);
+    expect(r.body.design.name).toBe('Large copy (invented example)');
+    expect(r.body.design.document.sites).toHaveLength(20_000);
+    const parsed = designSchema.parse({ ...document, name: 'Large copy (invented example)' });
+    // the figures the in-place path stores (server/workers/designFigures.ts): the same numbers must come back
+    const expected = computeFigures(parsed);
+    const list = (await owner.client.get(`/api/projects/${projectId}/designs`)).body.designs as { id: number; worstRelBound: number | null }[];
+    expect(list.find((d) => d.id === r.body.design.id)?.worstRelBound).toBe(expected.worstRelBound);
+    const versions = (await owner.client.get(`/api/projects/${projectId}/designs/${r.body.design.id}/versions`)).body.versions as { sha256: string }[];
+    expect(versions[0].sha256).toBe(expected.sha256);
   });
 });

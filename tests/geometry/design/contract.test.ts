@@ -3,6 +3,7 @@ import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import type { z } from 'zod';
 import {
+  MAX_CLUSTER_SIZE,
   designJsonSchemaText,
   designSchema,
   describeIssues,
@@ -102,6 +103,17 @@ describe('malformed documents get plain-words issues with field paths', () => {
     const d = example();
     d.sites[2].id = 'p1';
     expect(lines(d)).toContain('sites[2].id: repeats the id "p1" of site 0; every site needs its own id');
+  });
+  it('a cluster of more than MAX_CLUSTER_SIZE donors is refused once, at the first site past the limit', () => {
+    // 3 × (MAX_CLUSTER_SIZE + 1) sites in one cluster: one issue, not 2 × MAX_CLUSTER_SIZE + 1; a
+    // bigger cluster made the far-field check's pair list grow with the square of its size (a V8 crash
+    // at 100,000 sites in 50 clusters)
+    const d = example();
+    const base = d.sites[0];
+    d.sites = Array.from({ length: 3 * (MAX_CLUSTER_SIZE + 1) }, (_, i) => ({ ...base, id: `c${i}`, position: [i * 0.6, 0, 0], cluster: 'big' }));
+    expect(lines(d)).toEqual([`sites[${MAX_CLUSTER_SIZE}].cluster: puts a ${MAX_CLUSTER_SIZE + 1}th site into cluster "big"; a cluster is one array site of at most ${MAX_CLUSTER_SIZE} donors`]);
+    d.sites = d.sites.slice(0, MAX_CLUSTER_SIZE);
+    expect(parseDesign(d).ok).toBe(true);
   });
   it('10⁶ sites: refused up front with the documented cap', () => {
     const d = example();
