@@ -17,6 +17,10 @@ import { createMailer } from './mail/mailer';
 import { createServices, type Services } from './services';
 import { createApp } from './app';
 import { consoleLogger, DEFAULT_RATE_LIMITS, type ServerOptions } from './config';
+import { queueName, sendOptions, startBoss } from './jobs/queue';
+import { DEFAULT_JOB_SETTINGS } from './jobs/settings';
+import { startJobWorker, type JobWorker } from './jobs/worker';
+import type { JobQueue } from './services/jobs';
 
 export type { ServerOptions } from './config';
 
@@ -26,6 +30,8 @@ export interface RunningServer {
   app: Express;
   knex: Knex;
   services: Services;
+  /** the job worker running in this process, when `jobs.workers` > 0 */
+  jobWorker: JobWorker | null;
   stop(): Promise<void>;
 }
 
@@ -62,7 +68,15 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     emailVerificationTtlMs: (opts.emailVerificationTtlHours ?? 48) * 3_600_000,
   };
   const mailer = createMailer(opts.smtp, config.mailFrom, logger);
-  const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() });
+  const jobSettings = { ...DEFAULT_JOB_SETTINGS, ...opts.jobs?.settings };
+  const boss = await startBoss(opts.databaseUrl, jobSettings, logger);
+  const queue: JobQueue = {
+    async send(kind, jobId, bossJobId) {
+      await boss.send(queueName(kind), { jobId }, sendOptions(jobSettings, bossJobId));
+    },
+    cancel: (kind, bossJobId) => boss.cancel(queueName(kind), bossJobId),
+  };
+  const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() }, { queue, settings: jobSettings });
 
   const app = createApp({
     services,
@@ -88,10 +102,12 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     });
   } catch (err) {
     sessionStore.close();
-    await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close()]);
+    await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), boss.stop({ graceful: false })]);
     mailer.close();
     throw err;
   }
+  const workers = opts.jobs?.workers ?? 0;
+  const jobWorker = workers > 0 ? await startJobWorker({ databaseUrl: opts.databaseUrl, concurrency: workers, settings: jobSettings, logger, pollIntervalMs: opts.jobs?.pollIntervalMs }) : null;
   const port = (server.address() as AddressInfo).port;
   // a wildcard listen address is not somewhere a browser can go: name loopback instead
   const shown = host === '0.0.0.0' ? '127.0.0.1' : host === '::' ? '::1' : host;
@@ -107,10 +123,11 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
         server.closeIdleConnections();
         setTimeout(() => server.closeAllConnections(), 2_000).unref();
       });
+      await jobWorker?.stop();
       sessionStore.close();
       mailer.close();
-      await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close()]);
+      await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), boss.stop({ graceful: false, wait: true })]);
     })());
 
-  return { url, port, app, knex, services, stop };
+  return { url, port, app, knex, services, jobWorker, stop };
 }
