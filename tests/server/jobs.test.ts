@@ -224,3 +224,81 @@ describe('refusals before queueing', () => {
     expect((await owner.get(`/api/projects/${projectId}/revisions/999999999`)).status).toBe(404);
   });
 });
+
+describe('events, cancel and limits', () => {
+  it('the event stream carries the job on every change and ends when it has finished', async () => {
+    const r = await owner.post(`/api/projects/${projectId}/designs/${designId}/jobs`, { kind: 'mesh', options: { order: 2 } });
+    expect(r.status).toBe(202);
+    const jobId = r.body.job.id as number;
+    const res = await viewer.agent
+      .get(`/api/projects/${projectId}/jobs/${jobId}/events`)
+      .buffer(true)
+      .parse((stream, cb) => {
+        let text = '';
+        stream.setEncoding('utf8');
+        stream.on('data', (s: string) => (text += s));
+        stream.on('end', () => cb(null, text));
+      });
+    expect(res.status).toBe(200);
+    expect(res.headers['content-type']).toMatch(/^text\/event-stream/);
+    const events = (res.body as string)
+      .split('\n\n')
+      .filter((block) => block.startsWith('event: job'))
+      .map((block) => jobResponseSchema.parse(JSON.parse(block.split('\n').find((l) => l.startsWith('data: '))!.slice(6))).job);
+    expect(events.length).toBeGreaterThanOrEqual(2);
+    expect(events.every((e) => e.id === jobId)).toBe(true);
+    expect(events[0].state).not.toBe('succeeded');
+    expect(events.at(-1)!.state).toBe('succeeded');
+    // no two consecutive events are the same object
+    for (let i = 1; i < events.length; i++) expect(events[i]).not.toEqual(events[i - 1]);
+  }, 180_000);
+
+  it('cancelling a running job marks it cancelled, stores nothing and frees the worker', async () => {
+    const r = await owner.post(`/api/projects/${projectId}/designs/${designId}/jobs`, { kind: 'coulomb', options: { order: 2 } });
+    expect(r.status).toBe(202);
+    const jobId = r.body.job.id as number;
+    await waitFor(owner, jobId, (j) => j.state === 'running' || ended(j));
+    const c = await owner.post(`/api/projects/${projectId}/jobs/${jobId}/cancel`);
+    expect(c.status).toBe(200);
+    expect(jobResponseSchema.parse(c.body).job.state).toBe('cancelled');
+    // the worker notices within its poll interval and ends the thread
+    const until = Date.now() + 20_000;
+    while (env.server.jobWorker!.running() > 0 && Date.now() < until) await new Promise((r) => setTimeout(r, 100));
+    expect(env.server.jobWorker!.running()).toBe(0);
+    expect(await env.knex('revisions').where({ job_id: jobId }).count<{ n: string }[]>('id as n')).toEqual([{ n: '0' }]);
+    const again = await owner.post(`/api/projects/${projectId}/jobs/${jobId}/cancel`);
+    expect(again.status).toBe(409);
+    expect(again.body.error.message).toMatch(/already finished \(cancelled\)/);
+    const audit = await owner.get(`/api/projects/${projectId}/audit`);
+    expect((audit.body.entries as { action: string; detail: { jobId?: number } }[]).some((e) => e.action === 'job.cancel' && e.detail.jobId === jobId)).toBe(true);
+  }, 180_000);
+
+  it('a project may have 3 active jobs (this server\'s limit); the 4th is refused 409; a cancelled queued job leaves pg-boss', async () => {
+    const p2 = (await owner.post('/api/projects', { name: 'Jobs limit project' })).body.id as number;
+    const d = (await owner.post(`/api/projects/${p2}/designs`, { name: 'Pair', document: PAIR })).body.design.id as number;
+    const asks = [
+      { kind: 'convergence', options: { sweep: 'box' } },
+      { kind: 'convergence', options: { sweep: 'refinement' } },
+      { kind: 'coulomb', options: { adaptive: true } },
+    ];
+    const ids: number[] = [];
+    for (const a of asks) {
+      const r = await owner.post(`/api/projects/${p2}/designs/${d}/jobs`, a);
+      expect(r.status).toBe(202);
+      ids.push(r.body.job.id as number);
+    }
+    const fourth = await owner.post(`/api/projects/${p2}/designs/${d}/jobs`, { kind: 'mesh', options: { order: 2 } });
+    expect(fourth.status).toBe(409);
+    expect(fourth.body.error.message).toMatch(/already has 3 job\(s\) queued or running/);
+    for (const id of ids) {
+      const c = await owner.post(`/api/projects/${p2}/jobs/${id}/cancel`);
+      // a job may have finished on its own meanwhile (the worker is fast on a quiet machine)
+      expect([200, 409]).toContain(c.status);
+    }
+    const rows = await env.knex('jobs').whereIn('id', ids).select('state', 'boss_job_id');
+    expect(rows.every((r: { state: string }) => r.state !== 'queued' && r.state !== 'running')).toBe(true);
+    const boss = await env.knex.raw(`SELECT state FROM pgboss.job WHERE id::text = ANY(?)`, [rows.map((r: { boss_job_id: string }) => r.boss_job_id)]);
+    for (const b of boss.rows as { state: string }[]) expect(['cancelled', 'completed', 'failed', 'active']).toContain(b.state);
+    expect((await owner.post(`/api/projects/${p2}/designs/${d}/jobs`, { kind: 'mesh', options: { order: 2 } })).status).toBe(202);
+  }, 60_000);
+});
