@@ -30,10 +30,9 @@ export const CONTENT_TYPES: Record<string, string> = {
 
 export function packFile(name: string, bytes: Uint8Array, chunkBytes = CHUNK_BYTES): PackedFile {
   const chunks: Uint8Array[] = [];
-  for (let at = 0; at < bytes.length || (at === 0 && chunks.length === 0); at += chunkBytes) {
-    chunks.push(zlibSync(bytes.subarray(at, Math.min(bytes.length, at + chunkBytes)), { level: 6 }));
-    if (bytes.length === 0) break;
-  }
+  // an empty file is one empty piece, so every stored file has at least one
+  const n = Math.max(1, Math.ceil(bytes.length / chunkBytes));
+  for (let k = 0; k < n; k++) chunks.push(zlibSync(bytes.subarray(k * chunkBytes, Math.min(bytes.length, (k + 1) * chunkBytes)), { level: 6 }));
   return { name, contentType: CONTENT_TYPES[name] ?? 'application/octet-stream', bytes: bytes.length, chunks };
 }
 

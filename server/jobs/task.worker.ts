@@ -12,6 +12,8 @@ export interface TaskInput {
   kind: JobKind;
   documentJson: string;
   options: JobOptions;
+  /** bytes of the original file per stored piece */
+  chunkBytes?: number;
   port?: MessagePort;
 }
 
@@ -34,7 +36,7 @@ export default function runTask(input: TaskInput): TaskOutput {
     });
     input.port?.postMessage({ phase: 'pack', fraction: 0.96 });
     const t0 = performance.now();
-    const files = out.files.map((f) => packFile(f.name, f.bytes));
+    const files = out.files.map((f) => packFile(f.name, f.bytes, input.chunkBytes));
     const packSeconds = (performance.now() - t0) / 1000;
     input.port?.close();
     const result: TaskOutput = { ok: true, summary: out.summary, computeSeconds: out.computeSeconds, packSeconds, files };

@@ -20,7 +20,7 @@ function workerFile(): { filename: string; execArgv: string[] } {
 }
 
 export interface JobThreads {
-  run(task: { kind: JobKind; documentJson: string; options: JobOptions }, opts: { onProgress?: (p: JobProgress) => void; signal?: AbortSignal }): Promise<TaskOutput>;
+  run(task: { kind: JobKind; documentJson: string; options: JobOptions; chunkBytes?: number }, opts: { onProgress?: (p: JobProgress) => void; signal?: AbortSignal }): Promise<TaskOutput>;
   close(): Promise<void>;
 }
 

@@ -131,7 +131,7 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
     const t0 = performance.now();
     let out;
     try {
-      out = await threads.run({ kind, documentJson: JSON.stringify(version.document), options: job.options }, { onProgress, signal: ac.signal });
+      out = await threads.run({ kind, documentJson: JSON.stringify(version.document), options: job.options, chunkBytes: settings.chunkBytes }, { onProgress, signal: ac.signal });
     } catch (e) {
       if (ac.signal.aborted) return settle('complete', kind, bj.id);
       return fault(kind, bj, words(e));
