@@ -72,9 +72,9 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   const boss = await startBoss(opts.databaseUrl, jobSettings, logger);
   const queue: JobQueue = {
     async send(kind, jobId, bossJobId) {
-      await boss.send(queueName(kind), { jobId }, sendOptions(jobSettings, bossJobId));
+      await boss.send(queueName(kind, jobSettings.queuePrefix), { jobId }, sendOptions(jobSettings, bossJobId));
     },
-    cancel: (kind, bossJobId) => boss.cancel(queueName(kind), bossJobId),
+    cancel: (kind, bossJobId) => boss.cancel(queueName(kind, jobSettings.queuePrefix), bossJobId),
   };
   const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() }, { queue, settings: jobSettings });
 

@@ -8,6 +8,7 @@
  *   TETRAWELL_STORAGE_QUOTA_MB     compressed revision storage per project (default 2048)
  *   TETRAWELL_JOB_EXPIRE_SECONDS   a job running longer is taken as lost and retried (default 1800)
  *   TETRAWELL_JOB_RETRIES          retries after a fault or a lost worker (default 2)
+ *   TETRAWELL_QUEUE_PREFIX         put before the pg-boss queue names (default none): several installations on one database
  *   TETRAWELL_COMMIT               git commit written on revisions (default: `git rev-parse HEAD`)
  */
 import { z } from 'zod';
@@ -21,6 +22,7 @@ export const jobEnvSchema = z.object({
   TETRAWELL_STORAGE_QUOTA_MB: z.coerce.number().positive().optional(),
   TETRAWELL_JOB_EXPIRE_SECONDS: z.coerce.number().int().min(5).max(23 * 3600).optional(),
   TETRAWELL_JOB_RETRIES: z.coerce.number().int().min(0).max(20).optional(),
+  TETRAWELL_QUEUE_PREFIX: z.string().regex(/^[A-Za-z0-9_-]{0,40}$/, 'letters, digits, - and _ only (at most 40)').optional(),
 });
 export type JobEnv = z.infer<typeof jobEnvSchema>;
 
@@ -34,5 +36,6 @@ export function jobSettingsFromEnv(env: JobEnv): Partial<JobSettings> {
     s.maintenanceIntervalSeconds = Math.max(1, Math.min(30, Math.floor(env.TETRAWELL_JOB_EXPIRE_SECONDS / 4)));
   }
   if (env.TETRAWELL_JOB_RETRIES !== undefined) s.retryLimit = env.TETRAWELL_JOB_RETRIES;
+  if (env.TETRAWELL_QUEUE_PREFIX !== undefined) s.queuePrefix = env.TETRAWELL_QUEUE_PREFIX;
   return s;
 }

@@ -20,6 +20,8 @@ export interface QueueSettings {
   retryDelaySeconds: number;
   /** how often pg-boss looks for expired jobs */
   maintenanceIntervalSeconds: number;
+  /** put before each queue name (letters, digits, '-', '_'); '' by default */
+  queuePrefix: string;
 }
 
 export const DEFAULT_QUEUE_SETTINGS: QueueSettings = {
@@ -28,9 +30,11 @@ export const DEFAULT_QUEUE_SETTINGS: QueueSettings = {
   retryLimit: 2,
   retryDelaySeconds: 5,
   maintenanceIntervalSeconds: 30,
+  queuePrefix: '',
 };
 
-export const queueName = (kind: JobKind): string => kind;
+/** pg-boss queue of a kind: the kind's name, after an optional prefix (separate installations or test files sharing one database) */
+export const queueName = (kind: JobKind, prefix = ''): string => `${prefix}${kind}`;
 
 /** The options every job is sent with (they travel with the job, so workers need not agree). */
 export function sendOptions(settings: QueueSettings, id: string): PgBoss.SendOptions {
@@ -49,7 +53,7 @@ export async function startBoss(databaseUrl: string, settings: QueueSettings, lo
   boss.on('error', (err) => logger.error('job queue:', err instanceof Error ? err.message : err));
   await boss.start();
   for (const kind of jobKinds) {
-    const name = queueName(kind);
+    const name = queueName(kind, settings.queuePrefix);
     const queue = {
       name,
       retryLimit: settings.retryLimit,

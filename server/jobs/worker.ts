@@ -82,8 +82,8 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
 
   const settle = async (what: 'complete' | 'fail', kind: JobKind, bossId: string, message?: string) => {
     try {
-      if (what === 'complete') await boss.complete(queueName(kind), bossId);
-      else await boss.fail(queueName(kind), bossId, { message: message ?? 'failed' });
+      if (what === 'complete') await boss.complete(queueName(kind, settings.queuePrefix), bossId);
+      else await boss.fail(queueName(kind, settings.queuePrefix), bossId, { message: message ?? 'failed' });
     } catch (e) {
       // the pg-boss job was cancelled meanwhile: nothing left to settle
       logger.warn(`job queue: could not mark ${bossId} ${what}d: ${words(e)}`);
@@ -217,7 +217,7 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
     // start from a different queue each time so one kind cannot starve the others
     for (let i = 0; i < jobKinds.length; i++) {
       const kind = jobKinds[(next + i) % jobKinds.length];
-      const [job] = await boss.fetch<BossData>(queueName(kind), { batchSize: 1, includeMetadata: true });
+      const [job] = await boss.fetch<BossData>(queueName(kind, settings.queuePrefix), { batchSize: 1, includeMetadata: true });
       if (job) {
         next = (next + i + 1) % jobKinds.length;
         return { kind, job };

@@ -62,7 +62,7 @@ async function newDesign(c: TestClient, doc: DesignDocument, name: string): Prom
 }
 
 beforeAll(async () => {
-  env = await startTestEnv({ jobs: { workers: 1, pollIntervalMs: 150, settings: { maxActivePerProject: 3, chunkBytes: 64 * 1024 } } });
+  env = await startTestEnv({ jobs: { workers: 1, pollIntervalMs: 150, settings: { maxActivePerProject: 3, chunkBytes: 64 * 1024, queuePrefix: 'jobs-test-' } } });
   tmp = await mkdtemp(path.join(tmpdir(), 'tetrawell-jobs-'));
   const o = await newUser(env, 'jobs-owner');
   owner = o.client;
