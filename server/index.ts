@@ -12,6 +12,7 @@ import connectPgSimple from 'connect-pg-simple';
 import pg from 'pg';
 import type { Express } from 'express';
 import type { Knex } from 'knex';
+import type PgBoss from 'pg-boss';
 import { createKnex } from './db/config';
 import { createMailer } from './mail/mailer';
 import { createServices, type Services } from './services';
@@ -69,12 +70,24 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   };
   const mailer = createMailer(opts.smtp, config.mailFrom, logger);
   const jobSettings = { ...DEFAULT_JOB_SETTINGS, ...opts.jobs?.settings };
-  const boss = await startBoss(opts.databaseUrl, jobSettings, logger);
+  // pg-boss starts in the background: the server answers (health 503 and all) while the database is down,
+  // and a failed start is tried again at the next send
+  let bossStarting: Promise<PgBoss> | null = null;
+  const getBoss = () =>
+    (bossStarting ??= startBoss(opts.databaseUrl, jobSettings, logger).catch((e: unknown) => {
+      bossStarting = null;
+      throw e;
+    }));
+  getBoss().catch((e: unknown) => logger.warn(`The job queue is not ready yet (${e instanceof Error ? e.message : String(e)}); it is tried again when a job is started.`));
   const queue: JobQueue = {
     async send(kind, jobId, bossJobId) {
-      await boss.send(queueName(kind, jobSettings.queuePrefix), { jobId }, sendOptions(jobSettings, bossJobId));
+      await (await getBoss()).send(queueName(kind, jobSettings.queuePrefix), { jobId }, sendOptions(jobSettings, bossJobId));
     },
-    cancel: (kind, bossJobId) => boss.cancel(queueName(kind, jobSettings.queuePrefix), bossJobId),
+    cancel: async (kind, bossJobId) => (await getBoss()).cancel(queueName(kind, jobSettings.queuePrefix), bossJobId),
+  };
+  const stopBoss = async () => {
+    const b = await bossStarting?.catch(() => null);
+    await b?.stop({ graceful: false, wait: true });
   };
   const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() }, { queue, settings: jobSettings });
 
@@ -102,12 +115,20 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     });
   } catch (err) {
     sessionStore.close();
-    await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), boss.stop({ graceful: false })]);
+    await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), stopBoss()]);
     mailer.close();
     throw err;
   }
   const workers = opts.jobs?.workers ?? 0;
-  const jobWorker = workers > 0 ? await startJobWorker({ databaseUrl: opts.databaseUrl, concurrency: workers, settings: jobSettings, logger, pollIntervalMs: opts.jobs?.pollIntervalMs }) : null;
+  let jobWorker: JobWorker | null = null;
+  if (workers > 0) {
+    try {
+      jobWorker = await startJobWorker({ databaseUrl: opts.databaseUrl, concurrency: workers, settings: jobSettings, logger, pollIntervalMs: opts.jobs?.pollIntervalMs });
+    } catch (e) {
+      // the database is down: the server still answers; jobs wait in the queue for a worker (restart, or `npm run worker`)
+      logger.error(`The job worker could not start (${e instanceof Error ? e.message : String(e)}); jobs wait until one runs.`);
+    }
+  }
   const port = (server.address() as AddressInfo).port;
   // a wildcard listen address is not somewhere a browser can go: name loopback instead
   const shown = host === '0.0.0.0' ? '127.0.0.1' : host === '::' ? '::1' : host;
@@ -126,7 +147,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
       await jobWorker?.stop();
       sessionStore.close();
       mailer.close();
-      await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), boss.stop({ graceful: false, wait: true })]);
+      await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), stopBoss()]);
     })());
 
   return { url, port, app, knex, services, jobWorker, stop };
