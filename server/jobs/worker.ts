@@ -205,7 +205,7 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
     const attempt = bj.retryCount + 1;
     if (bj.retryCount < bj.retryLimit) {
       logger.warn(`job ${bj.data.jobId}: attempt ${attempt} failed (${message}); it will be retried`);
-      await repo.requeue(bj.data.jobId, `Attempt ${attempt} failed (${message}); retrying.`);
+      await repo.requeue(bj.data.jobId);
     } else {
       logger.error(`job ${bj.data.jobId}: attempt ${attempt} failed (${message}); no retries left`);
       await repo.finish(bj.data.jobId, 'failed', { error: `The job failed ${attempt} time(s) and was given up: ${message}` });

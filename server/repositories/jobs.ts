@@ -150,12 +150,12 @@ export function jobsRepo(db: Db) {
     async setProgress(jobId: number, progress: JobProgress): Promise<void> {
       await db('jobs').where({ id: jobId, state: 'running' }).update({ progress: JSON.stringify(progress), updated_at: db.fn.now() });
     },
-    /** back to queued before a retry */
-    async requeue(jobId: number, why: string): Promise<void> {
+    /** back to queued before a retry (`error` stays null: it is for jobs that failed for good; the worker logs why) */
+    async requeue(jobId: number): Promise<void> {
       await db('jobs')
         .where({ id: jobId })
         .whereIn('state', ACTIVE_STATES)
-        .update({ state: 'queued', progress: JSON.stringify({ phase: 'waiting to retry', fraction: 0 }), error: why, updated_at: db.fn.now() });
+        .update({ state: 'queued', progress: JSON.stringify({ phase: 'waiting to retry', fraction: 0 }), error: null, updated_at: db.fn.now() });
     },
     /** ends an active job; false when it had already ended */
     async finish(jobId: number, state: 'succeeded' | 'failed' | 'cancelled', fields: { error?: string | null; revisionId?: number | null; progress?: JobProgress }): Promise<boolean> {

@@ -121,6 +121,29 @@ describe('a worker process killed mid-job', () => {
   }, 240_000);
 });
 
+describe('a worker stopped during a queue of jobs', () => {
+  it('loses none and does none twice: each job succeeds with exactly one revision', async () => {
+    for (const w of workers.splice(0)) await w.stop(1_000);
+    const first = await inProcessWorker();
+    const ids: number[] = [];
+    for (let k = 0; k < 3; k++) {
+      const dId = await design(`Restart pair ${k}`);
+      const r = await owner.post(`/api/projects/${projectId}/designs/${dId}/jobs`, { kind: 'mesh', options: { order: 1 } });
+      expect(r.status).toBe(202);
+      ids.push(r.body.job.id as number);
+    }
+    await waitFor(ids[0], (j) => j.state === 'running' || ended(j), 60_000);
+    // no grace: the running job's thread is ended, so it must be retried
+    await first.stop(0);
+    workers.splice(workers.indexOf(first), 1);
+    await inProcessWorker();
+    const done = await Promise.all(ids.map((id) => waitFor(id, ended)));
+    expect(done.map((j) => j.state)).toEqual(['succeeded', 'succeeded', 'succeeded']);
+    const counts = await env.knex('revisions').whereIn('job_id', ids).groupBy('job_id').select('job_id').count<{ job_id: number; n: string }[]>('id as n');
+    expect(counts.map((c) => Number(c.n))).toEqual([1, 1, 1]);
+  }, 300_000);
+});
+
 describe('two workers on one queue', () => {
   it('give the same mesh (sha256 of mesh.twmesh and mesh.vtu) as one computation in this process', async () => {
     // the reference: the pipeline run directly, once
