@@ -3,6 +3,7 @@
  * Environment variables are read only in server/main.ts; everything below is plain values,
  * so tests can start the real server with their own settings.
  */
+import type { JobSettings } from './jobs/settings';
 
 export interface Logger {
   info(...args: unknown[]): void;
@@ -52,6 +53,15 @@ export interface RateLimits {
   passwordChange: RateLimitRule;
 }
 
+/** Jobs in this process (server/jobs). */
+export interface JobOptionsConfig {
+  /** job workers run inside this process (each runs one job at a time in a worker thread); 0 for none */
+  workers?: number;
+  settings?: Partial<JobSettings>;
+  /** how often an idle worker asks the queue for work (ms) */
+  pollIntervalMs?: number;
+}
+
 export interface ServerOptions {
   /** 0 picks a free port */
   port?: number;
@@ -89,6 +99,7 @@ export interface ServerOptions {
   anonymousSessionMaxAgeMs?: number;
   /** how often expired session rows are deleted (5 minutes) */
   sessionPruneIntervalSeconds?: number;
+  jobs?: JobOptionsConfig;
 }
 
 /**

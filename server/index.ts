@@ -12,12 +12,17 @@ import connectPgSimple from 'connect-pg-simple';
 import pg from 'pg';
 import type { Express } from 'express';
 import type { Knex } from 'knex';
+import type PgBoss from 'pg-boss';
 import { createKnex } from './db/config';
 import { createMailer } from './mail/mailer';
 import { createServices, type Services } from './services';
 import { createApp } from './app';
 import { createDesignBodyReader } from './http/designBody';
 import { consoleLogger, DEFAULT_BODY_LIMIT, DEFAULT_RATE_LIMITS, type ServerOptions } from './config';
+import { queueName, sendOptions, startBoss } from './jobs/queue';
+import { DEFAULT_JOB_SETTINGS } from './jobs/settings';
+import { startJobWorker, type JobWorker } from './jobs/worker';
+import type { JobQueue } from './services/jobs';
 
 export type { ServerOptions } from './config';
 
@@ -27,6 +32,8 @@ export interface RunningServer {
   app: Express;
   knex: Knex;
   services: Services;
+  /** the job worker running in this process, when `jobs.workers` > 0 */
+  jobWorker: JobWorker | null;
   stop(): Promise<void>;
 }
 
@@ -72,7 +79,27 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     emailVerificationTtlMs: (opts.emailVerificationTtlHours ?? 48) * 3_600_000,
   };
   const mailer = createMailer(opts.smtp, config.mailFrom, logger);
-  const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() });
+  const jobSettings = { ...DEFAULT_JOB_SETTINGS, ...opts.jobs?.settings };
+  // pg-boss starts in the background: the server answers (health 503 and all) while the database is down,
+  // and a failed start is tried again at the next send
+  let bossStarting: Promise<PgBoss> | null = null;
+  const getBoss = () =>
+    (bossStarting ??= startBoss(opts.databaseUrl, jobSettings, logger).catch((e: unknown) => {
+      bossStarting = null;
+      throw e;
+    }));
+  getBoss().catch((e: unknown) => logger.warn(`The job queue is not ready yet (${e instanceof Error ? e.message : String(e)}); it is tried again when a job is started.`));
+  const queue: JobQueue = {
+    async send(kind, jobId, bossJobId) {
+      await (await getBoss()).send(queueName(kind, jobSettings.queuePrefix), { jobId }, sendOptions(jobSettings, bossJobId));
+    },
+    cancel: async (kind, bossJobId) => (await getBoss()).cancel(queueName(kind, jobSettings.queuePrefix), bossJobId),
+  };
+  const stopBoss = async () => {
+    const b = await bossStarting?.catch(() => null);
+    await b?.stop({ graceful: false, wait: true });
+  };
+  const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() }, { queue, settings: jobSettings });
 
   const designBodies = createDesignBodyReader();
   const app = createApp({
@@ -102,9 +129,19 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     });
   } catch (err) {
     sessionStore.close();
-    await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), designBodies.destroy()]);
+    await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), designBodies.destroy(), stopBoss()]);
     mailer.close();
     throw err;
+  }
+  const workers = opts.jobs?.workers ?? 0;
+  let jobWorker: JobWorker | null = null;
+  if (workers > 0) {
+    try {
+      jobWorker = await startJobWorker({ databaseUrl: opts.databaseUrl, concurrency: workers, settings: jobSettings, logger, pollIntervalMs: opts.jobs?.pollIntervalMs });
+    } catch (e) {
+      // the database is down: the server still answers; jobs wait in the queue for a worker (restart, or `npm run worker`)
+      logger.error(`The job worker could not start (${e instanceof Error ? e.message : String(e)}); jobs wait until one runs.`);
+    }
   }
   const port = (server.address() as AddressInfo).port;
   // a wildcard listen address is not somewhere a browser can go: name loopback instead
@@ -121,10 +158,11 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
         server.closeIdleConnections();
         setTimeout(() => server.closeAllConnections(), 2_000).unref();
       });
+      await jobWorker?.stop();
       sessionStore.close();
       mailer.close();
-      await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), designBodies.destroy()]);
+      await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), designBodies.destroy(), stopBoss()]);
     })());
 
-  return { url, port, app, knex, services, stop };
+  return { url, port, app, knex, services, jobWorker, stop };
 }

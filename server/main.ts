@@ -18,17 +18,21 @@
  *                             (defaults in server/config.ts; NODE_ENV=test raises them to 1000 so browser tests
  *                             that sign up many people from one address are not throttled)
  *   NODE_ENV=production       refuses to start without SESSION_SECRET or without SMTP_HOST
+ *   TETRAWELL_WORKERS         job workers in this process (default 1; 0 for none: run `npm run worker`)
+ *   TETRAWELL_MAX_ACTIVE_JOBS, TETRAWELL_STORAGE_QUOTA_MB, TETRAWELL_JOB_EXPIRE_SECONDS, TETRAWELL_JOB_RETRIES
+ *                             job limits (server/jobs/env.ts)
  */
 import { z } from 'zod';
 import { start, type RunningServer } from './index';
 import { startFakeSmtp, type FakeSmtp } from './mail/fakeSmtp';
 import { createKnex } from './db/config';
 import { planMail, rateLimitsFromEnv, type MailPlan, type SmtpConfig } from './config';
+import { jobEnvSchema, jobSettingsFromEnv } from './jobs/env';
 
 const bool = z.enum(['true', 'false', '1', '0', 'yes', 'no']).transform((v) => v === 'true' || v === '1' || v === 'yes');
 const port = z.coerce.number().int().min(0).max(65535);
 
-const envSchema = z.object({
+const envSchema = jobEnvSchema.extend({
   DATABASE_URL: z.string().min(1, 'DATABASE_URL is required (a PostgreSQL connection string).'),
   PORT: port.default(8080),
   HOST: z.string().min(1).default('127.0.0.1'),
@@ -115,6 +119,7 @@ async function main(): Promise<void> {
       trustProxy: trustProxy(env.TRUST_PROXY),
       cookieSecure: env.COOKIE_SECURE === 'auto' ? 'auto' : env.COOKIE_SECURE === 'true',
       rateLimits: rateLimitsFromEnv(env),
+      jobs: { workers: env.TETRAWELL_WORKERS, settings: jobSettingsFromEnv(env) },
     });
   } catch (err) {
     const busy = (err as { code?: string }).code === 'EADDRINUSE';

@@ -252,6 +252,7 @@ export const jobOptionsSchema = z
   .strict();
 export type JobOptions = z.infer<typeof jobOptionsSchema>;
 export const jobCreateBodySchema = z.object({ kind: jobKindSchema, options: jobOptionsSchema.default({}) }).strict();
+export type JobCreateBody = z.infer<typeof jobCreateBodySchema>;
 export const jobParamsSchema = z.object({ projectId: idSchema, jobId: idSchema });
 
 /** Structured progress: the phase (e.g. "estimate", "mesh", "assemble", "solve", "encode", "store"), optional level and site, and a fraction 0..1. */

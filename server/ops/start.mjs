@@ -32,6 +32,7 @@ Environment:
   TETRAWELL_FAKE_SMTP_PORT   port of the local fake SMTP server (default 2525)
   SESSION_SECRET             session signing secret (default: generated once, kept in .data/session.secret)
   SMTP_HOST, SMTP_PORT, SMTP_USER, SMTP_PASS, SMTP_SECURE, MAIL_FROM   a real mail server instead of the fake one
+  TETRAWELL_WORKERS          job workers inside the app (default 1; 0 for none, then run \`npm run worker\`)
 `;
 
 if (process.argv.includes('--help') || process.argv.includes('-h')) {

@@ -9,6 +9,7 @@ import { invitationRoutes } from './invitations';
 import { designRoutes } from './designs';
 import { auditRoutes } from './audit';
 import { adminRoutes } from './admin';
+import { jobRoutes } from './jobs';
 
 export const routeModules: RouteModule[] = [
   healthRoutes,
@@ -18,6 +19,7 @@ export const routeModules: RouteModule[] = [
   memberRoutes,
   invitationRoutes,
   designRoutes,
+  jobRoutes,
   auditRoutes,
   adminRoutes,
 ];

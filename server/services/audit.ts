@@ -28,6 +28,13 @@ export const AUDIT_ACTIONS = [
   /** a save that changed the name (written beside its design.update) */
   'design.rename',
   'design.delete',
+  /** a job was asked for: detail.jobId, kind, designId, designVersion, options; reused: true when an existing revision answered */
+  'job.start',
+  'job.cancel',
+  /** a worker stored the result of a job: detail.revisionId, jobId, kind, storedBytes */
+  'revision.create',
+  /** a revision file was downloaded: detail.revisionId, file */
+  'revision.download',
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

@@ -59,7 +59,7 @@ export function fileBaseName(name: string): string {
 
 export type DesignCreateInput = { name: string; copyOf: number } | { name: string; document?: DesignDocument };
 
-function storedDocument(rec: { document: unknown }): DesignDocument {
+export function storedDocument(rec: { document: unknown }): DesignDocument {
   const parsed = designSchema.safeParse(rec.document);
   if (!parsed.success) {
     // a stored document that no longer matches the schema (e.g. after a format change) must not be served as valid

@@ -8,8 +8,9 @@ import { invitationService } from './invitations';
 import { designService } from './designs';
 import { auditService } from './audit';
 import { adminService } from './admin';
+import { jobService, type JobDeps } from './jobs';
 
-export function createServices(deps: ServiceDeps) {
+export function createServices(deps: ServiceDeps, jobDeps: JobDeps) {
   const designs = designService(deps);
   return {
     health: { databaseUp: () => ping(deps.db) },
@@ -20,6 +21,7 @@ export function createServices(deps: ServiceDeps) {
     designs,
     audit: auditService(deps),
     admin: adminService(deps),
+    jobs: jobService(deps, jobDeps),
   };
 }
 export type Services = ReturnType<typeof createServices>;

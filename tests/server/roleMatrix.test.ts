@@ -30,6 +30,10 @@ import {
   designVersionListSchema,
   designVersionResponseSchema,
   designImportResponseSchema,
+  jobListSchema,
+  jobResponseSchema,
+  revisionListSchema,
+  revisionResponseSchema,
   projectListSchema,
   projectSchema,
   signUpResponseSchema,
@@ -50,6 +54,9 @@ import {
   type TestEnv,
 } from './helpers';
 import { emptyDesign } from '../../server/services/designs';
+import { jobsRepo } from '../../server/repositories/jobs';
+import { revisionsRepo } from '../../server/repositories/revisions';
+import { packFile } from '../../server/jobs/storage';
 
 type Who = 'signed out' | ProjectRole;
 const WHO: Who[] = ['signed out', 'viewer', 'editor', 'owner'];
@@ -69,6 +76,11 @@ interface Fixture {
   resetToken: string;
   /** a fresh sign-up confirmation token for a throwaway (unconfirmed) account */
   verifyToken: string;
+  /** a queued job of the starting design (not in pg-boss: nothing runs it) */
+  jobId: number;
+  /** a succeeded job and its revision (with a results.json) */
+  doneJobId: number;
+  revisionId: number;
 }
 
 interface RouteCase {
@@ -286,6 +298,43 @@ const ROUTES: RouteCase[] = [
     success: 200,
     url: (f) => `${d(f)}/export?format=placement`,
   },
+  {
+    method: 'post',
+    path: '/projects/:projectId/designs/:designId/jobs',
+    rule: { kind: 'project', capability: 'mesh.create' },
+    success: 202,
+    url: (f) => `${d(f)}/jobs`,
+    body: () => ({ kind: 'mesh', options: { order: 1 } }),
+    schema: jobResponseSchema,
+  },
+  { method: 'get', path: '/projects/:projectId/jobs', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: (f) => `${p(f)}/jobs`, schema: jobListSchema },
+  { method: 'get', path: '/projects/:projectId/jobs/:jobId', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: (f) => `${p(f)}/jobs/${f.jobId}`, schema: jobResponseSchema },
+  // a finished job: the stream sends it once and ends
+  { method: 'get', path: '/projects/:projectId/jobs/:jobId/events', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: (f) => `${p(f)}/jobs/${f.doneJobId}/events` },
+  {
+    method: 'post',
+    path: '/projects/:projectId/jobs/:jobId/cancel',
+    rule: { kind: 'project', capability: 'mesh.create' },
+    success: 200,
+    url: (f) => `${p(f)}/jobs/${f.jobId}/cancel`,
+    schema: jobResponseSchema,
+  },
+  { method: 'get', path: '/projects/:projectId/revisions', rule: { kind: 'project', capability: 'project.read' }, success: 200, url: (f) => `${p(f)}/revisions`, schema: revisionListSchema },
+  {
+    method: 'get',
+    path: '/projects/:projectId/revisions/:revisionId',
+    rule: { kind: 'project', capability: 'project.read' },
+    success: 200,
+    url: (f) => `${p(f)}/revisions/${f.revisionId}`,
+    schema: revisionResponseSchema,
+  },
+  {
+    method: 'get',
+    path: '/projects/:projectId/revisions/:revisionId/files/:name',
+    rule: { kind: 'project', capability: 'project.read' },
+    success: 200,
+    url: (f) => `${p(f)}/revisions/${f.revisionId}/files/results.json`,
+  },
   { method: 'get', path: '/projects/:projectId/audit', rule: { kind: 'project', capability: 'audit.read' }, success: 200, url: (f) => `${p(f)}/audit`, schema: auditListSchema },
   // the role users are ordinary site members, so the admin route refuses all of them
   { method: 'get', path: '/admin/mail', rule: { kind: 'site-admin' }, success: 200, url: () => '/api/admin/mail', schema: capturedMailListSchema },
@@ -365,7 +414,23 @@ async function buildFixture(route: RouteCase, who: Who): Promise<Fixture> {
     verifyToken = linkToken((await waitForMail(env.knex, email, VERIFY_SUBJECT, { sinceId })).text, env.mailBase, 'verify');
   }
   const designId = (await env.knex('designs').where({ project_id: projectId }).first('id')).id as number;
-  return { projectId, designId, users: roleUsers, invitationId, ownInviteToken, resetToken, verifyToken };
+  const { sha256 } = (await env.knex('design_versions').where({ design_id: designId, version: 1 }).first('sha256')) as { sha256: string };
+  const ownerId = roleUsers.owner.user.id;
+  const common = { projectId, designId, designVersion: 1, designSha256: sha256, createdBy: ownerId };
+  const revisionId = await revisionsRepo(env.knex).insert({
+    ...common,
+    jobId: null,
+    kind: 'mesh',
+    options: { order: 2 },
+    optionsKey: '{"order":2}',
+    software: { version: 'test', commit: null },
+    timings: {},
+    summary: { tets: 0 },
+    files: [packFile('results.json', new TextEncoder().encode('{"tets":0}\n'))],
+  });
+  const doneJobId = await jobsRepo(env.knex).insert({ ...common, kind: 'mesh', options: { order: 2 }, state: 'succeeded', progress: { phase: 'done', fraction: 1 }, revisionId, finished: true });
+  const jobId = await jobsRepo(env.knex).insert({ ...common, kind: 'coulomb', options: { order: 2, adaptive: false }, state: 'queued', progress: { phase: 'queued', fraction: 0 } });
+  return { projectId, designId, users: roleUsers, invitationId, ownInviteToken, resetToken, verifyToken, jobId, doneJobId, revisionId };
 }
 
 describe('role-by-route matrix', () => {

@@ -1,0 +1,75 @@
+/**
+ * The pg-boss queue that moves jobs between the HTTP process and the workers. pg-boss keeps its
+ * own tables in the PostgreSQL schema `pgboss` (created by pg-boss itself at start, not by our
+ * migrations). One queue per job kind: mesh, coulomb, convergence.
+ *
+ * Retries: a job whose worker died is expired by pg-boss after `expireInSeconds` and retried
+ * `retryLimit` times with exponential backoff from `retryDelaySeconds`; a fault inside a job
+ * (not a refusal of the numerical core) is retried the same way.
+ */
+import PgBoss from 'pg-boss';
+import { jobKinds, type JobKind } from '@contracts/api';
+import type { Logger } from '../config';
+
+export const BOSS_SCHEMA = 'pgboss';
+
+export interface QueueSettings {
+  /** a job running longer than this is taken to be lost (its worker died) and retried */
+  expireInSeconds: number;
+  retryLimit: number;
+  retryDelaySeconds: number;
+  /** how often pg-boss looks for expired jobs */
+  maintenanceIntervalSeconds: number;
+  /** put before each queue name (letters, digits, '-', '_'); '' by default */
+  queuePrefix: string;
+}
+
+export const DEFAULT_QUEUE_SETTINGS: QueueSettings = {
+  // common practice: far above the longest job the element cap allows on one core
+  expireInSeconds: 30 * 60,
+  retryLimit: 2,
+  retryDelaySeconds: 5,
+  maintenanceIntervalSeconds: 30,
+  queuePrefix: '',
+};
+
+/** pg-boss queue of a kind: the kind's name, after an optional prefix (separate installations or test files sharing one database) */
+export const queueName = (kind: JobKind, prefix = ''): string => `${prefix}${kind}`;
+
+/** The options every job is sent with (they travel with the job, so workers need not agree). */
+export function sendOptions(settings: QueueSettings, id: string): PgBoss.SendOptions {
+  return { id, retryLimit: settings.retryLimit, retryDelay: settings.retryDelaySeconds, retryBackoff: true, expireInSeconds: settings.expireInSeconds };
+}
+
+export async function startBoss(databaseUrl: string, settings: QueueSettings, logger: Logger): Promise<PgBoss> {
+  const boss = new PgBoss({
+    connectionString: databaseUrl,
+    schema: BOSS_SCHEMA,
+    max: 4,
+    application_name: 'tetrawell-jobs',
+    maintenanceIntervalSeconds: settings.maintenanceIntervalSeconds,
+    schedule: false,
+  });
+  boss.on('error', (err) => logger.error('job queue:', err instanceof Error ? err.message : err));
+  await boss.start();
+  for (const kind of jobKinds) {
+    const name = queueName(kind, settings.queuePrefix);
+    const queue = {
+      name,
+      retryLimit: settings.retryLimit,
+      retryDelay: settings.retryDelaySeconds,
+      retryBackoff: true,
+      expireInSeconds: settings.expireInSeconds,
+    };
+    // the queue's own settings are only defaults: every send names its retry and expiry settings
+    if (!(await boss.getQueue(name))) {
+      try {
+        await boss.createQueue(name, queue);
+      } catch (e) {
+        // another process created it at the same moment
+        if (!(await boss.getQueue(name))) throw e;
+      }
+    }
+  }
+  return boss;
+}

@@ -1,0 +1,41 @@
+/**
+ * The worker threads jobs run in (piscina). One pool per job worker, as many threads as the
+ * worker runs jobs at once. `run` resolves with the task's output, calls `onProgress` for each
+ * progress message, and rejects with an AbortError when `signal` aborts: piscina then ends the
+ * thread that was computing, so a cancelled job stops using the CPU at once.
+ */
+import { existsSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { MessageChannel } from 'node:worker_threads';
+import Piscina from 'piscina';
+import type { JobKind, JobOptions, JobProgress } from '@contracts/api';
+import type { TaskOutput } from './task.worker';
+
+function workerFile(): { filename: string; execArgv: string[] } {
+  const ts = fileURLToPath(new URL('./task.worker.ts', import.meta.url));
+  const js = fileURLToPath(new URL('./task.worker.js', import.meta.url));
+  // under tsx or vitest this file is TypeScript: the thread loads its .ts through tsx
+  if (import.meta.url.endsWith('.ts') || !existsSync(js)) return { filename: ts, execArgv: ['--import', 'tsx'] };
+  return { filename: js, execArgv: [] };
+}
+
+export interface JobThreads {
+  run(task: { kind: JobKind; documentJson: string; options: JobOptions; chunkBytes?: number }, opts: { onProgress?: (p: JobProgress) => void; signal?: AbortSignal }): Promise<TaskOutput>;
+  close(): Promise<void>;
+}
+
+export function jobThreads(threads: number): JobThreads {
+  const pool = new Piscina({ ...workerFile(), minThreads: 0, maxThreads: Math.max(1, threads), idleTimeout: 60_000 });
+  return {
+    async run(task, opts) {
+      const { port1, port2 } = new MessageChannel();
+      port1.on('message', (p: JobProgress) => opts.onProgress?.(p));
+      try {
+        return (await pool.run({ ...task, port: port2 }, { transferList: [port2], signal: opts.signal })) as TaskOutput;
+      } finally {
+        port1.close();
+      }
+    },
+    close: () => pool.destroy(),
+  };
+}

@@ -1,0 +1,191 @@
+/**
+ * Revisions: immutable results of finished jobs, and their files as compressed pieces
+ * (server/jobs/storage.ts). `insert` writes the revision, its file list and every piece; callers
+ * run it inside the transaction that also marks the job succeeded, so a revision is readable
+ * only whole. There is no update path (a trigger refuses UPDATE as well).
+ */
+import type { JobKind, JobOptions, Revision } from '@contracts/api';
+import { type Db, iso } from './db';
+
+export type RevisionFileName = Revision['files'][number]['name'];
+
+export interface RevisionInsert {
+  projectId: number;
+  jobId: number | null;
+  designId: number;
+  designVersion: number;
+  designSha256: string;
+  kind: JobKind;
+  options: JobOptions;
+  optionsKey: string;
+  software: { version: string; commit: string | null };
+  timings: Record<string, number>;
+  summary: Record<string, unknown>;
+  files: { name: string; contentType: string; bytes: number; chunks: Uint8Array[] }[];
+  createdBy: number | null;
+}
+
+export interface RevisionRecord extends Revision {
+  projectId: number;
+  storedBytes: number;
+  designName: string;
+}
+
+interface RevisionRow {
+  id: number;
+  project_id: number;
+  job_id: number | null;
+  design_id: number;
+  design_name: string;
+  design_version: number;
+  design_sha256: string;
+  kind: JobKind;
+  options: JobOptions;
+  software_version: string;
+  software_commit: string | null;
+  timings: Record<string, number>;
+  summary?: Record<string, unknown>;
+  stored_bytes: string | number;
+  created_by_name: string | null;
+  created_at: Date;
+}
+
+interface FileRow {
+  revision_id: number;
+  name: RevisionFileName;
+  content_type: string;
+  bytes: string | number;
+  stored_bytes: string | number;
+  chunks: number;
+}
+
+export interface StoredFile {
+  name: RevisionFileName;
+  contentType: string;
+  bytes: number;
+  chunks: number;
+}
+
+const ORDER: RevisionFileName[] = ['mesh.vtu', 'mesh.vtk', 'mesh.twmesh', 'results.json', 'results.csv'];
+
+export function revisionsRepo(db: Db) {
+  const select = (withSummary: boolean) =>
+    db('revisions as r')
+      .join('designs as d', 'd.id', 'r.design_id')
+      .leftJoin('users as u', 'u.id', 'r.created_by')
+      .select(
+        'r.id', 'r.project_id', 'r.job_id', 'r.design_id', 'd.name as design_name', 'r.design_version', 'r.design_sha256', 'r.kind', 'r.options',
+        'r.software_version', 'r.software_commit', 'r.timings', 'r.stored_bytes', 'r.created_at', 'u.display_name as created_by_name',
+        ...(withSummary ? ['r.summary'] : []),
+      );
+
+  async function filesOf(ids: number[]): Promise<Map<number, StoredFile[]>> {
+    const out = new Map<number, StoredFile[]>();
+    if (!ids.length) return out;
+    const rows = (await db('revision_files').whereIn('revision_id', ids)) as FileRow[];
+    for (const r of rows) {
+      const list = out.get(r.revision_id) ?? [];
+      list.push({ name: r.name, contentType: r.content_type, bytes: Number(r.bytes), chunks: r.chunks });
+      out.set(r.revision_id, list);
+    }
+    for (const list of out.values()) list.sort((a, b) => ORDER.indexOf(a.name) - ORDER.indexOf(b.name));
+    return out;
+  }
+
+  const toRevision = (r: RevisionRow, files: StoredFile[]): RevisionRecord => ({
+    id: r.id,
+    projectId: r.project_id,
+    kind: r.kind,
+    jobId: r.job_id,
+    designId: r.design_id,
+    designName: r.design_name,
+    designVersion: r.design_version,
+    designSha256: r.design_sha256,
+    options: r.options,
+    software: { version: r.software_version, commit: r.software_commit },
+    timings: r.timings,
+    summary: r.summary ?? {},
+    files: files.map((f) => ({ name: f.name, bytes: f.bytes, contentType: f.contentType })),
+    storedBytes: Number(r.stored_bytes),
+    createdAt: iso(r.created_at),
+    createdBy: r.created_by_name,
+  });
+
+  return {
+    async insert(rev: RevisionInsert): Promise<number> {
+      const storedBytes = rev.files.reduce((s, f) => s + f.chunks.reduce((t, c) => t + c.length, 0), 0);
+      const [row] = await db('revisions')
+        .insert({
+          project_id: rev.projectId,
+          job_id: rev.jobId,
+          design_id: rev.designId,
+          design_version: rev.designVersion,
+          design_sha256: rev.designSha256,
+          kind: rev.kind,
+          options: JSON.stringify(rev.options),
+          options_key: rev.optionsKey,
+          software_version: rev.software.version,
+          software_commit: rev.software.commit,
+          timings: JSON.stringify(rev.timings),
+          summary: JSON.stringify(rev.summary),
+          stored_bytes: storedBytes,
+          created_by: rev.createdBy,
+        })
+        .returning('id');
+      const id = (row as { id: number }).id;
+      for (const f of rev.files) {
+        await db('revision_files').insert({
+          revision_id: id,
+          name: f.name,
+          content_type: f.contentType,
+          bytes: f.bytes,
+          stored_bytes: f.chunks.reduce((t, c) => t + c.length, 0),
+          chunks: f.chunks.length,
+        });
+        // one piece per statement: a statement never carries more than one compressed MiB
+        for (let seq = 0; seq < f.chunks.length; seq++) {
+          await db('revision_chunks').insert({ revision_id: id, file: f.name, seq, bytes: Buffer.from(f.chunks[seq].buffer, f.chunks[seq].byteOffset, f.chunks[seq].byteLength) });
+        }
+      }
+      return id;
+    },
+    async get(projectId: number, revisionId: number): Promise<RevisionRecord | null> {
+      const row = (await select(true).where({ 'r.project_id': projectId, 'r.id': revisionId }).first()) as RevisionRow | undefined;
+      if (!row) return null;
+      return toRevision(row, (await filesOf([row.id])).get(row.id) ?? []);
+    },
+    /** newest first */
+    async list(projectId: number, opts: { designId?: number; limit: number }): Promise<RevisionRecord[]> {
+      const q = select(false).where('r.project_id', projectId).orderBy('r.id', 'desc').limit(opts.limit);
+      if (opts.designId !== undefined) q.where('r.design_id', opts.designId);
+      const rows = (await q) as RevisionRow[];
+      const files = await filesOf(rows.map((r) => r.id));
+      return rows.map((r) => toRevision(r, files.get(r.id) ?? []));
+    },
+    /** the newest revision of this project computed from the same document, kind and options */
+    async findReusable(projectId: number, designSha256: string, kind: JobKind, optionsKey: string): Promise<{ id: number } | null> {
+      const row = (await db('revisions')
+        .where({ project_id: projectId, design_sha256: designSha256, kind, options_key: optionsKey })
+        .orderBy('id', 'desc')
+        .first('id')) as { id: number } | undefined;
+      return row ?? null;
+    },
+    async byJob(jobId: number): Promise<{ id: number } | null> {
+      const row = (await db('revisions').where({ job_id: jobId }).first('id')) as { id: number } | undefined;
+      return row ?? null;
+    },
+    async storedBytes(projectId: number): Promise<number> {
+      const row = (await db('revisions').where({ project_id: projectId }).sum<{ s: string | null }[]>('stored_bytes as s').first()) as { s: string | null } | undefined;
+      return Number(row?.s ?? 0);
+    },
+    async file(revisionId: number, name: RevisionFileName): Promise<StoredFile | null> {
+      const row = (await db('revision_files').where({ revision_id: revisionId, name }).first()) as FileRow | undefined;
+      return row ? { name: row.name, contentType: row.content_type, bytes: Number(row.bytes), chunks: row.chunks } : null;
+    },
+    async chunk(revisionId: number, name: RevisionFileName, seq: number): Promise<Uint8Array | null> {
+      const row = (await db('revision_chunks').where({ revision_id: revisionId, file: name, seq }).first('bytes')) as { bytes: Buffer } | undefined;
+      return row ? new Uint8Array(row.bytes.buffer, row.bytes.byteOffset, row.bytes.byteLength) : null;
+    },
+  };
+}
+export type RevisionsRepo = ReturnType<typeof revisionsRepo>;

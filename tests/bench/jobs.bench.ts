@@ -1,0 +1,128 @@
+/**
+ * Jobs load benchmark (prints figures, asserts nothing):
+ *   1. 50 clients on the read API (GET jobs and revisions of a project) for 30 s while a mesh job
+ *      runs in the same server: p50 / p95 / p99 latency and errors (target p95 < 100 ms, no errors);
+ *   2. throughput of 1 against 2 job workers on the same queue of 8 mesh jobs.
+ *
+ * Needs a PostgreSQL database in DATABASE_URL (it is migrated; the rows it makes stay, under a
+ * project named "Load bench"). Without it the bench says so and does nothing:
+ *   DATABASE_URL=postgres://… npm run bench -- jobs
+ * Load comes from autocannon (npm); latencies are collected per response so the percentiles are
+ * exact for the run.
+ */
+import { randomBytes } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import autocannon from 'autocannon';
+import bcrypt from 'bcryptjs';
+import { start } from '../../server/index';
+import { createKnex } from '../../server/db/config';
+import { migrateLatest } from '../../server/db/migrate';
+import { silentLogger } from '../../server/config';
+import { startJobWorker } from '../../server/jobs/worker';
+
+const PAIR = JSON.parse(readFileSync(fileURLToPath(new URL('../fixtures/designs/pair-coarse.json', import.meta.url)), 'utf8')) as { name: string };
+const lots = { windowMs: 60_000, limit: 1_000_000 };
+
+function percentile(sorted: number[], p: number): number {
+  if (!sorted.length) return NaN;
+  return sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)];
+}
+
+export async function run(): Promise<void> {
+  const databaseUrl = process.env.DATABASE_URL;
+  if (!databaseUrl) {
+    console.log('skipped: set DATABASE_URL to a PostgreSQL database this bench may write to');
+    return;
+  }
+  await migrateLatest(databaseUrl);
+  const prefix = `bench-${randomBytes(3).toString('hex')}-`;
+  // no per-project limit in the way of a queue of 8
+  const jobSettings = { queuePrefix: prefix, maxActivePerProject: 100 };
+  const knex = createKnex(databaseUrl, { poolMax: 2 });
+  const email = `${prefix}user@example.invalid`;
+  const password = 'bench-password-123';
+  await knex('users').insert({ email, password_hash: bcrypt.hashSync(password, 4), display_name: 'Bench', email_verified_at: knex.fn.now() });
+  const server = await start({
+    port: 0,
+    databaseUrl,
+    staticDir: null,
+    logger: silentLogger,
+    bcryptRounds: 4,
+    rateLimits: { signIn: lots, signUp: lots, passwordReset: lots, verifyEmail: lots, resetConfirm: lots, passwordChange: lots },
+    jobs: { workers: 1, settings: jobSettings },
+  });
+
+  let cookie = '';
+  let csrf = '';
+  const call = async (method: string, path: string, body?: unknown) => {
+    const r = await fetch(`${server.url}${path}`, {
+      method,
+      headers: { cookie, 'content-type': 'application/json', ...(csrf ? { 'x-csrf-token': csrf } : {}) },
+      body: body === undefined ? undefined : JSON.stringify(body),
+    });
+    const set = r.headers.getSetCookie().find((c) => c.startsWith('tetrawell.sid='));
+    if (set) cookie = set.split(';')[0];
+    // eslint-disable-next-line @typescript-eslint/no-explicit-any -- a bench script reads a few known fields
+    return { status: r.status, body: (await r.json().catch(() => null)) as Record<string, any> };
+  };
+  const refreshCsrf = async () => {
+    csrf = (await call('GET', '/api/auth/csrf')).body.csrfToken as string;
+  };
+  await refreshCsrf();
+  await call('POST', '/api/auth/sign-in', { email, password });
+  await refreshCsrf();
+  const projectId = (await call('POST', '/api/projects', { name: 'Load bench' })).body.id as number;
+  const newDesign = async (name: string) => (await call('POST', `/api/projects/${projectId}/designs`, { name, document: { ...PAIR, name } })).body.design.id as number;
+  const waitAll = async (ids: number[]) => {
+    for (;;) {
+      const { jobs } = (await call('GET', `/api/projects/${projectId}/jobs`)).body as { jobs: { id: number; state: string }[] };
+      const mine = jobs.filter((j) => ids.includes(j.id));
+      if (mine.every((j) => j.state !== 'queued' && j.state !== 'running')) return mine;
+      await new Promise((r) => setTimeout(r, 200));
+    }
+  };
+
+  // 1. read load while a mesh job runs
+  const d0 = await newDesign('Load bench pair');
+  const job = (await call('POST', `/api/projects/${projectId}/designs/${d0}/jobs`, { kind: 'mesh', options: { order: 2 } })).body.job as { id: number };
+  const times: number[] = [];
+  const opts: autocannon.Options = {
+    url: server.url,
+    connections: 50,
+    duration: 30,
+    headers: { cookie },
+    requests: [{ path: `/api/projects/${projectId}/jobs` }, { path: `/api/projects/${projectId}/revisions` }],
+  };
+  const result = await new Promise<autocannon.Result>((resolve, reject) => {
+    const inst = autocannon(opts, (err, res) => (err ? reject(err) : resolve(res)));
+    inst.on('response', (_client: unknown, _status: number, _bytes: number, responseTime: number) => times.push(responseTime));
+  });
+  times.sort((a, b) => a - b);
+  const jobState = (await waitAll([job.id]))[0].state;
+  console.log(
+    `read API, 50 clients, 30 s, a mesh job running (it ${jobState}): ${result.requests.total} requests, ` +
+      `p50 ${percentile(times, 50).toFixed(1)} ms, p95 ${percentile(times, 95).toFixed(1)} ms, p99 ${percentile(times, 99).toFixed(1)} ms, ` +
+      `errors ${result.errors}, timeouts ${result.timeouts}, non-2xx ${result.non2xx} (target p95 < 100 ms, no errors)`,
+  );
+
+  // 2. 1 against 2 workers on a queue of 8 mesh jobs (the app's own worker stops first)
+  await server.jobWorker?.stop();
+  for (const n of [1, 2]) {
+    const ids: number[] = [];
+    for (let k = 0; k < 8; k++) {
+      const d = await newDesign(`Load bench ${n}w ${k}`);
+      ids.push((await call('POST', `/api/projects/${projectId}/designs/${d}/jobs`, { kind: 'mesh', options: { order: 1 } })).body.job.id as number);
+    }
+    const t0 = performance.now();
+    const ws = await Promise.all(Array.from({ length: n }, () => startJobWorker({ databaseUrl, concurrency: 1, settings: jobSettings, logger: silentLogger, pollIntervalMs: 100 })));
+    const done = await waitAll(ids);
+    const seconds = (performance.now() - t0) / 1000;
+    console.log(
+      `${n} worker(s), 8 queued mesh jobs: ${seconds.toFixed(1)} s (${((8 / seconds) * 60).toFixed(1)} jobs/min), ${done.filter((j) => j.state === 'succeeded').length} succeeded`,
+    );
+    for (const w of ws) await w.stop();
+  }
+  await server.stop();
+  await knex.destroy();
+}
