@@ -4,7 +4,7 @@
  *
  *   mesh         { order }              (the CLI's `mesh --order N`)
  *   coulomb      { order, adaptive }    (the CLI's `coulomb --order N [--adaptive]`)
- *   convergence  { order, sweep }       (the CLI's `study --kind <sweep> --order N`)
+ *   convergence  { order, sweep }       (the CLI's `convergence --kind <sweep> --order N`)
  *
  * `order` defaults to the design's refinement.order, as on the command line.
  */
