@@ -158,7 +158,8 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
         server.closeIdleConnections();
         setTimeout(() => server.closeAllConnections(), 2_000).unref();
       });
-      await jobWorker?.stop();
+      // npm start sends SIGTERM 8 s after SIGINT: running jobs get 5 s, then their threads end and pg-boss retries them later
+      await jobWorker?.stop(5_000);
       sessionStore.close();
       mailer.close();
       await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), designBodies.destroy(), stopBoss()]);

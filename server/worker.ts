@@ -13,7 +13,7 @@ import { startJobWorker } from './jobs/worker';
 import { consoleLogger } from './config';
 
 const envSchema = jobEnvSchema.extend({
-  DATABASE_URL: z.string().min(1, 'DATABASE_URL is required (a PostgreSQL connection string).'),
+  DATABASE_URL: z.string({ error: 'is required: the PostgreSQL connection string of the database the app uses' }).min(1, 'is required: the PostgreSQL connection string of the database the app uses'),
   TETRAWELL_WORKERS: z.coerce.number().int().min(1).max(64).default(1),
 });
 

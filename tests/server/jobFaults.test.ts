@@ -6,7 +6,7 @@
  * take these jobs.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { createHash } from 'node:crypto';
+import { createHash, randomUUID } from 'node:crypto';
 import { readFile } from 'node:fs/promises';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -16,6 +16,8 @@ import { newUser, startTestEnv, testDatabaseUrl, type TestClient, type TestEnv }
 import { startJobWorker, type JobWorker } from '../../server/jobs/worker';
 import { silentLogger } from '../../server/config';
 import { runPipeline } from '../../server/jobs/pipeline';
+import { DEFAULT_QUEUE_SETTINGS, queueName, startBoss } from '../../server/jobs/queue';
+import { jobsRepo } from '../../server/repositories/jobs';
 import type { Design } from '../../geometry/design/types';
 
 const ROOT = path.resolve(import.meta.dirname, '../..');
@@ -182,4 +184,32 @@ describe('storage quota', () => {
     expect(done.error).toMatch(/storage is full: its revisions take [\d.]+ MiB of 0\.0 MiB and this result needs [\d.]+ MiB more/);
     expect(done.revisionId).toBeNull();
   }, 180_000);
+});
+
+describe('a job whose pg-boss job used up its retries', () => {
+  it('is failed by the worker sweep with the reason in words', async () => {
+    if (!workers.length) await inProcessWorker();
+    const boss = await startBoss(testDatabaseUrl(), { ...DEFAULT_QUEUE_SETTINGS, queuePrefix: 'orphan-test-' }, silentLogger);
+    try {
+      const dId = await design('Orphan pair');
+      const { sha256 } = (await env.knex('design_versions').where({ design_id: dId, version: 1 }).first('sha256')) as { sha256: string };
+      const bossJobId = randomUUID();
+      const owned = (await env.knex('projects').where({ id: projectId }).first('created_by')) as { created_by: number };
+      const jobId = await jobsRepo(env.knex).insert({
+        projectId, designId: dId, designVersion: 1, designSha256: sha256, kind: 'mesh', options: { order: 1 },
+        state: 'running', progress: { phase: 'mesh', fraction: 0.3 }, bossJobId, createdBy: owned.created_by,
+      });
+      // the pg-boss side of a job whose last worker died: sent without retries, taken, failed
+      const q = queueName('mesh', 'orphan-test-');
+      await boss.send(q, { jobId }, { id: bossJobId, retryLimit: 0 });
+      const [taken] = await boss.fetch(q);
+      expect(taken.id).toBe(bossJobId);
+      await boss.fail(q, bossJobId, { message: 'worker lost' });
+      const done = await waitFor(jobId, ended, 30_000);
+      expect(done.state).toBe('failed');
+      expect(done.error).toMatch(/started 1 time\(s\) and never finished: the worker running it stopped/);
+    } finally {
+      await boss.stop({ graceful: false, wait: true });
+    }
+  }, 60_000);
 });

@@ -220,6 +220,25 @@ describe('refusals before queueing', () => {
     expect(await env.knex('jobs').where({ design_id: dId }).count<{ n: string }[]>('id as n')).toEqual([{ n: '0' }]);
   });
 
+  it('a project whose revisions fill its storage quota gets 409 with the figures', async () => {
+    const p3 = (await owner.post('/api/projects', { name: 'Jobs quota project' })).body.id as number;
+    const d = (await owner.post(`/api/projects/${p3}/designs`, { name: 'Pair', document: PAIR })).body.design.id as number;
+    const { sha256 } = (await env.knex('design_versions').where({ design_id: d, version: 1 }).first('sha256')) as { sha256: string };
+    // a revision row that claims 3 GiB of pieces (the default quota is 2 GiB; no pieces needed for the check)
+    await env.knex('revisions').insert({
+      project_id: p3, design_id: d, design_version: 1, design_sha256: sha256, kind: 'mesh', options: '{"order":2}', options_key: '{"order":2}',
+      software_version: 'test', timings: '{}', summary: '{}', stored_bytes: 3 * 1024 ** 3,
+    });
+    const r = await owner.post(`/api/projects/${p3}/designs/${d}/jobs`, { kind: 'mesh', options: { order: 1 } });
+    expect(r.status).toBe(409);
+    expect(r.body.error.message).toBe("The project's storage is full: its revisions take 3072.0 MiB of 2048.0 MiB. Delete designs you no longer need, or ask the administrator for a larger quota.");
+  });
+
+  it('revisions cannot be changed once stored (database trigger)', async () => {
+    const rev = (await env.knex('revisions').where({ project_id: projectId }).first('id')) as { id: number };
+    await expect(env.knex('revisions').where({ id: rev.id }).update({ summary: '{}' })).rejects.toThrow(/immutable/);
+  });
+
   it('a missing design is a 404; a job of another project is a 404', async () => {
     expect((await owner.post(`/api/projects/${projectId}/designs/999999999/jobs`, { kind: 'mesh' })).status).toBe(404);
     expect((await owner.get(`/api/projects/${projectId}/jobs/999999999`)).status).toBe(404);
