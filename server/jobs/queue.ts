@@ -10,6 +10,7 @@
 import PgBoss from 'pg-boss';
 import { jobKinds, type JobKind } from '@contracts/api';
 import type { Logger } from '../config';
+import { isDatabaseUnavailable } from '../http/errors';
 
 export const BOSS_SCHEMA = 'pgboss';
 
@@ -50,7 +51,12 @@ export async function startBoss(databaseUrl: string, settings: QueueSettings, lo
     maintenanceIntervalSeconds: settings.maintenanceIntervalSeconds,
     schedule: false,
   });
-  boss.on('error', (err) => logger.error('job queue:', err instanceof Error ? err.message : err));
+  // a database restart is an outage, not a fault of ours: logged as a warning, as the HTTP side does (503)
+  boss.on('error', (err) => {
+    const text = err instanceof Error ? err.message : String(err);
+    if (isDatabaseUnavailable(err)) logger.warn(`job queue: the database is not reachable (${text}); waiting for it to return`);
+    else logger.error('job queue:', text);
+  });
   await boss.start();
   for (const kind of jobKinds) {
     const name = queueName(kind, settings.queuePrefix);

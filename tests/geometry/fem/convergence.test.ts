@@ -39,7 +39,8 @@ describe('runConvergence', () => {
     expect(rows[1].elements).toBeGreaterThanOrEqual(8 * rows[0].elements);
     expect(r.plots[1].logX && r.plots[1].logY).toBe(true);
     expect(r.plots[1].fit?.rate).toBe(r.fittedRate);
-  });
+    // three nested P1 solves: about 20 s on an idle 2-core machine, three times that when it is shared
+  }, 180_000);
 
   it('box: grounded U climbs with the half-width like −1/(εr L), multipole U stays put', () => {
     const d = oneSite({ model: 'gaussian', sigmaNm: 1 }, { half: 8, order: 2, tol: 1e-2, boundary: { kind: 'grounded' } });
