@@ -327,3 +327,5 @@ export const apiTokenSchema = z.object({
 });
 export const apiTokenListSchema = z.object({ tokens: z.array(apiTokenSchema) });
 export const apiTokenCreatedSchema = z.object({ token: apiTokenSchema, secret: z.string() });
+export type ApiToken = z.infer<typeof apiTokenSchema>;
+export type ApiTokenCreated = z.infer<typeof apiTokenCreatedSchema>;
