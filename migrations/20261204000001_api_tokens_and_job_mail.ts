@@ -6,6 +6,7 @@
  *                        first characters of the secret (to tell tokens apart in the list), when it was made
  *                        and last used, and when it was revoked (revoked rows stay for the record)
  *   users.notify_job_mail  e-mail me when a long job of mine finishes or fails (on by default)
+ *   jobs.notified_at     when that e-mail was claimed for the job (at most one per job)
  */
 import type { Knex } from 'knex';
 
@@ -24,9 +25,15 @@ export async function up(knex: Knex): Promise<void> {
   await knex.schema.alterTable('users', (t) => {
     t.boolean('notify_job_mail').notNullable().defaultTo(true);
   });
+  await knex.schema.alterTable('jobs', (t) => {
+    t.timestamp('notified_at', { useTz: true });
+  });
 }
 
 export async function down(knex: Knex): Promise<void> {
+  await knex.schema.alterTable('jobs', (t) => {
+    t.dropColumn('notified_at');
+  });
   await knex.schema.alterTable('users', (t) => {
     t.dropColumn('notify_job_mail');
   });

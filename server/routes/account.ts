@@ -1,4 +1,4 @@
-import { accountUpdateBodySchema, apiTokenCreateBodySchema, apiTokenParamsSchema, passwordChangeBodySchema } from '@contracts/api';
+import { accountNotificationsSchema, accountUpdateBodySchema, apiTokenCreateBodySchema, apiTokenParamsSchema, passwordChangeBodySchema } from '@contracts/api';
 import { parseOr422 } from '../services/errors';
 import { currentUser } from '../http/access';
 import type { RouteModule } from './context';
@@ -31,5 +31,14 @@ export const apiTokenRoutes: RouteModule = (router, { services, access }) => {
     const { tokenId } = parseOr422(apiTokenParamsSchema, req.params, 'address');
     await services.apiTokens.revoke(currentUser(req).id, tokenId);
     res.status(204).end();
+  });
+
+  // the job e-mail switch (issue 10): on or off for the signed-in user
+  router.get('/account/notifications', access.requireUser, async (req, res) => {
+    res.json(await services.notifications.get(currentUser(req).id));
+  });
+  router.put('/account/notifications', access.requireUser, async (req, res) => {
+    const body = parseOr422(accountNotificationsSchema, req.body, 'notification settings');
+    res.json(await services.notifications.set(currentUser(req).id, body.jobMail));
   });
 };

@@ -48,3 +48,20 @@ export function apiTokenService(deps: ServiceDeps) {
     },
   };
 }
+
+/** The signed-in user's notification switches (users.notify_job_mail). */
+export function notificationService(deps: ServiceDeps) {
+  const { db } = deps;
+  return {
+    async get(userId: number): Promise<{ jobMail: boolean }> {
+      const r = (await db('users').where({ id: userId }).first('notify_job_mail')) as { notify_job_mail: boolean } | undefined;
+      if (!r) throw notFound('The account');
+      return { jobMail: r.notify_job_mail };
+    },
+    async set(userId: number, jobMail: boolean): Promise<{ jobMail: boolean }> {
+      const n = await db('users').where({ id: userId }).update({ notify_job_mail: jobMail, updated_at: db.fn.now() });
+      if (n === 0) throw notFound('The account');
+      return { jobMail };
+    },
+  };
+}

@@ -9,7 +9,7 @@ import { designService } from './designs';
 import { auditService } from './audit';
 import { adminService } from './admin';
 import { jobService, type JobDeps } from './jobs';
-import { apiTokenService } from './apiTokens';
+import { apiTokenService, notificationService } from './apiTokens';
 
 export function createServices(deps: ServiceDeps, jobDeps: JobDeps) {
   const designs = designService(deps);
@@ -24,6 +24,7 @@ export function createServices(deps: ServiceDeps, jobDeps: JobDeps) {
     admin: adminService(deps),
     jobs: jobService(deps, jobDeps),
     apiTokens: apiTokenService(deps),
+    notifications: notificationService(deps),
   };
 }
 export type Services = ReturnType<typeof createServices>;

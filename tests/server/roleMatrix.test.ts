@@ -14,6 +14,7 @@ import { randomBytes } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { can, type Capability, type ProjectRole } from '@contracts/roles';
 import {
+  accountNotificationsSchema,
   apiTokenCreatedSchema,
   apiTokenListSchema,
   auditListSchema,
@@ -184,6 +185,16 @@ const ROUTES: RouteCase[] = [
     after: async (c) => {
       if (c.user) await c.post('/api/account/password', { currentPassword: 'temporary-passphrase-1', newPassword: TEST_PASSWORD });
     },
+  },
+  { method: 'get', path: '/account/notifications', rule: { kind: 'user' }, success: 200, url: () => '/api/account/notifications', schema: accountNotificationsSchema },
+  {
+    method: 'put',
+    path: '/account/notifications',
+    rule: { kind: 'user' },
+    success: 200,
+    url: () => '/api/account/notifications',
+    schema: accountNotificationsSchema,
+    body: () => ({ jobMail: true }),
   },
   { method: 'get', path: '/account/tokens', rule: { kind: 'user' }, success: 200, url: () => '/api/account/tokens', schema: apiTokenListSchema },
   {
