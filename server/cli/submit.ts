@@ -219,7 +219,10 @@ export async function run(argv: string[]): Promise<number> {
       designVersion = (saved.json.design as { version: number }).version;
       console.error(`saved design ${designId} as version ${designVersion}`);
     } else {
-      const created = await call('POST', `/projects/${projectId}/designs`, JSON.stringify({ name: baseName, document }));
+      // the document's own name, so the stored document (whose name is the design's) stays the file's content
+      const docName = (document as { name?: unknown }).name;
+      const name = typeof docName === 'string' && docName.trim() ? docName.trim().slice(0, 80) : baseName;
+      const created = await call('POST', `/projects/${projectId}/designs`, JSON.stringify({ name, document }));
       designId = (created.json.design as { id: number }).id;
       designVersion = (created.json.design as { version: number }).version;
       console.error(`created design ${designId} (version ${designVersion})`);

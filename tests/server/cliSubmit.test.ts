@@ -72,16 +72,18 @@ describe('cli submit (remote mode)', () => {
     expect(l.code, l.stderr).toBe(0);
     expect(Buffer.compare(await readFile(out), await readFile(local))).toBe(0);
 
-    // --design stores a new version of the same design and runs the job on it
+    // --design stores a new version of the same design; the same content and options reuse the revision
     const again = await cli(['submit', PAIR_FILE, '--server', env.url, '--kind', 'mesh', '--order', '1', '--project', String(result.projectId), '--design', String(result.designId), '--wait'], {
       TETRAWELL_TOKEN: secret,
     });
     expect(again.code, again.stderr).toBe(0);
-    const second = JSON.parse(again.stdout.trim().split('\n').at(-1)!) as { designId: number; designVersion: number; state: string; jobId: number };
+    const second = JSON.parse(again.stdout.trim().split('\n').at(-1)!) as { designId: number; designVersion: number; state: string; jobId: number; reused: boolean; revisionId: number };
     expect(second.designId).toBe(result.designId);
     expect(second.designVersion).toBe(2);
     expect(second.state).toBe('succeeded');
     expect(second.jobId).not.toBe(result.jobId);
+    expect(second.reused).toBe(true);
+    expect(second.revisionId).toBe(result.revisionId);
   }, 180_000);
 
   it('says plainly when the token is refused (exit 1) and when the arguments are wrong (exit 2)', async () => {
