@@ -21,6 +21,7 @@ import type { User } from '@contracts/api';
 import type { Logger, RateLimits, RateLimitRule } from './config';
 import type { Services } from './services';
 import { accessControl } from './http/access';
+import { bearerAuth, csrfUnlessBearer } from './http/bearer';
 import { apiNotFound, errorHandler, sendError } from './http/errors';
 import { refuseUnstorableText } from './http/wellFormed';
 import { jsonBodies, parseByteSize } from './http/bodies';
@@ -161,6 +162,8 @@ export function createApp(deps: AppDeps): Express {
   });
   app.use(pass.initialize());
   app.use(pass.session());
+  // a personal API token replaces the session's user for this request (server/http/bearer.ts)
+  app.use('/api', bearerAuth(services));
   // Nobody signed in: the session, if it is stored at all (saveUninitialized: false; csrf-sync keeps its secret in
   // it), lives `anonymousSessionMaxAgeMs`. Sign-in regenerates the session, which brings back the full lifetime.
   // originalMaxAge too: express-session resets maxAge to it before saving.
@@ -186,7 +189,7 @@ export function createApp(deps: AppDeps): Express {
     res.setHeader('Cache-Control', 'no-store');
     next();
   });
-  api.use(csrfSynchronisedProtection);
+  api.use(csrfUnlessBearer(csrfSynchronisedProtection));
   const routeDeps = {
     services,
     designBodies: deps.designBodies,

@@ -137,7 +137,15 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   let jobWorker: JobWorker | null = null;
   if (workers > 0) {
     try {
-      jobWorker = await startJobWorker({ databaseUrl: opts.databaseUrl, concurrency: workers, settings: jobSettings, logger, pollIntervalMs: opts.jobs?.pollIntervalMs });
+      jobWorker = await startJobWorker({
+        databaseUrl: opts.databaseUrl,
+        concurrency: workers,
+        settings: jobSettings,
+        logger,
+        pollIntervalMs: opts.jobs?.pollIntervalMs,
+        mailer,
+        publicUrl: () => config.publicUrl ?? '',
+      });
     } catch (e) {
       // the database is down: the server still answers; jobs wait in the queue for a worker (restart, or `npm run worker`)
       logger.error(`The job worker could not start (${e instanceof Error ? e.message : String(e)}); jobs wait until one runs.`);

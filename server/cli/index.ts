@@ -7,6 +7,7 @@ const commands: Record<string, { file: string; summary: string }> = {
   mesh: { file: './mesh', summary: 'build a graded tetrahedral mesh and write it as .vtu, .vtk or binary' },
   coulomb: { file: './coulomb', summary: 'solve for on-site U and inter-site V with P1 or P2 elements' },
   convergence: { file: './convergence', summary: 'convergence sweep over refinement levels or enclosure sizes' },
+  submit: { file: './submit', summary: 'remote mode: store a design on a server, start a job, follow it, download the result' },
 };
 
 function usage(): string {

@@ -327,3 +327,10 @@ export const apiTokenSchema = z.object({
 });
 export const apiTokenListSchema = z.object({ tokens: z.array(apiTokenSchema) });
 export const apiTokenCreatedSchema = z.object({ token: apiTokenSchema, secret: z.string() });
+export type ApiToken = z.infer<typeof apiTokenSchema>;
+export type ApiTokenCreated = z.infer<typeof apiTokenCreatedSchema>;
+
+// ---------- account notifications ----------
+/** `jobMail`: e-mail me when a job I started ran longer than a minute and then finished or failed */
+export const accountNotificationsSchema = z.object({ jobMail: z.boolean() }).strict();
+export type AccountNotifications = z.infer<typeof accountNotificationsSchema>;

@@ -9,6 +9,8 @@ export interface JobSettings extends QueueSettings {
   storageQuotaBytes: number;
   /** bytes of the original file per stored piece (server/jobs/storage.ts) */
   chunkBytes: number;
+  /** a job that ran at least this long e-mails its starter when it ends (server/jobs/notify.ts) */
+  notifyAfterSeconds: number;
 }
 
 export const DEFAULT_JOB_SETTINGS: JobSettings = {
@@ -17,6 +19,8 @@ export const DEFAULT_JOB_SETTINGS: JobSettings = {
   maxActivePerProject: 4,
   storageQuotaBytes: 2 * 1024 ** 3,
   chunkBytes: CHUNK_BYTES,
+  // issue 10: "a job that ran longer than a minute"
+  notifyAfterSeconds: 60,
 };
 
 export const mib = (bytes: number): string => `${(bytes / 1024 ** 2).toFixed(1)} MiB`;

@@ -35,6 +35,8 @@ import { jobThreads, type JobThreads } from './threads';
 import { optionsKey } from './options';
 import { softwareVersion } from './software';
 import { storedSize } from './storage';
+import { jobNotifier } from './notify';
+import type { Mailer } from '../mail/mailer';
 
 export interface JobWorkerOptions {
   databaseUrl: string;
@@ -44,6 +46,10 @@ export interface JobWorkerOptions {
   logger: Logger;
   /** how often an idle worker asks the queue for work, and a running job checks for a cancel (ms) */
   pollIntervalMs?: number;
+  /** sends the job e-mails (server/jobs/notify.ts); none are sent without it */
+  mailer?: Mailer;
+  /** base of the links in those e-mails */
+  publicUrl?: () => string;
 }
 
 export interface JobWorker {
@@ -73,6 +79,8 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
   const boss: PgBoss = await startBoss(opts.databaseUrl, settings, logger);
   const threads: JobThreads = jobThreads(concurrency);
   const software = softwareVersion();
+  const mailer = opts.mailer;
+  const notifier = mailer ? jobNotifier({ knex, mailer, publicUrl: opts.publicUrl ?? (() => ''), notifyAfterSeconds: settings.notifyAfterSeconds, logger }) : null;
 
   let active = 0;
   let stopped = false;
@@ -235,6 +243,7 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
         if (!got) break;
         active++;
         const p = handle(got.kind, got.job)
+          .then(() => notifier?.afterJob(got.job.data.jobId))
           .catch((e: unknown) => logger.error(`job ${got.job.data.jobId}: ${words(e)}`))
           .finally(() => {
             active--;

@@ -86,3 +86,33 @@ export function signUpAttemptMail(p: { signInLink: string; resetLink: string; di
     ].join('\n'),
   };
 }
+
+/** A long job ended (issue 10): sent to the person who started it when their job-mail switch is on. */
+export function jobEndedMail(p: {
+  displayName: string;
+  jobId: number;
+  kind: string;
+  designName: string;
+  designVersion: number;
+  state: 'succeeded' | 'failed';
+  error: string | null;
+  seconds: number;
+  link: string;
+}) {
+  const took = p.seconds >= 120 ? `${(p.seconds / 60).toFixed(1)} min` : `${Math.round(p.seconds)} s`;
+  return {
+    subject: p.state === 'succeeded' ? `Tetrawell job ${p.jobId} finished (${p.kind})` : `Tetrawell job ${p.jobId} failed (${p.kind})`,
+    text: [
+      `Hello ${p.displayName},`,
+      '',
+      p.state === 'succeeded'
+        ? `Your ${p.kind} job ${p.jobId} on "${p.designName}" (version ${p.designVersion}) finished after ${took}.`
+        : `Your ${p.kind} job ${p.jobId} on "${p.designName}" (version ${p.designVersion}) failed after ${took}: ${p.error ?? 'no reason was recorded'}`,
+      'See it here:',
+      p.link,
+      '',
+      'Computed figures are estimates from the model; confirm them with your group\'s own validated methods before a fabrication or design decision.',
+      'You get this e-mail because job e-mails are switched on in your account settings; switch them off there.',
+    ].join('\n'),
+  };
+}

@@ -2,7 +2,7 @@
 import type { RouteModule } from './context';
 import { healthRoutes } from './health';
 import { authRoutes } from './auth';
-import { accountRoutes } from './account';
+import { accountRoutes, apiTokenRoutes } from './account';
 import { projectRoutes } from './projects';
 import { memberRoutes } from './members';
 import { invitationRoutes } from './invitations';
@@ -15,6 +15,7 @@ export const routeModules: RouteModule[] = [
   healthRoutes,
   authRoutes,
   accountRoutes,
+  apiTokenRoutes,
   projectRoutes,
   memberRoutes,
   invitationRoutes,

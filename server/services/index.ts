@@ -9,6 +9,7 @@ import { designService } from './designs';
 import { auditService } from './audit';
 import { adminService } from './admin';
 import { jobService, type JobDeps } from './jobs';
+import { apiTokenService, notificationService } from './apiTokens';
 
 export function createServices(deps: ServiceDeps, jobDeps: JobDeps) {
   const designs = designService(deps);
@@ -22,6 +23,8 @@ export function createServices(deps: ServiceDeps, jobDeps: JobDeps) {
     audit: auditService(deps),
     admin: adminService(deps),
     jobs: jobService(deps, jobDeps),
+    apiTokens: apiTokenService(deps),
+    notifications: notificationService(deps),
   };
 }
 export type Services = ReturnType<typeof createServices>;

@@ -10,9 +10,13 @@
  * Each case builds its own project (owner, editor, viewer and a spare "target" member plus
  * an open invitation) so destructive routes do not disturb other cases.
  */
+import { randomBytes } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { can, type Capability, type ProjectRole } from '@contracts/roles';
 import {
+  accountNotificationsSchema,
+  apiTokenCreatedSchema,
+  apiTokenListSchema,
   auditListSchema,
   capturedMailListSchema,
   csrfResponseSchema,
@@ -57,6 +61,7 @@ import { emptyDesign } from '../../server/services/designs';
 import { jobsRepo } from '../../server/repositories/jobs';
 import { revisionsRepo } from '../../server/repositories/revisions';
 import { packFile } from '../../server/jobs/storage';
+import { apiTokensRepo } from '../../server/repositories/apiTokens';
 
 type Who = 'signed out' | ProjectRole;
 const WHO: Who[] = ['signed out', 'viewer', 'editor', 'owner'];
@@ -81,6 +86,8 @@ interface Fixture {
   /** a succeeded job and its revision (with a results.json) */
   doneJobId: number;
   revisionId: number;
+  /** a personal API token of the acting user (1 when signed out) */
+  apiTokenId: number;
 }
 
 interface RouteCase {
@@ -93,7 +100,7 @@ interface RouteCase {
   /** send this file as multipart/form-data field `file` instead of a JSON body */
   file?: { name: string; content: string };
   /** extra set-up the case needs (kept out of the other cases) */
-  needs?: { ownInvite?: boolean; reset?: boolean; openInvitation?: boolean; verify?: boolean };
+  needs?: { ownInvite?: boolean; reset?: boolean; openInvitation?: boolean; verify?: boolean; apiToken?: boolean };
   /** the contract the success body must match (server/contracts/api.ts) */
   schema?: z.ZodType;
   /** undo after the call so the shared role users stay usable */
@@ -178,6 +185,34 @@ const ROUTES: RouteCase[] = [
     after: async (c) => {
       if (c.user) await c.post('/api/account/password', { currentPassword: 'temporary-passphrase-1', newPassword: TEST_PASSWORD });
     },
+  },
+  { method: 'get', path: '/account/notifications', rule: { kind: 'user' }, success: 200, url: () => '/api/account/notifications', schema: accountNotificationsSchema },
+  {
+    method: 'put',
+    path: '/account/notifications',
+    rule: { kind: 'user' },
+    success: 200,
+    url: () => '/api/account/notifications',
+    schema: accountNotificationsSchema,
+    body: () => ({ jobMail: true }),
+  },
+  { method: 'get', path: '/account/tokens', rule: { kind: 'user' }, success: 200, url: () => '/api/account/tokens', schema: apiTokenListSchema },
+  {
+    method: 'post',
+    path: '/account/tokens',
+    rule: { kind: 'user' },
+    success: 201,
+    url: () => '/api/account/tokens',
+    schema: apiTokenCreatedSchema,
+    body: () => ({ name: 'Matrix token' }),
+  },
+  {
+    method: 'delete',
+    path: '/account/tokens/:tokenId',
+    rule: { kind: 'user' },
+    success: 204,
+    url: (f) => `/api/account/tokens/${f.apiTokenId}`,
+    needs: { apiToken: true },
   },
   { method: 'get', path: '/projects', rule: { kind: 'user' }, success: 200, url: () => '/api/projects', schema: projectListSchema },
   { method: 'post', path: '/projects', rule: { kind: 'user' }, success: 201, url: () => '/api/projects', body: () => ({ name: 'Matrix extra' }), schema: projectSchema },
@@ -430,7 +465,11 @@ async function buildFixture(route: RouteCase, who: Who): Promise<Fixture> {
   });
   const doneJobId = await jobsRepo(env.knex).insert({ ...common, kind: 'mesh', options: { order: 2 }, state: 'succeeded', progress: { phase: 'done', fraction: 1 }, revisionId, finished: true });
   const jobId = await jobsRepo(env.knex).insert({ ...common, kind: 'coulomb', options: { order: 2, adaptive: false }, state: 'queued', progress: { phase: 'queued', fraction: 0 } });
-  return { projectId, designId, users: roleUsers, invitationId, ownInviteToken, resetToken, verifyToken, jobId, doneJobId, revisionId };
+  let apiTokenId = 1;
+  if (route.needs?.apiToken && who !== 'signed out') {
+    apiTokenId = (await apiTokensRepo(env.knex).insert({ userId: roleUsers[who].user.id, name: 'Matrix', secretHash: randomBytes(32).toString('hex'), prefix: 'twk_matrix' })).id;
+  }
+  return { projectId, designId, users: roleUsers, invitationId, ownInviteToken, resetToken, verifyToken, jobId, doneJobId, revisionId, apiTokenId };
 }
 
 describe('role-by-route matrix', () => {

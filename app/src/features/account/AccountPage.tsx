@@ -10,6 +10,7 @@ import { FIELDS_SUMMARY, formErrorsFromError, validateWith } from '../../lib/for
 import { useMe } from '../auth/me';
 import { useChangePassword } from './changePassword';
 import { useUpdateAccount } from './updateAccount';
+import { ApiTokensSection, NotificationsSection } from './ScriptedUseSections';
 
 const NAME_FIELDS = ['displayName'] as const;
 const PASSWORD_FIELDS = ['currentPassword', 'newPassword', 'repeatPassword'] as const;
@@ -111,6 +112,12 @@ export function AccountPage() {
         </Panel>
         <Panel title="Password">
           <PasswordForm />
+        </Panel>
+        <Panel title="Job e-mails">
+          <NotificationsSection />
+        </Panel>
+        <Panel title="API tokens">
+          <ApiTokensSection />
         </Panel>
       </div>
     </>
