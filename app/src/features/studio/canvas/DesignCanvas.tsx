@@ -582,7 +582,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
   const c = doc.enclosure.center;
 
   return (
-    <div ref={wrapper} role="region" aria-label="Design canvas" className="relative h-full min-h-[420px] overflow-hidden rounded-md bg-wafer-950" onPointerDown={onPointerDown}>
+    <div ref={wrapper} role="region" aria-label="Design canvas" className="relative h-full min-h-[320px] lg:min-h-0 overflow-hidden rounded-md bg-wafer-950" onPointerDown={onPointerDown}>
       <Canvas
         frameloop="demand"
         camera={{ position: [c[0] + initialDist * 0.55, c[1] - initialDist * 0.75, c[2] + initialDist * 0.6], up: [0, 0, 1], fov: 40, near: 0.01, far: 1e5 }}
