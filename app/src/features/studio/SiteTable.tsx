@@ -171,7 +171,7 @@ function OrbitalCell({ row, readOnly }: { row: SiteRow; readOnly: boolean }) {
         <span
           role="group"
           aria-label={`Orbital of site ${id}`}
-          className="absolute right-0 top-full z-20 mt-0.5 block w-72 space-y-1.5 rounded-md border border-wafer-300 bg-white p-2 text-note shadow-lg"
+          className="absolute right-0 top-full z-20 mt-0.5 block w-72 space-y-1.5 whitespace-normal rounded-md border border-wafer-300 bg-white p-2 text-note shadow-lg"
           onKeyDown={(e) => {
             e.stopPropagation();
             if (e.key === 'Enter') apply();
