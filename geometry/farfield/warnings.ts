@@ -13,6 +13,11 @@ export function describeBoundary(b: Boundary): string {
   return b.kind === 'grounded' ? 'grounded' : `multipole(order ${b.order})`;
 }
 
+/** The boundary in running text: "grounded boundary", "multipole boundary (order 2)". */
+export function boundaryPhrase(b: Boundary): string {
+  return b.kind === 'grounded' ? 'grounded boundary' : `multipole boundary (order ${b.order})`;
+}
+
 const pct = (x: number) => `${(100 * x).toPrecision(3)}%`;
 
 export function pairsLimitedWarning(n: number): FarFieldWarning {
@@ -67,7 +72,7 @@ export function findingsWarnings(f: Findings): FarFieldWarning[] {
     warnings.push({
       code: 'boundary-too-close',
       severity: 'warning',
-      message: `The ${describeBoundary(boundary)} boundary is too close for the tolerance: the worst bound is ${pct(worst)} against a target of ${pct(tol)}. Half-extents of at least ${fmt(rec)} nm meet it${boundary.kind === 'grounded' ? '; a multipole boundary needs a far smaller box' : ''}.`,
+      message: `The ${boundaryPhrase(boundary)} is too close for the tolerance: the worst bound is ${pct(worst)} against a target of ${pct(tol)}. Half-extents of at least ${fmt(rec)} nm meet it${boundary.kind === 'grounded' ? '; a multipole boundary needs a far smaller box' : ''}.`,
       siteIds: uniq(f.tooClose),
     });
   if (f.cut.length)

@@ -164,6 +164,8 @@ export const designSummarySchema = z.object({
   updatedBy: z.string().nullable(),
   /** worst relative boundary bound (U or V) of the far-field check, computed at save; null with no sites */
   worstRelBound: z.number().nullable(),
+  /** the design's target relative error (document refinement.targetRelError), to compare with worstRelBound; null only for a stored document without it */
+  targetRelError: z.number().nullable(),
 });
 export type DesignSummary = z.infer<typeof designSummarySchema>;
 export const designListSchema = z.object({ designs: z.array(designSummarySchema) });

@@ -24,7 +24,10 @@ export interface DesignRecord {
   updatedBy: string | null;
 }
 
-export type DesignSummaryRecord = Omit<DesignRecord, 'document' | 'projectId'>;
+export type DesignSummaryRecord = Omit<DesignRecord, 'document' | 'projectId'> & {
+  /** the document's refinement.targetRelError, read in the database so the list never loads documents; null when absent */
+  targetRelError: number | null;
+};
 
 export interface DesignVersionRecord {
   version: number;
@@ -94,10 +97,14 @@ export function designsRepo(db: Db) {
   const repo = {
     /** the project's designs, oldest first (the project's starting design leads) */
     async listForProject(projectId: number): Promise<DesignSummaryRecord[]> {
-      const rows = (await base().select(SUMMARY_COLUMNS).where('d.project_id', projectId).orderBy('d.id')) as DesignRow[];
+      const rows = (await base()
+        .select([...SUMMARY_COLUMNS, db.raw(`(d.document #>> '{refinement,targetRelError}')::float8 as target_rel_error`)])
+        .where('d.project_id', projectId)
+        .orderBy('d.id')) as (DesignRow & { target_rel_error: number | string | null })[];
       return rows.map((r) => {
         const { document: _d, projectId: _p, ...rest } = toDesign(r);
-        return rest;
+        const t = r.target_rel_error === null ? null : Number(r.target_rel_error);
+        return { ...rest, targetRelError: t !== null && Number.isFinite(t) ? t : null };
       });
     },
 

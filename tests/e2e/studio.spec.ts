@@ -301,6 +301,8 @@ test('a CSV with one bad row shows that row\'s line number and changes nothing; 
   await page.getByRole('button', { name: 'Check the file' }).click();
   const problems = page.getByRole('list', { name: 'Problems in the file' });
   await expect(problems).toContainText('line 4');
+  // the problem list is where the user looks, not scrolled out of view
+  await expect(problems).toBeInViewport();
   await expect(problems.getByRole('listitem')).toHaveCount(1);
   await expect(page.getByRole('button', { name: 'Use these sites' })).toHaveCount(0);
   await expect(sitesTable(page).getByRole('row')).toHaveCount(1);

@@ -102,6 +102,28 @@ describe('create', () => {
     expect(audit.at(-1)).toMatchObject({ designId: d.id, name: 'Pair at 8a', sites: 2 });
   });
 
+  it('the list carries each design\'s targetRelError (from its document), so the table can mark a bound above target', async () => {
+    const { owner, base } = await project('dz-target');
+    const loose = { ...twoDonors('Loose'), refinement: { ...twoDonors('x').refinement, targetRelError: 0.25 } };
+    const tight = { ...twoDonors('Tight'), refinement: { ...twoDonors('x').refinement, targetRelError: 1e-6 } };
+    const a = designResponseSchema.parse((await owner.client.post(base, { name: 'Loose', document: loose })).body).design;
+    const b = designResponseSchema.parse((await owner.client.post(base, { name: 'Tight', document: tight })).body).design;
+    const rows = designListSchema.parse((await owner.client.get(base)).body).designs;
+    const ra = rows.find((x) => x.id === a.id)!;
+    const rb = rows.find((x) => x.id === b.id)!;
+    expect(ra.targetRelError).toBe(0.25);
+    expect(rb.targetRelError).toBe(1e-6);
+    // the same box and sites give the same bound; only the tight target is missed
+    expect(ra.worstRelBound).toBe(rb.worstRelBound);
+    expect(rb.worstRelBound!).toBeGreaterThan(rb.targetRelError!);
+    expect(ra.worstRelBound!).toBeLessThan(ra.targetRelError!);
+    // a save with a new target shows in the list
+    const put = await owner.client.put(`${base}/${a.id}`, { document: { ...loose, name: 'Loose', refinement: { ...loose.refinement, targetRelError: 0.01 } }, version: a.version });
+    expect(put.status).toBe(200);
+    const after = designListSchema.parse((await owner.client.get(base)).body).designs.find((x) => x.id === a.id)!;
+    expect(after.targetRelError).toBe(0.01);
+  });
+
   it('as a copy of another design of the project', async () => {
     const { owner, base } = await project('dz-copy');
     const src = designResponseSchema.parse((await owner.client.post(base, { name: 'Original', document: twoDonors('x') })).body).design;

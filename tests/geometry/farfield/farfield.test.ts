@@ -172,6 +172,16 @@ describe('far-field check', () => {
       expect(r.warnings.map((w) => w.code)).toContain('boundary-too-close');
     }
   });
+  it('the boundary-too-close words name the boundary in plain English (common practice: wording, not a number)', () => {
+    const one: Design['sites'] = [{ id: 'd1', species: 'P', position: [0, 0, 0], electrons: 1 }];
+    const mp = farFieldCheck(design(one, [5, 5, 5], { kind: 'multipole', order: 2 }));
+    const wmp = mp.warnings.find((w) => w.code === 'boundary-too-close');
+    expect(wmp?.message).toMatch(/^The multipole boundary \(order 2\) is too close/);
+    const gr = farFieldCheck(design(one, [5, 5, 5], { kind: 'grounded' }));
+    expect(gr.warnings.find((w) => w.code === 'boundary-too-close')?.message).toMatch(/^The grounded boundary is too close/);
+    // the JSON field keeps its compact form (the CLI's --json contract)
+    expect(mp.boundary).toBe('multipole(order 2)');
+  });
   it('the recommended half-extents meet the tolerance (bound and density cut) and 1% less does not (monotone search)', () => {
     const sites: Design['sites'] = [
       { id: 'a', species: 'P', position: [-3.258612, 0, 0], electrons: 1 },

@@ -37,19 +37,19 @@ const NO_DESIGNS: DesignSummary[] = [];
 export const designPath = (projectId: number, designId: number) => `/projects/${projectId}/designs/${designId}`;
 
 function BoundCell({ d }: { d: DesignSummary }) {
-  const state = boundState(d.worstRelBound);
+  const state = boundState(d.worstRelBound, d.targetRelError);
   if (state === 'none') {
     return <span className="text-wafer-500">{d.siteCount === 0 ? 'no sites' : 'not computed'}</span>;
   }
   const figure = formatBound(d.worstRelBound!);
   if (state === 'above') {
     return (
-      <span className="inline-flex items-center gap-1 font-semibold text-ember-800">
+      <span className="inline-flex items-center gap-1 font-semibold text-ember-800" title={`Above the design’s target of ${formatBound(d.targetRelError!)}`}>
         <svg aria-hidden="true" viewBox="0 0 12 12" className="h-3 w-3 fill-ember-600">
           <path d="M6 0.8 L11.4 10.8 H0.6 Z" />
         </svg>
         {figure}
-        <span className="sr-only"> (above the design’s target)</span>
+        <span className="sr-only"> (above the design’s target of {formatBound(d.targetRelError!)})</span>
       </span>
     );
   }

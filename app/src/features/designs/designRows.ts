@@ -20,8 +20,8 @@ export function formatBound(rel: number): string {
 export type BoundState = 'none' | 'unknown-target' | 'within' | 'above';
 
 /**
- * Where the bound stands against the design's target relative error. Without a target (the list
- * does not carry the document) the figure is shown alone; without a bound there is nothing to say.
+ * Where the bound stands against the design's target relative error (the list's targetRelError).
+ * Without a target the figure is shown alone; without a bound there is nothing to say.
  */
 export function boundState(rel: number | null, target?: number | null): BoundState {
   if (rel === null || !Number.isFinite(rel)) return 'none';

@@ -3,7 +3,7 @@
  * or design JSON) and writes nothing; here the modeller sees every row's problem with its line
  * number, and puts the sites in only when the file is clean and they accept (one undoable edit).
  */
-import { useState } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import type { DesignImportResponse } from '@contracts/api';
 import { Button } from '../../components/Button';
 import { useEditorStore } from './editorContext';
@@ -15,6 +15,14 @@ export function ImportPanel({ projectId, designId }: { projectId: number; design
   const [file, setFile] = useState<File | null>(null);
   const [preview, setPreview] = useState<DesignImportResponse | null>(null);
   const [done, setDone] = useState<string | null>(null);
+  // The panel sits low in the scrolling Build column: bring the preview (and its list of problem
+  // lines) into view when it appears, and move focus there so a screen reader reads it too.
+  const previewRef = useRef<HTMLDivElement>(null);
+  useEffect(() => {
+    if (!preview || !previewRef.current) return;
+    previewRef.current.scrollIntoView({ block: 'nearest' });
+    previewRef.current.focus({ preventScroll: true });
+  }, [preview]);
 
   const check = () => {
     if (!file) return;
@@ -53,7 +61,7 @@ export function ImportPanel({ projectId, designId }: { projectId: number; design
         </p>
       )}
       {preview && (
-        <div aria-label="Import preview" role="group" className="space-y-1.5 rounded border border-wafer-200 bg-wafer-50 p-2">
+        <div ref={previewRef} tabIndex={-1} aria-label="Import preview" role="group" className="scroll-my-2 space-y-1.5 rounded border border-wafer-200 bg-wafer-50 p-2">
           <p>
             {preview.sites.length} site{preview.sites.length === 1 ? '' : 's'} read{preview.errors.length > 0 ? `, ${preview.errors.length} row${preview.errors.length === 1 ? '' : 's'} with problems` : ', no problems'}.
           </p>

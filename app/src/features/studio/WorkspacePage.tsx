@@ -271,7 +271,7 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, autosave, s
   const sitesTotal = useMemo(() => doc.sites.length, [doc.sites]);
 
   return (
-    <div className="flex min-h-[calc(100vh-4rem)] flex-col bg-wafer-100">
+    <div className="flex min-h-0 flex-1 flex-col overflow-y-auto bg-wafer-100 lg:overflow-hidden">
       <div className="flex flex-wrap items-center gap-x-4 gap-y-1 border-b border-wafer-200 bg-white px-4 py-2">
         <nav aria-label="Breadcrumb" className="text-note">
           <Link to={`/projects/${projectId}`} className="font-semibold text-phosphor-700 hover:underline">
@@ -350,9 +350,9 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, autosave, s
         </section>
       )}
 
-      <div className="grid flex-1 grid-cols-1 gap-2 p-2 lg:grid-cols-[17rem_minmax(0,1fr)_24rem]">
+      <div className="grid grid-cols-1 gap-2 p-2 lg:min-h-0 lg:flex-1 lg:grid-cols-[17rem_minmax(0,1fr)_24rem] lg:grid-rows-[minmax(0,3fr)_minmax(0,2fr)]">
         {!readOnly ? (
-          <aside aria-label="Build" className="order-2 space-y-3 overflow-y-auto rounded-md bg-white p-3 lg:order-1 lg:max-h-[calc(100vh-6rem)]">
+          <aside aria-label="Build" className="order-2 space-y-3 overflow-y-auto rounded-md border border-wafer-200 bg-white p-3 lg:order-1 lg:row-span-2 lg:min-h-0">
             <section aria-label="Tools" className="space-y-1.5">
               <h2 className="text-fine font-bold uppercase tracking-wider text-wafer-500">Tools</h2>
               <div role="radiogroup" aria-label="Tool" className="flex flex-wrap gap-1">
@@ -401,13 +401,13 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, autosave, s
             </section>
           </aside>
         ) : (
-          <aside aria-label="About this view" className="order-2 rounded-md bg-white p-3 text-note text-wafer-700 lg:order-1">
+          <aside aria-label="About this view" className="order-2 rounded-md border border-wafer-200 bg-white p-3 text-note text-wafer-700 lg:order-1 lg:row-span-2">
             <p>You are a viewer of this project: everything here is read-only. Downloads are under “Download”.</p>
           </aside>
         )}
 
-        <div className="order-1 flex min-w-0 flex-col gap-2 lg:order-2">
-          <div className="relative h-[58vh] min-h-[420px]">
+        <div className="order-1 flex min-w-0 flex-col gap-2 lg:order-2 lg:min-h-0">
+          <div className="relative h-[58vh] min-h-[420px] lg:h-full lg:min-h-0">
             <Suspense fallback={<Loading label="Loading the 3D canvas…" />}>
               <DesignCanvas
                 document={shown}
@@ -433,8 +433,8 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, autosave, s
           </div>
         </div>
 
-        <div className="order-4 min-w-0 lg:col-span-2">
-          <div className="h-80">
+        <div className="order-4 flex min-w-0 flex-col lg:col-start-2 lg:row-start-2 lg:min-h-0">
+          <div className="h-80 lg:h-auto lg:min-h-0 lg:flex-1">
             <SiteTable readOnly={readOnly} />
           </div>
           <p className="mt-1 text-fine text-wafer-600">
@@ -442,7 +442,7 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, autosave, s
           </p>
         </div>
 
-        <aside aria-label="Checks and settings" className="order-3 space-y-3 overflow-y-auto rounded-md bg-white p-3 lg:col-start-3 lg:row-span-2 lg:row-start-1 lg:max-h-[calc(100vh-4rem)]">
+        <aside aria-label="Checks and settings" className="order-3 space-y-3 overflow-y-auto rounded-md border border-wafer-200 bg-white p-3 lg:col-start-3 lg:row-span-2 lg:row-start-1 lg:min-h-0">
           <FarFieldPanel
             report={farField.report}
             computing={farField.computing}

@@ -12,6 +12,7 @@
  *  - `window.__tetrawellCanvasStats`: draw calls and triangles of the last frame (renderer's own
  *    counters), recent frame times, instances per species — read by the browser tests.
  */
+import { ringSegments } from './markerDetail';
 import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, type MutableRefObject } from 'react';
 import { Canvas, useFrame, useThree, type ThreeEvent } from '@react-three/fiber';
 import { Html, OrbitControls, TransformControls } from '@react-three/drei';
@@ -109,7 +110,7 @@ function SpeciesInstances({ species, sites, unit, selected, onPick }: { species:
   );
 }
 
-/** Rings around the sites that far-field warnings name (one draw call). */
+/** Rings around the sites that far-field warnings name (one instanced mesh, one draw call; coarser when many). */
 function WarnedSites({ positions, radius }: { positions: number[][]; radius: number }) {
   const ref = useRef<THREE.InstancedMesh>(null);
   useLayoutEffect(() => {
@@ -120,9 +121,10 @@ function WarnedSites({ positions, radius }: { positions: number[][]; radius: num
     mesh.computeBoundingSphere();
   }, [positions, radius]);
   if (positions.length === 0) return null;
+  const seg = ringSegments(positions.length);
   return (
-    <instancedMesh key={positions.length} ref={ref} args={[undefined, undefined, positions.length]} raycast={() => null}>
-      <torusGeometry args={[1, 0.08, 8, 32]} />
+    <instancedMesh key={positions.length} ref={ref} name="warning-rings" args={[undefined, undefined, positions.length]} raycast={() => null}>
+      <torusGeometry args={[1, seg.radial > 3 ? 0.08 : 0.12, seg.radial, seg.tubular]} />
       <meshBasicMaterial color={WARNING_CSS} />
     </instancedMesh>
   );
@@ -580,7 +582,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
   const c = doc.enclosure.center;
 
   return (
-    <div ref={wrapper} role="region" aria-label="Design canvas" className="relative h-full min-h-[420px] overflow-hidden rounded-md bg-wafer-950" onPointerDown={onPointerDown}>
+    <div ref={wrapper} role="region" aria-label="Design canvas" className="relative h-full min-h-[320px] lg:min-h-0 overflow-hidden rounded-md bg-wafer-950" onPointerDown={onPointerDown}>
       <Canvas
         frameloop="demand"
         camera={{ position: [c[0] + initialDist * 0.55, c[1] - initialDist * 0.75, c[2] + initialDist * 0.6], up: [0, 0, 1], fov: 40, near: 0.01, far: 1e5 }}

@@ -1,0 +1,22 @@
+/**
+ * Warning rings at large counts: the triangle count per ring is checked against three.js's own
+ * TorusGeometry (the reference library the canvas draws with), and the budget for 10,000 warned
+ * sites (under a million triangles for the rings) is common practice for software WebGL.
+ */
+import { describe, expect, it } from 'vitest';
+import { TorusGeometry } from 'three';
+import { RING_COARSE_ABOVE, ringSegments, torusTriangles } from '../../app/src/features/studio/canvas/markerDetail';
+
+describe('warning ring detail', () => {
+  it('counts triangles as three.js builds them', () => {
+    for (const n of [10, 10_000]) {
+      const seg = ringSegments(n);
+      const g = new TorusGeometry(1, 0.1, seg.radial, seg.tubular);
+      expect(g.index!.count / 3).toBe(torusTriangles(seg));
+    }
+  });
+  it('keeps 10,000 rings under a million triangles and few rings smooth', () => {
+    expect(10_000 * torusTriangles(ringSegments(10_000))).toBeLessThan(1_000_000);
+    expect(torusTriangles(ringSegments(RING_COARSE_ABOVE))).toBeGreaterThanOrEqual(256);
+  });
+});
