@@ -20,6 +20,7 @@ import { revisionFileHref } from './revisionFile';
 import { useStartJob } from './startJob';
 import { coulombSummarySchema, convergenceSummarySchema, KIND_LABEL, meshSummarySchema, optionsText } from './summaries';
 
+const MeshViewer = lazy(() => import('./MeshViewer'));
 const ConvergenceResults = lazy(() => import('./ConvergencePlot').then((m) => ({ default: m.ConvergenceResults })));
 
 export interface RunsSectionProps {
@@ -134,13 +135,18 @@ function RevisionResults({ projectId, revisionId }: { projectId: number; revisio
   } else {
     const s = meshSummarySchema.safeParse(r.summary);
     body = s.success ? (
-      <dl className="num grid grid-cols-2 gap-x-4 gap-y-0.5 text-note md:grid-cols-3">
+      <div className="space-y-2">
+            <dl className="num grid grid-cols-2 gap-x-4 gap-y-0.5 text-note md:grid-cols-3">
         <div><dt className="text-fine text-wafer-600">Vertices</dt><dd>{s.data.vertices.toLocaleString('en-US')}</dd></div>
         <div><dt className="text-fine text-wafer-600">Tetrahedra</dt><dd>{s.data.tets.toLocaleString('en-US')}</dd></div>
         <div><dt className="text-fine text-wafer-600">P2 nodes</dt><dd>{s.data.p2Nodes.toLocaleString('en-US')}</dd></div>
         <div><dt className="text-fine text-wafer-600">Dihedral angles (degrees)</dt><dd>{s.data.minDihedralDeg.toFixed(1)}° to {s.data.maxDihedralDeg.toFixed(1)}°</dd></div>
         <div><dt className="text-fine text-wafer-600">Volume (nm³)</dt><dd>{s.data.volumeNm3.toPrecision(4)} nm³</dd></div>
       </dl>
+      <Suspense fallback={<Loading label="Loading the mesh viewer…" />}>
+        <MeshViewer projectId={projectId} revisionId={r.id} />
+      </Suspense>
+      </div>
     ) : (
       <p className="text-note text-garnet-700">This mesh summary is in a shape this page does not know.</p>
     );
