@@ -98,6 +98,20 @@ test('build a mesh, solve U and V like the CLI, download the .vtu; a viewer cann
   await jobRow(page, /^Mesh/).getByRole('button', { name: 'Show results' }).click();
   const meshResults = runs(page).getByRole('region', { name: /Results of revision/ });
   await expect(meshResults).toContainText('Tetrahedra');
+  // the viewer: elements cut by the plane; moving the plane to the box edge (12 nm, the fixture's half-extent) cuts fewer
+  const cutText = meshResults.getByText(/tetrahedra cut by the plane/);
+  await expect(cutText).toContainText('x = 0.00 nm', { timeout: 30_000 });
+  const cutAt = async () => Number(/^([\d,]+) of/.exec((await cutText.textContent()) ?? '')![1].replace(/,/g, ''));
+  const centreCut = await cutAt();
+  expect(centreCut).toBeGreaterThan(0);
+  await meshResults.getByLabel('Plane position (nm)').fill('11');
+  await expect(cutText).toContainText('x = 11.00 nm');
+  // graded towards the donors (|x| ≈ 1.09 nm): fewer, larger elements near the wall than through the centre
+  expect(await cutAt()).toBeLessThan(centreCut);
+  await expect(meshResults.getByRole('img', { name: 'Colour bar' })).toBeVisible();
+  await meshResults.getByLabel('Plane position (nm)').fill('1');
+  await meshResults.scrollIntoViewIfNeeded();
+  await page.screenshot({ path: 'tests/artifacts/jobs-mesh-viewer.png', fullPage: true });
   const [download] = await Promise.all([page.waitForEvent('download'), meshResults.getByRole('link', { name: 'mesh.vtu' }).click()]);
   expect(download.suggestedFilename()).toMatch(/\.vtu$/);
   const vtu = readFileSync(await download.path(), 'utf8');

@@ -219,7 +219,7 @@ export function RunsSection({ projectId, designId, canRun, unsaved, estimate }: 
         <h2 className="text-lead font-bold">Server runs</h2>
         <p className="text-fine text-wafer-600">Meshes, U and V and convergence sweeps of the last saved version, computed by the server’s workers and stored as revisions.</p>
       </header>
-      <p className="num text-fine text-wafer-700">Element estimate: {estimate}</p>
+      <p className="num text-fine text-wafer-700">Element estimate for the recommended domain box (far-field check): {estimate}. The server estimates the saved box again before it queues a run and refuses one over the budget.</p>
       {canRun ? (
         <div className="space-y-1">
           <div role="group" aria-label="Start a run" className="flex flex-wrap gap-1.5">
