@@ -11,6 +11,7 @@ import { Loading } from '../../components/QueryState';
 import { ApiError } from '../../lib/api';
 import { formatDateTime } from '../../lib/format';
 import { useCancelJob } from './cancelJob';
+import { CompareRevisions } from './CompareRevisions';
 import { CoulombResults } from './CoulombTable';
 import { useRevision } from './getRevision';
 import { useJobEvents } from './jobEvents';
@@ -170,10 +171,13 @@ function RevisionResults({ projectId, revisionId }: { projectId: number; revisio
 
 function RevisionList({ projectId, designId, shown, onShow }: { projectId: number; designId: number; shown: number | null; onShow: (id: number) => void }) {
   const q = useRevisions(projectId, designId);
+  const [picked, setPicked] = useState<number[]>([]);
+  const toggle = (id: number) => setPicked((p) => (p.includes(id) ? p.filter((x) => x !== id) : [...p, id].slice(-2)));
   if (q.isPending) return <Loading label="Reading the revisions…" />;
   if (q.isError) return <p role="alert" className="text-note text-garnet-700">Could not list the revisions: {q.error.message}</p>;
   if (q.data.length === 0) return <p className="text-fine text-wafer-600">No stored results yet.</p>;
   return (
+    <div className="space-y-2">
     <table aria-label="Stored results" className="num w-full text-note">
       <thead>
         <tr className="border-b border-wafer-200 text-left">
@@ -182,6 +186,7 @@ function RevisionList({ projectId, designId, shown, onShow }: { projectId: numbe
           <th className="px-1.5 py-1">Design version</th>
           <th className="px-1.5 py-1">Computed</th>
           <th className="px-1.5 py-1">Files</th>
+          <th className="px-1.5 py-1">Compare</th>
         </tr>
       </thead>
       <tbody>
@@ -198,10 +203,15 @@ function RevisionList({ projectId, designId, shown, onShow }: { projectId: numbe
             <td className="px-1.5 py-0.5">
               <Downloads projectId={projectId} revision={r} />
             </td>
+            <td className="px-1.5 py-0.5">
+              <input type="checkbox" aria-label={`Compare revision ${r.id}`} checked={picked.includes(r.id)} onChange={() => toggle(r.id)} />
+            </td>
           </tr>
         ))}
       </tbody>
     </table>
+    {picked.length === 2 ? <CompareRevisions projectId={projectId} ids={[picked[0], picked[1]]} /> : <p className="text-fine text-wafer-600">Tick two revisions to see them side by side.</p>}
+    </div>
   );
 }
 
