@@ -121,6 +121,20 @@ test('build a mesh, solve U and V like the CLI, download the .vtu; a viewer cann
   const detail = (await (await page.request.get(`/api/projects/${projectId}/revisions/${meshRev.id}`)).json()) as { revision: { summary: { tets: number } } };
   expect(vtu).toContain(`NumberOfCells="${detail.revision.summary.tets}"`);
 
+  // --- the stored results list and two revisions side by side (same design content: the same hash on both sides)
+  await runs(page).locator('summary', { hasText: 'All stored results of this design' }).click();
+  const stored = runs(page).getByRole('table', { name: 'Stored results' });
+  await expect(stored.getByRole('checkbox')).toHaveCount(2);
+  await stored.getByRole('checkbox').nth(0).check();
+  await stored.getByRole('checkbox').nth(1).check();
+  const compare = runs(page).getByRole('table', { name: /beside revision/ });
+  const hashRow = compare.getByRole('row', { name: /sha256/ });
+  const hashes = await hashRow.getByRole('cell').allTextContents();
+  expect(hashes[0]).toMatch(/^[0-9a-f]{12}$/);
+  expect(hashes[1]).toBe(hashes[0]);
+  await compare.scrollIntoViewIfNeeded();
+  await page.screenshot({ path: 'tests/artifacts/jobs-compare.png', fullPage: true });
+
   // --- a viewer sees the runs but no start or cancel buttons, and the server refuses a start
   const viewerEmail = uniqueEmail('runs-viewer');
   const ctx = await browser.newContext();
