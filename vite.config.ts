@@ -26,6 +26,8 @@ export default defineConfig({
             // three.js, its React bindings and the editor's store and table libraries serve only the
             // design workspace (a lazy route): their own chunk, so no other page downloads them
             { name: 'workspace-libs', test: /node_modules[\\/](zundo|@tanstack[\\/](react-table|table-core|react-virtual|virtual-core)|delaunator|robust-predicates|three|three-stdlib|three-mesh-bvh|@react-three|troika-[^\\/]+|camera-controls|maath|meshline|stats-gl|@monogrid|hls\.js|suspend-react|its-fine|react-use-measure|zustand|detect-gpu|tunnel-rat|@use-gesture|bidi-js|webgl-sdf-generator|@mediapipe)[\\/]/, priority: 2 },
+            // the charting package and its d3 pieces serve only the workspace's run results
+            { name: 'charts', test: /node_modules[\\/](recharts|victory-vendor|d3-[^\\/]+|internmap|@reduxjs|redux|react-redux|redux-thunk|immer|reselect|decimal\.js-light|es-toolkit)[\\/]/, priority: 2 },
             { name: 'vendor', test: /node_modules[\\/]/, priority: 1 },
           ],
         },

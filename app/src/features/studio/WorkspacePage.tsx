@@ -19,6 +19,7 @@ import { EstimateNote } from '../../components/EstimateNote';
 import { Loading, QueryError } from '../../components/QueryState';
 import { ApiError } from '../../lib/api';
 import { formatDateTime } from '../../lib/format';
+import { RunsSection } from '../jobs/RunsSection';
 import { useProject } from '../projects/getProject';
 import type { Tool, ViewApi } from './canvas/DesignCanvas';
 import { createDesign } from './createDesign';
@@ -72,7 +73,7 @@ export default function WorkspacePage() {
   if (project.isPending || design.isPending) return <Loading label="Opening the design…" />;
   if (project.isError) return <QueryError error={project.error} what="the project" onRetry={() => void project.refetch()} />;
   if (design.isError) return <QueryError error={design.error} what="the design" onRetry={() => void design.refetch()} />;
-  return <Workspace key={designId} projectId={projectId} projectName={project.data.name} designId={designId} initial={design.data} readOnly={!project.data.capabilities.includes('design.edit')} />;
+  return <Workspace key={designId} projectId={projectId} projectName={project.data.name} designId={designId} initial={design.data} readOnly={!project.data.capabilities.includes('design.edit')} canRun={project.data.capabilities.includes('mesh.create')} />;
 }
 
 function SaveBadge({ state, dirty, readOnly }: { state: SaveState; dirty: boolean; readOnly: boolean }) {
@@ -134,12 +135,12 @@ function StaleChoice({ state, onReload, onCopy, busy }: { state: Extract<SaveSta
   );
 }
 
-function Workspace({ projectId, projectName, designId, initial, readOnly }: { projectId: number; projectName: string; designId: number; initial: { document: DesignDocument; version: number; updatedAt: string; updatedBy: string | null }; readOnly: boolean }) {
+function Workspace({ projectId, projectName, designId, initial, readOnly, canRun }: { projectId: number; projectName: string; designId: number; initial: { document: DesignDocument; version: number; updatedAt: string; updatedBy: string | null }; readOnly: boolean; canRun: boolean }) {
   const [store] = useState<EditorStore>(() => createEditorStore(initial.document));
   const autosave = useAutosave(store, projectId, designId, initial.version, initial.updatedAt, !readOnly);
   return (
     <EditorContext.Provider value={store}>
-      <WorkspaceBody projectId={projectId} projectName={projectName} designId={designId} readOnly={readOnly} autosave={autosave} store={store} />
+      <WorkspaceBody projectId={projectId} projectName={projectName} designId={designId} readOnly={readOnly} canRun={canRun} autosave={autosave} store={store} />
     </EditorContext.Provider>
   );
 }
@@ -156,11 +157,16 @@ function ViewButtons({ viewRef }: { viewRef: React.RefObject<ViewApi | null> }) 
   );
 }
 
+function elementsText(report: ReturnType<typeof useFarField>['report'], pending: boolean, budget: number): string {
+  if (!report || pending || report.elementsEstimate === null) return 'estimating…';
+  return `${report.elementsEstimateIsLowerBound ? 'more than' : 'about'} ${report.elementsEstimate.toLocaleString('en-US')} elements (budget ${budget.toLocaleString('en-US')} elements)`;
+}
+
 function isTyping(t: EventTarget | null): boolean {
   return t instanceof HTMLElement && (t.tagName === 'INPUT' || t.tagName === 'TEXTAREA' || t.tagName === 'SELECT' || t.isContentEditable);
 }
 
-function WorkspaceBody({ projectId, projectName, designId, readOnly, autosave, store }: { projectId: number; projectName: string; designId: number; readOnly: boolean; autosave: ReturnType<typeof useAutosave>; store: EditorStore }) {
+function WorkspaceBody({ projectId, projectName, designId, readOnly, canRun, autosave, store }: { projectId: number; projectName: string; designId: number; readOnly: boolean; canRun: boolean; autosave: ReturnType<typeof useAutosave>; store: EditorStore }) {
   const doc = useEditor((s) => s.document);
   const selection = useEditor((s) => s.selection);
   const history = useHistoryDepth();
@@ -271,7 +277,7 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, autosave, s
   const sitesTotal = useMemo(() => doc.sites.length, [doc.sites]);
 
   return (
-    <div className="flex min-h-0 flex-1 flex-col overflow-y-auto bg-wafer-100 lg:overflow-hidden">
+    <div className="flex min-h-0 flex-1 flex-col overflow-y-auto bg-wafer-100">
       <div className="flex flex-wrap items-center gap-x-4 gap-y-1 border-b border-wafer-200 bg-white px-4 py-2">
         <nav aria-label="Breadcrumb" className="text-note">
           <Link to={`/projects/${projectId}`} className="font-semibold text-phosphor-700 hover:underline">
@@ -350,7 +356,7 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, autosave, s
         </section>
       )}
 
-      <div className="grid grid-cols-1 gap-2 p-2 lg:min-h-0 lg:flex-1 lg:grid-cols-[17rem_minmax(0,1fr)_24rem] lg:grid-rows-[minmax(0,3fr)_minmax(0,2fr)]">
+      <div className="grid grid-cols-1 gap-2 p-2 lg:h-[calc(100vh-7.5rem)] lg:shrink-0 lg:grid-cols-[17rem_minmax(0,1fr)_24rem] lg:grid-rows-[minmax(0,3fr)_minmax(0,2fr)]">
         {!readOnly ? (
           <aside aria-label="Build" className="order-2 space-y-3 overflow-y-auto rounded-md border border-wafer-200 bg-white p-3 lg:order-1 lg:row-span-2 lg:min-h-0">
             <section aria-label="Tools" className="space-y-1.5">
@@ -459,6 +465,11 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, autosave, s
             <Assumptions />
           </div>
         </aside>
+      </div>
+
+      {/* below the editing grid, one scroll away: runs on the server and their results */}
+      <div className="min-w-0 p-2 pt-0">
+        <RunsSection projectId={projectId} designId={designId} canRun={canRun} unsaved={autosave.dirty || autosave.state.kind === 'saving' || autosave.state.kind === 'pending'} estimate={elementsText(farField.report, farField.elementsPending, doc.refinement.maxElements)} />
       </div>
     </div>
   );
