@@ -150,6 +150,34 @@ export function orbitalSizes(o: Orbital): number[] {
   return o.model === 'anisotropic-1s' ? [o.radiusNm, o.radiusZNm] : o.model === 'gaussian' ? [o.sigmaNm] : [o.radiusNm];
 }
 
+/** What the orbital-too-small / orbital-too-large warnings need, gathered site by site (check and session alike). */
+export interface OrbitalSizeFindings {
+  tooSmall: string[];
+  tooLarge: string[];
+  smallest: number;
+  largest: number;
+  minPlausible: number;
+}
+
+export function orbitalSizeFindings(latticeConstantNm: number): { findings: OrbitalSizeFindings; add(id: string, o: Orbital): void } {
+  const findings: OrbitalSizeFindings = { tooSmall: [], tooLarge: [], smallest: Infinity, largest: 0, minPlausible: ORBITAL_MIN_LATTICE_FRACTION * latticeConstantNm };
+  return {
+    findings,
+    add(id, o) {
+      const sizes = orbitalSizes(o);
+      const lo = Math.min(...sizes), hi = Math.max(...sizes);
+      if (lo < findings.minPlausible) {
+        findings.tooSmall.push(id);
+        findings.smallest = Math.min(findings.smallest, lo);
+      }
+      if (hi > ORBITAL_MAX_PLAUSIBLE_NM) {
+        findings.tooLarge.push(id);
+        findings.largest = Math.max(findings.largest, hi);
+      }
+    },
+  };
+}
+
 export const MODEL_ASSUMPTIONS = [
   'Homogeneous host with the design\'s relative permittivity; no interfaces, gates or screening.',
   'Each site is a fixed, normalised model density (hydrogenic, anisotropic single-valley or Gaussian envelope); species defaults are model assumptions you can override.',
@@ -280,11 +308,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
   const noElectrons: string[] = [];
   const offLattice: string[] = [];
   const aniso: string[] = [];
-  const tooSmall: string[] = [];
-  const tooLarge: string[] = [];
-  let smallest = Infinity;
-  let largest = 0;
-  const minPlausible = ORBITAL_MIN_LATTICE_FRACTION * a;
+  const sizes = orbitalSizeFindings(a);
   let worst = 0;
   const reqCache = new Map<string, number>();
   for (let i = 0; i < n; i++) {
@@ -315,16 +339,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     }
     if (s.electrons === 0) noElectrons.push(s.id);
     if (orbitals[i].model === 'anisotropic-1s') aniso.push(s.id);
-    const sizes = orbitalSizes(orbitals[i]);
-    const lo = Math.min(...sizes), hi = Math.max(...sizes);
-    if (lo < minPlausible) {
-      tooSmall.push(s.id);
-      smallest = Math.min(smallest, lo);
-    }
-    if (hi > ORBITAL_MAX_PLAUSIBLE_NM) {
-      tooLarge.push(s.id);
-      largest = Math.max(largest, hi);
-    }
+    sizes.add(s.id, orbitals[i]);
     const snapped = siteToNm(snapToLattice(s.position, a), a);
     if (dist(snapped, s.position) > 1e-6) offLattice.push(s.id);
   }
@@ -337,7 +352,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     ...findingsWarnings({
       siteCount: n, boundary, tolerance: tol, latticeConstantNm: a, worst, recommended: rec,
       outside, tooClose, cut, worstCut, coincide, overlap, offLattice, aniso, noElectrons,
-      tooSmall, tooLarge, smallest, largest, minPlausible,
+      ...sizes.findings,
     }),
   );
   let elementsEstimate: number | null = null;

@@ -28,7 +28,7 @@ import { snapToLattice, siteToNm } from '../lattice';
 import { neglectedEnvelope, type Envelope } from './envelope';
 import { harmonicCount } from './harmonics';
 import { orbitalMoments } from './moments';
-import { ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, ORBITAL_MAX_PLAUSIBLE_NM, ORBITAL_MIN_LATTICE_FRACTION, orbitalSizes, requiredClearance, type FarFieldOptions, type FarFieldReport, type PairBound, type SiteBound } from './check';
+import { ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, orbitalSizeFindings, requiredClearance, type FarFieldOptions, type FarFieldReport, type PairBound, type SiteBound } from './check';
 import { closeSitePairs } from './close-pairs';
 import { describeBoundary, elementBudgetWarning, findingsWarnings, pairsLimitedWarning } from './warnings';
 
@@ -400,11 +400,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
     const noElectrons: string[] = [];
     const offLattice: string[] = [];
     const aniso: string[] = [];
-    const tooSmall: string[] = [];
-    const tooLarge: string[] = [];
-    let smallest = Infinity;
-    let largest = 0;
-    const minPlausible = ORBITAL_MIN_LATTICE_FRACTION * a;
+    const sizes = orbitalSizeFindings(a);
     let worst = 0;
     for (let i = 0; i < n; i++) {
       const st = states[i];
@@ -444,16 +440,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       }
       if (s.electrons === 0) noElectrons.push(s.id);
       if (st.orbital.model === 'anisotropic-1s') aniso.push(s.id);
-      const sizes = orbitalSizes(st.orbital);
-      const lo = Math.min(...sizes), hi = Math.max(...sizes);
-      if (lo < minPlausible) {
-        tooSmall.push(s.id);
-        smallest = Math.min(smallest, lo);
-      }
-      if (hi > ORBITAL_MAX_PLAUSIBLE_NM) {
-        tooLarge.push(s.id);
-        largest = Math.max(largest, hi);
-      }
+      sizes.add(s.id, st.orbital);
       if (st.offLattice) offLattice.push(s.id);
     }
     for (const p of pairs) {
@@ -465,7 +452,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       ...findingsWarnings({
         siteCount: n, boundary, tolerance: tol, latticeConstantNm: a, worst, recommended: rec,
         outside, tooClose, cut, worstCut, coincide, overlap, offLattice, aniso, noElectrons,
-        tooSmall, tooLarge, smallest, largest, minPlausible,
+        ...sizes.findings,
       }),
     );
     const r: FarFieldReport = {

@@ -7,7 +7,7 @@
  * box" for the document's `enclosure` (the on-screen name, issue 9).
  */
 import type { Boundary, Vec3 } from '../design/types';
-import { ORBITAL_MAX_PLAUSIBLE_NM, type FarFieldWarning } from './check';
+import { ORBITAL_MAX_PLAUSIBLE_NM, type FarFieldWarning, type OrbitalSizeFindings } from './check';
 
 export function describeBoundary(b: Boundary): string {
   return b.kind === 'grounded' ? 'grounded' : `multipole(order ${b.order})`;
@@ -29,8 +29,8 @@ export function pairsLimitedWarning(n: number): FarFieldWarning {
   };
 }
 
-/** What the site and pair loops found; id lists may repeat ids where the check says so. */
-export interface Findings {
+/** What the site and pair loops found (id lists may repeat ids where the check says so), with the orbital sizes out of range. */
+export interface Findings extends OrbitalSizeFindings {
   siteCount: number;
   boundary: Boundary;
   tolerance: number;
@@ -46,13 +46,6 @@ export interface Findings {
   offLattice: string[];
   aniso: string[];
   noElectrons: string[];
-  /** sites whose orbital is smaller than `minPlausible` (a hundredth of the lattice constant), and the smallest size */
-  tooSmall: string[];
-  smallest: number;
-  minPlausible: number;
-  /** sites whose orbital is larger than ORBITAL_MAX_PLAUSIBLE_NM, and the largest size */
-  tooLarge: string[];
-  largest: number;
 }
 
 export function findingsWarnings(f: Findings): FarFieldWarning[] {
