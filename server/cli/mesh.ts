@@ -23,6 +23,19 @@ import { qualityReport, type ReportSite } from '../../geometry/mesh/quality';
 import { solveSitePotentials, CoulombError } from '../../geometry/fem/coulomb';
 import { COULOMB_EV_NM } from '../../geometry/units';
 
+/** The keys `mesh --json` prints before its timings; a mesh revision's summary is exactly this (server/jobs/pipeline.ts). */
+export function meshSummary(q: ReturnType<typeof qualityReport>) {
+  return {
+    vertices: q.vertices,
+    tets: q.tets,
+    p2Nodes: q.p2Nodes,
+    minDihedralDeg: q.minDihedralDeg,
+    maxDihedralDeg: q.maxDihedralDeg,
+    volumeNm3: q.volumeNm3,
+    levels: q.levels,
+  };
+}
+
 const USAGE = 'usage: npm run cli -- mesh <design.json> --out <file> [--order 1|2] [--format vtu|vtk|binary] [--solve] [--json]';
 
 type Format = 'vtu' | 'vtk' | 'binary';
@@ -175,13 +188,7 @@ export async function run(argv: string[]): Promise<number> {
     console.log(
       JSON.stringify(
         {
-          vertices: q.vertices,
-          tets: q.tets,
-          p2Nodes: q.p2Nodes,
-          minDihedralDeg: q.minDihedralDeg,
-          maxDihedralDeg: q.maxDihedralDeg,
-          volumeNm3: q.volumeNm3,
-          levels: q.levels,
+          ...meshSummary(q),
           seconds,
           file: args.out,
         },

@@ -18,6 +18,7 @@ import { solveCoulomb, CoulombError } from '../../geometry/fem/coulomb';
 import { runConvergence as runConvergenceSweep, type RefinementRow, type BoxRow } from '../../geometry/fem/convergence';
 import { toCoulombJson } from '../cli/coulomb';
 import { toConvergenceJson } from '../cli/convergence';
+import { meshSummary } from '../cli/mesh';
 
 export interface PipelineFile {
   name: 'mesh.vtu' | 'mesh.vtk' | 'mesh.twmesh' | 'results.json' | 'results.csv';
@@ -69,15 +70,7 @@ function runMesh(design: Design, order: 1 | 2, hooks: PipelineHooks): PipelineOu
   const vtk = writeVtkLegacy(mesh, { order, sizeField, pointData: [] });
   const twmesh = encodeMeshBinary(mesh);
   const q = qualityReport(mesh, []);
-  const summary = {
-    vertices: q.vertices,
-    tets: q.tets,
-    p2Nodes: q.p2Nodes,
-    minDihedralDeg: q.minDihedralDeg,
-    maxDihedralDeg: q.maxDihedralDeg,
-    volumeNm3: q.volumeNm3,
-    levels: q.levels,
-  };
+  const summary = meshSummary(q);
   const csv = csvText({ fields: ['level', 'tets'], data: q.levels.map((n, k) => [k, n]) });
   return {
     summary,
@@ -115,14 +108,7 @@ function runCoulomb(design: Design, order: 1 | 2, adaptive: boolean, hooks: Pipe
       ...json.pairs.map((p) => ['V', p.a, p.b, p.distanceNm, p.vEv, p.vErrorEv]),
     ],
   });
-  return {
-    summary,
-    computeSeconds: (performance.now() - t0) / 1000,
-    files: [
-      { name: 'results.json', bytes: jsonFile(json) },
-      { name: 'results.csv', bytes: utf8(`${csv}\n`) },
-    ],
-  };
+  return resultsOutput(summary, json, csv, t0);
 }
 
 function runConvergence(design: Design, order: 1 | 2, sweep: 'refinement' | 'box', hooks: PipelineHooks): PipelineOutput {
@@ -150,14 +136,7 @@ function runConvergence(design: Design, order: 1 | 2, sweep: 'refinement' | 'box
       data: rows.map((r) => [r.boundary, r.halfWidthNm, r.dofs, ...r.uEv.flatMap((u, k) => [u, r.uErrorEv[k], r.boundaryBoundEv[k]])]),
     });
   }
-  return {
-    summary,
-    computeSeconds: (performance.now() - t0) / 1000,
-    files: [
-      { name: 'results.json', bytes: jsonFile(json) },
-      { name: 'results.csv', bytes: utf8(`${csv}\n`) },
-    ],
-  };
+  return resultsOutput(summary, json, csv, t0);
 }
 
 export function runPipeline(kind: JobKind, design: Design, options: JobOptions, hooks: PipelineHooks = {}): PipelineOutput {
@@ -173,4 +152,16 @@ export function runPipeline(kind: JobKind, design: Design, options: JobOptions, 
     }
     throw e;
   }
+}
+
+/** A solve's or sweep's output: the CLI's --json summary (timings left out) with results.json and results.csv. */
+function resultsOutput(summary: Record<string, unknown>, json: unknown, csv: string, t0: number): PipelineOutput {
+  return {
+    summary,
+    computeSeconds: (performance.now() - t0) / 1000,
+    files: [
+      { name: 'results.json', bytes: jsonFile(json) },
+      { name: 'results.csv', bytes: utf8(`${csv}\n`) },
+    ],
+  };
 }
