@@ -24,3 +24,9 @@ export const SI_LATTICE_CONSTANT_NM = 0.5431020511;
 
 /** Static relative permittivity of silicon: common practice (some handbooks give 11.9); from memory. */
 export const SI_EPSILON_R = 11.7;
+
+/** Elementary charge in C, exact in the SI since 2019 (CODATA 2018). */
+export const ELEMENTARY_CHARGE_C = 1.602176634e-19;
+
+/** Vacuum permittivity ε₀ in F/m, CODATA 2018. e²/(4πε₀) from these two equals COULOMB_EV_NM to 1e-9. */
+export const VACUUM_PERMITTIVITY_F_M = 8.8541878128e-12;

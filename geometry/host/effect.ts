@@ -1,0 +1,168 @@
+/**
+ * The worst image-charge effect of a planar stack and metal planes on U and V, against an infinite
+ * host of the design's εr (the figure `check` will report, issue 11): for every site
+ * ΔU_i = U_i(stack) − U_i(infinite host), for every pair ΔV_ij likewise, and the largest of each
+ * relative to the infinite-host value.
+ *
+ *     electrodes spanning the domain's x–y cross-section   → metal half-spaces (planes)
+ *     other electrodes (gates, leads)                      → left out: they need the FEM
+ *                                                            (finding `electrode-not-plane`)
+ *
+ * The figures come from reaction.ts (point images of spherical densities; exact for densities
+ * wholly inside their layers, see `leak`) and carry the series' truncation bound.
+ */
+import type { Orbital, Vec3 } from '../design/types';
+import { pairEnergy, selfEnergy } from '../density';
+import { COULOMB_EV_NM } from '../units';
+import type { ImageOptions } from './images';
+import { layeredEnergy } from './reaction';
+import { homogeneousStack, planarStack, type MetalPlane } from './stack';
+import type { Electrode, HostFinding, HostLayer, PlanarStack } from './types';
+
+/** All pairs are evaluated up to this many sites when no pair list is given (common practice; 32,640 pairs). */
+export const IMAGE_EFFECT_ALL_PAIRS_LIMIT = 256;
+
+export interface ImageEffectInput {
+  /** εr of the infinite reference host (host.epsilonR) */
+  epsilonR: number;
+  layers?: readonly HostLayer[];
+  electrodes?: readonly Electrode[];
+  /** the domain box (centre and half-extents, nm); needed to recognise metal planes */
+  domain?: { center: Vec3; halfExtentsNm: Vec3 };
+  /** sites that carry a density */
+  sites: readonly { position: Vec3; orbital: Orbital }[];
+  /** pairs (i0, j0, i1, j1, …) to evaluate; default all pairs up to IMAGE_EFFECT_ALL_PAIRS_LIMIT sites */
+  pairs?: Uint32Array;
+}
+
+export interface ImageEffect {
+  /** the stack used (null when the layers are invalid) */
+  stack: PlanarStack | null;
+  /** ΔU per site (eV) and relative to the infinite host's U; NaN where no closed form applies */
+  deltaU: Float64Array;
+  relativeU: Float64Array;
+  pairs: Uint32Array;
+  deltaV: Float64Array;
+  relativeV: Float64Array;
+  /** index of the site / pair with the largest |relative| change, −1 when none */
+  worstSite: number;
+  worstPair: number;
+  /** largest series truncation bound over all figures (eV) */
+  tailBoundEv: number;
+  /** largest share of a density beyond an interface (size of the point-image approximation) */
+  maxLeak: number;
+  findings: HostFinding[];
+}
+
+/** Electrodes that span the domain's cross-section, as metal planes on the far side of the sites. */
+export function metalPlanes(
+  electrodes: readonly Electrode[],
+  domain: { center: Vec3; halfExtentsNm: Vec3 } | undefined,
+  siteZ: readonly number[],
+): { planes: MetalPlane[]; findings: HostFinding[] } {
+  const findings: HostFinding[] = [];
+  const planes: MetalPlane[] = [];
+  if (electrodes.length === 0) return { planes, findings };
+  if (!domain) return { planes, findings: [{ code: 'no-domain' }] };
+  const zLo = Math.min(...siteZ);
+  const zHi = Math.max(...siteZ);
+  electrodes.forEach((e, index) => {
+    let spans = true;
+    for (let k = 0; k < 2; k++) {
+      if (e.minNm[k] > domain.center[k] - domain.halfExtentsNm[k] || e.maxNm[k] < domain.center[k] + domain.halfExtentsNm[k]) spans = false;
+    }
+    if (!spans) {
+      findings.push({ code: 'electrode-not-plane', index });
+      return;
+    }
+    if (siteZ.length === 0 || e.minNm[2] > zHi) planes.push({ name: e.name, side: 'above', zNm: e.minNm[2] });
+    else if (e.maxNm[2] < zLo) planes.push({ name: e.name, side: 'below', zNm: e.maxNm[2] });
+    else findings.push({ code: 'electrode-straddles', index });
+  });
+  return { planes, findings };
+}
+
+function allPairs(n: number): Uint32Array {
+  const out = new Uint32Array(n * (n - 1));
+  let p = 0;
+  for (let i = 0; i < n; i++)
+    for (let j = i + 1; j < n; j++) {
+      out[p++] = i;
+      out[p++] = j;
+    }
+  return out;
+}
+
+export function imageChargeEffect(input: ImageEffectInput, options: ImageOptions = {}): ImageEffect {
+  const sites = input.sites;
+  const n = sites.length;
+  const findings: HostFinding[] = [];
+  const { planes, findings: planeFindings } = metalPlanes(input.electrodes ?? [], input.domain, sites.map((s) => s.position[2]));
+  findings.push(...planeFindings);
+  let stack: PlanarStack | null;
+  if (input.layers && input.layers.length > 0) {
+    const built = planarStack(input.layers, planes);
+    findings.push(...built.findings);
+    stack = built.stack;
+  } else {
+    const built = planarStack([{ name: 'host', epsilonR: input.epsilonR, zMinNm: null, zMaxNm: null }], planes);
+    stack = built.stack ?? homogeneousStack(input.epsilonR);
+  }
+  let pairs = input.pairs ?? new Uint32Array(0);
+  if (!input.pairs) {
+    if (n <= IMAGE_EFFECT_ALL_PAIRS_LIMIT) pairs = allPairs(n);
+    else findings.push({ code: 'pairs-not-given', value: n });
+  }
+  const np = pairs.length >> 1;
+  const deltaU = new Float64Array(n).fill(Number.NaN);
+  const relativeU = new Float64Array(n).fill(Number.NaN);
+  const deltaV = new Float64Array(np).fill(Number.NaN);
+  const relativeV = new Float64Array(np).fill(Number.NaN);
+  let tail = 0;
+  let leak = 0;
+  let worstSite = -1;
+  let worstPair = -1;
+  const seen = new Set<string>();
+  const note = (list: HostFinding[], index: number) => {
+    for (const f of list) {
+      // one finding per code and site is enough for the report; series-capped keeps its figure
+      const key = `${f.code}:${index}`;
+      if (seen.has(key)) continue;
+      seen.add(key);
+      findings.push({ ...f, index });
+    }
+  };
+  if (stack) {
+    const hostScale = COULOMB_EV_NM / input.epsilonR;
+    for (let i = 0; i < n; i++) {
+      const r = layeredEnergy(stack, sites[i], sites[i], options);
+      note(r.findings, i);
+      leak = Math.max(leak, r.leak);
+      if (r.energyEv === null) continue;
+      tail = Math.max(tail, r.tailBoundEv);
+      const u0 = hostScale * selfEnergy(sites[i].orbital);
+      deltaU[i] = r.energyEv - u0;
+      relativeU[i] = deltaU[i] / u0;
+      if (worstSite < 0 || Math.abs(relativeU[i]) > Math.abs(relativeU[worstSite])) worstSite = i;
+    }
+    for (let p = 0; p < np; p++) {
+      const i = pairs[2 * p];
+      const j = pairs[2 * p + 1];
+      const r = layeredEnergy(stack, sites[i], sites[j], options);
+      note(
+        r.findings.filter((f) => f.code !== 'density-leaks'),
+        i,
+      );
+      if (r.energyEv === null) continue;
+      tail = Math.max(tail, r.tailBoundEv);
+      const a = sites[i].position;
+      const b = sites[j].position;
+      const R = Math.hypot(b[0] - a[0], b[1] - a[1], b[2] - a[2]);
+      const v0 = hostScale * (pairEnergy(sites[i].orbital, sites[j].orbital, R) ?? 1 / R);
+      deltaV[p] = r.energyEv - v0;
+      relativeV[p] = deltaV[p] / v0;
+      if (worstPair < 0 || Math.abs(relativeV[p]) > Math.abs(relativeV[worstPair])) worstPair = p;
+    }
+  }
+  return { stack, deltaU, relativeU, pairs, deltaV, relativeV, worstSite, worstPair, tailBoundEv: tail, maxLeak: leak, findings };
+}
