@@ -140,8 +140,11 @@ export function imageChargeEffect(input: ImageEffectInput, options: ImageOptions
       leak = Math.max(leak, r.leak);
       if (r.energyEv === null) continue;
       tail = Math.max(tail, r.tailBoundEv);
-      const u0 = hostScale * selfEnergy(sites[i].orbital);
-      deltaU[i] = r.energyEv - u0;
+      const self = selfEnergy(sites[i].orbital);
+      const u0 = hostScale * self;
+      // split as (free in the site's own εr − free in the host) + reaction, so a site in a layer
+      // of the host's εr gets exactly the reaction (no rounding residue of two equal free terms)
+      deltaU[i] = (r.sourceEpsilonR === input.epsilonR ? 0 : COULOMB_EV_NM * self * (1 / r.sourceEpsilonR - 1 / input.epsilonR)) + r.reactionEv!;
       relativeU[i] = deltaU[i] / u0;
       if (worstSite < 0 || Math.abs(relativeU[i]) > Math.abs(relativeU[worstSite])) worstSite = i;
     }
@@ -158,8 +161,9 @@ export function imageChargeEffect(input: ImageEffectInput, options: ImageOptions
       const a = sites[i].position;
       const b = sites[j].position;
       const R = Math.hypot(b[0] - a[0], b[1] - a[1], b[2] - a[2]);
-      const v0 = hostScale * (pairEnergy(sites[i].orbital, sites[j].orbital, R) ?? 1 / R);
-      deltaV[p] = r.energyEv - v0;
+      const free = pairEnergy(sites[i].orbital, sites[j].orbital, R) ?? 1 / R;
+      const v0 = hostScale * free;
+      deltaV[p] = (r.sourceEpsilonR === input.epsilonR ? 0 : COULOMB_EV_NM * free * (1 / r.sourceEpsilonR - 1 / input.epsilonR)) + r.reactionEv!;
       relativeV[p] = deltaV[p] / v0;
       if (worstPair < 0 || Math.abs(relativeV[p]) > Math.abs(relativeV[worstPair])) worstPair = p;
     }

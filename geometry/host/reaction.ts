@@ -47,6 +47,8 @@ export interface LayeredEnergy {
   freeEv: number | null;
   /** energyEv − freeEv: the reaction (image) part, eV; for two regions it is the whole minus the free form in ε_s */
   reactionEv: number | null;
+  /** εr of the first site's region (the source of the series); NaN when no series exists */
+  sourceEpsilonR: number;
   /** truncation bound of the series (eV, rigorous for point images) */
   tailBoundEv: number;
   /** largest share of either density beyond its nearest interface (approximation size; not a bound) */
@@ -104,7 +106,7 @@ export function layeredEnergy(stack: PlanarStack, a: DensitySite, b: DensitySite
   const leak = Math.max(leakBeyondInterfaces(stack, a), leakBeyondInterfaces(stack, b));
   const out: HostFinding[] = [...findings];
   if (leak > LEAK_NOTICE) out.push({ code: 'density-leaks', value: leak });
-  if (!series) return { energyEv: null, freeEv: null, reactionEv: null, tailBoundEv: Infinity, leak, findings: out };
+  if (!series) return { energyEv: null, freeEv: null, reactionEv: null, sourceEpsilonR: Number.NaN, tailBoundEv: Infinity, leak, findings: out };
   const s = Math.hypot(b.position[0] - a.position[0], b.position[1] - a.position[1]);
   const same = a === b;
   const R = same ? 0 : Math.hypot(s, b.position[2] - a.position[2]);
@@ -118,7 +120,8 @@ export function layeredEnergy(stack: PlanarStack, a: DensitySite, b: DensitySite
   return {
     energyEv: COULOMB_EV_NM * whole,
     freeEv: COULOMB_EV_NM * freeNm1,
-    reactionEv: COULOMB_EV_NM * (whole - freeNm1),
+    reactionEv: COULOMB_EV_NM * images.value - (series.direct >= 0 ? 0 : COULOMB_EV_NM * freeNm1),
+    sourceEpsilonR: 1 / series.scale,
     tailBoundEv: COULOMB_EV_NM * series.tailBound,
     leak,
     findings: out,
