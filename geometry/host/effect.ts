@@ -15,7 +15,7 @@ import type { Orbital, Vec3 } from '../design/types';
 import { pairEnergy, selfEnergy } from '../density';
 import { COULOMB_EV_NM } from '../units';
 import type { ImageOptions } from './images';
-import { layeredEnergy } from './reaction';
+import { layeredEnergy, type SeriesCache } from './reaction';
 import { homogeneousStack, planarStack, type MetalPlane } from './stack';
 import type { Electrode, HostFinding, HostLayer, PlanarStack } from './types';
 
@@ -93,7 +93,15 @@ function allPairs(n: number): Uint32Array {
   return out;
 }
 
+/**
+ * Default series tolerance for this figure (nm⁻¹): 1.4e-9 eV on any U or V, far below anything
+ * the relative change is read for (common practice); it keeps the slow plate series short.
+ */
+export const IMAGE_EFFECT_TOLERANCE_NM1 = 1e-9;
+
 export function imageChargeEffect(input: ImageEffectInput, options: ImageOptions = {}): ImageEffect {
+  const opts: ImageOptions = { toleranceNm1: IMAGE_EFFECT_TOLERANCE_NM1, ...options };
+  const cache: SeriesCache = new Map();
   const sites = input.sites;
   const n = sites.length;
   const findings: HostFinding[] = [];
@@ -135,7 +143,7 @@ export function imageChargeEffect(input: ImageEffectInput, options: ImageOptions
   if (stack) {
     const hostScale = COULOMB_EV_NM / input.epsilonR;
     for (let i = 0; i < n; i++) {
-      const r = layeredEnergy(stack, sites[i], sites[i], options);
+      const r = layeredEnergy(stack, sites[i], sites[i], opts, cache);
       note(r.findings, i);
       leak = Math.max(leak, r.leak);
       if (r.energyEv === null) continue;
@@ -151,7 +159,7 @@ export function imageChargeEffect(input: ImageEffectInput, options: ImageOptions
     for (let p = 0; p < np; p++) {
       const i = pairs[2 * p];
       const j = pairs[2 * p + 1];
-      const r = layeredEnergy(stack, sites[i], sites[j], options);
+      const r = layeredEnergy(stack, sites[i], sites[j], opts, cache);
       note(
         r.findings.filter((f) => f.code !== 'density-leaks'),
         i,

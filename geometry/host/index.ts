@@ -14,6 +14,6 @@ export type { Electrode, HostCode, HostFinding, HostLayer, PlanarStack } from '.
 export { interfaceCharges, reflection, transmission } from './interface';
 export { homogeneousStack, planarStack, regionOf, type MetalPlane } from './stack';
 export { greenFunction, imageSeries, reactionAt, seriesAt, type ImageOptions, type ImageSeries } from './images';
-export { layeredEnergy, leakBeyondInterfaces, type DensitySite, type LayeredEnergy } from './reaction';
+export { layeredEnergy, leakBeyondInterfaces, type DensitySite, type LayeredEnergy, type SeriesCache } from './reaction';
 export { plateLeverArms, plateProfile, plateSiteEnergy, topFraction, type Carrier, type PlateProfile } from './plates';
 export { imageChargeEffect, metalPlanes, type ImageEffect, type ImageEffectInput } from './effect';

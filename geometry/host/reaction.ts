@@ -97,19 +97,43 @@ function sumOver(series: ImageSeries, o1: Orbital, o2: Orbital, s: number, skip:
 }
 
 /**
+ * Image series by pair of heights, for callers that evaluate many pairs of one stack with the same
+ * options (a planar array has one height, so one series serves every pair).
+ */
+export type SeriesCache = Map<string, ReturnType<typeof imageSeries>>;
+
+function cachedSeries(stack: PlanarStack, z0: number, z: number, options: ImageOptions, cache?: SeriesCache): ReturnType<typeof imageSeries> {
+  if (!cache) return imageSeries(stack, z0, z, options);
+  const key = `${z0}|${z}`;
+  let hit = cache.get(key);
+  if (!hit) {
+    hit = imageSeries(stack, z0, z, options);
+    cache.set(key, hit);
+  }
+  return hit;
+}
+
+function sameOrbital(p: Orbital, q: Orbital): boolean {
+  if (p.model !== q.model) return false;
+  if (p.model === 'gaussian') return p.sigmaNm === (q as typeof p).sigmaNm;
+  if (p.model === 'hydrogenic-1s') return p.radiusNm === (q as typeof p).radiusNm;
+  return p.radiusNm === (q as typeof p).radiusNm && p.radiusZNm === (q as typeof p).radiusZNm;
+}
+
+/**
  * U (i = j, pass the same site twice) or V of two sites in the stack, in eV, with the reaction
  * part against the free space of the source's region. For a pair in different regions the
  * "free" figure is the interaction in the first site's region alone, for comparison only.
  */
-export function layeredEnergy(stack: PlanarStack, a: DensitySite, b: DensitySite, options: ImageOptions = {}): LayeredEnergy {
-  const { series, findings } = imageSeries(stack, a.position[2], b.position[2], options);
+export function layeredEnergy(stack: PlanarStack, a: DensitySite, b: DensitySite, options: ImageOptions = {}, cache?: SeriesCache): LayeredEnergy {
+  const { series, findings } = cachedSeries(stack, a.position[2], b.position[2], options, cache);
   const leak = Math.max(leakBeyondInterfaces(stack, a), leakBeyondInterfaces(stack, b));
   const out: HostFinding[] = [...findings];
   if (leak > LEAK_NOTICE) out.push({ code: 'density-leaks', value: leak });
   if (!series) return { energyEv: null, freeEv: null, reactionEv: null, sourceEpsilonR: Number.NaN, tailBoundEv: Infinity, leak, findings: out };
   const s = Math.hypot(b.position[0] - a.position[0], b.position[1] - a.position[1]);
-  const same = a === b;
-  const R = same ? 0 : Math.hypot(s, b.position[2] - a.position[2]);
+  const R = Math.hypot(s, b.position[2] - a.position[2]);
+  const same = a === b || (R === 0 && sameOrbital(a.orbital, b.orbital));
   const free = same
     ? { value: selfEnergy(a.orbital), point: false }
     : interaction(a.orbital, b.orbital, R);

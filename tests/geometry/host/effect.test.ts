@@ -67,7 +67,11 @@ describe('imageChargeEffect', () => {
     expect(Array.from(withGate.stack!.epsilon)).toEqual([EPS_SI, EPS_OX, Infinity]);
     const point = sommerfeldG({ interfaces: [0, 5], epsilon: [EPS_SI, EPS_OX, Infinity] }, 0, -d, -d, 20, 0.125, true);
     // d = 10σ: the Gaussian's images equal point images to erfc(10) ≈ 2e-45
-    expect(Math.abs(withGate.deltaU[0] / (COULOMB_EV_NM * point) - 1)).toBeLessThan(1e-9);
+    // within the stated truncation bound at the default tolerance, and to 1e-9 at a tight one
+    expect(Math.abs(withGate.deltaU[0] - COULOMB_EV_NM * point)).toBeLessThanOrEqual(withGate.tailBoundEv + 1e-12);
+    expect(withGate.tailBoundEv).toBeGreaterThan(0);
+    const tight = imageChargeEffect({ epsilonR: EPS_SI, layers: SI_OX, electrodes: [TOP_PLANE], domain: DOMAIN, sites }, { toleranceNm1: 1e-14 });
+    expect(Math.abs(tight.deltaU[0] / (COULOMB_EV_NM * point) - 1)).toBeLessThan(1e-9);
     const oxideOnly = imageChargeEffect({ epsilonR: EPS_SI, layers: SI_OX, sites });
     expect(oxideOnly.deltaU[0]).toBeGreaterThan(0);
     expect(withGate.deltaU[0]).toBeLessThan(oxideOnly.deltaU[0]);

@@ -150,6 +150,27 @@ describe('a Gaussian under a 5 nm oxide and vacuum (three regions)', () => {
     expect(r.reactionEv!).toBeGreaterThan(0);
   });
 
+  it('gives the same figures through a series cache, and the same U for equal sites passed as two objects', () => {
+    const stack = planarStack([
+      { name: 'silicon', epsilonR: EPS_SI, zMinNm: null, zMaxNm: 0 },
+      { name: 'oxide', epsilonR: EPS_OX, zMinNm: 0, zMaxNm: 5 },
+      { name: 'vacuum', epsilonR: 1, zMinNm: 5, zMaxNm: null },
+    ]).stack!;
+    const cache = new Map();
+    const a = site({ model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 }, [0, 0, -10]);
+    const b = site({ model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 }, [4.3, 0, -10]);
+    const twin = site({ model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 }, [0, 0, -10]);
+    const plain = layeredEnergy(stack, a, b);
+    expect(layeredEnergy(stack, a, b, {}, cache)).toEqual(plain);
+    expect(layeredEnergy(stack, b, a, {}, cache).energyEv! / plain.energyEv! - 1).toBeCloseTo(0, 13);
+    expect(cache.size).toBe(1);
+    const u = layeredEnergy(stack, a, a);
+    expect(layeredEnergy(stack, a, twin).energyEv).toBe(u.energyEv);
+    expect(Number.isFinite(u.energyEv)).toBe(true);
+    // the anisotropic model has no closed-form pair interaction: its images use 1/R and say so
+    expect(plain.findings.map((f) => f.code)).toContain('point-image');
+  });
+
   it('a homogeneous host has no reaction', () => {
     const s = site(gauss(1), [1, 2, 3]);
     const r = layeredEnergy(homogeneousStack(EPS_SI), s, s);
