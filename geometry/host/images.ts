@@ -6,10 +6,10 @@
  *
  * in the convention of geometry/units.ts (−∇·(εr ∇G) = 4π δ(r − r₀), so G = 1/(εr |r − r₀|) in a
  * homogeneous medium); ε_s is the permittivity of the source's region. G is symmetric, G(r, r₀) =
- * G(r₀, r) (Green's reciprocity; Jackson §1.10), which the tests check term by term.
+ * G(r₀, r) (Green's reciprocity; Jackson §1.10, from memory), which the tests check term by term.
  *
  * Where the images come from. Each Fourier mode of the transverse plane, J₀(k s) e^{−k|z − z₀|}
- * (Sommerfeld's identity 1/R = ∫₀^∞ J₀(ks) e^{−k|z−z₀|} dk; Jackson eq. 3.108 family), is reflected
+ * (Sommerfeld's identity 1/R = ∫₀^∞ J₀(ks) e^{−k|z−z₀|} dk; Jackson §3.7, section from memory), is reflected
  * at an interface with r and transmitted with T = 1 + r (interface.ts); these factors do not depend
  * on k in electrostatics. Following the mode along every path of total vertical length h gives the
  * factor e^{−k h}, and ∫ J₀(ks) e^{−kh} dk = 1/√(s² + h²): each path is one point image at height
@@ -22,7 +22,7 @@
  *     region 0  ε₀          ↓ T₁₀
  *
  * Source in the slab, observation in the slab (the four image families of a slab, e.g.
- * Smythe, Static and Dynamic Electricity, §5.10-type series; from memory, derived here):
+ * the classic slab series, e.g. Smythe, Static and Dynamic Electricity, ch. 5 — from memory; derived here):
  *     1 at |z − z₀|;  r₁₀ gⁿ at 2nt + (z − a) + (z₀ − a);  r₁₂ gⁿ at 2nt + (b − z) + (b − z₀);
  *     gⁿ at 2nt ± (z − z₀) for n ≥ 1.
  * Source below the slab, observation below:

@@ -5,8 +5,8 @@
  *     ─────────────────────────── z = 0
  *            medium 1  (ε₁)       • q at r₀    potential in medium 1:  q / (ε₁ |r − r₀|) + q′ / (ε₁ |r − r₀*|)
  *
- * with r₀* the mirror point of r₀ and (Jackson, Classical Electrodynamics, 3rd ed., §4.4, eqs.
- * 4.45, in his notation with the charge in ε₁):
+ * with r₀* the mirror point of r₀ and (Jackson, Classical Electrodynamics, 3rd ed., §4.4, eq. 4.45 — equation
+ * number from memory — in his notation with the charge in ε₁):
  *
  *     q′ = −q (ε₂ − ε₁) / (ε₂ + ε₁)          q″ = 2 ε₂ q / (ε₂ + ε₁)
  *

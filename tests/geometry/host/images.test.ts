@@ -79,7 +79,7 @@ describe('slab between two half-spaces (Si / SiO₂ 5 nm / vacuum)', () => {
     }
   });
 
-  it('is reciprocal: G(r, r′) = G(r′, r) for points in every pair of regions (Green’s reciprocity, Jackson §1.10)', () => {
+  it('is reciprocal: G(r, r′) = G(r′, r) for points in every pair of regions (Green’s reciprocity, Jackson §1.10, from memory)', () => {
     const points: V3[] = [
       [0, 0, -7],
       [1, 2, -0.4],
@@ -176,7 +176,7 @@ describe('slab between two half-spaces (Si / SiO₂ 5 nm / vacuum)', () => {
   });
 });
 
-/** K₀(x) = ∫₀^∞ e^{−x cosh u} du (Abramowitz & Stegun 9.6.24), Gauss–Legendre on [0, U] with x cosh U = x + 50. */
+/** K₀(x) = ∫₀^∞ e^{−x cosh u} du (Abramowitz & Stegun 9.6.24, from memory), Gauss–Legendre on [0, U] with x cosh U = x + 50. */
 function besselK0(x: number): number {
   const U = Math.acosh(1 + 50 / x);
   const { nodes, weights } = gaussLegendre(64);

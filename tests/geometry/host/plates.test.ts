@@ -3,7 +3,7 @@
  * capacitor of two dielectrics, against textbook results (parallel-plate capacitor and capacitors
  * in series from continuity of the normal D, e.g. Jackson §4.4 boundary conditions with Gauss's
  * law), and the Shockley–Ramo theorem (W. Shockley, J. Appl. Phys. 9, 635 (1938); S. Ramo, Proc.
- * IRE 27, 584 (1939)): the charge a unit charge induces on a grounded plate equals minus the
+ * IRE 27, 584 (1939); citations from memory): the charge a unit charge induces on a grounded plate equals minus the
  * potential at the charge when that plate is at 1 V and the other at 0 — checked by integrating
  * the flux of the image-series Green's function, which ties the lever arms to images.ts.
  */

@@ -5,8 +5,7 @@
  *     G(s, z, z₀) = ∫₀^∞ J₀(k s) F(k; z, z₀) dk
  *
  * where, for each k, F solves the one-dimensional problem −(ε F′)′ + ε k² F = 2k δ(z − z₀) with F
- * continuous, ε F′ continuous at interfaces, F → 0 at ±∞ and F = 0 on metal (Sommerfeld, Partial
- * Differential Equations in Physics, §32; the transverse Fourier–Bessel transform of Poisson's
+ * continuous, ε F′ continuous at interfaces, F → 0 at ±∞ and F = 0 on metal (the transverse Fourier–Bessel transform of Poisson's
  * equation; in a homogeneous medium F = e^{−k|z−z₀|}/ε, which with ∫J₀(ks)e^{−k|Δz|}dk = 1/R gives
  * 1/(εR)). F is found here by solving the interface conditions as a dense linear system — no ray or
  * image algebra — so agreement with the image series checks that algebra independently.
@@ -127,7 +126,7 @@ export function spectralF(stack: RefStack, k: number, z: number, z0: number, sub
 
 const J0_RULE = gaussLegendre(96);
 
-/** J₀(x) = (1/π) ∫₀^π cos(x sin θ) dθ (Bessel's integral; Abramowitz & Stegun 9.1.18), Gauss–Legendre, x ≲ 60. */
+/** J₀(x) = (1/π) ∫₀^π cos(x sin θ) dθ (Bessel's integral; Abramowitz & Stegun 9.1.18, from memory), Gauss–Legendre, x ≲ 60. */
 export function besselJ0(x: number): number {
   let sum = 0;
   for (let i = 0; i < J0_RULE.nodes.length; i++) {
