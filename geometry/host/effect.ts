@@ -16,19 +16,14 @@ import { pairEnergy, selfEnergy } from '../density';
 import { COULOMB_EV_NM } from '../units';
 import type { ImageOptions } from './images';
 import { layeredEnergy, type SeriesCache } from './reaction';
-import { homogeneousStack, planarStack, type MetalPlane } from './stack';
-import type { Electrode, HostFinding, HostLayer, PlanarStack } from './types';
+import { hostStack, type HostStackInput } from './planes';
+import type { HostFinding, PlanarStack } from './types';
 
 /** All pairs are evaluated up to this many sites when no pair list is given (common practice; 32,640 pairs). */
 export const IMAGE_EFFECT_ALL_PAIRS_LIMIT = 256;
 
-export interface ImageEffectInput {
-  /** εr of the infinite reference host (host.epsilonR) */
-  epsilonR: number;
-  layers?: readonly HostLayer[];
-  electrodes?: readonly Electrode[];
-  /** the domain box (centre and half-extents, nm); needed to recognise metal planes */
-  domain?: { center: Vec3; halfExtentsNm: Vec3 };
+/** `epsilonR` is also the infinite reference host's εr; `domain` is needed to recognise metal planes. */
+export interface ImageEffectInput extends HostStackInput {
   /** sites that carry a density */
   sites: readonly { position: Vec3; orbital: Orbital }[];
   /** pairs (i0, j0, i1, j1, …) to evaluate; default all pairs up to IMAGE_EFFECT_ALL_PAIRS_LIMIT sites */
@@ -54,34 +49,6 @@ export interface ImageEffect {
   findings: HostFinding[];
 }
 
-/** Electrodes that span the domain's cross-section, as metal planes on the far side of the sites. */
-export function metalPlanes(
-  electrodes: readonly Electrode[],
-  domain: { center: Vec3; halfExtentsNm: Vec3 } | undefined,
-  siteZ: readonly number[],
-): { planes: MetalPlane[]; findings: HostFinding[] } {
-  const findings: HostFinding[] = [];
-  const planes: MetalPlane[] = [];
-  if (electrodes.length === 0) return { planes, findings };
-  if (!domain) return { planes, findings: [{ code: 'no-domain' }] };
-  const zLo = Math.min(...siteZ);
-  const zHi = Math.max(...siteZ);
-  electrodes.forEach((e, index) => {
-    let spans = true;
-    for (let k = 0; k < 2; k++) {
-      if (e.minNm[k] > domain.center[k] - domain.halfExtentsNm[k] || e.maxNm[k] < domain.center[k] + domain.halfExtentsNm[k]) spans = false;
-    }
-    if (!spans) {
-      findings.push({ code: 'electrode-not-plane', index });
-      return;
-    }
-    if (siteZ.length === 0 || e.minNm[2] > zHi) planes.push({ name: e.name, side: 'above', zNm: e.minNm[2] });
-    else if (e.maxNm[2] < zLo) planes.push({ name: e.name, side: 'below', zNm: e.maxNm[2] });
-    else findings.push({ code: 'electrode-straddles', index });
-  });
-  return { planes, findings };
-}
-
 function allPairs(n: number): Uint32Array {
   const out = new Uint32Array(n * (n - 1));
   let p = 0;
@@ -105,17 +72,9 @@ export function imageChargeEffect(input: ImageEffectInput, options: ImageOptions
   const sites = input.sites;
   const n = sites.length;
   const findings: HostFinding[] = [];
-  const { planes, findings: planeFindings } = metalPlanes(input.electrodes ?? [], input.domain, sites.map((s) => s.position[2]));
-  findings.push(...planeFindings);
-  let stack: PlanarStack | null;
-  if (input.layers && input.layers.length > 0) {
-    const built = planarStack(input.layers, planes);
-    findings.push(...built.findings);
-    stack = built.stack;
-  } else {
-    const built = planarStack([{ name: 'host', epsilonR: input.epsilonR, zMinNm: null, zMaxNm: null }], planes);
-    stack = built.stack ?? homogeneousStack(input.epsilonR);
-  }
+  const built = hostStack(input, Float64Array.from(sites, (s) => s.position[2]));
+  findings.push(...built.findings);
+  const stack = built.stack;
   let pairs = input.pairs ?? new Uint32Array(0);
   if (!input.pairs) {
     if (n <= IMAGE_EFFECT_ALL_PAIRS_LIMIT) pairs = allPairs(n);

@@ -8,6 +8,8 @@
  *                 series with a rigorous tail bound (two half-spaces exact, slab, plates)
  *   reaction.ts   U and V of spherical densities from the images (eV), with the leaked share
  *   plates.ts     two metal planes with dielectrics between: series capacitor, lever arms (meV/V)
+ *   planes.ts     a design's layers and electrodes → one stack (spanning electrodes become planes)
+ *   lever.ts      lever-arm matrix (sites × electrodes, meV/V) and site energies for plane electrodes
  *   effect.ts     the worst image-charge effect on U and V against an infinite host
  */
 export type { Electrode, HostCode, HostFinding, HostLayer, PlanarStack } from './types';
@@ -16,4 +18,6 @@ export { homogeneousStack, planarStack, regionOf, type MetalPlane } from './stac
 export { greenFunction, imageSeries, reactionAt, seriesAt, type ImageOptions, type ImageSeries } from './images';
 export { layeredEnergy, leakBeyondInterfaces, type DensitySite, type LayeredEnergy, type SeriesCache } from './reaction';
 export { plateLeverArms, plateProfile, plateSiteEnergy, topFraction, type Carrier, type PlateProfile } from './plates';
-export { imageChargeEffect, metalPlanes, type ImageEffect, type ImageEffectInput } from './effect';
+export { planeLeverArms, type LeverArmInput, type LeverArms } from './lever';
+export { hostStack, metalPlanes, type HostStackInput, type PlaneOfElectrode } from './planes';
+export { imageChargeEffect, type ImageEffect, type ImageEffectInput } from './effect';

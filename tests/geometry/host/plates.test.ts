@@ -9,7 +9,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { gaussLegendre } from '../../../geometry/density';
-import { imageSeries, planarStack, seriesAt, plateLeverArms, plateProfile, plateSiteEnergy, topFraction } from '../../../geometry/host';
+import { imageSeries, planarStack, planeLeverArms, plateLeverArms, plateProfile, plateSiteEnergy, seriesAt, topFraction } from '../../../geometry/host';
 import type { HostLayer } from '../../../geometry/host';
 import { VACUUM_PERMITTIVITY_F_M } from '../../../geometry/units';
 
@@ -112,5 +112,59 @@ describe('two dielectrics between two plates (silicon 20 nm under oxide 5 nm)', 
   it('refuses a stack that is not closed by metal on both sides', () => {
     const open = planarStack([{ name: 'silicon', epsilonR: EPS_SI, zMinNm: null, zMaxNm: null }], [{ name: 'top gate', side: 'above', zNm: 5 }]).stack!;
     expect(plateProfile(open)).toEqual({ profile: null, findings: [{ code: 'not-between-plates' }] });
+  });
+});
+
+describe('lever-arm matrix of a design whose electrodes include planes', () => {
+  // our own example: donors 12 nm under a 5 nm oxide, a top gate plane on the oxide, a back gate 30 nm
+  // down, a finite plunger gate and a second back plane behind the first
+  const layers: HostLayer[] = [
+    { name: 'silicon', epsilonR: EPS_SI, zMinNm: null, zMaxNm: 0 },
+    { name: 'oxide', epsilonR: EPS_OX, zMinNm: 0, zMaxNm: 5 },
+    { name: 'vacuum', epsilonR: 1, zMinNm: 5, zMaxNm: null },
+  ];
+  const domain = { center: [0, 0, -10] as [number, number, number], halfExtentsNm: [30, 30, 25] as [number, number, number] };
+  const electrodes = [
+    { name: 'top gate', minNm: [-30, -30, 5], maxNm: [30, 30, 7], voltageV: 0.5 },
+    { name: 'plunger', minNm: [-3, -3, 5], maxNm: [3, 3, 7], voltageV: 0.1 },
+    { name: 'back gate', minNm: [-30, -30, -33], maxNm: [30, 30, -30], voltageV: -0.2 },
+    { name: 'substrate', minNm: [-30, -30, -35], maxNm: [30, 30, -34], voltageV: 1 },
+  ] as { name: string; minNm: [number, number, number]; maxNm: [number, number, number]; voltageV: number }[];
+
+  it('gives series-capacitor arms for the inner planes, 0 for a screened plane and NaN (with a code) for a finite gate', () => {
+    const sites = [
+      { position: [0, 0, -12] as [number, number, number], orbital: { model: 'hydrogenic-1s' as const, radiusNm: 2.5 } },
+      { position: [4.3, 0, -12] as [number, number, number] },
+    ];
+    const r = planeLeverArms({ epsilonR: EPS_SI, layers, electrodes, domain, sites, carriers: ['electron', 'hole'] });
+    expect(r.findings).toContainEqual({ code: 'electrode-not-plane', index: 1 });
+    const W = 30 / EPS_SI + 5 / EPS_OX;
+    const f = (30 - 12) / EPS_SI / W; // share of the drop below z = −12 (series capacitors)
+    expect(r.meVPerV[0]).toBeCloseTo(-1000 * f, 10); // electron, top gate
+    expect(Number.isNaN(r.meVPerV[1])).toBe(true); // plunger: needs the FEM
+    expect(r.meVPerV[2]).toBeCloseTo(-1000 * (1 - f), 10); // back gate
+    expect(r.meVPerV[3]).toBe(0); // behind the back gate
+    expect(r.meVPerV[4]).toBeCloseTo(1000 * f, 10); // hole: opposite sign
+    expect(Number.isNaN(r.siteEnergiesEv[0])).toBe(true); // the plunger's share is unknown
+  });
+
+  it('with planes only, the site energy is −φ(centre) at the design voltages for an electron', () => {
+    const planesOnly = [electrodes[0], electrodes[2]];
+    const r = planeLeverArms({ epsilonR: EPS_SI, layers, electrodes: planesOnly, domain, sites: [{ position: [0, 0, -12] }] });
+    const W = 30 / EPS_SI + 5 / EPS_OX;
+    const f = (30 - 12) / EPS_SI / W;
+    expect(r.siteEnergiesEv[0]).toBeCloseTo(-(-0.2 + (0.5 + 0.2) * f), 13);
+    expect(r.findings).toEqual([]);
+  });
+
+  it('says when a density reaches an interface (the closed form assumes it does not)', () => {
+    const r = planeLeverArms({
+      epsilonR: EPS_SI,
+      layers,
+      electrodes: [electrodes[0], electrodes[2]],
+      domain,
+      sites: [{ position: [0, 0, -2], orbital: { model: 'gaussian', sigmaNm: 1 } }],
+    });
+    expect(r.findings.map((x) => x.code)).toEqual(['density-leaks']);
   });
 });
