@@ -13,11 +13,11 @@
  *   effect.ts     the worst image-charge effect on U and V against an infinite host
  */
 export type { Electrode, HostCode, HostFinding, HostLayer, PlanarStack } from './types';
-export { interfaceCharges, reflection, transmission } from './interface';
-export { homogeneousStack, planarStack, regionOf, type MetalPlane } from './stack';
+export { interfaceCharges } from './interface';
+export { planarStack, type MetalPlane } from './stack';
+export { hostStack, type HostStackInput } from './planes';
 export { greenFunction, imageSeries, reactionAt, seriesAt, type ImageOptions, type ImageSeries } from './images';
-export { layeredEnergy, leakBeyondInterfaces, type DensitySite, type LayeredEnergy, type SeriesCache } from './reaction';
-export { plateLeverArms, plateProfile, plateSiteEnergy, topFraction, type Carrier, type PlateProfile } from './plates';
+export { layeredEnergy, type DensitySite, type LayeredEnergy } from './reaction';
+export { plateLeverArms, plateProfile, plateSiteEnergy, type Carrier, type PlateProfile } from './plates';
 export { planeLeverArms, type LeverArmInput, type LeverArms } from './lever';
-export { hostStack, metalPlanes, type HostStackInput, type PlaneOfElectrode } from './planes';
 export { imageChargeEffect, type ImageEffect, type ImageEffectInput } from './effect';

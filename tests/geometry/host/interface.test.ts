@@ -7,7 +7,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { gaussLegendre } from '../../../geometry/density';
-import { greenFunction, imageSeries, interfaceCharges, planarStack, reactionAt, reflection, transmission } from '../../../geometry/host';
+import { greenFunction, imageSeries, interfaceCharges, planarStack, reactionAt } from '../../../geometry/host';
+import { reflection, transmission } from '../../../geometry/host/interface';
 import type { PlanarStack } from '../../../geometry/host';
 
 type V3 = [number, number, number];

@@ -9,7 +9,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { gaussLegendre } from '../../../geometry/density';
-import { imageSeries, planarStack, planeLeverArms, plateLeverArms, plateProfile, plateSiteEnergy, seriesAt, topFraction } from '../../../geometry/host';
+import { imageSeries, planarStack, planeLeverArms, plateLeverArms, plateProfile, plateSiteEnergy, seriesAt } from '../../../geometry/host';
+import { topFraction } from '../../../geometry/host/plates';
 import type { HostLayer } from '../../../geometry/host';
 import { VACUUM_PERMITTIVITY_F_M } from '../../../geometry/units';
 

@@ -9,7 +9,9 @@
 import { describe, expect, it } from 'vitest';
 import type { Orbital, Vec3 } from '../../../geometry/design/types';
 import { erf, erfc, gaussLegendre, radialPotential, selfEnergy } from '../../../geometry/density';
-import { homogeneousStack, imageSeries, layeredEnergy, leakBeyondInterfaces, planarStack, reactionAt } from '../../../geometry/host';
+import { imageSeries, layeredEnergy, planarStack, reactionAt } from '../../../geometry/host';
+import { leakBeyondInterfaces } from '../../../geometry/host/reaction';
+import { homogeneousStack } from '../../../geometry/host/stack';
 import type { PlanarStack } from '../../../geometry/host';
 import { COULOMB_EV_NM, ELEMENTARY_CHARGE_C, VACUUM_PERMITTIVITY_F_M } from '../../../geometry/units';
 import { gaussianReactionReference } from './gaussian-reference';

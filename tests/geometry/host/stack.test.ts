@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { homogeneousStack, planarStack, regionOf } from '../../../geometry/host';
+import { planarStack } from '../../../geometry/host';
+import { homogeneousStack, regionOf } from '../../../geometry/host/stack';
 import type { HostLayer } from '../../../geometry/host';
 
 // Issue 11's own example stack (field names are the contract): silicon below 0, SiO₂ 0–5 nm, vacuum above.
