@@ -24,8 +24,9 @@
  * 1s, stretched for the anisotropic model) sees the other medium's Green's function, which the
  * image construction ignores. Its share f is reported as `leak` (a size, not a rigorous bound);
  * tests/geometry/host/reaction.test.ts compares ΔU with an independent Fourier-space reference that
- * includes the leaked part and finds the relative error below f for a Gaussian at 2σ–5σ under an
- * oxide or vacuum (e.g. 8e-4 at 3σ, where f = 1.3e-3). Keep sites several σ or a from interfaces.
+ * includes the leaked part and finds the relative error below f: for a Gaussian at 2σ–5σ (e.g.
+ * 8e-4 at 3σ, where f = 1.3e-3) and for a 1s density at 3a and 4a (4.4e-3 at 3a, f = 5.0e-3),
+ * under an oxide or vacuum. Keep sites several σ or a from interfaces.
  */
 import type { Orbital, Vec3 } from '../design/types';
 import { erfc, halfSpaceTail1s, pairEnergy, selfEnergy } from '../density';
