@@ -41,6 +41,7 @@
 import type { Design, Orbital, Vec3 } from '../design/types';
 import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
+import type { CoreProgress } from '../progress';
 import { farFieldCheck, type FarFieldReport } from '../farfield';
 import { densityAt, chargeOutsideBox } from '../density';
 import { meshDesign, MeshError, refineUniform, toTetMesh, type MeshDesignOptions } from '../mesh/index';
@@ -64,12 +65,10 @@ export class CoulombError extends Error {
   }
 }
 
-export interface Progress {
-  /** what is running, in words */
-  stage: string;
-  /** overall fraction done, 0..1 */
-  fraction: number;
-}
+/** Progress as data (phase, level, site, fraction): see geometry/progress.ts. */
+export type Progress = CoreProgress;
+/** What one level's solve reports: the caller adds the level and rescales the fraction. */
+type LevelReport = (phase: 'load' | 'solve', site: string, fraction: number) => void;
 
 export interface CoulombOptions {
   /** element order (default design.refinement.order) */
@@ -225,7 +224,7 @@ function solveLevel(
   sites: ActiveSite[],
   pairIdx: Int32Array,
   opts: CoulombOptions,
-  report: (stage: string, f: number) => void,
+  report: LevelReport,
 ): LevelSolution {
   const space = buildSpace(mesh, order);
   const eps = epsArray(design);
@@ -242,7 +241,7 @@ function solveLevel(
   for (let s = 0; s < ns; s++) {
     const site = sites[s];
     if (aborted(opts.signal)) throw new SolveAbortedError();
-    report(`load ${site.id}`, s / ns);
+    report('load', site.id, s / ns);
     const L = densityLoad(space, site.orbital, site.position, opts.load);
     const inside = 1 - chargeOutsideBox(site.orbital, site.position, design.enclosure.center, design.enclosure.halfExtentsNm);
     if (!(Math.abs(L.charge - inside) <= CHARGE_TOLERANCE)) {
@@ -269,7 +268,7 @@ function solveLevel(
       maxIter: 5000,
       signal: opts.signal,
       stage: `solve ${site.id}`,
-      onProgress: (stage, f) => report(stage, (s + 0.1 + 0.9 * f) / ns),
+      onProgress: (_stage, f) => report('solve', site.id, (s + 0.1 + 0.9 * f) / ns),
     });
     if (!res.converged) {
       throw new CoulombError('solver-failed', `the solver did not reach its tolerance for site ${site.id} (relative residual ${res.relResidual.toExponential(2)} after ${res.iterations} iterations)`);
@@ -554,7 +553,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
   const pl = plan(design, opts);
   const tol = design.refinement.targetRelError;
   const notes: string[] = [];
-  const report = (stage: string, f: number): void => opts.onProgress?.({ stage, fraction: Math.min(1, Math.max(0, f)) });
+  const report = (p: CoreProgress): void => opts.onProgress?.({ ...p, fraction: Math.min(1, Math.max(0, p.fraction)) });
   const h: History = { s: [], self: [], pair: [], levels: [] };
   let finest: LevelSolution | null = null;
   let finestMesh: TetMesh | null = null;
@@ -573,6 +572,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
   if (!opts.adaptive) {
     mode = 'graded';
     const levels = Math.max(2, Math.floor(opts.levels ?? 3));
+    report({ phase: 'mesh', fraction: 0 });
     const meshes = gradedFamily(design, order, levels, opts.mesh ?? {});
     // weights of the levels in the progress bar: proportional to their sizes
     const w = meshes.map((m) => m.tets.length);
@@ -580,8 +580,8 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
     let done = 0;
     for (let l = 0; l < meshes.length; l++) {
       if (aborted(opts.signal)) throw new SolveAbortedError();
-      const sol = solveLevel(design, meshes[l], order, pl.sites, pl.pairIdx, opts, (stage, f) =>
-        report(`level ${l + 1}/${meshes.length}: ${stage}`, (done + w[l] * f) / wSum),
+      const sol = solveLevel(design, meshes[l], order, pl.sites, pl.pairIdx, opts, (phase, site, f) =>
+        report({ phase, level: l + 1, site, fraction: (done + w[l] * f) / wSum }),
       );
       record(sol, meshes[l], Math.pow(sol.space.nDofs, -1 / 3));
       done += w[l];
@@ -625,8 +625,8 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
   const out = runAdaptive(
     md.bisectionMesh!,
     (mesh, round) => {
-      const sol = solveLevel(design, mesh, order, pl.sites, pl.pairIdx, opts, (stage, f) =>
-        report(`round ${round + 1}: ${stage}`, base + 0.05 * f * (1 - base)),
+      const sol = solveLevel(design, mesh, order, pl.sites, pl.pairIdx, opts, (phase, site, f) =>
+        report({ phase, level: round + 1, site, fraction: base + 0.05 * f * (1 - base) }),
       );
       const nT = mesh.tets.length / 4;
       record(sol, mesh, Math.pow(sol.space.nDofs, -1 / 3));
@@ -662,7 +662,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
     }
     const skipped = design.sites.filter((s) => !(s.electrons > 0)).map((s) => s.id);
     if (skipped.length > 0 && !opts.siteIds) notes.push(`Sites without electrons have no density and are left out: ${skipped.join(', ')}.`);
-    report('done', 1);
+    report({ phase: 'done', fraction: 1 });
     return {
       order,
       elements: mesh.tets.length / 4,
@@ -692,7 +692,7 @@ export function energiesOnMesh(
   opts: Pick<CoulombOptions, 'solverTol' | 'signal' | 'onProgress' | 'siteIds'> = {},
 ): { siteIds: string[]; uEv: number[]; dofs: number; elements: number; iterations: number; charges: number[] } {
   const sites = activeSites(design, opts.siteIds);
-  const sol = solveLevel(design, mesh, order, sites, new Int32Array(0), opts, (stage, f) => opts.onProgress?.({ stage, fraction: f }));
+  const sol = solveLevel(design, mesh, order, sites, new Int32Array(0), opts, (phase, site, f) => opts.onProgress?.({ phase, site, fraction: f }));
   return {
     siteIds: sites.map((s) => s.id),
     uEv: Array.from(sol.self, (x) => x * COULOMB_EV_NM),
@@ -718,7 +718,7 @@ export function solveSitePotentials(
 ): { siteIds: string[]; potentials: Float64Array[]; nodal: Float64Array[]; dofs: number; iterations: number } {
   const sites = activeSites(design, opts.siteIds);
   const nV = mesh.coords.length / 3;
-  const sol = solveLevel(design, mesh, order, sites, new Int32Array(0), opts, (stage, f) => opts.onProgress?.({ stage, fraction: f }));
+  const sol = solveLevel(design, mesh, order, sites, new Int32Array(0), opts, (phase, site, f) => opts.onProgress?.({ phase, site, fraction: f }));
   return {
     siteIds: sites.map((s) => s.id),
     potentials: sol.phis.map((p) => p.slice(0, nV)),

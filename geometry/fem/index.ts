@@ -37,7 +37,7 @@ export {
 } from './reference';
 
 // The Coulomb problem layer: densities, boundary values, U and V with error bars, adaptivity,
-// convergence sweeps (the worker pool lives in pool.ts and is imported directly by Node-side callers only).
+// convergence sweeps. Worker threads are the server's (server/workers/coulombPool.ts): geometry/ runs in the browser too.
 export { densityLoad } from './load';
 export type { DensityLoad, DensityLoadOptions } from './load';
 export { boundaryValues } from './boundary';
