@@ -42,6 +42,7 @@ import type { Design, Orbital, Vec3 } from '../design/types';
 import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
 import type { CoreProgress } from '../progress';
+import { CoreError, throwIfAborted, type CoreErrorDetails } from '../errors';
 import { farFieldCheck, type FarFieldReport } from '../farfield';
 import { densityAt, chargeOutsideBox } from '../density';
 import { meshDesign, MeshError, refineUniform, toTetMesh, type MeshDesignOptions } from '../mesh/index';
@@ -49,19 +50,17 @@ import type { TetMesh } from '../mesh/types';
 import { buildSpace, type FeSpace } from './space';
 import { assembleStiffness, applyDirichlet, applyDirichletRhs } from './assemble';
 import { multigridPreconditioner } from './multigrid';
-import { pcg, jacobi, SolveAbortedError, type Preconditioner } from './pcg';
+import { pcg, jacobi, type Preconditioner } from './pcg';
 import type { Csr } from './csr';
 import { densityLoad, type DensityLoadOptions } from './load';
 import { boundaryValues } from './boundary';
 import { residualIndicator, runAdaptive, DEFAULT_THETA } from './adaptive';
 
-/** A clear refusal with a stable code, for the CLI and the server to show as it is. */
-export class CoulombError extends Error {
-  readonly code: 'no-electrons' | 'no-sites' | 'unknown-site' | 'site-outside' | 'sites-coincide' | 'not-converged' | 'solver-failed';
-  constructor(code: CoulombError['code'], message: string) {
-    super(message);
+/** A refusal of the Coulomb layer: a CoreError (geometry/errors.ts) with a stable code and details. */
+export class CoulombError extends CoreError<'no-electrons' | 'no-sites' | 'unknown-site' | 'site-outside' | 'sites-coincide' | 'not-converged' | 'solver-failed'> {
+  constructor(code: CoulombError['code'], message: string, details: CoreErrorDetails = {}) {
+    super(code, message, details);
     this.name = 'CoulombError';
-    this.code = code;
   }
 }
 
@@ -209,10 +208,6 @@ function epsArray(design: Design): Float64Array {
   return new Float64Array(256).fill(design.host.epsilonR);
 }
 
-function aborted(signal: CoulombOptions['signal']): boolean {
-  return !!signal && signal.aborted;
-}
-
 /**
  * Solve every active site's potential on one mesh and form the energies (in nm⁻¹; multiply by
  * COULOMB_EV_NM for eV).
@@ -240,7 +235,7 @@ function solveLevel(
   const ns = sites.length;
   for (let s = 0; s < ns; s++) {
     const site = sites[s];
-    if (aborted(opts.signal)) throw new SolveAbortedError();
+    throwIfAborted(opts.signal);
     report('load', site.id, s / ns);
     const L = densityLoad(space, site.orbital, site.position, opts.load);
     const inside = 1 - chargeOutsideBox(site.orbital, site.position, design.enclosure.center, design.enclosure.halfExtentsNm);
@@ -579,7 +574,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
     const wSum = w.reduce((a, b) => a + b, 0);
     let done = 0;
     for (let l = 0; l < meshes.length; l++) {
-      if (aborted(opts.signal)) throw new SolveAbortedError();
+      throwIfAborted(opts.signal);
       const sol = solveLevel(design, meshes[l], order, pl.sites, pl.pairIdx, opts, (phase, site, f) =>
         report({ phase, level: l + 1, site, fraction: (done + w[l] * f) / wSum }),
       );

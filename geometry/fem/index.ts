@@ -27,7 +27,7 @@ export {
   interpolate,
 } from './assemble';
 export type { Preconditioner, PcgOptions, PcgResult } from './pcg';
-export { pcg, jacobi, SolveAbortedError } from './pcg';
+export { pcg, jacobi } from './pcg';
 export type { MultigridOptions, MultigridStats } from './multigrid';
 export { multigridPreconditioner, HierarchyError } from './multigrid';
 export type { TetRule } from './reference';

@@ -89,9 +89,9 @@ export async function run(argv: string[]): Promise<number> {
   try {
     result = convergenceResults(design, { kind, order: orderArg ? (Number(orderArg) as 1 | 2) : undefined, levels, onProgress: progress.onProgress }).result;
   } catch (err) {
-    const msg = refusalMessage(err);
+    const msg = refusalMessage(err, 'cannot run the convergence sweep');
     if (msg === null) throw err;
-    console.error(`cannot run the convergence sweep: ${msg}`);
+    console.error(msg);
     return 1;
   }
   console.log(json ? JSON.stringify(toConvergenceJson(result), null, 2) : toConvergenceReadable(design, result));

@@ -18,18 +18,18 @@
 import { readDesign } from './design-file';
 import { notesAndAssumptions, table } from './text';
 import type { Design } from '../../geometry/design/types';
-import { CoulombError, type CoulombResult } from '../../geometry/fem/coulomb';
+import type { CoulombResult } from '../../geometry/fem/coulomb';
+import { asRefusal, describeRefusal } from '../coreErrors';
 import { coulombJson, coulombResults, type CoulombResults } from '../../geometry/pipeline/index';
 import { parseCli } from './args';
 import { progressLines } from './progress';
-import { MeshError } from '../../geometry/mesh/index';
 
 const USAGE = 'usage: npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]... [--pairs auto|all|bond-graph|none] [--theta x] [--json] [--progress]';
 
-/** The refusals the solver layer raises on purpose: shown as they are, never as a stack trace. */
-export function refusalMessage(err: unknown): string | null {
-  if (err instanceof CoulombError || err instanceof MeshError) return err.message;
-  return null;
+/** The refusals the numerical core raises on purpose (CoreError): shown in words, never as a stack trace. */
+export function refusalMessage(err: unknown, lead: string): string | null {
+  const refusal = asRefusal(err);
+  return refusal ? describeRefusal(refusal, lead) : null;
 }
 
 /** The object `coulomb --json` prints (geometry/pipeline, the same a coulomb job stores as results.json). */
@@ -123,9 +123,9 @@ export async function run(argv: string[]): Promise<number> {
       onProgress: progress.onProgress,
     });
   } catch (err) {
-    const msg = refusalMessage(err);
+    const msg = refusalMessage(err, 'cannot compute U and V');
     if (msg === null) throw err;
-    console.error(`cannot compute U and V: ${msg}`);
+    console.error(msg);
     return 1;
   }
   const result = out.result;

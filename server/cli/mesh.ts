@@ -20,8 +20,7 @@ import { writeFile } from 'node:fs/promises';
 import { readDesign } from './design-file';
 import { parseCli } from './args';
 import { progressLines } from './progress';
-import { MeshError } from '../../geometry/mesh/index';
-import { CoulombError } from '../../geometry/fem/coulomb';
+import { asRefusal, describeRefusal, refusalArea } from '../coreErrors';
 import { buildMeshArtifact, encodeMesh, sitesOutsideEnclosure, type MeshArtifact, type MeshFormat } from '../../geometry/pipeline/index';
 
 const USAGE = 'usage: npm run cli -- mesh <design.json> --out <file> [--order 1|2] [--format vtu|vtk|binary] [--solve] [--json] [--progress]';
@@ -92,15 +91,10 @@ export async function run(argv: string[]): Promise<number> {
   try {
     artifact = buildMeshArtifact(design, { order: args.order, solve: args.solve, siteReport: !args.json, onProgress: progress.onProgress });
   } catch (e) {
-    if (e instanceof MeshError) {
-      console.error(`cannot mesh ${args.file}: ${e.message}`);
-      return 1;
-    }
-    if (e instanceof CoulombError) {
-      console.error(`cannot solve on the mesh of ${args.file}: ${e.message}`);
-      return 1;
-    }
-    throw e;
+    const refusal = asRefusal(e);
+    if (!refusal) throw e;
+    console.error(describeRefusal(refusal, refusalArea(refusal) === 'mesh' ? `cannot mesh ${args.file}` : `cannot solve on the mesh of ${args.file}`));
+    return 1;
   }
   const { order, quality: q, meshed: result } = artifact;
 

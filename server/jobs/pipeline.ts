@@ -6,14 +6,13 @@
  * --json` prints. This file only packs files (papaparse for the CSV) and maps refusals.
  *
  * Runs inside a worker thread (server/jobs/task.worker.ts). Refusals of the numerical core
- * (MeshError, CoulombError) come back as `JobRefusal` with their words; anything else is a fault
- * (retried by the queue).
+ * (CoreError) come back as `JobRefusal` in the words of server/coreErrors.ts; a cancel is an
+ * AbortError; anything else is a fault (retried by the queue).
  */
 import Papa from 'papaparse';
 import type { JobKind, JobOptions, JobProgress } from '@contracts/api';
 import type { Design } from '../../geometry/design/types';
-import { MeshError } from '../../geometry/mesh/index';
-import { CoulombError } from '../../geometry/fem/coulomb';
+import { asRefusal, describeRefusal, isCoreAbort } from '../coreErrors';
 import { buildMeshArtifact, encodeMesh, coulombResults, convergenceResults, type ResultTable, type CoreProgress } from '../../geometry/pipeline/index';
 
 export interface PipelineFile {
@@ -102,10 +101,9 @@ export function runPipeline(kind: JobKind, design: Design, options: JobOptions, 
     if (kind === 'coulomb') return runCoulomb(design, order, options.adaptive ?? false, hooks);
     return runConvergence(design, order, options.sweep ?? 'refinement', hooks);
   } catch (e) {
-    if (e instanceof MeshError || e instanceof CoulombError) {
-      if (hooks.signal?.aborted) throw new DOMException('The job was cancelled.', 'AbortError');
-      throw new JobRefusal(e.message);
-    }
+    if (isCoreAbort(e) || (hooks.signal?.aborted && asRefusal(e))) throw new DOMException('The job was cancelled.', 'AbortError');
+    const refusal = asRefusal(e);
+    if (refusal) throw new JobRefusal(describeRefusal(refusal));
     throw e;
   }
 }
