@@ -20,7 +20,7 @@ export { buildSpace } from './space';
 export type { Csr } from './csr';
 export { spmv } from './csr';
 export type { PreparedSpmv } from './spmv-wasm';
-export { prepareSpmv, wasmSpmvAvailable } from './spmv-wasm';
+export { prepareSpmv, wasmSpmvAvailable, releaseSpmvMemory, spmvArenaBytes, SPMV_KEEP_BYTES } from './spmv-wasm';
 export type { PointFunction, SystemOptions } from './assemble';
 export {
   assembleStiffness, assembleSystem, assembleLoad, assembleMass, applyDirichlet, applyDirichletRhs, integrate, feIntegrate,

@@ -15,6 +15,7 @@ import type { CoreProgress as Progress } from '../../geometry/progress';
 import { solveCoulomb, solveSitePotentials, type CoulombOptions } from '../../geometry/fem/coulomb';
 import { runConvergence, type ConvergenceOptions } from '../../geometry/fem/convergence';
 import type { TetMesh } from '../../geometry/mesh/types';
+import { releaseSpmvMemory } from '../../geometry/fem/spmv-wasm';
 
 export const PROGRESS_INTERVAL_MS = 50;
 
@@ -58,5 +59,7 @@ export default function runJob(task: WorkerTask): unknown {
     }
   } finally {
     task.port?.close();
+    // the thread lives on between jobs: hand back the WebAssembly memory a big matrix grew
+    releaseSpmvMemory();
   }
 }
