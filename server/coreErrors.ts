@@ -3,7 +3,7 @@
  * line and the job worker: the code picks what went wrong in the modeller's terms, the core's
  * message adds the figures. Cancellation has its own words and is never a refusal.
  */
-import { CoreError, type CoreErrorCode } from '../geometry/errors';
+import { CoreError, type CoreErrorCode } from '../geometry/pipeline/index';
 
 /** What a refusal stops: building the mesh, computing U and V, or reading mesh bytes. */
 export type RefusalArea = 'mesh' | 'solve' | 'read' | 'cancelled';

@@ -32,8 +32,7 @@ export type { MultigridOptions, MultigridStats } from './multigrid';
 export { multigridPreconditioner, HierarchyError } from './multigrid';
 export type { TetRule } from './reference';
 export {
-  tetQuadrature, conicalRule, grundmannMollerRule, p1Basis, p2Basis, p2BasisBary, p2GradientsBary, p1RefGradients,
-  p2RefGradients, tetGeometry, mapBary, GEOM_SIZE, P2_REF_NODES,
+  tetQuadrature, conicalRule, grundmannMollerRule, p1Basis, p2Basis, p2RefGradients, tetGeometry, GEOM_SIZE, P2_REF_NODES,
 } from './reference';
 
 // The Coulomb problem layer: densities, boundary values, U and V with error bars, adaptivity,
@@ -42,7 +41,7 @@ export { densityLoad } from './load';
 export type { DensityLoad, DensityLoadOptions } from './load';
 export { boundaryValues } from './boundary';
 export { solveCoulomb, solveSitePotentials, energiesOnMesh, richardson, observedRate, CoulombError, COULOMB_ASSUMPTIONS } from './coulomb';
-export type { CoulombOptions, CoulombResult, SiteEnergy, PairEnergy, ErrorBudget, Progress } from './coulomb';
-export { residualIndicator, dorflerMark, runAdaptive, DEFAULT_THETA } from './adaptive';
+export type { CoulombOptions, CoulombResult, SiteEnergy, PairEnergy, ErrorBudget } from './coulomb';
+export { residualIndicator, dorflerMark } from './adaptive';
 export { runConvergence, fitLogLog } from './convergence';
-export type { ConvergenceOptions, ConvergenceResult, ConvergencePlot } from './convergence';
+export type { ConvergenceOptions, ConvergenceResult, ConvergencePlot, RefinementRow, BoxRow } from './convergence';

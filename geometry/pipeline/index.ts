@@ -11,8 +11,10 @@
  *
  * Progress is data (geometry/progress.ts); refusals are CoreError (geometry/errors.ts).
  */
-export { buildMeshArtifact, encodeMesh, meshSummary, sitesOutsideEnclosure } from './mesh';
+export { buildMeshArtifact, encodeMesh, sitesOutsideEnclosure } from './mesh';
 export type { MeshArtifact, MeshArtifactOptions, MeshFormat, MeshSummary } from './mesh';
-export { coulombResults, convergenceResults, coulombJson, convergenceJson, coulombTable, convergenceTable } from './results';
+export { coulombResults, convergenceResults, coulombJson, convergenceJson } from './results';
 export type { CoulombResults, ConvergenceResults, CoulombJson, ConvergenceJson, ResultTable } from './results';
 export type { CoreProgress, CorePhase } from '../progress';
+export { CoreError, CoreAbortError } from '../errors';
+export type { CoreErrorCode, CoreErrorDetails } from '../errors';

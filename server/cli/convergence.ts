@@ -8,7 +8,7 @@
  * Exit codes: 0 done, 1 invalid document or a refusal, 2 usage.
  */
 import type { Design } from '../../geometry/design/types';
-import type { ConvergenceResult, RefinementRow, BoxRow } from '../../geometry/fem/convergence';
+import type { ConvergenceResult, RefinementRow, BoxRow } from '../../geometry/fem/index';
 import { convergenceJson, convergenceResults } from '../../geometry/pipeline/index';
 import { refusalMessage } from './coulomb';
 import { parseCli } from './args';

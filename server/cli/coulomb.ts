@@ -18,7 +18,7 @@
 import { readDesign } from './design-file';
 import { notesAndAssumptions, table } from './text';
 import type { Design } from '../../geometry/design/types';
-import type { CoulombResult } from '../../geometry/fem/coulomb';
+import type { CoulombResult } from '../../geometry/fem/index';
 import { asRefusal, describeRefusal } from '../coreErrors';
 import { coulombJson, coulombResults, type CoulombResults } from '../../geometry/pipeline/index';
 import { parseCli } from './args';

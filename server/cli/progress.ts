@@ -4,7 +4,7 @@
  * every `everyMs` and whenever the phase, level or site changes. The commands turn it off with
  * --json unless --progress asks for it.
  */
-import type { CoreProgress } from '../../geometry/progress';
+import type { CoreProgress } from '../../geometry/pipeline/index';
 
 const PHASE_WORDS: Record<CoreProgress['phase'], string> = {
   mesh: 'building the mesh',

@@ -7,7 +7,7 @@
 import type { MessagePort } from 'node:worker_threads';
 import type { JobKind, JobOptions } from '@contracts/api';
 import type { Design } from '../../geometry/design/types';
-import { releaseSpmvMemory } from '../../geometry/fem/spmv-wasm';
+import { releaseSpmvMemory } from '../../geometry/fem/index';
 import { JobRefusal, runPipeline } from './pipeline';
 import { packFile, type PackedFile } from './storage';
 

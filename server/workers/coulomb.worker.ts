@@ -11,11 +11,9 @@
  */
 import type { MessagePort } from 'node:worker_threads';
 import type { Design } from '../../geometry/design/types';
-import type { CoreProgress as Progress } from '../../geometry/progress';
-import { solveCoulomb, solveSitePotentials, type CoulombOptions } from '../../geometry/fem/coulomb';
-import { runConvergence, type ConvergenceOptions } from '../../geometry/fem/convergence';
-import type { TetMesh } from '../../geometry/mesh/types';
-import { releaseSpmvMemory } from '../../geometry/fem/spmv-wasm';
+import type { CoreProgress as Progress } from '../../geometry/pipeline/index';
+import { solveCoulomb, solveSitePotentials, runConvergence, releaseSpmvMemory, type CoulombOptions, type ConvergenceOptions } from '../../geometry/fem/index';
+import type { TetMesh } from '../../geometry/mesh/index';
 
 export const PROGRESS_INTERVAL_MS = 50;
 

@@ -20,7 +20,7 @@ import { fileURLToPath } from 'node:url';
 import { existsSync } from 'node:fs';
 import Piscina from 'piscina';
 import type { CoulombJob } from './coulomb.worker';
-import type { CoreProgress as Progress } from '../../geometry/progress';
+import type { CoreProgress as Progress } from '../../geometry/pipeline/index';
 
 export type { CoulombJob } from './coulomb.worker';
 
