@@ -266,7 +266,11 @@ function solveLevel(
       onProgress: (_stage, f) => report('solve', site.id, (s + 0.1 + 0.9 * f) / ns),
     });
     if (!res.converged) {
-      throw new CoulombError('solver-failed', `the solver did not reach its tolerance for site ${site.id} (relative residual ${res.relResidual.toExponential(2)} after ${res.iterations} iterations)`);
+      throw new CoulombError('solver-failed', `the solver did not reach its tolerance for site ${site.id} (relative residual ${res.relResidual.toExponential(2)} after ${res.iterations} iterations)`, {
+        siteId: site.id,
+        relResidual: res.relResidual,
+        iterations: res.iterations,
+      });
     }
     iterations = Math.max(iterations, res.iterations);
     phis.push(res.x);
@@ -384,9 +388,9 @@ function activeSites(design: Design, siteIds?: string[]): ActiveSite[] {
   if (siteIds) {
     idx = siteIds.map((id) => {
       const i = byId.get(id);
-      if (i === undefined) throw new CoulombError('unknown-site', `there is no site "${id}" in the design`);
+      if (i === undefined) throw new CoulombError('unknown-site', `there is no site "${id}" in the design`, { siteId: id });
       if (!(design.sites[i].electrons > 0)) {
-        throw new CoulombError('no-electrons', `site "${id}" has no electrons (an ionised core), so it has no density and no on-site U; give it 1 or 2 electrons or leave it out`);
+        throw new CoulombError('no-electrons', `site "${id}" has no electrons (an ionised core), so it has no density and no on-site U; give it 1 or 2 electrons or leave it out`, { siteId: id });
       }
       return i;
     });
@@ -418,7 +422,7 @@ function plan(design: Design, opts: CoulombOptions): Plan {
   // than print a table that silently lacks it.
   const coincide = far.warnings.find((w) => w.code === 'sites-coincide');
   if (coincide) {
-    throw new CoulombError('sites-coincide', `sites ${coincide.siteIds.map((id) => `"${id}"`).join(', ')} sit at the same position: give each its own lattice site`);
+    throw new CoulombError('sites-coincide', `sites ${coincide.siteIds.map((id) => `"${id}"`).join(', ')} sit at the same position: give each its own lattice site`, { siteIds: coincide.siteIds });
   }
   const boundById = new Map(far.sites.map((s) => [s.id, s] as const));
   const siteBound: number[] = [];
@@ -426,7 +430,7 @@ function plan(design: Design, opts: CoulombOptions): Plan {
   for (const s of sites) {
     const b = boundById.get(s.id);
     if (!b || b.uBoundEv === null) {
-      throw new CoulombError('site-outside', `site "${s.id}" is not strictly inside the enclosure: enlarge the box or move the site`);
+      throw new CoulombError('site-outside', `site "${s.id}" is not strictly inside the enclosure: enlarge the box or move the site`, { siteId: s.id });
     }
     siteBound.push(b.uBoundEv);
     siteCut.push(b.chargeOutside);
@@ -602,6 +606,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
       'not-converged',
       `${floor.what}: the enclosure's boundary error bound plus the density cut by the box is already ${floor.rel.toExponential(2)} relative, above targetRelError ${tol}; no refinement can fix that. ` +
         'Enlarge the box (the check command recommends half-extents) or use a multipole boundary.',
+      { relError: floor.rel, targetRelError: tol },
     );
   }
   const startTol = Math.min(0.2, (opts.startFactor ?? 4) * tol);

@@ -57,6 +57,10 @@ describe('CoreError', () => {
     expect(e).toBeInstanceOf(CoulombError);
     expect(e).toBeInstanceOf(CoreError);
     expect((e as CoreError).code).toBe('no-sites');
+    // a named site without electrons: the code and the site in the details, for the caller's words
+    const named = thrown(() => solveCoulomb(withSites(base, [{ ...base.sites[0], electrons: 0 }, { ...base.sites[0], id: 'd2', position: [1, 0, 0] }]), { siteIds: ['d1'] }));
+    expect(named).toMatchObject({ code: 'no-electrons', details: { siteId: 'd1' } });
+    expect(thrown(() => solveCoulomb(base, { siteIds: ['nowhere'] }))).toMatchObject({ code: 'unknown-site', details: { siteId: 'nowhere' } });
   });
 
   it('unreadable mesh bytes are a CoreError', () => {
