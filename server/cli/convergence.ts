@@ -1,5 +1,5 @@
 /**
- * `npm run cli -- convergence <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json]`:
+ * `npm run cli -- convergence <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json] [--progress]`:
  * convergence sweeps of U (and the box-size sweep for grounded and multipole boundaries).
  *
  * With --json prints the convergence result: { kind, order, siteIds, rows, plots, fittedRate, theoreticalRate,
@@ -9,7 +9,7 @@
  */
 import type { Design } from '../../geometry/design/types';
 import type { ConvergenceResult, RefinementRow, BoxRow } from '../../geometry/fem/index';
-import { convergenceJson, convergenceResults } from '../../geometry/pipeline/index';
+import { convergenceResults, type ConvergenceResults } from '../../geometry/pipeline/index';
 import { refusalMessage } from './coulomb';
 import { parseCli } from './args';
 import { progressLines } from './progress';
@@ -19,9 +19,6 @@ import { notesAndAssumptions, table } from './text';
 const USAGE = 'usage: npm run cli -- convergence <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json] [--progress]';
 
 const meV = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(6) : '—');
-
-/** The object `convergence --json` prints (geometry/pipeline, the same a convergence job stores as results.json). */
-export const toConvergenceJson = convergenceJson;
 
 export function toConvergenceReadable(design: Design, r: ConvergenceResult): string {
   const out: string[] = [];
@@ -85,15 +82,15 @@ export async function run(argv: string[]): Promise<number> {
   const design = await readDesign(args.positionals[0], json);
   if (!design) return 1;
   const progress = progressLines({ enabled: !json || !!v.progress });
-  let result: ConvergenceResult;
+  let out: ConvergenceResults;
   try {
-    result = convergenceResults(design, { kind, order: orderArg ? (Number(orderArg) as 1 | 2) : undefined, levels, onProgress: progress.onProgress }).result;
+    out = convergenceResults(design, { kind, order: orderArg ? (Number(orderArg) as 1 | 2) : undefined, levels, onProgress: progress.onProgress });
   } catch (err) {
     const msg = refusalMessage(err, 'cannot run the convergence sweep');
     if (msg === null) throw err;
     console.error(msg);
     return 1;
   }
-  console.log(json ? JSON.stringify(toConvergenceJson(result), null, 2) : toConvergenceReadable(design, result));
+  console.log(json ? JSON.stringify(out.json, null, 2) : toConvergenceReadable(design, out.result));
   return 0;
 }

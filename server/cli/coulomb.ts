@@ -1,5 +1,5 @@
 /**
- * `npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]… [--pairs …] [--json]`:
+ * `npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]… [--pairs …] [--theta x] [--json] [--progress]`:
  * on-site U and inter-site V of a design with error bars.
  *
  * With --json prints exactly one JSON object, the issue's keys first and in order:
@@ -20,7 +20,7 @@ import { notesAndAssumptions, table } from './text';
 import type { Design } from '../../geometry/design/types';
 import type { CoulombResult } from '../../geometry/fem/index';
 import { asRefusal, describeRefusal } from '../coreErrors';
-import { coulombJson, coulombResults, type CoulombResults } from '../../geometry/pipeline/index';
+import { coulombResults, type CoulombResults } from '../../geometry/pipeline/index';
 import { parseCli } from './args';
 import { progressLines } from './progress';
 
@@ -31,9 +31,6 @@ export function refusalMessage(err: unknown, lead: string): string | null {
   const refusal = asRefusal(err);
   return refusal ? describeRefusal(refusal, lead) : null;
 }
-
-/** The object `coulomb --json` prints (geometry/pipeline, the same a coulomb job stores as results.json). */
-export const toCoulombJson = coulombJson;
 
 const meV = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(6) : '—');
 const meVs = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(2) : '—');
