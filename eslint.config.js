@@ -45,9 +45,26 @@ export default defineConfig([
     ...reactHooks.configs.flat.recommended,
   },
   {
-    // The numerical core is shared by browser and Node: only what both have.
+    // The numerical core is shared by browser and Node: only what both have. No node:* module, no
+    // Node-only global (tsconfig.geometry.json, run by `npm run typecheck`, checks the same without
+    // Node's types); worker threads and files are the server's (server/workers/, server/cli/).
     files: ['geometry/**/*.ts'],
     languageOptions: { globals: { ...globals['shared-node-browser'] } },
+    rules: {
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            { group: ['node:*'], message: 'geometry/ runs in the browser too: Node modules belong in server/.' },
+            { group: ['fs', 'fs/*', 'path', 'url', 'os', 'worker_threads', 'child_process', 'crypto', 'zlib', 'util', 'stream', 'events', 'buffer', 'piscina'], message: 'geometry/ runs in the browser too: Node modules belong in server/.' },
+          ],
+        },
+      ],
+      'no-restricted-globals': [
+        'error',
+        ...['process', 'Buffer', '__dirname', '__filename', 'require', 'global', 'setImmediate'].map((name) => ({ name, message: 'geometry/ runs in the browser too: no Node globals.' })),
+      ],
+    },
   },
   {
     // Tests feed deliberately malformed values to typed APIs (`doc as any`, `Record<string, any>` fixtures

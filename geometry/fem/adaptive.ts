@@ -24,6 +24,7 @@
  * Refine. The mesher's newest-vertex bisection with closure (geometry/mesh refine), which keeps
  * the mesh conforming and the bisection hierarchy the multigrid preconditioner needs.
  */
+import { throwIfAborted } from '../errors';
 import { buildFaces, NO_TET } from '../mesh/edges';
 import { refine, toTetMesh, MeshError, type BisectionMesh } from '../mesh/index';
 import type { TetMesh } from '../mesh/types';
@@ -265,7 +266,7 @@ export function runAdaptive<T>(
     });
   }
   for (let round = 0; ; round++) {
-    if (options.signal?.aborted) throw abortError();
+    throwIfAborted(options.signal);
     const mesh = toTetMesh(bm);
     const r = step(mesh, round);
     steps.push({ elements: bm.nTets, vertices: bm.nVertices, relError: r.relError });
@@ -298,11 +299,6 @@ function fmt(x: number): string {
   return Number.isFinite(x) ? x.toExponential(2) : 'unknown (too few meshes)';
 }
 
-function abortError(): Error {
-  const e = new Error('solve cancelled');
-  e.name = 'AbortError';
-  return e;
-}
 
 /** Deep copy of a bisection mesh (typed arrays copied at their capacity). */
 export function cloneBisectionMesh(m: BisectionMesh): BisectionMesh {

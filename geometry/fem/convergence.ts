@@ -126,7 +126,7 @@ export function runConvergence(design: Design, options: ConvergenceOptions): Con
   const order = options.order ?? design.refinement.order;
   const theoreticalRate = (2 * order) / 3;
   const notes: string[] = [];
-  const report = (stage: string, f: number): void => options.onProgress?.({ stage, fraction: f });
+  const report = (p: Progress, level: number, f: number): void => options.onProgress?.({ ...p, phase: p.phase === 'done' ? 'solve' : p.phase, level, fraction: Math.min(1, Math.max(0, f)) });
 
   if (options.kind === 'refinement') {
     const levels = Math.max(3, Math.floor(options.levels ?? 3));
@@ -140,7 +140,7 @@ export function runConvergence(design: Design, options: ConvergenceOptions): Con
       const mesh = toTetMesh(bm);
       const e = energiesOnMesh(design, mesh, order, {
         signal: options.signal,
-        onProgress: (p) => report(`level ${k + 1}/${levels}: ${p.stage}`, (Math.pow(8, k) - 1 + p.fraction * Math.pow(8, k)) / (Math.pow(8, levels) - 1) * 7 / 8 + 0),
+        onProgress: (p) => report(p, k + 1, ((Math.pow(8, k) - 1 + p.fraction * Math.pow(8, k)) / (Math.pow(8, levels) - 1)) * 7 / 8),
       });
       siteIds = e.siteIds;
       rows.push({
@@ -178,6 +178,7 @@ export function runConvergence(design: Design, options: ConvergenceOptions): Con
         fit: fit ?? undefined,
       },
     ];
+    options.onProgress?.({ phase: 'done', fraction: 1 });
     return {
       kind: 'refinement', order, siteIds, rows, plots, fittedRate: fit ? fit.rate : null, theoreticalRate,
       seconds: (performance.now() - t0) / 1000, notes, assumptions: COULOMB_ASSUMPTIONS,
@@ -199,7 +200,7 @@ export function runConvergence(design: Design, options: ConvergenceOptions): Con
       const label = boundary.kind === 'grounded' ? 'grounded' : `multipole(${boundary.order})`;
       const r = solveCoulomb(d, {
         order, levels: 2, pairs: 'none', signal: options.signal,
-        onProgress: (p) => report(`${label} ×${f}: ${p.stage}`, (done + p.fraction) / total),
+        onProgress: (p) => report(p, done + 1, (done + p.fraction) / total),
       });
       siteIds = r.sites.map((s) => s.id);
       rows.push({
@@ -229,6 +230,7 @@ export function runConvergence(design: Design, options: ConvergenceOptions): Con
       }),
     },
   ];
+  options.onProgress?.({ phase: 'done', fraction: 1 });
   return {
     kind: 'box', order, siteIds, rows, plots, fittedRate: null, theoreticalRate,
     seconds: (performance.now() - t0) / 1000, notes, assumptions: COULOMB_ASSUMPTIONS,

@@ -41,6 +41,8 @@
 import type { Design, Orbital, Vec3 } from '../design/types';
 import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
+import type { CoreProgress } from '../progress';
+import { CoreError, throwIfAborted, type CoreErrorDetails } from '../errors';
 import { farFieldCheck, type FarFieldReport } from '../farfield';
 import { densityAt, chargeOutsideBox } from '../density';
 import { meshDesign, MeshError, refineUniform, toTetMesh, type MeshDesignOptions } from '../mesh/index';
@@ -48,28 +50,24 @@ import type { TetMesh } from '../mesh/types';
 import { buildSpace, type FeSpace } from './space';
 import { assembleStiffness, applyDirichlet, applyDirichletRhs } from './assemble';
 import { multigridPreconditioner } from './multigrid';
-import { pcg, jacobi, SolveAbortedError, type Preconditioner } from './pcg';
+import { pcg, jacobi, type Preconditioner } from './pcg';
 import type { Csr } from './csr';
 import { densityLoad, type DensityLoadOptions } from './load';
 import { boundaryValues } from './boundary';
 import { residualIndicator, runAdaptive, DEFAULT_THETA } from './adaptive';
 
-/** A clear refusal with a stable code, for the CLI and the server to show as it is. */
-export class CoulombError extends Error {
-  readonly code: 'no-electrons' | 'no-sites' | 'unknown-site' | 'site-outside' | 'sites-coincide' | 'not-converged' | 'solver-failed';
-  constructor(code: CoulombError['code'], message: string) {
-    super(message);
+/** A refusal of the Coulomb layer: a CoreError (geometry/errors.ts) with a stable code and details. */
+export class CoulombError extends CoreError<'no-electrons' | 'no-sites' | 'unknown-site' | 'site-outside' | 'sites-coincide' | 'not-converged' | 'solver-failed'> {
+  constructor(code: CoulombError['code'], message: string, details: CoreErrorDetails = {}) {
+    super(code, message, details);
     this.name = 'CoulombError';
-    this.code = code;
   }
 }
 
-export interface Progress {
-  /** what is running, in words */
-  stage: string;
-  /** overall fraction done, 0..1 */
-  fraction: number;
-}
+/** Progress as data (phase, level, site, fraction): see geometry/progress.ts. */
+export type Progress = CoreProgress;
+/** What one level's solve reports: the caller adds the level and rescales the fraction. */
+type LevelReport = (phase: 'load' | 'solve', site: string, fraction: number) => void;
 
 export interface CoulombOptions {
   /** element order (default design.refinement.order) */
@@ -210,10 +208,6 @@ function epsArray(design: Design): Float64Array {
   return new Float64Array(256).fill(design.host.epsilonR);
 }
 
-function aborted(signal: CoulombOptions['signal']): boolean {
-  return !!signal && signal.aborted;
-}
-
 /**
  * Solve every active site's potential on one mesh and form the energies (in nm⁻¹; multiply by
  * COULOMB_EV_NM for eV).
@@ -225,7 +219,7 @@ function solveLevel(
   sites: ActiveSite[],
   pairIdx: Int32Array,
   opts: CoulombOptions,
-  report: (stage: string, f: number) => void,
+  report: LevelReport,
 ): LevelSolution {
   const space = buildSpace(mesh, order);
   const eps = epsArray(design);
@@ -241,8 +235,8 @@ function solveLevel(
   const ns = sites.length;
   for (let s = 0; s < ns; s++) {
     const site = sites[s];
-    if (aborted(opts.signal)) throw new SolveAbortedError();
-    report(`load ${site.id}`, s / ns);
+    throwIfAborted(opts.signal);
+    report('load', site.id, s / ns);
     const L = densityLoad(space, site.orbital, site.position, opts.load);
     const inside = 1 - chargeOutsideBox(site.orbital, site.position, design.enclosure.center, design.enclosure.halfExtentsNm);
     if (!(Math.abs(L.charge - inside) <= CHARGE_TOLERANCE)) {
@@ -269,10 +263,14 @@ function solveLevel(
       maxIter: 5000,
       signal: opts.signal,
       stage: `solve ${site.id}`,
-      onProgress: (stage, f) => report(stage, (s + 0.1 + 0.9 * f) / ns),
+      onProgress: (_stage, f) => report('solve', site.id, (s + 0.1 + 0.9 * f) / ns),
     });
     if (!res.converged) {
-      throw new CoulombError('solver-failed', `the solver did not reach its tolerance for site ${site.id} (relative residual ${res.relResidual.toExponential(2)} after ${res.iterations} iterations)`);
+      throw new CoulombError('solver-failed', `the solver did not reach its tolerance for site ${site.id} (relative residual ${res.relResidual.toExponential(2)} after ${res.iterations} iterations)`, {
+        siteId: site.id,
+        relResidual: res.relResidual,
+        iterations: res.iterations,
+      });
     }
     iterations = Math.max(iterations, res.iterations);
     phis.push(res.x);
@@ -390,9 +388,9 @@ function activeSites(design: Design, siteIds?: string[]): ActiveSite[] {
   if (siteIds) {
     idx = siteIds.map((id) => {
       const i = byId.get(id);
-      if (i === undefined) throw new CoulombError('unknown-site', `there is no site "${id}" in the design`);
+      if (i === undefined) throw new CoulombError('unknown-site', `there is no site "${id}" in the design`, { siteId: id });
       if (!(design.sites[i].electrons > 0)) {
-        throw new CoulombError('no-electrons', `site "${id}" has no electrons (an ionised core), so it has no density and no on-site U; give it 1 or 2 electrons or leave it out`);
+        throw new CoulombError('no-electrons', `site "${id}" has no electrons (an ionised core), so it has no density and no on-site U; give it 1 or 2 electrons or leave it out`, { siteId: id });
       }
       return i;
     });
@@ -424,7 +422,7 @@ function plan(design: Design, opts: CoulombOptions): Plan {
   // than print a table that silently lacks it.
   const coincide = far.warnings.find((w) => w.code === 'sites-coincide');
   if (coincide) {
-    throw new CoulombError('sites-coincide', `sites ${coincide.siteIds.map((id) => `"${id}"`).join(', ')} sit at the same position: give each its own lattice site`);
+    throw new CoulombError('sites-coincide', `sites ${coincide.siteIds.map((id) => `"${id}"`).join(', ')} sit at the same position: give each its own lattice site`, { siteIds: coincide.siteIds });
   }
   const boundById = new Map(far.sites.map((s) => [s.id, s] as const));
   const siteBound: number[] = [];
@@ -432,7 +430,7 @@ function plan(design: Design, opts: CoulombOptions): Plan {
   for (const s of sites) {
     const b = boundById.get(s.id);
     if (!b || b.uBoundEv === null) {
-      throw new CoulombError('site-outside', `site "${s.id}" is not strictly inside the enclosure: enlarge the box or move the site`);
+      throw new CoulombError('site-outside', `site "${s.id}" is not strictly inside the enclosure: enlarge the box or move the site`, { siteId: s.id });
     }
     siteBound.push(b.uBoundEv);
     siteCut.push(b.chargeOutside);
@@ -554,7 +552,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
   const pl = plan(design, opts);
   const tol = design.refinement.targetRelError;
   const notes: string[] = [];
-  const report = (stage: string, f: number): void => opts.onProgress?.({ stage, fraction: Math.min(1, Math.max(0, f)) });
+  const report = (p: CoreProgress): void => opts.onProgress?.({ ...p, fraction: Math.min(1, Math.max(0, p.fraction)) });
   const h: History = { s: [], self: [], pair: [], levels: [] };
   let finest: LevelSolution | null = null;
   let finestMesh: TetMesh | null = null;
@@ -573,15 +571,16 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
   if (!opts.adaptive) {
     mode = 'graded';
     const levels = Math.max(2, Math.floor(opts.levels ?? 3));
+    report({ phase: 'mesh', fraction: 0 });
     const meshes = gradedFamily(design, order, levels, opts.mesh ?? {});
     // weights of the levels in the progress bar: proportional to their sizes
     const w = meshes.map((m) => m.tets.length);
     const wSum = w.reduce((a, b) => a + b, 0);
     let done = 0;
     for (let l = 0; l < meshes.length; l++) {
-      if (aborted(opts.signal)) throw new SolveAbortedError();
-      const sol = solveLevel(design, meshes[l], order, pl.sites, pl.pairIdx, opts, (stage, f) =>
-        report(`level ${l + 1}/${meshes.length}: ${stage}`, (done + w[l] * f) / wSum),
+      throwIfAborted(opts.signal);
+      const sol = solveLevel(design, meshes[l], order, pl.sites, pl.pairIdx, opts, (phase, site, f) =>
+        report({ phase, level: l + 1, site, fraction: (done + w[l] * f) / wSum }),
       );
       record(sol, meshes[l], Math.pow(sol.space.nDofs, -1 / 3));
       done += w[l];
@@ -607,6 +606,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
       'not-converged',
       `${floor.what}: the enclosure's boundary error bound plus the density cut by the box is already ${floor.rel.toExponential(2)} relative, above targetRelError ${tol}; no refinement can fix that. ` +
         'Enlarge the box (the check command recommends half-extents) or use a multipole boundary.',
+      { relError: floor.rel, targetRelError: tol },
     );
   }
   const startTol = Math.min(0.2, (opts.startFactor ?? 4) * tol);
@@ -625,8 +625,8 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
   const out = runAdaptive(
     md.bisectionMesh!,
     (mesh, round) => {
-      const sol = solveLevel(design, mesh, order, pl.sites, pl.pairIdx, opts, (stage, f) =>
-        report(`round ${round + 1}: ${stage}`, base + 0.05 * f * (1 - base)),
+      const sol = solveLevel(design, mesh, order, pl.sites, pl.pairIdx, opts, (phase, site, f) =>
+        report({ phase, level: round + 1, site, fraction: base + 0.05 * f * (1 - base) }),
       );
       const nT = mesh.tets.length / 4;
       record(sol, mesh, Math.pow(sol.space.nDofs, -1 / 3));
@@ -662,7 +662,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
     }
     const skipped = design.sites.filter((s) => !(s.electrons > 0)).map((s) => s.id);
     if (skipped.length > 0 && !opts.siteIds) notes.push(`Sites without electrons have no density and are left out: ${skipped.join(', ')}.`);
-    report('done', 1);
+    report({ phase: 'done', fraction: 1 });
     return {
       order,
       elements: mesh.tets.length / 4,
@@ -692,7 +692,7 @@ export function energiesOnMesh(
   opts: Pick<CoulombOptions, 'solverTol' | 'signal' | 'onProgress' | 'siteIds'> = {},
 ): { siteIds: string[]; uEv: number[]; dofs: number; elements: number; iterations: number; charges: number[] } {
   const sites = activeSites(design, opts.siteIds);
-  const sol = solveLevel(design, mesh, order, sites, new Int32Array(0), opts, (stage, f) => opts.onProgress?.({ stage, fraction: f }));
+  const sol = solveLevel(design, mesh, order, sites, new Int32Array(0), opts, (phase, site, f) => opts.onProgress?.({ phase, site, fraction: f }));
   return {
     siteIds: sites.map((s) => s.id),
     uEv: Array.from(sol.self, (x) => x * COULOMB_EV_NM),
@@ -718,7 +718,7 @@ export function solveSitePotentials(
 ): { siteIds: string[]; potentials: Float64Array[]; nodal: Float64Array[]; dofs: number; iterations: number } {
   const sites = activeSites(design, opts.siteIds);
   const nV = mesh.coords.length / 3;
-  const sol = solveLevel(design, mesh, order, sites, new Int32Array(0), opts, (stage, f) => opts.onProgress?.({ stage, fraction: f }));
+  const sol = solveLevel(design, mesh, order, sites, new Int32Array(0), opts, (phase, site, f) => opts.onProgress?.({ phase, site, fraction: f }));
   return {
     siteIds: sites.map((s) => s.id),
     potentials: sol.phis.map((p) => p.slice(0, nV)),

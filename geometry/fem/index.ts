@@ -20,29 +20,28 @@ export { buildSpace } from './space';
 export type { Csr } from './csr';
 export { spmv } from './csr';
 export type { PreparedSpmv } from './spmv-wasm';
-export { prepareSpmv, wasmSpmvAvailable } from './spmv-wasm';
+export { prepareSpmv, wasmSpmvAvailable, releaseSpmvMemory, spmvArenaBytes, SPMV_KEEP_BYTES } from './spmv-wasm';
 export type { PointFunction, SystemOptions } from './assemble';
 export {
   assembleStiffness, assembleSystem, assembleLoad, assembleMass, applyDirichlet, applyDirichletRhs, integrate, feIntegrate,
   interpolate,
 } from './assemble';
 export type { Preconditioner, PcgOptions, PcgResult } from './pcg';
-export { pcg, jacobi, SolveAbortedError } from './pcg';
+export { pcg, jacobi } from './pcg';
 export type { MultigridOptions, MultigridStats } from './multigrid';
 export { multigridPreconditioner, HierarchyError } from './multigrid';
 export type { TetRule } from './reference';
 export {
-  tetQuadrature, conicalRule, grundmannMollerRule, p1Basis, p2Basis, p2BasisBary, p2GradientsBary, p1RefGradients,
-  p2RefGradients, tetGeometry, mapBary, GEOM_SIZE, P2_REF_NODES,
+  tetQuadrature, conicalRule, grundmannMollerRule, p1Basis, p2Basis, p2RefGradients, tetGeometry, GEOM_SIZE, P2_REF_NODES,
 } from './reference';
 
 // The Coulomb problem layer: densities, boundary values, U and V with error bars, adaptivity,
-// convergence sweeps (the worker pool lives in pool.ts and is imported directly by Node-side callers only).
+// convergence sweeps. Worker threads are the server's (server/workers/coulombPool.ts): geometry/ runs in the browser too.
 export { densityLoad } from './load';
 export type { DensityLoad, DensityLoadOptions } from './load';
 export { boundaryValues } from './boundary';
 export { solveCoulomb, solveSitePotentials, energiesOnMesh, richardson, observedRate, CoulombError, COULOMB_ASSUMPTIONS } from './coulomb';
-export type { CoulombOptions, CoulombResult, SiteEnergy, PairEnergy, ErrorBudget, Progress } from './coulomb';
-export { residualIndicator, dorflerMark, runAdaptive, DEFAULT_THETA } from './adaptive';
+export type { CoulombOptions, CoulombResult, SiteEnergy, PairEnergy, ErrorBudget } from './coulomb';
+export { residualIndicator, dorflerMark } from './adaptive';
 export { runConvergence, fitLogLog } from './convergence';
-export type { ConvergenceOptions, ConvergenceResult, ConvergencePlot } from './convergence';
+export type { ConvergenceOptions, ConvergenceResult, ConvergencePlot, RefinementRow, BoxRow } from './convergence';

@@ -38,9 +38,14 @@ import { type Csr, diagonal, spmv } from './csr';
 import type { Preconditioner } from './pcg';
 import { GEOM_SIZE, tetGeometry } from './reference';
 import { assembleStiffness } from './assemble';
+import { CoreError } from '../errors';
 
-export class HierarchyError extends Error {
-  override name = 'HierarchyError';
+/** The bisection hierarchy is inconsistent: a CoreError with code 'bad-hierarchy'. */
+export class HierarchyError extends CoreError<'bad-hierarchy'> {
+  constructor(message: string) {
+    super('bad-hierarchy', message);
+    this.name = 'HierarchyError';
+  }
 }
 
 /** Statistics of the built hierarchy (for reports and benchmarks). */

@@ -8,6 +8,7 @@
  * The products A·p run on the WebAssembly SIMD kernel where available (spmv-wasm.ts), which gives
  * the same bits as the JS spmv, so a solve is reproducible whichever kernel runs it.
  */
+import { throwIfAborted } from '../errors';
 import { type Csr, diagonal } from './csr';
 import { prepareSpmv } from './spmv-wasm';
 
@@ -41,13 +42,6 @@ export interface PcgResult {
   history: Float64Array;
 }
 
-/** The error thrown on cancellation; name "AbortError" like the platform's. */
-export class SolveAbortedError extends Error {
-  override name = 'AbortError';
-  constructor() {
-    super('solve cancelled');
-  }
-}
 
 function dot(a: Float64Array, b: Float64Array): number {
   let s = 0;
@@ -111,7 +105,7 @@ export function pcg(A: Csr, b: Float64Array, x0: Float64Array | null, options: P
   let rz = dot(r, z);
   let it = 0;
   while (rel > tol && it < maxIter) {
-    if (options.signal?.aborted) throw new SolveAbortedError();
+    throwIfAborted(options.signal);
     spmv(p, q);
     const pq = dot(p, q);
     if (!(pq > 0)) throw new Error('conjugate gradients broke down: the matrix or preconditioner is not positive definite');

@@ -15,6 +15,10 @@
  * most recently prepared one; calling an older one copies its matrix back in first (correct,
  * just slower). The arena grows to the largest matrix seen and is kept for reuse (a memory
  * cannot shrink); a matrix that does not fit (4 GB limit of wasm32) uses the JS kernel.
+ * A long-lived worker calls releaseSpmvMemory() after each job: an arena grown past
+ * SPMV_KEEP_BYTES is dropped (instance and memory, for the garbage collector to return) and the
+ * next prepareSpmv instantiates a fresh one-page arena. A matrix prepared before the drop still
+ * works: it loads itself into whichever arena is current.
  *
  *   arena layout (byte offsets, each part 16-byte aligned)
  *   ┌──────────────┬────────────┬────────────┬─────────┬─────────┐
@@ -214,6 +218,40 @@ export function wasmSpmvAvailable(): boolean {
 const align16 = (v: number): number => Math.ceil(v / 16) * 16;
 
 /**
+ * An arena larger than this is dropped by releaseSpmvMemory (32 MiB: about 2.5 million nonzeros;
+ * common practice: keep what a typical solve needs, return what one big matrix grew).
+ */
+export const SPMV_KEEP_BYTES = 32 * 1024 * 1024;
+
+/** Bytes of this thread's arena now (0 when none is instantiated). */
+export function spmvArenaBytes(): number {
+  return arena ? arena.memory.buffer.byteLength : 0;
+}
+
+/**
+ * Hand back the WebAssembly memory grown for a big matrix: drop the arena when it is larger than
+ * `keepBytes`; the next prepared product instantiates a fresh, small one. True when dropped.
+ */
+export function releaseSpmvMemory(keepBytes: number = SPMV_KEEP_BYTES): boolean {
+  if (!arena || arena.memory.buffer.byteLength <= keepBytes) return false;
+  arena = undefined;
+  return true;
+}
+
+/** Grow the arena to hold `size` bytes; false when the runtime refuses the memory. */
+function ensureSize(a: Arena, size: number): boolean {
+  const have = a.memory.buffer.byteLength / PAGE;
+  const need = Math.ceil(size / PAGE);
+  if (need <= have) return true;
+  try {
+    a.memory.grow(need - have);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+/**
  * Bind y = A x to the matrix A: its arrays are copied into the arena now, and each call copies
  * x in and y out (16 bytes per row, small next to 12 per nonzero). A must not change afterwards
  * (prepare again after changing its values). Identical bits to spmv(A, x, y).
@@ -231,29 +269,26 @@ export function prepareSpmv(A: Csr, options: { kernel?: 'auto' | 'js' } = {}): P
   const yp = align16(xp + 8 * n);
   const size = align16(yp + 8 * n);
   if (size > MAX_PAGES * PAGE || nnz > A.cols.length) return js;
-  const have = a.memory.buffer.byteLength / PAGE;
-  const need = Math.ceil(size / PAGE);
-  if (need > have) {
-    try {
-      a.memory.grow(need - have);
-    } catch {
-      return js; // the runtime refused the memory: stay on the JS kernel
-    }
-  }
+  if (!ensureSize(a, size)) return js; // the runtime refused the memory: stay on the JS kernel
   const token = {};
-  const load = (): void => {
-    const buf = a.memory.buffer;
+  /** copy A into the current arena (after another matrix took it, or after a release) */
+  const load = (into: Arena): boolean => {
+    if (!ensureSize(into, size)) return false;
+    const buf = into.memory.buffer;
     new Uint32Array(buf, rp, n + 1).set(A.rowPtr);
     new Uint32Array(buf, cp, A.cols.length).set(A.cols);
     new Float64Array(buf, vp, A.vals.length).set(A.vals);
-    a.owner = token;
+    into.owner = token;
+    return true;
   };
-  load();
+  load(a);
   const run = (x: Float64Array, y: Float64Array): void => {
-    if (a.owner !== token) load(); // another matrix took the arena meanwhile
-    const buf = a.memory.buffer;
+    const cur = getArena();
+    // another matrix took the arena meanwhile, or it was released: load again (or the same bits in JS)
+    if (!cur || (cur.owner !== token && !load(cur))) return spmv(A, x, y);
+    const buf = cur.memory.buffer;
     new Float64Array(buf, xp, n).set(x.subarray(0, n));
-    a.kernel(n, rp, cp, vp, xp, yp);
+    cur.kernel(n, rp, cp, vp, xp, yp);
     y.set(new Float64Array(buf, yp, n));
   };
   return Object.assign(run, { kernel: 'wasm-simd' as const });

@@ -25,5 +25,5 @@ export { meshDesign, estimateDesignElements, checkElementEstimate, CHECK_ESTIMAT
 export type { MeshDesignOptions, MeshDesignResult, MeshDesignStats, DesignEstimate } from './mesh-design';
 export { SizeField, sizeFieldFromDesign, gradingExponent, autoCoreSize, orbitalLength } from './sizefield';
 export type { SizeFieldSpec, SizeFieldParams, SizeFieldOptions, SizeClassSpec } from './sizefield';
-export { estimateTetCount, LADDER_MEAN_CONSTANT, CLOSURE_ALLOWANCE } from './estimate';
+export { estimateTetCount, LADDER_MEAN_CONSTANT } from './estimate';
 export type { EstimateResult } from './estimate';

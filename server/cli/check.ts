@@ -22,6 +22,7 @@ import { farFieldCheck, type FarFieldReport } from '../../geometry/farfield';
 import type { Design } from '../../geometry/design/types';
 import { checkElementEstimate } from '../../geometry/mesh/index';
 import { readDesign } from './design-file';
+import { parseCli } from './args';
 import { notesAndAssumptions, table } from './text';
 
 const USAGE = 'usage: npm run cli -- check <design.json> [--json] [--moments]';
@@ -101,25 +102,24 @@ export function toReadable(design: Design, r: FarFieldReport): string {
 }
 
 export async function run(argv: string[]): Promise<number> {
-  const flags = argv.filter((a) => a.startsWith('--'));
-  const files = argv.filter((a) => !a.startsWith('--'));
-  const unknown = flags.filter((f) => f !== '--json' && f !== '--help' && f !== '--moments');
-  if (flags.includes('--help')) {
+  const args = parseCli(argv, { json: { type: 'boolean' }, moments: { type: 'boolean' }, help: { type: 'boolean', short: 'h' } });
+  if (!('error' in args) && args.values.help) {
     console.log(USAGE);
     return 0;
   }
-  if (files.length !== 1 || unknown.length) {
-    console.error(unknown.length ? `unknown option ${unknown.join(', ')}\n${USAGE}` : USAGE);
+  if ('error' in args || args.positionals.length !== 1) {
+    console.error('error' in args ? `${args.error}\n${USAGE}` : USAGE);
     return 2;
   }
-  const json = flags.includes('--json');
+  const files = args.positionals;
+  const json = !!args.values.json;
   const design = await readDesign(files[0], json);
   if (!design) return 1;
   // The element count the graded mesh would need for the recommended box (the mesher's estimate,
   // within ±30 %); skipped for a box no size can fix. Capped at the mesher's own limit (the design's
   // maxElements and the server cap): past it the mesher refuses anyway, so "more than N" is the
   // useful answer, and it keeps check instant for tiny orbitals and flat boxes.
-  const moments = flags.includes('--moments');
+  const moments = !!args.values.moments;
   const report = farFieldCheck(design, {
     moments,
     estimateElements: (halfExtentsNm) => checkElementEstimate(design, halfExtentsNm),

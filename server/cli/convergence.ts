@@ -1,35 +1,24 @@
 /**
- * `npm run cli -- convergence <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json]`:
+ * `npm run cli -- convergence <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json] [--progress]`:
  * convergence sweeps of U (and the box-size sweep for grounded and multipole boundaries).
  *
  * With --json prints the convergence result: { kind, order, siteIds, rows, plots, fittedRate, theoreticalRate,
- * seconds, notes }. Without it, the table, the fitted rate and the model assumptions.
+ * seconds, notes }. Progress goes to standard error for runs longer than a few seconds; with --json only
+ * when --progress asks for it. Without it, the table, the fitted rate and the model assumptions.
  * Exit codes: 0 done, 1 invalid document or a refusal, 2 usage.
  */
 import type { Design } from '../../geometry/design/types';
-import { runConvergence, type ConvergenceResult, type RefinementRow, type BoxRow } from '../../geometry/fem/convergence';
-import { parseArgs, refusalMessage } from './coulomb';
+import type { ConvergenceResult, RefinementRow, BoxRow } from '../../geometry/fem/index';
+import { convergenceResults, type ConvergenceResults } from '../../geometry/pipeline/index';
+import { refusalMessage } from './coulomb';
+import { parseCli } from './args';
+import { progressLines } from './progress';
 import { readDesign } from './design-file';
 import { notesAndAssumptions, table } from './text';
 
-const USAGE = 'usage: npm run cli -- convergence <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json]';
+const USAGE = 'usage: npm run cli -- convergence <design.json> --kind refinement|box [--order 1|2] [--levels n] [--json] [--progress]';
 
 const meV = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(6) : '—');
-
-
-export function toConvergenceJson(r: ConvergenceResult) {
-  return {
-    kind: r.kind,
-    order: r.order,
-    siteIds: r.siteIds,
-    rows: r.rows,
-    plots: r.plots,
-    fittedRate: r.fittedRate,
-    theoreticalRate: r.theoreticalRate,
-    seconds: r.seconds,
-    notes: r.notes,
-  };
-}
 
 export function toConvergenceReadable(design: Design, r: ConvergenceResult): string {
   const out: string[] = [];
@@ -59,40 +48,49 @@ export function toConvergenceReadable(design: Design, r: ConvergenceResult): str
 }
 
 export async function run(argv: string[]): Promise<number> {
-  const args = parseArgs(argv, ['--kind', '--order', '--levels'], ['--json', '--help']);
-  if (args.flags.has('--help')) {
+  const args = parseCli(argv, {
+    kind: { type: 'string' },
+    order: { type: 'string' },
+    levels: { type: 'string' },
+    json: { type: 'boolean' },
+    progress: { type: 'boolean' },
+    help: { type: 'boolean', short: 'h' },
+  });
+  if (!('error' in args) && args.values.help) {
     console.log(USAGE);
     return 0;
   }
-  const kind = args.values.get('--kind')?.at(-1);
-  if (args.errors.length || args.files.length !== 1 || (kind !== 'refinement' && kind !== 'box')) {
-    const why = [...args.errors, ...(kind !== undefined && kind !== 'refinement' && kind !== 'box' ? [`--kind must be refinement or box, not "${kind}"`] : [])];
+  const v = 'error' in args ? {} : args.values;
+  const kind = v.kind;
+  if ('error' in args || args.positionals.length !== 1 || (kind !== 'refinement' && kind !== 'box')) {
+    const why = ['error' in args ? args.error : [], ...(kind !== undefined && kind !== 'refinement' && kind !== 'box' ? [`--kind must be refinement or box, not "${kind}"`] : [])].flat();
     console.error(`${why.join('\n')}${why.length ? '\n' : ''}${USAGE}`);
     return 2;
   }
-  const orderArg = args.values.get('--order')?.at(-1);
+  const orderArg = v.order;
   if (orderArg !== undefined && orderArg !== '1' && orderArg !== '2') {
     console.error(`--order must be 1 or 2, not "${orderArg}"\n${USAGE}`);
     return 2;
   }
-  const levelsArg = args.values.get('--levels')?.at(-1);
+  const levelsArg = v.levels;
   const levels = levelsArg === undefined ? undefined : Number(levelsArg);
   if (levels !== undefined && !(Number.isInteger(levels) && levels >= 3 && levels <= 8)) {
     console.error(`--levels must be a whole number from 3 to 8, not "${levelsArg}"`);
     return 2;
   }
-  const json = args.flags.has('--json');
-  const design = await readDesign(args.files[0], json);
+  const json = !!v.json;
+  const design = await readDesign(args.positionals[0], json);
   if (!design) return 1;
-  let result: ConvergenceResult;
+  const progress = progressLines({ enabled: !json || !!v.progress });
+  let out: ConvergenceResults;
   try {
-    result = runConvergence(design, { kind, order: orderArg ? (Number(orderArg) as 1 | 2) : undefined, levels });
+    out = convergenceResults(design, { kind, order: orderArg ? (Number(orderArg) as 1 | 2) : undefined, levels, onProgress: progress.onProgress });
   } catch (err) {
-    const msg = refusalMessage(err);
+    const msg = refusalMessage(err, 'cannot run the convergence sweep');
     if (msg === null) throw err;
-    console.error(`cannot run the convergence sweep: ${msg}`);
+    console.error(msg);
     return 1;
   }
-  console.log(json ? JSON.stringify(toConvergenceJson(result), null, 2) : toConvergenceReadable(design, result));
+  console.log(json ? JSON.stringify(out.json, null, 2) : toConvergenceReadable(design, out.result));
   return 0;
 }

@@ -1,11 +1,13 @@
 /**
- * `npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]… [--pairs …] [--json]`:
+ * `npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]… [--pairs …] [--theta x] [--json] [--progress]`:
  * on-site U and inter-site V of a design with error bars.
  *
  * With --json prints exactly one JSON object, the issue's keys first and in order:
  *   { order, elements, dofs, iterations, sites: [{ id, uEv, uErrorEv }],
  *     pairs: [{ a, b, distanceNm, vEv, vErrorEv }], seconds,
  *     meetsTarget, estimatedRelError, notes: [string] }
+ * Progress goes to standard error for runs longer than a few seconds; with --json only when
+ * --progress asks for it.
  * Without it, a readable table with the error budget of each number, the model assumptions and
  * the reminder that these are estimates.
  * Exit codes: 0 solved and the estimated error meets refinement.targetRelError; 1 invalid
@@ -16,57 +18,18 @@
 import { readDesign } from './design-file';
 import { notesAndAssumptions, table } from './text';
 import type { Design } from '../../geometry/design/types';
-import { solveCoulomb, CoulombError, type CoulombResult } from '../../geometry/fem/coulomb';
-import { MeshError } from '../../geometry/mesh/index';
+import type { CoulombResult } from '../../geometry/fem/index';
+import { asRefusal, describeRefusal } from '../coreErrors';
+import { coulombResults, type CoulombResults } from '../../geometry/pipeline/index';
+import { parseCli } from './args';
+import { progressLines } from './progress';
 
-const USAGE = 'usage: npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]... [--pairs auto|all|bond-graph|none] [--json]';
+const USAGE = 'usage: npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]... [--pairs auto|all|bond-graph|none] [--theta x] [--json] [--progress]';
 
-export interface ParsedArgs {
-  files: string[];
-  flags: Set<string>;
-  values: Map<string, string[]>;
-  errors: string[];
-}
-
-/** Minimal argv parser: `--flag`, `--key value`, positional files. */
-export function parseArgs(argv: string[], withValue: string[], bare: string[]): ParsedArgs {
-  const out: ParsedArgs = { files: [], flags: new Set(), values: new Map(), errors: [] };
-  for (let i = 0; i < argv.length; i++) {
-    const a = argv[i];
-    if (!a.startsWith('--')) {
-      out.files.push(a);
-      continue;
-    }
-    const [key, inline] = a.split('=', 2);
-    if (withValue.includes(key)) {
-      const v = inline ?? argv[++i];
-      if (v === undefined) out.errors.push(`${key} needs a value`);
-      else out.values.set(key, [...(out.values.get(key) ?? []), v]);
-    } else if (bare.includes(key)) out.flags.add(key);
-    else out.errors.push(`unknown option ${a}`);
-  }
-  return out;
-}
-
-/** The refusals the solver layer raises on purpose: shown as they are, never as a stack trace. */
-export function refusalMessage(err: unknown): string | null {
-  if (err instanceof CoulombError || err instanceof MeshError) return err.message;
-  return null;
-}
-
-export function toCoulombJson(r: CoulombResult) {
-  return {
-    order: r.order,
-    elements: r.elements,
-    dofs: r.dofs,
-    iterations: r.iterations,
-    sites: r.sites.map((s) => ({ id: s.id, uEv: s.uEv, uErrorEv: s.uErrorEv })),
-    pairs: r.pairs.map((p) => ({ a: p.a, b: p.b, distanceNm: p.distanceNm, vEv: p.vEv, vErrorEv: p.vErrorEv })),
-    seconds: r.seconds,
-    meetsTarget: r.meetsTarget,
-    estimatedRelError: r.estimatedRelError,
-    notes: r.notes,
-  };
+/** The refusals the numerical core raises on purpose (CoreError): shown in words, never as a stack trace. */
+export function refusalMessage(err: unknown, lead: string): string | null {
+  const refusal = asRefusal(err);
+  return refusal ? describeRefusal(refusal, lead) : null;
 }
 
 const meV = (x: number) => (Number.isFinite(x) ? (1000 * x).toPrecision(6) : '—');
@@ -107,54 +70,67 @@ export function toCoulombReadable(design: Design, r: CoulombResult): string {
 }
 
 export async function run(argv: string[]): Promise<number> {
-  const args = parseArgs(argv, ['--order', '--site', '--theta', '--pairs'], ['--json', '--adaptive', '--help']);
-  if (args.flags.has('--help')) {
+  const args = parseCli(argv, {
+    order: { type: 'string' },
+    site: { type: 'string', multiple: true },
+    theta: { type: 'string' },
+    pairs: { type: 'string' },
+    json: { type: 'boolean' },
+    adaptive: { type: 'boolean' },
+    progress: { type: 'boolean' },
+    help: { type: 'boolean', short: 'h' },
+  });
+  if (!('error' in args) && args.values.help) {
     console.log(USAGE);
     return 0;
   }
-  if (args.errors.length || args.files.length !== 1) {
-    console.error(`${args.errors.join('\n')}${args.errors.length ? '\n' : ''}${USAGE}`);
+  if ('error' in args || args.positionals.length !== 1) {
+    console.error(`${'error' in args ? `${args.error}\n` : ''}${USAGE}`);
     return 2;
   }
-  const orderArg = args.values.get('--order')?.at(-1);
+  const v = args.values;
+  const orderArg = v.order;
   if (orderArg !== undefined && orderArg !== '1' && orderArg !== '2') {
     console.error(`--order must be 1 or 2, not "${orderArg}"\n${USAGE}`);
     return 2;
   }
-  const thetaArg = args.values.get('--theta')?.at(-1);
+  const thetaArg = v.theta;
   const theta = thetaArg === undefined ? undefined : Number(thetaArg);
   if (theta !== undefined && !(theta > 0 && theta <= 1)) {
     console.error(`--theta must be a number in (0, 1], not "${thetaArg}"`);
     return 2;
   }
-  const pairs = args.values.get('--pairs')?.at(-1) ?? 'auto';
+  const pairs = v.pairs ?? 'auto';
   if (!['auto', 'all', 'bond-graph', 'none'].includes(pairs)) {
     console.error(`--pairs must be auto, all, bond-graph or none, not "${pairs}"`);
     return 2;
   }
-  const json = args.flags.has('--json');
-  const design = await readDesign(args.files[0], json);
+  const json = !!v.json;
+  const design = await readDesign(args.positionals[0], json);
   if (!design) return 1;
-  let result: CoulombResult;
+  const progress = progressLines({ enabled: !json || !!v.progress });
+  let out: CoulombResults;
   try {
-    result = solveCoulomb(design, {
+    out = coulombResults(design, {
       order: orderArg ? (Number(orderArg) as 1 | 2) : undefined,
-      adaptive: args.flags.has('--adaptive'),
+      adaptive: !!v.adaptive,
       theta,
-      siteIds: args.values.get('--site'),
+      siteIds: v.site,
       pairs: pairs as 'auto' | 'all' | 'bond-graph' | 'none',
+      onProgress: progress.onProgress,
     });
   } catch (err) {
-    const msg = refusalMessage(err);
+    const msg = refusalMessage(err, 'cannot compute U and V');
     if (msg === null) throw err;
-    console.error(`cannot compute U and V: ${msg}`);
+    console.error(msg);
     return 1;
   }
-  if (result.mode === 'adaptive' && !result.meetsTarget) {
+  const result = out.result;
+  if (!out.hasNumbers) {
     console.error(`no result: ${result.notes[0] ?? 'the adaptive refinement did not reach the target'}`);
     return 3;
   }
-  console.log(json ? JSON.stringify(toCoulombJson(result), null, 2) : toCoulombReadable(design, result));
+  console.log(json ? JSON.stringify(out.json, null, 2) : toCoulombReadable(design, result));
   if (!result.meetsTarget) {
     console.error(
       `warning: the estimated relative error ${result.estimatedRelError.toExponential(2)} does not meet targetRelError ${result.targetRelError}; the numbers above do not have the accuracy asked for (exit code 3)`,

@@ -1,55 +1,41 @@
 /**
- * `npm run cli -- mesh <design.json> --out mesh.vtu [--order 1|2] [--format vtu|vtk|binary] [--solve] [--json]`
+ * `npm run cli -- mesh <design.json> --out mesh.vtu [--order 1|2] [--format vtu|vtk|binary] [--solve] [--json] [--progress]`
  *
- * Builds the graded bisection mesh of a design (geometry/mesh meshDesign), writes it and prints a
- * summary. With --json prints exactly one JSON object:
+ * Builds the graded bisection mesh of a design (geometry/pipeline buildMeshArtifact, the same call
+ * a mesh job makes), writes it and prints a summary. With --json prints exactly one JSON object:
  *   { vertices, tets, p2Nodes, minDihedralDeg, maxDihedralDeg, volumeNm3, levels, seconds, file }
  * where `levels` is the number of tetrahedra per refinement level (levels[k] = tets of level k)
- * and `seconds` the wall time of meshing and writing.
+ * and `seconds` the wall time of meshing, measuring and writing.
  * --order defaults to the design's refinement.order (it selects 4- or 10-node cells in the file
  * and the grading exponent); --format defaults to the --out extension (.vtu, .vtk, .twmesh/.bin),
  * else vtu.
  * --solve also solves the Coulomb problem of every site with electrons on this mesh (geometry/fem)
  * and writes its potential as PointData "Potential_<site id>" in V per elementary charge
  * (φ·e²/4πε₀ in eV, i.e. volts), on all P2 nodes for order 2. Only for vtu and vtk.
+ * Progress goes to standard error for runs longer than a few seconds; with --json only when
+ * --progress asks for it.
  * Exit codes: 0 written, 1 invalid document, refused mesh or unwritable file, 2 usage.
  */
 import { writeFile } from 'node:fs/promises';
 import { readDesign } from './design-file';
-import { resolveOrbital } from '../../geometry/design/presets';
-import { MeshError, meshDesign, SizeField, sizeFieldFromDesign, orbitalLength } from '../../geometry/mesh/index';
-import { writeVtu, writeVtkLegacy, encodeMeshBinary } from '../../geometry/mesh/export/index';
-import { qualityReport, type ReportSite } from '../../geometry/mesh/quality';
-import { solveSitePotentials, CoulombError } from '../../geometry/fem/coulomb';
-import { COULOMB_EV_NM } from '../../geometry/units';
+import { parseCli } from './args';
+import { progressLines } from './progress';
+import { asRefusal, describeRefusal, refusalArea } from '../coreErrors';
+import { buildMeshArtifact, encodeMesh, sitesOutsideEnclosure, type MeshArtifact, type MeshFormat } from '../../geometry/pipeline/index';
 
-/** The keys `mesh --json` prints before its timings; a mesh revision's summary is exactly this (server/jobs/pipeline.ts). */
-export function meshSummary(q: ReturnType<typeof qualityReport>) {
-  return {
-    vertices: q.vertices,
-    tets: q.tets,
-    p2Nodes: q.p2Nodes,
-    minDihedralDeg: q.minDihedralDeg,
-    maxDihedralDeg: q.maxDihedralDeg,
-    volumeNm3: q.volumeNm3,
-    levels: q.levels,
-  };
-}
-
-const USAGE = 'usage: npm run cli -- mesh <design.json> --out <file> [--order 1|2] [--format vtu|vtk|binary] [--solve] [--json]';
-
-type Format = 'vtu' | 'vtk' | 'binary';
+const USAGE = 'usage: npm run cli -- mesh <design.json> --out <file> [--order 1|2] [--format vtu|vtk|binary] [--solve] [--json] [--progress]';
 
 interface Args {
   file: string;
   out: string;
   order?: 1 | 2;
-  format: Format;
+  format: MeshFormat;
   json: boolean;
   solve: boolean;
+  progress: boolean;
 }
 
-function formatFromName(out: string): Format {
+function formatFromName(out: string): MeshFormat {
   const lower = out.toLowerCase();
   if (lower.endsWith('.vtk')) return 'vtk';
   if (lower.endsWith('.twmesh') || lower.endsWith('.bin')) return 'binary';
@@ -58,44 +44,23 @@ function formatFromName(out: string): Format {
 
 /** Parses argv; returns a usage message (string) when it cannot. */
 export function parseArgs(argv: string[]): Args | string {
-  const files: string[] = [];
-  let out: string | undefined;
-  let order: 1 | 2 | undefined;
-  let format: Format | undefined;
-  let json = false;
-  let solve = false;
-  for (let i = 0; i < argv.length; i++) {
-    const a = argv[i];
-    const value = (): string | undefined => {
-      const eq = a.indexOf('=');
-      if (eq >= 0) return a.slice(eq + 1);
-      const v = argv[i + 1];
-      if (v === undefined || v.startsWith('--')) return undefined;
-      i++;
-      return v;
-    };
-    const name = a.split('=')[0];
-    if (name === '--json') json = true;
-    else if (name === '--solve') solve = true;
-    else if (name === '--out') {
-      out = value();
-      if (!out) return `--out needs a file name\n${USAGE}`;
-    } else if (name === '--order') {
-      const v = value();
-      if (v !== '1' && v !== '2') return `--order must be 1 or 2, not ${v ?? 'nothing'}\n${USAGE}`;
-      order = v === '1' ? 1 : 2;
-    } else if (name === '--format') {
-      const v = value();
-      if (v !== 'vtu' && v !== 'vtk' && v !== 'binary') return `--format must be vtu, vtk or binary, not ${v ?? 'nothing'}\n${USAGE}`;
-      format = v;
-    } else if (a.startsWith('--')) return `unknown option ${a}\n${USAGE}`;
-    else files.push(a);
-  }
+  const r = parseCli(argv, {
+    out: { type: 'string', needs: 'needs a file name' },
+    order: { type: 'string', needs: 'must be 1 or 2, not nothing' },
+    format: { type: 'string', needs: 'must be vtu, vtk or binary, not nothing' },
+    json: { type: 'boolean' },
+    solve: { type: 'boolean' },
+    progress: { type: 'boolean' },
+  });
+  if ('error' in r) return `${r.error}\n${USAGE}`;
+  const { values: v, positionals: files } = r;
+  if (v.order !== undefined && v.order !== '1' && v.order !== '2') return `--order must be 1 or 2, not ${v.order}\n${USAGE}`;
+  if (v.format !== undefined && v.format !== 'vtu' && v.format !== 'vtk' && v.format !== 'binary') return `--format must be vtu, vtk or binary, not ${v.format}\n${USAGE}`;
   if (files.length !== 1) return files.length ? `one design file, please (got ${files.length})\n${USAGE}` : USAGE;
-  if (!out) return `--out <file> is required\n${USAGE}`;
-  const fmtOut = format ?? formatFromName(out);
-  if (solve && fmtOut === 'binary') return `--solve writes potentials as point data: use --format vtu or vtk\n${USAGE}`;
-  return { file: files[0], out, order, format: fmtOut, json, solve };
+  if (!v.out) return `--out <file> is required\n${USAGE}`;
+  const format = (v.format as MeshFormat | undefined) ?? formatFromName(v.out);
+  if (v.solve && format === 'binary') return `--solve writes potentials as point data: use --format vtu or vtk\n${USAGE}`;
+  return { file: files[0], out: v.out, order: v.order === undefined ? undefined : v.order === '1' ? 1 : 2, format, json: !!v.json, solve: !!v.solve, progress: !!v.progress };
 }
 
 const fmt = (x: number, d = 4) => (Number.isFinite(x) ? x.toPrecision(d) : '—');
@@ -112,62 +77,30 @@ export async function run(argv: string[]): Promise<number> {
   }
   const design = await readDesign(args.file, false);
   if (!design) return 1;
-  const order = args.order ?? design.refinement.order;
   // A site outside the enclosure is allowed (a design may be mid-edit) but gets no grading, and
   // nothing computed on this mesh will include it: say so rather than mesh silently.
-  const { center, halfExtentsNm } = design.enclosure;
-  const outside = design.sites.filter((s) => s.position.some((x, k) => Math.abs(x - center[k]) >= halfExtentsNm[k]));
+  const outside = sitesOutsideEnclosure(design);
   if (outside.length) {
-    const ids = outside.slice(0, 12).map((s) => s.id).join(', ') + (outside.length > 12 ? ', …' : '');
+    const ids = outside.slice(0, 12).join(', ') + (outside.length > 12 ? ', …' : '');
     console.error(`warning: ${outside.length} site(s) outside the enclosure (${ids}): the mesh is not graded around them; enlarge the box or move them`);
   }
 
   const t0 = performance.now();
-  let result;
+  const progress = progressLines({ enabled: !args.json || args.progress });
+  let artifact: MeshArtifact;
   try {
-    result = meshDesign(design, { order });
+    artifact = buildMeshArtifact(design, { order: args.order, solve: args.solve, siteReport: !args.json, onProgress: progress.onProgress });
   } catch (e) {
-    if (e instanceof MeshError) {
-      console.error(`cannot mesh ${args.file}: ${e.message}`);
-      return 1;
-    }
-    throw e;
+    const refusal = asRefusal(e);
+    if (!refusal) throw e;
+    console.error(describeRefusal(refusal, refusalArea(refusal) === 'mesh' ? `cannot mesh ${args.file}` : `cannot solve on the mesh of ${args.file}`));
+    return 1;
   }
-  const mesh = result.mesh;
-
-  // the size field at the vertices, for PointData (the writers extend it to P2 nodes)
-  const field = new SizeField(sizeFieldFromDesign(design, { order }).spec);
-  const nV = mesh.coords.length / 3;
-  const sizeField = new Float64Array(nV);
-  for (let v = 0; v < nV; v++) sizeField[v] = field.valueAt(mesh.coords[3 * v], mesh.coords[3 * v + 1], mesh.coords[3 * v + 2]);
-
-  const pointData: { name: string; values: Float64Array }[] = [];
-  if (args.solve) {
-    try {
-      const solved = solveSitePotentials(design, mesh, order);
-      solved.siteIds.forEach((id, i) => {
-        const phi = solved.nodal[i];
-        const volts = new Float64Array(phi.length);
-        for (let k = 0; k < phi.length; k++) volts[k] = phi[k] * COULOMB_EV_NM;
-        pointData.push({ name: `Potential_${id}`, values: volts });
-      });
-    } catch (e) {
-      if (e instanceof CoulombError) {
-        console.error(`cannot solve on the mesh of ${args.file}: ${e.message}`);
-        return 1;
-      }
-      throw e;
-    }
-  }
+  const { order, quality: q, meshed: result } = artifact;
 
   let bytes: Uint8Array;
   try {
-    bytes =
-      args.format === 'vtu'
-        ? writeVtu(mesh, { order, sizeField, pointData })
-        : args.format === 'vtk'
-          ? writeVtkLegacy(mesh, { order, sizeField, pointData })
-          : encodeMeshBinary(mesh);
+    bytes = encodeMesh(artifact, args.format);
   } catch (e) {
     console.error(`cannot write the mesh as ${args.format}: ${(e as Error).message}`);
     return 1;
@@ -181,14 +114,11 @@ export async function run(argv: string[]): Promise<number> {
   }
   const seconds = (performance.now() - t0) / 1000;
 
-  const sites: ReportSite[] = design.sites.map((s) => ({ id: s.id, position: s.position, radiusNm: orbitalLength(resolveOrbital(s)) }));
-  const q = qualityReport(mesh, args.json ? [] : sites);
-
   if (args.json) {
     console.log(
       JSON.stringify(
         {
-          ...meshSummary(q),
+          ...artifact.summary,
           seconds,
           file: args.out,
         },

@@ -1,24 +1,19 @@
 /**
- * The one adapter between jobs and the numerical core: what a job of each kind computes, and the
- * files and summary it leaves. It calls what the command line calls, with the same options, so a
- * revision's mesh.vtu is byte for byte the file `npm run cli -- mesh <doc> --out x.vtu --order N`
- * writes, and its results.json is what `npm run cli -- coulomb <doc> --order N --json` prints.
+ * The job side of the pipeline: what a job of each kind computes, and the files and summary it
+ * leaves. The computing is geometry/pipeline's, the same functions the command line calls with the
+ * same options, so a revision's mesh.vtu is byte for byte the file `npm run cli -- mesh <doc> --out
+ * x.vtu --order N` writes, and its results.json is what `npm run cli -- coulomb <doc> --order N
+ * --json` prints. This file only packs files (papaparse for the CSV) and maps refusals.
  *
  * Runs inside a worker thread (server/jobs/task.worker.ts). Refusals of the numerical core
- * (MeshError, CoulombError) come back as `JobRefusal` with their words; anything else is a fault
- * (retried by the queue).
+ * (CoreError) come back as `JobRefusal` in the words of server/coreErrors.ts; a cancel is an
+ * AbortError; anything else is a fault (retried by the queue).
  */
 import Papa from 'papaparse';
 import type { JobKind, JobOptions, JobProgress } from '@contracts/api';
 import type { Design } from '../../geometry/design/types';
-import { MeshError, meshDesign, SizeField, sizeFieldFromDesign } from '../../geometry/mesh/index';
-import { writeVtu, writeVtkLegacy, encodeMeshBinary } from '../../geometry/mesh/export/index';
-import { qualityReport } from '../../geometry/mesh/quality';
-import { solveCoulomb, CoulombError } from '../../geometry/fem/coulomb';
-import { runConvergence as runConvergenceSweep, type RefinementRow, type BoxRow } from '../../geometry/fem/convergence';
-import { toCoulombJson } from '../cli/coulomb';
-import { toConvergenceJson } from '../cli/convergence';
-import { meshSummary } from '../cli/mesh';
+import { asRefusal, describeRefusal, isCoreAbort } from '../coreErrors';
+import { buildMeshArtifact, encodeMesh, coulombResults, convergenceResults, type ResultTable, type CoreProgress } from '../../geometry/pipeline/index';
 
 export interface PipelineFile {
   name: 'mesh.vtu' | 'mesh.vtk' | 'mesh.twmesh' | 'results.json' | 'results.csv';
@@ -47,7 +42,7 @@ export class JobRefusal extends Error {
 
 const utf8 = (s: string) => new TextEncoder().encode(s);
 /** RFC 4180 quoting by papaparse, with \n line ends like every other text file we write */
-const csvText = (table: { fields: string[]; data: unknown[][] }): string => Papa.unparse(table, { newline: '\n' });
+const csvFile = (table: ResultTable): Uint8Array => utf8(`${Papa.unparse({ fields: table.fields, data: table.rows }, { newline: '\n' })}\n`);
 /** the CLI prints with console.log: the JSON text and a newline */
 const jsonFile = (value: unknown): Uint8Array => utf8(`${JSON.stringify(value, null, 2)}\n`);
 
@@ -55,88 +50,48 @@ function checkAbort(signal?: AbortSignal): void {
   if (signal?.aborted) throw new DOMException('The job was cancelled.', 'AbortError');
 }
 
+/** The core's progress as the job stores it: a fraction below 1 until the files are stored. */
+function jobProgress(hooks: PipelineHooks, scale: (f: number) => number) {
+  return (p: CoreProgress) => hooks.onProgress?.({ ...p, fraction: Math.min(0.95, scale(p.fraction)) });
+}
+
 function runMesh(design: Design, order: 1 | 2, hooks: PipelineHooks): PipelineOutput {
   const t0 = performance.now();
-  hooks.onProgress?.({ phase: 'mesh', fraction: 0.05 });
-  // as server/cli/mesh.ts does: the mesh, then the size field at its vertices as point data
-  const mesh = meshDesign(design, { order }).mesh;
+  const artifact = buildMeshArtifact(design, { order, signal: hooks.signal, onProgress: jobProgress(hooks, (f) => 0.05 + 0.5 * f) });
   checkAbort(hooks.signal);
   hooks.onProgress?.({ phase: 'encode', fraction: 0.6 });
-  const field = new SizeField(sizeFieldFromDesign(design, { order }).spec);
-  const nV = mesh.coords.length / 3;
-  const sizeField = new Float64Array(nV);
-  for (let v = 0; v < nV; v++) sizeField[v] = field.valueAt(mesh.coords[3 * v], mesh.coords[3 * v + 1], mesh.coords[3 * v + 2]);
-  const vtu = writeVtu(mesh, { order, sizeField, pointData: [] });
-  const vtk = writeVtkLegacy(mesh, { order, sizeField, pointData: [] });
-  const twmesh = encodeMeshBinary(mesh);
-  const q = qualityReport(mesh, []);
-  const summary = meshSummary(q);
-  const csv = csvText({ fields: ['level', 'tets'], data: q.levels.map((n, k) => [k, n]) });
+  const summary = artifact.summary;
   return {
-    summary,
+    summary: { ...summary },
     computeSeconds: (performance.now() - t0) / 1000,
     files: [
-      { name: 'mesh.vtu', bytes: vtu },
-      { name: 'mesh.vtk', bytes: vtk },
-      { name: 'mesh.twmesh', bytes: twmesh },
+      { name: 'mesh.vtu', bytes: encodeMesh(artifact, 'vtu') },
+      { name: 'mesh.vtk', bytes: encodeMesh(artifact, 'vtk') },
+      { name: 'mesh.twmesh', bytes: encodeMesh(artifact, 'binary') },
       { name: 'results.json', bytes: jsonFile(summary) },
-      { name: 'results.csv', bytes: utf8(`${csv}\n`) },
+      { name: 'results.csv', bytes: csvFile({ fields: ['level', 'tets'], rows: summary.levels.map((n, k) => [k, n]) }) },
     ],
   };
 }
 
 function runCoulomb(design: Design, order: 1 | 2, adaptive: boolean, hooks: PipelineHooks): PipelineOutput {
   const t0 = performance.now();
-  const result = solveCoulomb(design, {
-    order,
-    adaptive,
-    pairs: 'auto',
-    signal: hooks.signal,
-    onProgress: (p) => hooks.onProgress?.({ phase: p.stage, fraction: Math.min(0.95, p.fraction) }),
-  });
+  const out = coulombResults(design, { order, adaptive, pairs: 'auto', signal: hooks.signal, onProgress: jobProgress(hooks, (f) => f) });
   checkAbort(hooks.signal);
-  if (result.mode === 'adaptive' && !result.meetsTarget) {
+  if (!out.hasNumbers) {
     // the CLI prints no numbers then (exit code 3): neither do we
-    throw new JobRefusal(`no result: ${result.notes[0] ?? 'the adaptive refinement did not reach the target'}`);
+    throw new JobRefusal(`no result: ${out.result.notes[0] ?? 'the adaptive refinement did not reach the target'}`);
   }
-  const json = toCoulombJson(result);
-  const { seconds: _seconds, ...summary } = json;
-  const csv = csvText({
-    fields: ['quantity', 'site', 'other_site', 'distance_nm', 'value_ev', 'error_ev'],
-    data: [
-      ...json.sites.map((s) => ['U', s.id, '', '', s.uEv, s.uErrorEv]),
-      ...json.pairs.map((p) => ['V', p.a, p.b, p.distanceNm, p.vEv, p.vErrorEv]),
-    ],
-  });
-  return resultsOutput(summary, json, csv, t0);
+  const { seconds: _seconds, ...summary } = out.json;
+  return resultsOutput(summary, out.json, out.table, t0);
 }
 
 function runConvergence(design: Design, order: 1 | 2, sweep: 'refinement' | 'box', hooks: PipelineHooks): PipelineOutput {
   const t0 = performance.now();
-  const result = runConvergenceSweep(design, {
-    kind: sweep,
-    order,
-    signal: hooks.signal,
-    onProgress: (p) => hooks.onProgress?.({ phase: p.stage, fraction: Math.min(0.95, p.fraction) }),
-  });
+  const out = convergenceResults(design, { kind: sweep, order, signal: hooks.signal, onProgress: jobProgress(hooks, (f) => f) });
   checkAbort(hooks.signal);
-  const json = toConvergenceJson(result);
-  const { seconds: _seconds, ...summary } = json;
-  let csv: string;
-  if (result.kind === 'refinement') {
-    const rows = result.rows as RefinementRow[];
-    csv = csvText({
-      fields: ['level', 'bisections', 'tetrahedra', 'unknowns', 'pcg_iterations', ...result.siteIds.map((id) => `u_${id}_ev`), 'delta_ev'],
-      data: rows.map((r) => [r.level, r.bisections, r.elements, r.dofs, r.iterations, ...r.uEv, r.deltaEv ?? '']),
-    });
-  } else {
-    const rows = result.rows as BoxRow[];
-    csv = csvText({
-      fields: ['boundary', 'half_width_nm', 'unknowns', ...result.siteIds.flatMap((id) => [`u_${id}_ev`, `u_${id}_error_ev`, `u_${id}_boundary_bound_ev`])],
-      data: rows.map((r) => [r.boundary, r.halfWidthNm, r.dofs, ...r.uEv.flatMap((u, k) => [u, r.uErrorEv[k], r.boundaryBoundEv[k]])]),
-    });
-  }
-  return resultsOutput(summary, json, csv, t0);
+  const { seconds: _seconds, ...summary } = out.json;
+  return resultsOutput(summary, out.json, out.table, t0);
 }
 
 export function runPipeline(kind: JobKind, design: Design, options: JobOptions, hooks: PipelineHooks = {}): PipelineOutput {
@@ -146,22 +101,21 @@ export function runPipeline(kind: JobKind, design: Design, options: JobOptions, 
     if (kind === 'coulomb') return runCoulomb(design, order, options.adaptive ?? false, hooks);
     return runConvergence(design, order, options.sweep ?? 'refinement', hooks);
   } catch (e) {
-    if (e instanceof MeshError || e instanceof CoulombError) {
-      if (hooks.signal?.aborted) throw new DOMException('The job was cancelled.', 'AbortError');
-      throw new JobRefusal(e.message);
-    }
+    if (isCoreAbort(e) || (hooks.signal?.aborted && asRefusal(e))) throw new DOMException('The job was cancelled.', 'AbortError');
+    const refusal = asRefusal(e);
+    if (refusal) throw new JobRefusal(describeRefusal(refusal));
     throw e;
   }
 }
 
 /** A solve's or sweep's output: the CLI's --json summary (timings left out) with results.json and results.csv. */
-function resultsOutput(summary: Record<string, unknown>, json: unknown, csv: string, t0: number): PipelineOutput {
+function resultsOutput(summary: Record<string, unknown>, json: unknown, table: ResultTable, t0: number): PipelineOutput {
   return {
     summary,
     computeSeconds: (performance.now() - t0) / 1000,
     files: [
       { name: 'results.json', bytes: jsonFile(json) },
-      { name: 'results.csv', bytes: utf8(`${csv}\n`) },
+      { name: 'results.csv', bytes: csvFile(table) },
     ],
   };
 }

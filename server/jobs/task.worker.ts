@@ -1,10 +1,13 @@
 /**
  * Piscina worker-thread body of a job: parse the design, run the pipeline, pack the files.
  * Progress goes back through the MessagePort the caller passes. Cancelling a job aborts the piscina task, which ends this thread.
+ * The thread lives on between jobs: after each one it hands back the WebAssembly memory a big
+ * matrix grew (releaseSpmvMemory: above SPMV_KEEP_BYTES the kernel's arena is dropped).
  */
 import type { MessagePort } from 'node:worker_threads';
 import type { JobKind, JobOptions } from '@contracts/api';
 import type { Design } from '../../geometry/design/types';
+import { releaseSpmvMemory } from '../../geometry/fem/index';
 import { JobRefusal, runPipeline } from './pipeline';
 import { packFile, type PackedFile } from './storage';
 
@@ -46,5 +49,7 @@ export default function runTask(input: TaskInput): TaskOutput {
     input.port?.close();
     if (e instanceof JobRefusal) return { ok: false, refusal: e.message };
     throw e;
+  } finally {
+    releaseSpmvMemory();
   }
 }

@@ -32,6 +32,7 @@
  * run past the end or disagree in size, and indices out of range — each with a plain message.
  * Array codes they do not know are skipped (room for additions within version 1).
  */
+import { CoreError } from '../../errors';
 import type { TetMesh } from '../types';
 import { NO_PARENT } from '../types';
 import { HOST_LITTLE_ENDIAN, leBytes } from './bytes';
@@ -116,10 +117,10 @@ export function encodeMeshBinary(mesh: TetMesh): Uint8Array {
   return out;
 }
 
-/** Error thrown by decodeMeshBinary; `message` says what is wrong in plain words. */
-export class MeshBinaryError extends Error {
+/** Error thrown by decodeMeshBinary (a CoreError, code 'bad-mesh-bytes'); `message` says what is wrong. */
+export class MeshBinaryError extends CoreError<'bad-mesh-bytes'> {
   constructor(message: string) {
-    super(message);
+    super('bad-mesh-bytes', message);
     this.name = 'MeshBinaryError';
   }
 }

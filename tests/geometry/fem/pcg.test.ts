@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { pcg, jacobi, SolveAbortedError } from '../../../geometry/fem/pcg';
+import { pcg, jacobi } from '../../../geometry/fem/pcg';
+import { CoreAbortError } from '../../../geometry/errors';
 import type { Csr } from '../../../geometry/fem/csr';
 
 /** tridiag(−1, 2, −1) of size n: the 1D second-difference matrix. */
@@ -77,7 +78,7 @@ describe('preconditioned conjugate gradients', () => {
           if (++calls === 5) controller.abort();
         },
       });
-    expect(run).toThrow(SolveAbortedError);
+    expect(run).toThrow(CoreAbortError);
     try {
       run();
     } catch (e) {

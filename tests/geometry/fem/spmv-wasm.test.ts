@@ -6,7 +6,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { spmv, type Csr } from '../../../geometry/fem/csr';
-import { prepareSpmv, spmvModuleBytes, wasmSpmvAvailable } from '../../../geometry/fem/spmv-wasm';
+import { prepareSpmv, releaseSpmvMemory, spmvArenaBytes, spmvModuleBytes, wasmSpmvAvailable } from '../../../geometry/fem/spmv-wasm';
 import { buildSpace } from '../../../geometry/fem/space';
 import { assembleSystem } from '../../../geometry/fem/assemble';
 import { pcg, jacobi } from '../../../geometry/fem/pcg';
@@ -111,6 +111,49 @@ describe('WebAssembly SIMD spmv', () => {
     pBig(xb, yb);
     spmv(big, xb, yRef);
     expect(Array.from(yb)).toEqual(Array.from(yRef));
+  });
+
+  it('hands back the memory grown for a big matrix: the arena is dropped and a fresh small one serves the next matrix', () => {
+    const rand = lcg(5);
+    // a tridiagonal matrix of 200,000 rows: an arena of about 8.8 MB (4(n+1) + 12 nnz + 16 n bytes)
+    const n = 200_000;
+    const rowPtr = new Uint32Array(n + 1);
+    const cols: number[] = [];
+    const vals: number[] = [];
+    for (let i = 0; i < n; i++) {
+      for (const j of [i - 1, i, i + 1]) {
+        if (j < 0 || j >= n) continue;
+        cols.push(j);
+        vals.push(j === i ? 2 : -1);
+      }
+      rowPtr[i + 1] = cols.length;
+    }
+    const big: Csr = { n, rowPtr, cols: Uint32Array.from(cols), vals: Float64Array.from(vals) };
+    const pBig = prepareSpmv(big);
+    const grown = spmvArenaBytes();
+    expect(grown).toBeGreaterThan(8_000_000);
+    // below the threshold nothing is dropped
+    expect(releaseSpmvMemory(grown)).toBe(false);
+    expect(spmvArenaBytes()).toBe(grown);
+    // above it the instance and its memory go; nothing is instantiated until a product needs it
+    expect(releaseSpmvMemory(1 << 20)).toBe(true);
+    expect(spmvArenaBytes()).toBe(0);
+    const small = randomIntegerCsr(50, rand);
+    const pSmall = prepareSpmv(small);
+    expect(pSmall.kernel).toBe('wasm-simd');
+    expect(spmvArenaBytes()).toBe(65536); // one fresh 64 KiB page: the WebAssembly page size
+    const xs = Float64Array.from({ length: 50 }, () => Math.floor(rand() * 21) - 10);
+    const ys = new Float64Array(50);
+    pSmall(xs, ys);
+    expect(Array.from(ys)).toEqual(Array.from(dense(small, xs)));
+    // the big matrix prepared before the release still gives the JS spmv's bits (it loads itself again)
+    const xb = Float64Array.from({ length: n }, () => rand());
+    const yb = new Float64Array(n);
+    const yRef = new Float64Array(n);
+    pBig(xb, yb);
+    spmv(big, xb, yRef);
+    expect(yb).toEqual(yRef);
+    expect(releaseSpmvMemory(1 << 20)).toBe(true);
   });
 
   it('PCG with the kernel is deterministic and gives the same bits as PCG on the JS spmv', () => {

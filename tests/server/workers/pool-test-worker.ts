@@ -5,8 +5,8 @@
  *          (terminating the thread) can end it, so a rejection proves the cancel worked
  *   echo   returns at once with its value
  */
-import runJob, { type WorkerTask } from '../../../geometry/fem/worker';
-import type { CoulombJob } from '../../../geometry/fem/worker';
+import runJob, { type WorkerTask } from '../../../server/workers/coulomb.worker';
+import type { CoulombJob } from '../../../server/workers/coulomb.worker';
 
 export type PoolTestJob = CoulombJob | { kind: 'spin' } | { kind: 'echo'; value: number };
 
@@ -21,7 +21,7 @@ export default function run(task: { job: PoolTestJob; port?: WorkerTask['port'] 
     for (let round = 0; ; round++) {
       // busy work, like a solve: the thread cannot take messages while it runs
       for (let i = 0; i < 1e5; i++) k += Math.sqrt(i);
-      if (round % 16 === 0) task.port?.postMessage({ stage: 'spin', fraction: k > 0 ? 0.5 : 0 });
+      if (round % 16 === 0) task.port?.postMessage({ phase: 'solve', fraction: k > 0 ? 0.5 : 0 });
     }
   }
   return runJob(task as WorkerTask);

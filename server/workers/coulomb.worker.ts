@@ -1,7 +1,7 @@
 /**
- * The worker-thread side of long Coulomb solves (run by pool.ts through piscina).
+ * The worker-thread side of long Coulomb solves (run by coulombPool.ts through piscina).
  *
- * A task carries the design, the job options and a MessagePort; progress (stage, fraction) is
+ * A task carries the design, the job options and a MessagePort; progress (geometry/progress.ts) is
  * posted on the port at most every PROGRESS_INTERVAL_MS so a fast solve does not flood the
  * main thread. Cancellation is piscina's: aborting the task's signal terminates this thread
  * (the solve is synchronous CPU work, so terminating is the only prompt way to stop it).
@@ -10,10 +10,10 @@
  * test-only lives here.
  */
 import type { MessagePort } from 'node:worker_threads';
-import type { Design } from '../design/types';
-import { solveCoulomb, solveSitePotentials, type CoulombOptions, type Progress } from './coulomb';
-import { runConvergence, type ConvergenceOptions } from './convergence';
-import type { TetMesh } from '../mesh/types';
+import type { Design } from '../../geometry/design/types';
+import type { CoreProgress as Progress } from '../../geometry/pipeline/index';
+import { solveCoulomb, solveSitePotentials, runConvergence, releaseSpmvMemory, type CoulombOptions, type ConvergenceOptions } from '../../geometry/fem/index';
+import type { TetMesh } from '../../geometry/mesh/index';
 
 export const PROGRESS_INTERVAL_MS = 50;
 
@@ -29,13 +29,14 @@ export interface WorkerTask {
 
 function throttled(port: MessagePort | undefined): (p: Progress) => void {
   let last = -Infinity;
-  let lastStage = '';
+  let lastKey = '';
   return (p) => {
     if (!port) return;
     const now = performance.now();
-    if (p.stage === lastStage && p.fraction < 1 && now - last < PROGRESS_INTERVAL_MS) return;
+    const key = `${p.phase}|${p.level ?? ''}|${p.site ?? ''}`;
+    if (key === lastKey && p.fraction < 1 && now - last < PROGRESS_INTERVAL_MS) return;
     last = now;
-    lastStage = p.stage;
+    lastKey = key;
     port.postMessage(p);
   };
 }
@@ -56,5 +57,7 @@ export default function runJob(task: WorkerTask): unknown {
     }
   } finally {
     task.port?.close();
+    // the thread lives on between jobs: hand back the WebAssembly memory a big matrix grew
+    releaseSpmvMemory();
   }
 }

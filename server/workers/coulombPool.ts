@@ -1,5 +1,7 @@
 /**
  * Long Coulomb solves in worker threads: a small piscina pool with progress and cancellation.
+ * It lives on the server side (not in geometry/, which also runs in the browser): the numerical
+ * core is plain synchronous functions, and this pool runs whole core calls in Node threads.
  *
  *   const pool = createCoulombPool({ maxThreads: 2 });
  *   const result = await pool.run({ kind: 'coulomb', design }, { onProgress, signal });
@@ -10,17 +12,17 @@
  * the promise rejects with an error named "AbortError".
  *
  * The worker is TypeScript. When this file itself runs as TypeScript (under tsx or vitest) the
- * worker thread is started with `--import tsx` so it can load worker.ts; a build that emits
- * JavaScript next to it loads worker.js without it.
+ * worker thread is started with `--import tsx` so it can load coulomb.worker.ts; a build that emits
+ * JavaScript next to it loads coulomb.worker.js without it.
  */
 import { MessageChannel } from 'node:worker_threads';
 import { fileURLToPath } from 'node:url';
 import { existsSync } from 'node:fs';
 import Piscina from 'piscina';
-import type { CoulombJob } from './worker';
-import type { Progress } from './coulomb';
+import type { CoulombJob } from './coulomb.worker';
+import type { CoreProgress as Progress } from '../../geometry/pipeline/index';
 
-export type { CoulombJob } from './worker';
+export type { CoulombJob } from './coulomb.worker';
 
 export interface CoulombPoolOptions {
   /** worker threads (default 1: each solve is single-threaded and memory-hungry) */
@@ -29,7 +31,7 @@ export interface CoulombPoolOptions {
   idleTimeout?: number;
   /**
    * another worker module (absolute path, .ts or .js) whose default export takes a WorkerTask;
-   * default: worker.ts/worker.js beside this file. Tests use it to add synthetic jobs that must
+   * default: coulomb.worker.ts/.js beside this file. Tests use it to add synthetic jobs that must
    * not exist in the product.
    */
   workerFile?: string;
@@ -48,8 +50,8 @@ export interface CoulombPool<J = CoulombJob> {
 
 function workerFile(custom?: string): { filename: string; execArgv: string[] } {
   if (custom) return { filename: custom, execArgv: custom.endsWith('.ts') ? ['--import', 'tsx'] : [] };
-  const ts = fileURLToPath(new URL('./worker.ts', import.meta.url));
-  const js = fileURLToPath(new URL('./worker.js', import.meta.url));
+  const ts = fileURLToPath(new URL('./coulomb.worker.ts', import.meta.url));
+  const js = fileURLToPath(new URL('./coulomb.worker.js', import.meta.url));
   if (import.meta.url.endsWith('.ts') || !existsSync(js)) return { filename: ts, execArgv: ['--import', 'tsx'] };
   return { filename: js, execArgv: [] };
 }

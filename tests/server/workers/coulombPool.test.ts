@@ -3,10 +3,11 @@
  * MessagePort, a real solve comes back with numbers, and aborting rejects with an AbortError.
  */
 import { afterAll, describe, expect, it } from 'vitest';
-import { createCoulombPool } from '../../../geometry/fem/pool';
+import { createCoulombPool } from '../../../server/workers/coulombPool';
 import { COULOMB_EV_NM } from '../../../geometry/units';
 import type { Design } from '../../../geometry/design/types';
-import type { CoulombResult, Progress } from '../../../geometry/fem/coulomb';
+import type { CoulombResult } from '../../../geometry/fem/coulomb';
+import type { CoreProgress as Progress } from '../../../geometry/progress';
 import { fileURLToPath } from 'node:url';
 import type { PoolTestJob } from './pool-test-worker';
 
@@ -33,7 +34,9 @@ describe('coulomb worker pool', () => {
     const events: Progress[] = [];
     const r = await pool.run<CoulombResult>({ kind: 'coulomb', design: gaussianDesign(1), options: { levels: 2 } }, { onProgress: (p) => events.push(p) });
     expect(events.length).toBeGreaterThan(2);
-    expect(events.some((e) => e.stage.includes('solve'))).toBe(true);
+    expect(events.some((e) => e.phase === 'solve' && e.site === 'g' && e.level !== undefined)).toBe(true);
+    // structured progress: data, never prose
+    for (const e of events) expect(Object.keys(e).every((k) => ['phase', 'level', 'site', 'fraction'].includes(k))).toBe(true);
     for (const e of events) expect(e.fraction).toBeGreaterThanOrEqual(0);
     expect(events[events.length - 1].fraction).toBe(1);
     // Gaussian self-energy e²/(4πε0 εr)/(σ√π): standard result for Gaussian charge distributions

@@ -1,0 +1,73 @@
+/**
+ * The one error type of the numerical core: a refusal with a stable `code` and the figures behind
+ * it in `details`, so the CLI and the server choose their own words (server/coreErrors.ts) without
+ * parsing text. `message` is a plain default for developers and logs.
+ *
+ * The areas keep their names as subclasses (MeshError, CoulombError, HierarchyError,
+ * MeshBinaryError) so `instanceof` still says where a refusal came from; every one of them is a
+ * CoreError. Cancellation is CoreAbortError (code 'aborted', name 'AbortError' like the
+ * platform's), thrown by every loop that watches a signal.
+ *
+ * A plain Error (or RangeError) from the core is a bug or a broken invariant, not a refusal.
+ */
+export type CoreErrorCode =
+  // the mesher (geometry/mesh)
+  /** an enclosure extent is zero, negative or not a finite number */
+  | 'degenerate-box'
+  /** the element-count estimate (or the running count) exceeds maxElements or the server cap */
+  | 'too-many-elements'
+  /** a size-field parameter is not a positive finite number */
+  | 'bad-size-field'
+  /** more bisection generations than the Uint8 level arrays can hold (255) */
+  | 'level-overflow'
+  /** a marker array whose length does not match the mesh */
+  | 'bad-marker'
+  /** bytes that are not a readable TWMESH file */
+  | 'bad-mesh-bytes'
+  // the Coulomb problem (geometry/fem)
+  | 'no-electrons'
+  | 'no-sites'
+  | 'unknown-site'
+  | 'site-outside'
+  | 'sites-coincide'
+  | 'not-converged'
+  | 'solver-failed'
+  /** the bisection hierarchy the multigrid preconditioner needs is inconsistent */
+  | 'bad-hierarchy'
+  /** the work was cancelled through its signal */
+  | 'aborted';
+
+export type CoreErrorDetails = Record<string, number | string | readonly string[]>;
+
+export class CoreError<C extends CoreErrorCode = CoreErrorCode> extends Error {
+  readonly code: C;
+  /** figures and ids behind the refusal (e.g. { estimate, limit } or { siteId }) */
+  readonly details: CoreErrorDetails;
+
+  constructor(code: C, message: string, details: CoreErrorDetails = {}) {
+    super(message);
+    this.name = 'CoreError';
+    this.code = code;
+    this.details = details;
+  }
+}
+
+/** Cancellation: the one abort error of the core. */
+export class CoreAbortError extends CoreError<'aborted'> {
+  constructor(message = 'cancelled') {
+    super('aborted', message);
+    this.name = 'AbortError';
+  }
+}
+
+export function isCoreError(e: unknown): e is CoreError {
+  return e instanceof CoreError;
+}
+
+/** A signal that may be an AbortSignal or any object with `aborted` (tests use plain objects). */
+export type AbortLike = { readonly aborted: boolean };
+
+/** Throws CoreAbortError when the signal has aborted. */
+export function throwIfAborted(signal: AbortLike | undefined | null): void {
+  if (signal?.aborted) throw new CoreAbortError();
+}
