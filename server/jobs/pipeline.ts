@@ -14,14 +14,15 @@ import type { Design } from '../../geometry/design/types';
 import { MeshError, meshDesign, SizeField, sizeFieldFromDesign } from '../../geometry/mesh/index';
 import { writeVtu, writeVtkLegacy, encodeMeshBinary } from '../../geometry/mesh/export/index';
 import { qualityReport } from '../../geometry/mesh/quality';
-import { solveCoulomb, CoulombError } from '../../geometry/fem/coulomb';
+import { solveCoulomb, solveSitePotentials, CoulombError } from '../../geometry/fem/coulomb';
+import { COULOMB_EV_NM } from '../../geometry/units';
 import { runConvergence as runConvergenceSweep, type RefinementRow, type BoxRow } from '../../geometry/fem/convergence';
 import { toCoulombJson } from '../cli/coulomb';
 import { toConvergenceJson } from '../cli/convergence';
 import { meshSummary } from '../cli/mesh';
 
 export interface PipelineFile {
-  name: 'mesh.vtu' | 'mesh.vtk' | 'mesh.twmesh' | 'results.json' | 'results.csv';
+  name: 'mesh.vtu' | 'mesh.vtk' | 'mesh.twmesh' | 'results.json' | 'results.csv' | 'potential.f64';
   bytes: Uint8Array;
 }
 
@@ -108,7 +109,32 @@ function runCoulomb(design: Design, order: 1 | 2, adaptive: boolean, hooks: Pipe
       ...json.pairs.map((p) => ['V', p.a, p.b, p.distanceNm, p.vEv, p.vErrorEv]),
     ],
   });
-  return resultsOutput(summary, json, csv, t0);
+  const out = resultsOutput(summary, json, csv, t0);
+  out.files.unshift(...potentialFiles(design, order, hooks));
+  return out;
+}
+
+/**
+ * For the mesh viewer after a solve: the design's own graded mesh (the finest level of the graded solve) as
+ * mesh.twmesh and the potential at its vertices as potential.f64 (Float64, little-endian, one per vertex, volts):
+ * the sum over the sites of the potential of each site's density taken as a charge of +e (COULOMB_EV_NM·φ_i, CODATA
+ * e²/(4πε₀) in eV·nm; geometry/units.ts). One more solve on that mesh; the summary and results files do not change.
+ */
+function potentialFiles(design: Design, order: 1 | 2, hooks: PipelineHooks): PipelineFile[] {
+  hooks.onProgress?.({ phase: 'potential', fraction: 0.96 });
+  const mesh = meshDesign(design, { order }).mesh;
+  checkAbort(hooks.signal);
+  const sol = solveSitePotentials(design, mesh, order, { signal: hooks.signal });
+  const nV = mesh.coords.length / 3;
+  const total = new Float64Array(nV);
+  for (const phi of sol.potentials) for (let v = 0; v < nV; v++) total[v] += COULOMB_EV_NM * phi[v];
+  const bytes = new Uint8Array(8 * nV);
+  const view = new DataView(bytes.buffer);
+  for (let v = 0; v < nV; v++) view.setFloat64(8 * v, total[v], true);
+  return [
+    { name: 'mesh.twmesh', bytes: encodeMeshBinary(mesh) },
+    { name: 'potential.f64', bytes },
+  ];
 }
 
 function runConvergence(design: Design, order: 1 | 2, sweep: 'refinement' | 'box', hooks: PipelineHooks): PipelineOutput {
