@@ -7,7 +7,7 @@
  * shown is the one the server checks: the document's own box with the picked order.
  */
 import { lazy, Suspense, useState } from 'react';
-import type { Job, JobCreateBody, Revision } from '@contracts/api';
+import type { Job, Revision } from '@contracts/api';
 import type { DesignDocument } from '@contracts/design';
 import { Button } from '../../components/Button';
 import { Loading } from '../../components/QueryState';
@@ -24,6 +24,7 @@ import { isActive, useJobs } from './listJobs';
 import { useRevisions } from './listRevisions';
 import { revisionFileHref } from './revisionFile';
 import { useStartJob } from './startJob';
+import { actionBodies } from './runActions';
 import { runEstimateText, useRunEstimate } from './useRunEstimate';
 import { coulombSummarySchema, convergenceSummarySchema, KIND_LABEL, meshSummarySchema, optionsText } from './summaries';
 
@@ -38,16 +39,6 @@ export interface RunsSectionProps {
   unsaved: boolean;
   /** the open document: its box and refinement give the element estimate shown before a start */
   document: DesignDocument;
-}
-
-/** the request of each start button for the picked order (and adaptive switch, which only U and V take) */
-export function actionBodies(order: 1 | 2, adaptive: boolean): { label: string; body: JobCreateBody }[] {
-  return [
-    { label: 'Build mesh', body: { kind: 'mesh', options: { order } } },
-    { label: 'Solve U and V', body: { kind: 'coulomb', options: { order, adaptive } } },
-    { label: 'Refinement sweep', body: { kind: 'convergence', options: { order, sweep: 'refinement' } } },
-    { label: 'Box sweep', body: { kind: 'convergence', options: { order, sweep: 'box' } } },
-  ];
 }
 
 const STATE_TEXT: Record<Job['state'], string> = { queued: 'waiting for a worker', running: 'running', succeeded: 'finished', failed: 'failed', cancelled: 'cancelled' };
