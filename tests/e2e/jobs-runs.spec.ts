@@ -124,10 +124,10 @@ test('after a solve: potential in the mesh viewer, V on the bond graph, and two 
   const graph = results.getByRole('figure', { name: 'V on the bond graph' });
   await expect(graph).toContainText(/d1|d2/);
   await expect(graph).toContainText(/-?\d+\.\d ± \d+\.\d meV/);
-  await expect(graph.getByRole('img', { name: 'V colour bar' })).toContainText('meV');
+  await expect(graph.getByRole('img', { name: 'Colour scale of V' })).toContainText('meV');
   // the viewer opens coloured by the potential, with the quantity and unit on the colour bar
   await expect(results.getByLabel('Colour by')).toHaveValue('potential', { timeout: 60_000 });
-  const bar = results.getByRole('img', { name: 'Colour bar' });
+  const bar = results.getByRole('img', { name: 'Colour bar', exact: true });
   await expect(bar).toContainText('Potential');
   await expect(bar).toContainText(/\d V/);
   await expect(results.getByRole('figure', { name: 'Dihedral angle histogram' })).toContainText('180 °');

@@ -52,7 +52,7 @@ export function BondGraph({ summary, sites }: { summary: CoulombSummary; sites: 
         <line x1={PAD} y1={H - 12} x2={PAD + scaleNm * pxPerNm} y2={H - 12} stroke="#334155" strokeWidth={2} />
         <text x={PAD} y={H - 16} className="fill-wafer-700 text-[10px]">{scaleNm} nm</text>
       </svg>
-      <div aria-label="V colour bar" role="img" className="max-w-2xl space-y-0.5">
+      <div aria-label="Colour scale of V" role="img" className="max-w-2xl space-y-0.5">
         <div className="h-3 rounded" style={{ background: rampCss }} />
         <div className="num flex justify-between text-fine text-wafer-600">
           <span>V {lo.toFixed(2)} meV</span>

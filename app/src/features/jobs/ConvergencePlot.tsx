@@ -29,7 +29,8 @@ function RefinementPlot({ s }: { s: Extract<ConvergenceSummary, { kind: 'refinem
   return (
     <figure aria-label="Refinement sweep plot" className="space-y-1">
       <figcaption className="text-note font-semibold">
-        Change in U of site {s.siteIds[0]} between levels against unknowns (log-log). Fitted rate: |ΔU| ∝ N<sup>−{fit === null ? '?' : fit.toFixed(2)}</sup>; theory on graded meshes: N<sup>−{s.theoreticalRate.toFixed(2)}</sup>.
+        Change in U of site {s.siteIds[0]} between levels against unknowns (log-log). Fitted rate: |ΔU| ∝ N<sup>−{fit === null ? '?' : fit.toFixed(2)}</sup>; theory on graded meshes: N<sup>−{s.theoreticalRate.toFixed(2)}</sup>.{' '}
+        <span className="font-normal text-wafer-600">(least squares in log-log through {data.length} point{data.length === 1 ? '' : 's'}{data.length === 2 ? ': two points fix the line, so the fit has no spread to judge it by' : ''})</span>
       </figcaption>
       {data.length < 2 && <p className="text-fine text-garnet-700">Fewer than two levels changed U measurably: no rate can be fitted.</p>}
       <div className="h-64">
