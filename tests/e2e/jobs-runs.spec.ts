@@ -110,8 +110,7 @@ test('the refinement sweep draws error against unknowns on log-log axes with the
   await expect(plot.locator('.recharts-scatter-symbol')).toHaveCount(2);
   await expect(plot.locator('.recharts-line path.recharts-curve')).toHaveCount(1);
   await expect(runs(page).getByRole('complementary', { name: 'About these numbers' })).toBeVisible();
-  await plot.scrollIntoViewIfNeeded();
-  await page.screenshot({ path: 'tests/artifacts/jobs-refinement-sweep.png', fullPage: true });
+  await runs(page).getByRole('region', { name: /Results of revision/ }).screenshot({ path: 'tests/artifacts/jobs-refinement-sweep.png' });
 });
 
 test('after a solve: potential in the mesh viewer, V on the bond graph, and two design versions compared', async ({ page }) => {
@@ -141,8 +140,8 @@ test('after a solve: potential in the mesh viewer, V on the bond graph, and two 
   }
   await results.getByLabel('Colour by').selectOption('potential');
   await results.getByLabel('Plane position (nm)').fill('1');
-  await results.scrollIntoViewIfNeeded();
-  await page.screenshot({ path: 'tests/artifacts/jobs-potential.png', fullPage: true });
+  // the workspace page does not scroll (its columns do): shoot the results region itself
+  await results.screenshot({ path: 'tests/artifacts/jobs-potential.png' });
 
   // move d2 by one lattice constant along y (a new design version) and solve again with P2
   const current = (await (await page.request.get(`/api/projects/${projectId}/designs/${design}`)).json()) as { design: { version: number; document: Doc } };
@@ -168,6 +167,5 @@ test('after a solve: potential in the mesh viewer, V on the bond graph, and two 
   await expect(v).toContainText(/[+−]\d+\.\d{3} meV/);
   await expect(compare.getByRole('row', { name: /^U d1 \(meV\)/ })).toContainText(/[+−]\d+\.\d{3} meV/);
   await expect(runs(page).getByRole('list', { name: 'Design changes' })).toContainText('1 site moved: d2 by 0.5431 nm');
-  await compare.scrollIntoViewIfNeeded();
-  await page.screenshot({ path: 'tests/artifacts/jobs-compare-versions.png', fullPage: true });
+  await runs(page).getByRole('region', { name: /beside revision/ }).screenshot({ path: 'tests/artifacts/jobs-compare-versions.png' });
 });

@@ -54,11 +54,15 @@ export function BondGraph({ summary, sites }: { summary: CoulombSummary; sites: 
       </svg>
       <div aria-label="Colour scale of V" role="img" className="max-w-2xl space-y-0.5">
         <div className="h-3 rounded" style={{ background: rampCss }} />
-        <div className="num flex justify-between text-fine text-wafer-600">
-          <span>V {lo.toFixed(2)} meV</span>
-          <span>{((lo + hi) / 2).toFixed(2)} meV</span>
-          <span>{hi.toFixed(2)} meV</span>
-        </div>
+        {hi - lo > 0.005 ? (
+          <div className="num flex justify-between text-fine text-wafer-600">
+            <span>V {lo.toFixed(2)} meV</span>
+            <span>{((lo + hi) / 2).toFixed(2)} meV</span>
+            <span>{hi.toFixed(2)} meV</span>
+          </div>
+        ) : (
+          <p className="num text-fine text-wafer-600">{summary.pairs.length === 1 ? 'One pair' : 'Every pair'}: V = {hi.toFixed(2)} meV (the colour of the right end).</p>
+        )}
       </div>
       <p className="text-fine text-wafer-600">Positions are the design’s, projected onto the plane; a line is a pair the solve computed.{labelled ? '' : ' Hover a line for its value.'}</p>
     </figure>
