@@ -129,7 +129,7 @@ test('after a solve: potential in the mesh viewer, V on the bond graph, and two 
   const bar = results.getByRole('img', { name: 'Colour bar', exact: true });
   await expect(bar).toContainText('Potential');
   await expect(bar).toContainText(/\d V/);
-  await expect(results.getByRole('figure', { name: 'Dihedral angle histogram' })).toContainText('180 °');
+  await expect(results.getByRole('figure', { name: 'Dihedral angle histogram' })).toContainText('180°');
   await expect(results.getByRole('figure', { name: 'Quality histogram' })).toContainText('mean ratio');
   const sizePlot = results.getByRole('figure', { name: 'Element size against distance to the nearest site' });
   await expect(sizePlot).toContainText('distance to nearest site (nm)');

@@ -68,8 +68,10 @@ function numberRows(ra: Revision, rb: Revision): Row[] {
 }
 
 export function CompareRevisions({ projectId, ids }: { projectId: number; ids: [number, number] }) {
-  const a = useRevision(projectId, ids[0]);
-  const b = useRevision(projectId, ids[1]);
+  // the older revision on the left, whatever order they were ticked in
+  const [first, second] = ids[0] < ids[1] ? ids : [ids[1], ids[0]];
+  const a = useRevision(projectId, first);
+  const b = useRevision(projectId, second);
   if (a.isPending || b.isPending) return <Loading label="Reading both revisions…" />;
   if (a.isError || b.isError) return <p role="alert" className="text-note text-garnet-700">Could not read both revisions: {(a.error ?? b.error)?.message}</p>;
   return <Comparison projectId={projectId} ra={a.data} rb={b.data} />;

@@ -31,6 +31,14 @@ const COLOUR_LABEL: Record<ColourBy, { option: string; bar: string }> = {
 };
 
 const fmt = (v: number) => (Math.abs(v) >= 100 || v === 0 ? v.toFixed(0) : Math.abs(v) >= 1 ? v.toFixed(2) : v.toPrecision(3));
+/** an axis tick: at most 3 significant digits, no trailing zeros */
+const tick = (v: number) => String(+v.toPrecision(3));
+/** powers of ten from lo to hi (a log axis' ticks) */
+const decadeTicks = ([lo, hi]: [number, number]) => {
+  const out: number[] = [];
+  for (let k = Math.round(Math.log10(lo)); k <= Math.round(Math.log10(hi)); k++) out.push(10 ** k);
+  return out;
+};
 
 function Histogram({ label, caption, series, lo, hi, unit }: { label: string; caption: string; series: { name: string; counts: number[]; className: string }[]; lo: number; hi: number; unit: string }) {
   const bins = series[0].counts.length;
@@ -43,15 +51,15 @@ function Histogram({ label, caption, series, lo, hi, unit }: { label: string; ca
         {Array.from({ length: bins }, (_, k) => (
           <div key={k} className="flex h-full flex-1 items-end gap-px">
             {series.map((s) => (
-              <div key={s.name} title={`${s.name}, ${fmt(lo + k * w)}–${fmt(lo + (k + 1) * w)} ${unit}: ${s.counts[k]} elements`} className={`flex-1 ${s.className}`} style={{ height: `${(100 * s.counts[k]) / max}%` }} />
+              <div key={s.name} title={`${s.name}, ${tick(lo + k * w)}–${tick(lo + (k + 1) * w)}${unit}: ${s.counts[k]} elements`} className={`flex-1 ${s.className}`} style={{ height: `${(100 * s.counts[k]) / max}%` }} />
             ))}
           </div>
         ))}
       </div>
       <div className="num flex justify-between text-fine text-wafer-600">
-        <span>{fmt(lo)} {unit}</span>
-        <span>{fmt((lo + hi) / 2)} {unit}</span>
-        <span>{fmt(hi)} {unit}</span>
+        <span>{tick(lo)}{unit}</span>
+        <span>{tick((lo + hi) / 2)}{unit}</span>
+        <span>{tick(hi)}{unit}</span>
       </div>
       <p className="text-fine text-wafer-600">
         Bar height: number of elements (tallest bar {max.toLocaleString('en-US')}).{' '}
@@ -71,15 +79,16 @@ function SizeDistancePlot({ points }: { points: { distanceNm: number; sizeNm: nu
   // log axes need positive values: a centroid on a site (distance 0) is drawn at 0.001 nm
   const data = points.map((p) => ({ d: Math.max(1e-3, p.distanceNm), h: p.sizeNm }));
   const dec = (vs: number[]): [number, number] => [10 ** Math.floor(Math.log10(Math.min(...vs))), 10 ** Math.ceil(Math.log10(Math.max(...vs)))];
+  const xDomain = dec(data.map((p) => p.d)), yDomain = dec(data.map((p) => p.h));
   return (
     <figure aria-label="Element size against distance to the nearest site" className="space-y-0.5">
       <figcaption className="text-note font-semibold">Element size (longest edge, nm) against distance from its centre to the nearest site (nm), log-log</figcaption>
       <div className="h-56">
         <ResponsiveContainer width="100%" height="100%">
-          <ScatterChart margin={{ top: 8, right: 16, bottom: 24, left: 16 }}>
+          <ScatterChart margin={{ top: 8, right: 16, bottom: 24, left: 24 }}>
             <CartesianGrid stroke="#e5e7eb" />
-            <XAxis dataKey="d" type="number" scale="log" domain={dec(data.map((p) => p.d))} allowDataOverflow tickFormatter={(v: number) => `${v}`} label={{ value: 'distance to nearest site (nm)', position: 'insideBottom', offset: -12 }} />
-            <YAxis dataKey="h" type="number" scale="log" domain={dec(data.map((p) => p.h))} allowDataOverflow tickFormatter={(v: number) => `${v}`} label={{ value: 'element size (nm)', angle: -90, position: 'insideLeft' }} />
+            <XAxis dataKey="d" type="number" scale="log" domain={xDomain} ticks={decadeTicks(xDomain)} allowDataOverflow tickFormatter={tick} label={{ value: 'distance to nearest site (nm)', position: 'insideBottom', offset: -12 }} />
+            <YAxis dataKey="h" type="number" scale="log" domain={yDomain} ticks={decadeTicks(yDomain)} allowDataOverflow tickFormatter={tick} label={{ value: 'element size (nm)', angle: -90, position: 'insideLeft', offset: -12 }} />
             <Tooltip formatter={(v) => `${fmt(Number(v))} nm`} />
             <Scatter name="elements" data={data} fill="#0f766e" isAnimationActive={false} />
           </ScatterChart>
@@ -201,7 +210,7 @@ function Viewer({ mesh, sites, potential }: { mesh: TetMesh; sites: Vec3[] | nul
           caption="Smallest and largest dihedral angle per element (degrees)"
           series={[
             { name: 'smallest angle', counts: dihedral.min, className: 'bg-phosphor-600' },
-            { name: 'largest angle', counts: dihedral.max, className: 'bg-ember-500' },
+            { name: 'largest angle', counts: dihedral.max, className: 'bg-ember-400' },
           ]}
           lo={0}
           hi={180}
