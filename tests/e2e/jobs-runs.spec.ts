@@ -13,13 +13,13 @@
  * - the job contract (issue 10): `options.order` is 1 or 2, `adaptive` applies to coulomb jobs only.
  * Screenshots land in tests/artifacts/jobs-*.png.
  */
-import { expect, test, type Page } from '@playwright/test';
+import { expect, test, type Locator, type Page } from '@playwright/test';
 import { readFileSync } from 'node:fs';
 import { apiWrite, closeTestDb, createProject, signUp, uniqueEmail } from './helpers';
 
 test.afterAll(closeTestDb);
 // meshing and solving on a shared two-core machine, plus software WebGL
-test.describe.configure({ timeout: 300_000 });
+test.describe.configure({ timeout: 480_000 });
 
 type Doc = Record<string, unknown> & { sites: { id: string; position: number[]; electrons: number }[]; enclosure: Record<string, unknown>; refinement: Record<string, unknown> };
 const PAIR = JSON.parse(readFileSync('tests/fixtures/designs/pair-coarse.json', 'utf8')) as Doc;
@@ -37,6 +37,18 @@ async function openWorkspace(page: Page, projectId: number, designId: number) {
 
 const runs = (page: Page) => page.getByRole('region', { name: 'Server runs' });
 const jobRow = (page: Page, title: RegExp) => runs(page).getByRole('list', { name: 'Recent runs of this design' }).getByRole('listitem', { name: title }).first();
+
+/**
+ * The workspace fills the window and its parts scroll on their own, so a full-page shot shows one window's worth: for
+ * a look at a whole results region, make the window as tall as the page's content, shoot, and restore it.
+ */
+async function tallShot(page: Page, region: Locator, path: string) {
+  const size = page.viewportSize()!;
+  await page.setViewportSize({ width: size.width, height: 3200 });
+  await region.scrollIntoViewIfNeeded();
+  await region.screenshot({ path });
+  await page.setViewportSize(size);
+}
 
 async function start(page: Page) {
   const email = uniqueEmail('runs2');
@@ -110,7 +122,7 @@ test('the refinement sweep draws error against unknowns on log-log axes with the
   await expect(plot.locator('.recharts-scatter-symbol')).toHaveCount(2);
   await expect(plot.locator('.recharts-line path.recharts-curve')).toHaveCount(1);
   await expect(runs(page).getByRole('complementary', { name: 'About these numbers' })).toBeVisible();
-  await runs(page).getByRole('region', { name: /Results of revision/ }).screenshot({ path: 'tests/artifacts/jobs-refinement-sweep.png' });
+  await tallShot(page, runs(page).getByRole('region', { name: /Results of revision/ }), 'tests/artifacts/jobs-refinement-sweep.png');
 });
 
 test('after a solve: potential in the mesh viewer, V on the bond graph, and two design versions compared', async ({ page }) => {
@@ -140,8 +152,7 @@ test('after a solve: potential in the mesh viewer, V on the bond graph, and two 
   }
   await results.getByLabel('Colour by').selectOption('potential');
   await results.getByLabel('Plane position (nm)').fill('1');
-  // the workspace page does not scroll (its columns do): shoot the results region itself
-  await results.screenshot({ path: 'tests/artifacts/jobs-potential.png' });
+  await tallShot(page, results, 'tests/artifacts/jobs-potential.png');
 
   // move d2 by one lattice constant along y (a new design version) and solve again with P2
   const current = (await (await page.request.get(`/api/projects/${projectId}/designs/${design}`)).json()) as { design: { version: number; document: Doc } };
@@ -167,5 +178,5 @@ test('after a solve: potential in the mesh viewer, V on the bond graph, and two 
   await expect(v).toContainText(/[+−]\d+\.\d{3} meV/);
   await expect(compare.getByRole('row', { name: /^U d1 \(meV\)/ })).toContainText(/[+−]\d+\.\d{3} meV/);
   await expect(runs(page).getByRole('list', { name: 'Design changes' })).toContainText('1 site moved: d2 by 0.5431 nm');
-  await runs(page).getByRole('region', { name: /beside revision/ }).screenshot({ path: 'tests/artifacts/jobs-compare-versions.png' });
+  await tallShot(page, runs(page).getByRole('region', { name: /beside revision/ }), 'tests/artifacts/jobs-compare-versions.png');
 });

@@ -18,7 +18,7 @@ const opt = (r: Revision) => ({
   adaptive: r.kind === 'coulomb' ? (r.options.adaptive ? 'adaptive' : 'graded meshes') : '—',
   sweep: r.kind === 'convergence' ? (r.options.sweep === 'box' ? 'box sizes' : 'refinement levels') : '—',
 });
-const signed = (v: number, d: number) => `${v >= 0 ? '+' : '−'}${Math.abs(v).toFixed(d)}`;
+const signed = (v: number, d: number) => `${v >= 0 ? '+' : '−'}${Math.abs(v).toLocaleString('en-US', { minimumFractionDigits: d, maximumFractionDigits: d })}`;
 
 function numberRows(ra: Revision, rb: Revision): Row[] {
   const rows: Row[] = [];

@@ -88,7 +88,7 @@ function SizeDistancePlot({ points }: { points: { distanceNm: number; sizeNm: nu
           <ScatterChart margin={{ top: 8, right: 16, bottom: 24, left: 24 }}>
             <CartesianGrid stroke="#e5e7eb" />
             <XAxis dataKey="d" type="number" scale="log" domain={xDomain} ticks={decadeTicks(xDomain)} allowDataOverflow tickFormatter={tick} label={{ value: 'distance to nearest site (nm)', position: 'insideBottom', offset: -12 }} />
-            <YAxis dataKey="h" type="number" scale="log" domain={yDomain} ticks={decadeTicks(yDomain)} allowDataOverflow tickFormatter={tick} label={{ value: 'element size (nm)', angle: -90, position: 'insideLeft', offset: -12 }} />
+            <YAxis dataKey="h" type="number" scale="log" domain={yDomain} ticks={decadeTicks(yDomain)} allowDataOverflow tickFormatter={tick} label={{ value: 'size (nm)', angle: -90, position: 'insideLeft', offset: -8 }} />
             <Tooltip formatter={(v) => `${fmt(Number(v))} nm`} />
             <Scatter name="elements" data={data} fill="#0f766e" isAnimationActive={false} />
           </ScatterChart>
