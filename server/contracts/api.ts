@@ -290,7 +290,8 @@ export const jobListSchema = z.object({ jobs: z.array(jobSchema) });
 
 // ---------- revisions (immutable results of finished jobs) ----------
 export const revisionParamsSchema = z.object({ projectId: idSchema, revisionId: idSchema });
-export const revisionFileNames = ['mesh.vtu', 'mesh.vtk', 'mesh.twmesh', 'results.json', 'results.csv'] as const;
+/** potential.f64 (coulomb revisions): Float64 little-endian volts, one per vertex of the revision's mesh.twmesh */
+export const revisionFileNames = ['mesh.vtu', 'mesh.vtk', 'mesh.twmesh', 'results.json', 'results.csv', 'potential.f64'] as const;
 export const revisionFileParamsSchema = z.object({ projectId: idSchema, revisionId: idSchema, name: z.enum(revisionFileNames) });
 export const revisionSchema = z.object({
   id: z.number().int(),

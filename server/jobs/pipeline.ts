@@ -14,9 +14,13 @@ import type { JobKind, JobOptions, JobProgress } from '@contracts/api';
 import type { Design } from '../../geometry/design/types';
 import { asRefusal, describeRefusal, isCoreAbort } from '../coreErrors';
 import { buildMeshArtifact, encodeMesh, coulombResults, convergenceResults, type ResultTable, type CoreProgress } from '../../geometry/pipeline/index';
+import { meshDesign } from '../../geometry/mesh/index';
+import { encodeMeshBinary } from '../../geometry/mesh/export/index';
+import { solveSitePotentials } from '../../geometry/fem/index';
+import { COULOMB_EV_NM } from '../../geometry/units';
 
 export interface PipelineFile {
-  name: 'mesh.vtu' | 'mesh.vtk' | 'mesh.twmesh' | 'results.json' | 'results.csv';
+  name: 'mesh.vtu' | 'mesh.vtk' | 'mesh.twmesh' | 'results.json' | 'results.csv' | 'potential.f64';
   bytes: Uint8Array;
 }
 
@@ -83,7 +87,32 @@ function runCoulomb(design: Design, order: 1 | 2, adaptive: boolean, hooks: Pipe
     throw new JobRefusal(`no result: ${out.result.notes[0] ?? 'the adaptive refinement did not reach the target'}`);
   }
   const { seconds: _seconds, ...summary } = out.json;
-  return resultsOutput(summary, out.json, out.table, t0);
+  const output = resultsOutput(summary, out.json, out.table, t0);
+  output.files.unshift(...potentialFiles(design, order, hooks));
+  return output;
+}
+
+/**
+ * For the mesh viewer after a solve: the design's own graded mesh (the finest level of the graded solve) as
+ * mesh.twmesh and the potential at its vertices as potential.f64 (Float64, little-endian, one per vertex, volts):
+ * the sum over the sites of the potential of each site's density taken as a charge of +e (COULOMB_EV_NM·φ_i, CODATA
+ * e²/(4πε₀) in eV·nm; geometry/units.ts). One more solve on that mesh; the summary and results files do not change.
+ */
+function potentialFiles(design: Design, order: 1 | 2, hooks: PipelineHooks): PipelineFile[] {
+  hooks.onProgress?.({ phase: 'potential', fraction: 0.96 });
+  const mesh = meshDesign(design, { order }).mesh;
+  checkAbort(hooks.signal);
+  const sol = solveSitePotentials(design, mesh, order, { signal: hooks.signal });
+  const nV = mesh.coords.length / 3;
+  const total = new Float64Array(nV);
+  for (const phi of sol.potentials) for (let v = 0; v < nV; v++) total[v] += COULOMB_EV_NM * phi[v];
+  const bytes = new Uint8Array(8 * nV);
+  const view = new DataView(bytes.buffer);
+  for (let v = 0; v < nV; v++) view.setFloat64(8 * v, total[v], true);
+  return [
+    { name: 'mesh.twmesh', bytes: encodeMeshBinary(mesh) },
+    { name: 'potential.f64', bytes },
+  ];
 }
 
 function runConvergence(design: Design, order: 1 | 2, sweep: 'refinement' | 'box', hooks: PipelineHooks): PipelineOutput {

@@ -26,6 +26,7 @@ export const CONTENT_TYPES: Record<string, string> = {
   'mesh.twmesh': 'application/octet-stream',
   'results.json': 'application/json',
   'results.csv': 'text/csv; charset=utf-8',
+  'potential.f64': 'application/octet-stream',
 };
 
 export function packFile(name: string, bytes: Uint8Array, chunkBytes = CHUNK_BYTES): PackedFile {

@@ -66,7 +66,7 @@ export interface StoredFile {
   chunks: number;
 }
 
-const ORDER: RevisionFileName[] = ['mesh.vtu', 'mesh.vtk', 'mesh.twmesh', 'results.json', 'results.csv'];
+const ORDER: RevisionFileName[] = ['mesh.vtu', 'mesh.vtk', 'mesh.twmesh', 'results.json', 'results.csv', 'potential.f64'];
 
 export function revisionsRepo(db: Db) {
   const select = (withSummary: boolean) =>

@@ -21,7 +21,7 @@ import { apiWrite, closeTestDb, createProject, signUp, testDb, uniqueEmail } fro
 
 test.afterAll(closeTestDb);
 // meshing and solving on a shared two-core machine, plus software WebGL: room for each story
-test.describe.configure({ timeout: 240_000 });
+test.describe.configure({ timeout: 420_000 });
 
 const run = promisify(execFile);
 const fixture = JSON.parse(readFileSync('tests/fixtures/designs/pair-coarse.json', 'utf8')) as Record<string, unknown>;

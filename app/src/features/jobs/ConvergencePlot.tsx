@@ -15,6 +15,15 @@ function decades(values: number[]): [number, number] {
   return [10 ** Math.floor(Math.log10(Math.min(...pos))), 10 ** Math.ceil(Math.log10(Math.max(...pos)))];
 }
 
+/** the powers of ten of a decades domain, as a log axis' ticks */
+function decadeTicks([lo, hi]: [number, number]): number[] {
+  const out: number[] = [];
+  for (let k = Math.round(Math.log10(lo)); k <= Math.round(Math.log10(hi)); k++) out.push(10 ** k);
+  return out;
+}
+/** 10⁴ as 10,000 and 10⁻³ as 0.001: plain numbers on the axes */
+const plain = (v: number) => (v >= 1 ? v.toLocaleString('en-US') : String(+v.toPrecision(1)));
+
 const sig = (v: number) => (Math.abs(v) >= 100 ? v.toFixed(0) : v.toPrecision(3));
 
 function RefinementPlot({ s }: { s: Extract<ConvergenceSummary, { kind: 'refinement' }> }) {
@@ -29,15 +38,16 @@ function RefinementPlot({ s }: { s: Extract<ConvergenceSummary, { kind: 'refinem
   return (
     <figure aria-label="Refinement sweep plot" className="space-y-1">
       <figcaption className="text-note font-semibold">
-        Change in U of site {s.siteIds[0]} between levels against unknowns (log-log). Fitted rate: |ΔU| ∝ N<sup>−{fit === null ? '?' : fit.toFixed(2)}</sup>; theory on graded meshes: N<sup>−{s.theoreticalRate.toFixed(2)}</sup>.
+        Change in U of site {s.siteIds[0]} between levels against unknowns (log-log). Fitted rate: |ΔU| ∝ N<sup>−{fit === null ? '?' : fit.toFixed(2)}</sup>; theory on graded meshes: N<sup>−{s.theoreticalRate.toFixed(2)}</sup>.{' '}
+        <span className="font-normal text-wafer-600">(least squares in log-log through {data.length} point{data.length === 1 ? '' : 's'}{data.length === 2 ? ': two points fix the line, so the fit has no spread to judge it by' : ''})</span>
       </figcaption>
       {data.length < 2 && <p className="text-fine text-garnet-700">Fewer than two levels changed U measurably: no rate can be fitted.</p>}
       <div className="h-64">
         <ResponsiveContainer width="100%" height="100%">
           <ComposedChart data={data} margin={{ top: 8, right: 16, bottom: 24, left: 16 }}>
             <CartesianGrid stroke="#e5e7eb" />
-            <XAxis dataKey="dofs" type="number" scale="log" domain={x} allowDataOverflow tickFormatter={(v: number) => v.toExponential(0)} label={{ value: 'unknowns N (degrees of freedom)', position: 'insideBottom', offset: -12 }} />
-            <YAxis type="number" scale="log" domain={y} allowDataOverflow tickFormatter={(v: number) => v.toExponential(0)} label={{ value: '|ΔU| (meV)', angle: -90, position: 'insideLeft' }} />
+            <XAxis dataKey="dofs" type="number" scale="log" domain={x} ticks={decadeTicks(x)} allowDataOverflow tickFormatter={plain} label={{ value: 'unknowns N (degrees of freedom)', position: 'insideBottom', offset: -12 }} />
+            <YAxis type="number" scale="log" domain={y} ticks={decadeTicks(y)} allowDataOverflow tickFormatter={plain} label={{ value: '|ΔU| (meV)', angle: -90, position: 'insideLeft' }} />
             <Tooltip formatter={(v) => `${sig(Number(v))} meV`} labelFormatter={(v) => `N = ${Number(v).toLocaleString('en-US')}`} />
             <Legend verticalAlign="top" />
             <Scatter name="|ΔU| measured (meV)" dataKey="delta" fill={COLOURS[0]} isAnimationActive={false} />

@@ -3,22 +3,29 @@
  * sweeps (POST …/jobs for the design's saved version), follow each job's phase and progress (event stream, polling
  * when it is cut; the list is read from the server, so a reload finds running jobs again), cancel it, read why it
  * failed, and open its revision: results, plots and downloads. Viewers see the jobs and results, not the buttons.
+ * The element order (P1/P2) and, for U and V, adaptive refinement are picked before a start; the element estimate
+ * shown is the one the server checks: the document's own box with the picked order.
  */
 import { lazy, Suspense, useState } from 'react';
-import type { Job, JobCreateBody, Revision } from '@contracts/api';
+import type { Job, Revision } from '@contracts/api';
+import type { DesignDocument } from '@contracts/design';
 import { Button } from '../../components/Button';
 import { Loading } from '../../components/QueryState';
 import { ApiError } from '../../lib/api';
 import { formatDateTime } from '../../lib/format';
 import { useCancelJob } from './cancelJob';
 import { CompareRevisions } from './CompareRevisions';
+import { BondGraph } from './BondGraph';
 import { CoulombResults } from './CoulombTable';
+import { useDesignVersion } from './getDesignVersion';
 import { useRevision } from './getRevision';
 import { useJobEvents } from './jobEvents';
 import { isActive, useJobs } from './listJobs';
 import { useRevisions } from './listRevisions';
 import { revisionFileHref } from './revisionFile';
 import { useStartJob } from './startJob';
+import { actionBodies } from './runActions';
+import { runEstimateText, useRunEstimate } from './useRunEstimate';
 import { coulombSummarySchema, convergenceSummarySchema, KIND_LABEL, meshSummarySchema, optionsText } from './summaries';
 
 const MeshViewer = lazy(() => import('./MeshViewer'));
@@ -30,16 +37,9 @@ export interface RunsSectionProps {
   canRun: boolean;
   /** the open document has edits the server does not have yet: a job would compute the last saved version */
   unsaved: boolean;
-  /** the live element estimate (far-field panel), shown before a start */
-  estimate: string;
+  /** the open document: its box and refinement give the element estimate shown before a start */
+  document: DesignDocument;
 }
-
-const ACTIONS: { label: string; body: JobCreateBody }[] = [
-  { label: 'Build mesh', body: { kind: 'mesh', options: {} } },
-  { label: 'Solve U and V', body: { kind: 'coulomb', options: {} } },
-  { label: 'Refinement sweep', body: { kind: 'convergence', options: { sweep: 'refinement' } } },
-  { label: 'Box sweep', body: { kind: 'convergence', options: { sweep: 'box' } } },
-];
 
 const STATE_TEXT: Record<Job['state'], string> = { queued: 'waiting for a worker', running: 'running', succeeded: 'finished', failed: 'failed', cancelled: 'cancelled' };
 
@@ -119,11 +119,32 @@ function RevisionResults({ projectId, revisionId }: { projectId: number; revisio
   const q = useRevision(projectId, revisionId);
   if (q.isPending) return <Loading label="Reading the results…" />;
   if (q.isError) return <p role="alert" className="text-note text-garnet-700">Could not read revision {revisionId}: {q.error.message}</p>;
-  const r = q.data;
+  return <RevisionBody projectId={projectId} r={q.data} />;
+}
+
+function RevisionBody({ projectId, r }: { projectId: number; r: Revision }) {
+  const design = useDesignVersion(projectId, r.designId, r.designVersion);
+  const sites = design.data ? design.data.document.sites : null;
+  const positions = sites ? sites.map((x) => x.position) : null;
   let body: React.ReactNode;
   if (r.kind === 'coulomb') {
     const s = coulombSummarySchema.safeParse(r.summary);
-    body = s.success ? <CoulombResults summary={s.data} /> : <p className="text-note text-garnet-700">These results are in a shape this page does not know; download results.json instead.</p>;
+    const withMesh = r.files.some((f) => f.name === 'mesh.twmesh');
+    body = s.success ? (
+      <div className="space-y-3">
+        <CoulombResults summary={s.data} />
+        {sites ? <BondGraph summary={s.data} sites={sites} /> : design.isError ? <p role="alert" className="text-note text-garnet-700">The design version could not be read for the bond graph: {design.error.message}</p> : <Loading label="Reading the sites…" />}
+        {withMesh ? (
+          <Suspense fallback={<Loading label="Loading the mesh viewer…" />}>
+            <MeshViewer projectId={projectId} revisionId={r.id} sites={positions} withPotential={r.files.some((f) => f.name === 'potential.f64')} />
+          </Suspense>
+        ) : (
+          <p className="text-fine text-wafer-600">This solve stored no mesh (it ran before meshes were kept with solves): run it again to see the potential.</p>
+        )}
+      </div>
+    ) : (
+      <p className="text-note text-garnet-700">These results are in a shape this page does not know; download results.json instead.</p>
+    );
   } else if (r.kind === 'convergence') {
     const s = convergenceSummarySchema.safeParse(r.summary);
     body = s.success ? (
@@ -145,7 +166,7 @@ function RevisionResults({ projectId, revisionId }: { projectId: number; revisio
         <div><dt className="text-fine text-wafer-600">Volume (nm³)</dt><dd>{s.data.volumeNm3.toPrecision(4)} nm³</dd></div>
       </dl>
       <Suspense fallback={<Loading label="Loading the mesh viewer…" />}>
-        <MeshViewer projectId={projectId} revisionId={r.id} />
+        <MeshViewer projectId={projectId} revisionId={r.id} sites={positions} />
       </Suspense>
       </div>
     ) : (
@@ -215,8 +236,12 @@ function RevisionList({ projectId, designId, shown, onShow }: { projectId: numbe
   );
 }
 
-export function RunsSection({ projectId, designId, canRun, unsaved, estimate }: RunsSectionProps) {
+export function RunsSection({ projectId, designId, canRun, unsaved, document }: RunsSectionProps) {
   const jobs = useJobs(projectId);
+  const [picked, setPicked] = useState<1 | 2 | null>(null);
+  const order = picked ?? document.refinement.order;
+  const [adaptive, setAdaptive] = useState(false);
+  const estimate = runEstimateText(useRunEstimate(document, order));
   const start = useStartJob(projectId, designId);
   const [shown, setShown] = useState<number | null>(null);
   const mine = (jobs.data ?? []).filter((j) => j.designId === designId).slice(0, 8);
@@ -229,11 +254,31 @@ export function RunsSection({ projectId, designId, canRun, unsaved, estimate }: 
         <h2 className="text-lead font-bold">Server runs</h2>
         <p className="text-fine text-wafer-600">Meshes, U and V and convergence sweeps of the last saved version, computed by the server’s workers and stored as revisions.</p>
       </header>
-      <p className="num text-fine text-wafer-700">Element estimate for the recommended domain box (far-field check): {estimate}. The server estimates the saved box again before it queues a run and refuses one over the budget.</p>
+      {canRun && (
+        <div className="flex flex-wrap items-center gap-x-4 gap-y-1 text-note">
+          <fieldset className="flex items-center gap-2">
+            <legend className="float-left mr-2 font-semibold">Element order</legend>
+            {([1, 2] as const).map((o) => (
+              <label key={o} className="inline-flex items-center gap-1">
+                <input type="radio" name={`order-${designId}`} checked={order === o} onChange={() => setPicked(o)} />
+                P{o} {o === 1 ? '(linear)' : '(quadratic)'}
+              </label>
+            ))}
+            {picked === null && <span className="text-fine text-wafer-600">the design’s default</span>}
+          </fieldset>
+          <label className="inline-flex items-center gap-1">
+            <input type="checkbox" checked={adaptive} onChange={(e) => setAdaptive(e.target.checked)} />
+            Adaptive refinement (U and V only)
+          </label>
+        </div>
+      )}
+      <p aria-label="Element estimate" className="num text-fine text-wafer-700">
+        Element estimate for the design’s current box ({document.enclosure.halfExtentsNm.map((h) => +h.toFixed(3)).join(' × ')} nm half-extents) with P{order} elements: {estimate}. The server estimates the saved version again before it queues a run.
+      </p>
       {canRun ? (
         <div className="space-y-1">
           <div role="group" aria-label="Start a run" className="flex flex-wrap gap-1.5">
-            {ACTIONS.map((a) => (
+            {actionBodies(order, adaptive).map((a) => (
               <Button key={a.label} variant={a.body.kind === 'convergence' ? 'secondary' : 'primary'} disabled={start.isPending || unsaved} onClick={() => start.mutate(a.body, { onSuccess: () => setShown(null) })}>
                 {a.label}
               </Button>

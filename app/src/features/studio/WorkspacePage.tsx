@@ -157,11 +157,6 @@ function ViewButtons({ viewRef }: { viewRef: React.RefObject<ViewApi | null> }) 
   );
 }
 
-function elementsText(report: ReturnType<typeof useFarField>['report'], pending: boolean, budget: number): string {
-  if (!report || pending || report.elementsEstimate === null) return 'estimating…';
-  return `${report.elementsEstimateIsLowerBound ? 'more than' : 'about'} ${report.elementsEstimate.toLocaleString('en-US')} elements (budget ${budget.toLocaleString('en-US')} elements)`;
-}
-
 function isTyping(t: EventTarget | null): boolean {
   return t instanceof HTMLElement && (t.tagName === 'INPUT' || t.tagName === 'TEXTAREA' || t.tagName === 'SELECT' || t.isContentEditable);
 }
@@ -469,7 +464,7 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, canRun, aut
 
       {/* below the editing grid, one scroll away: runs on the server and their results */}
       <div className="min-w-0 p-2 pt-0">
-        <RunsSection projectId={projectId} designId={designId} canRun={canRun} unsaved={autosave.dirty || autosave.state.kind === 'saving' || autosave.state.kind === 'pending'} estimate={elementsText(farField.report, farField.elementsPending, doc.refinement.maxElements)} />
+        <RunsSection projectId={projectId} designId={designId} canRun={canRun} unsaved={autosave.dirty || autosave.state.kind === 'saving' || autosave.state.kind === 'pending'} document={doc} />
       </div>
     </div>
   );
