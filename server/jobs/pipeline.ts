@@ -80,7 +80,7 @@ function runMesh(design: Design, order: 1 | 2, hooks: PipelineHooks): PipelineOu
 
 function runCoulomb(design: Design, order: 1 | 2, adaptive: boolean, hooks: PipelineHooks): PipelineOutput {
   const t0 = performance.now();
-  const out = coulombResults(design, { order, adaptive, pairs: 'auto', signal: hooks.signal, onProgress: jobProgress(hooks, (f) => f) });
+  const out = coulombResults(design, { order, adaptive, pairs: 'auto', signal: hooks.signal, onProgress: jobProgress(hooks, (f) => 0.9 * f) });
   checkAbort(hooks.signal);
   if (!out.hasNumbers) {
     // the CLI prints no numbers then (exit code 3): neither do we
@@ -99,7 +99,8 @@ function runCoulomb(design: Design, order: 1 | 2, adaptive: boolean, hooks: Pipe
  * e²/(4πε₀) in eV·nm; geometry/units.ts). One more solve on that mesh; the summary and results files do not change.
  */
 function potentialFiles(design: Design, order: 1 | 2, hooks: PipelineHooks): PipelineFile[] {
-  hooks.onProgress?.({ phase: 'potential', fraction: 0.96 });
+  // the extra solve below takes the last stretch of the bar; the bar stays under 0.95 until the files are stored
+  hooks.onProgress?.({ phase: 'potential', fraction: 0.92 });
   const mesh = meshDesign(design, { order }).mesh;
   checkAbort(hooks.signal);
   const sol = solveSitePotentials(design, mesh, order, { signal: hooks.signal });
