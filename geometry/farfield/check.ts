@@ -30,7 +30,7 @@ import type { Design, Orbital, Vec3 } from '../design/types';
 import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
 import { chargeOutsideBox, orbitalScale, pairEnergy, radialTail, selfEnergy } from '../density';
-import { bondGraph, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
+import { bondPairs, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
 import { snapToLattice, siteToNm } from '../lattice';
 import { clearanceFor, neglectedEnvelope, type Envelope } from './envelope';
 import { combinedMoments, orbitalMoments } from './moments';
@@ -254,27 +254,20 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
   }
 
   // ---- pairs
-  const pairI: number[] = [];
-  const pairJ: number[] = [];
+  let pairI: Int32Array;
+  let pairJ: Int32Array;
   if (n <= (options.allPairsLimit ?? ALL_PAIRS_LIMIT)) {
+    pairI = new Int32Array((n * (n - 1)) / 2);
+    pairJ = new Int32Array(pairI.length);
+    let t = 0;
     for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) {
-      pairI.push(i);
-      pairJ.push(j);
+      pairI[t] = i;
+      pairJ[t++] = j;
     }
   } else {
     const pos = new Float64Array(3 * n);
     for (let i = 0; i < n; i++) for (let k = 0; k < 3; k++) pos[3 * i + k] = sites[i].position[k];
-    const g = bondGraph(pos, { groups: sites.map((s) => s.cluster), shellFactor: options.shellFactor ?? DEFAULT_SHELL_FACTOR });
-    for (const mem of g.members) for (let u = 0; u < mem.length; u++) for (let v = u + 1; v < mem.length; v++) {
-      pairI.push(Math.min(mem[u], mem[v]));
-      pairJ.push(Math.max(mem[u], mem[v]));
-    }
-    for (let e = 0; e < g.edges.length / 2; e++) {
-      for (const i of g.members[g.edges[2 * e]]) for (const j of g.members[g.edges[2 * e + 1]]) {
-        pairI.push(Math.min(i, j));
-        pairJ.push(Math.max(i, j));
-      }
-    }
+    ({ I: pairI, J: pairJ } = bondPairs(pos, { groups: sites.map((s) => s.cluster), shellFactor: options.shellFactor ?? DEFAULT_SHELL_FACTOR }));
     warnings.push(pairsLimitedWarning(n));
   }
   const pairs: PairBound[] = [];
