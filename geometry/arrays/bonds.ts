@@ -71,8 +71,14 @@ export const bondScratch = (): BondScratch => ({ delaunay: null });
  * the second. Same graph as bondGraph(), without building its per-node arrays.
  */
 export function bondPairs(positions: Float64Array, options: BondGraphOptions = {}, scratch?: BondScratch): { I: Int32Array; J: Int32Array } {
-  const { m, start, list, centroids } = graphNodes(positions, options.groups);
-  const { edges } = prunedEdges(centroids, m, options.shellFactor ?? DEFAULT_SHELL_FACTOR, scratch);
+  const nodes = graphNodes(positions, options.groups);
+  const { edges } = prunedEdges(nodes.centroids, nodes.m, options.shellFactor ?? DEFAULT_SHELL_FACTOR, scratch);
+  return pairsFromEdges(nodes, edges);
+}
+
+/** The site pairs of bondPairs() from the nodes and the kept edges (shared with live-bonds.ts). */
+export function pairsFromEdges(nodes: GraphNodes, edges: Uint32Array): { I: Int32Array; J: Int32Array } {
+  const { m, start, list } = nodes;
   const ne = edges.length / 2;
   let count = 0;
   for (let p = 0; p < m; p++) {
@@ -99,11 +105,28 @@ export function bondPairs(positions: Float64Array, options: BondGraphOptions = {
   return { I, J };
 }
 
+export interface GraphNodes {
+  m: number;
+  start: Uint32Array;
+  list: Uint32Array;
+  /** node of each site */
+  nodeOf: Uint32Array;
+  centroids: Float64Array;
+}
+
+/** Centroid of node p into centroids (members summed in site order, then divided: the one formula). */
+export function nodeCentroid(positions: Float64Array, nodes: GraphNodes, p: number): void {
+  const { start, list, centroids } = nodes;
+  for (let k = 0; k < 3; k++) centroids[3 * p + k] = 0;
+  for (let u = start[p]; u < start[p + 1]; u++) for (let k = 0; k < 3; k++) centroids[3 * p + k] += positions[3 * list[u] + k];
+  for (let k = 0; k < 3; k++) centroids[3 * p + k] /= start[p + 1] - start[p];
+}
+
 /**
  * Nodes of the graph (rule 1): node p holds the sites list[start[p] .. start[p+1]) in site order;
  * nodes are numbered by their first site.
  */
-function graphNodes(positions: Float64Array, groups: readonly (string | undefined)[] | undefined) {
+export function graphNodes(positions: Float64Array, groups: readonly (string | undefined)[] | undefined): GraphNodes {
   const n = positions.length / 3;
   const nodeOf = new Uint32Array(n);
   let m = 0;
@@ -131,16 +154,23 @@ function graphNodes(positions: Float64Array, groups: readonly (string | undefine
   const fill = start.slice(0, m);
   const list = new Uint32Array(n);
   for (let i = 0; i < n; i++) list[fill[nodeOf[i]]++] = i;
-  const centroids = new Float64Array(3 * m);
-  for (let p = 0; p < m; p++) {
-    for (let u = start[p]; u < start[p + 1]; u++) for (let k = 0; k < 3; k++) centroids[3 * p + k] += positions[3 * list[u] + k];
-    for (let k = 0; k < 3; k++) centroids[3 * p + k] /= start[p + 1] - start[p];
-  }
-  return { m, start, list, centroids };
+  const nodes: GraphNodes = { m, start, list, nodeOf, centroids: new Float64Array(3 * m) };
+  for (let p = 0; p < m; p++) nodeCentroid(positions, nodes, p);
+  return nodes;
 }
 
 /** Candidate edges (rule 2) of the m node centroids, pruned by the distance rule (rules 3, 4). */
 function prunedEdges(centroids: Float64Array, m: number, factor: number, scratch?: BondScratch): { edges: Uint32Array; lengths: Float64Array } {
+  return pruneKeys(candidateKeys(centroids, m, scratch).keys, centroids, m, factor);
+}
+
+/**
+ * Candidate edges (rule 2) as sorted keys p·m + q (p < q), with the triangulation they came
+ * from (null for fewer than three nodes or a line) and whether stacked duplicates were joined.
+ */
+export function candidateKeys(centroids: Float64Array, m: number, scratch?: BondScratch): { keys: Float64Array; delaunay: Delaunator<Float64Array> | null; stacked: boolean } {
+  let delaunay: Delaunator<Float64Array> | null = null;
+  let stacked = false;
   // --- candidate edges as keys p*m + q (p < q), collected into a typed array sized by the
   // proven bound: a planar triangulation of m points has at most 3m − 6 edges, plus at most
   // m − 1 edges joining stacked duplicates
@@ -169,6 +199,7 @@ function prunedEdges(centroids: Float64Array, m: number, factor: number, scratch
         d = new Delaunator(xy);
         if (scratch) scratch.delaunay = d;
       }
+      delaunay = d;
       const tri = d.triangles;
       const half = d.halfedges;
       const seen = new Uint8Array(m);
@@ -182,6 +213,7 @@ function prunedEdges(centroids: Float64Array, m: number, factor: number, scratch
       let missing = false;
       for (let p = 0; p < m && !missing; p++) if (!seen[p]) missing = true;
       if (missing) {
+        stacked = true;
         const first = new Map<string, number>();
         for (let p = 0; p < m; p++) {
           const key = `${xy[2 * p]},${xy[2 * p + 1]}`;
@@ -192,7 +224,12 @@ function prunedEdges(centroids: Float64Array, m: number, factor: number, scratch
       }
     }
   }
-  const keys = sortKeys(keysBuf, nk, m);
+  return { keys: sortKeys(keysBuf, nk, m), delaunay, stacked };
+}
+
+/** The distance rule (rules 3, 4) over sorted candidate keys: the kept edges and their lengths. */
+export function pruneKeys(keys: Float64Array, centroids: Float64Array, m: number, factor: number): { edges: Uint32Array; lengths: Float64Array } {
+  const nk = keys.length;
   // --- lengths and the distance rule
   const len = (p: number, q: number) => {
     const dx = centroids[3 * p] - centroids[3 * q];
