@@ -70,6 +70,12 @@ export class LiveBondPairs {
   private strict = false;
   /** one halfedge of each quad whose diagonal is a toss-up (near-cocircular) */
   private ambiguous: number[] = [];
+  /**
+   * nodes whose move can change whether those quads are harmless: their corners and the corners'
+   * neighbours (the lengths ambiguityHarmless reads); a move of any other node leaves it as it was
+   */
+  private nearAmbiguous = new Uint8Array(0);
+  private recheckAmbiguous = false;
   /** the sign of the orientation of delaunator's triangles (all alike) */
   private turn = 0;
   /** how the last pairs were found, for the tests and the bench */
@@ -109,12 +115,22 @@ export class LiveBondPairs {
           this.ambiguous.push(e);
         }
       }
+      this.nearAmbiguous = new Uint8Array(nodes.m);
+      for (const e of this.ambiguous) {
+        // the quad's four corners (2), then every node joined to a corner (1)
+        for (const h of [e, next(e), prev(e), half[e], next(half[e]), prev(half[e])]) this.nearAmbiguous[tri[h]] = 2;
+      }
+      if (this.ambiguous.length) {
+        for (let e = 0; e < tri.length; e++) if (this.nearAmbiguous[tri[e]] === 2 && this.nearAmbiguous[tri[next(e)]] !== 2) this.nearAmbiguous[tri[next(e)]] = 1;
+        for (let e = 0; e < tri.length; e++) if (this.nearAmbiguous[tri[next(e)]] === 2 && this.nearAmbiguous[tri[e]] !== 2) this.nearAmbiguous[tri[e]] = 1;
+      }
       if (strict && !this.ambiguityHarmless()) strict = false;
       this.turn = 0;
       for (let e = 0; e + 2 < tri.length && this.turn === 0; e += 3) this.turn = Math.sign(orient(xy, tri[e], tri[e + 1], tri[e + 2]));
       this.strict = strict && this.turn !== 0;
     }
     this.lastWasLocal = false;
+    this.recheckAmbiguous = false;
     return pairsFromEdges(nodes, pruneKeys(keys, nodes.centroids, nodes.m, this.shellFactor).edges);
   }
 
@@ -127,6 +143,7 @@ export class LiveBondPairs {
     const nodes = this.nodes, d = this.delaunay;
     if (!nodes || !d || !this.strict || i >= nodes.nodeOf.length) return false;
     const p = nodes.nodeOf[i];
+    if (this.nearAmbiguous[p]) this.recheckAmbiguous = true;
     nodeCentroid(positions, nodes, p);
     const xy = d.coords;
     xy[2 * p] = nodes.centroids[3 * p];
@@ -163,7 +180,8 @@ export class LiveBondPairs {
    */
   pairs(): { I: Int32Array; J: Int32Array } | null {
     const nodes = this.nodes as GraphNodes;
-    if (!this.ambiguityHarmless()) return null;
+    if (this.recheckAmbiguous && !this.ambiguityHarmless()) return null;
+    this.recheckAmbiguous = false;
     this.lastWasLocal = true;
     return pairsFromEdges(nodes, pruneKeys(this.keys, nodes.centroids, nodes.m, this.shellFactor).edges);
   }

@@ -198,21 +198,25 @@ function dist(p: readonly number[], q: readonly number[]): number {
  * bisection so that sites with nearly equal targets share one search (a lower target only
  * asks for more room: conservative, by < 0.3 % in the target).
  */
-export function requiredClearance(o: Orbital, okey: string, env: Envelope, target: number, tol: number, cache: Map<string, number>): number {
+export function requiredClearance(o: Orbital, okey: string, env: Envelope, target: number, tol: number, cache: ClearanceCache): number {
   const q = target > 0 ? Math.pow(2, Math.floor(Math.log2(target) * 256) / 256) : 0;
-  const key = `${okey}|${q}`;
-  const hit = cache.get(key);
-  if (hit !== undefined) return hit;
-  const dkey = `${okey}|density`;
-  let dens = cache.get(dkey);
-  if (dens === undefined) {
-    dens = orbitalScale(o) * clearanceFor((u) => radialTail(o.model, u), tol / 10);
-    cache.set(dkey, dens);
+  let entry = cache.get(okey);
+  if (!entry) {
+    entry = { density: orbitalScale(o) * clearanceFor((u) => radialTail(o.model, u), tol / 10), byTarget: new Map() };
+    cache.set(okey, entry);
   }
-  const req = Math.max(clearanceFor(env, q), dens);
-  cache.set(key, req);
+  const hit = entry.byTarget.get(q);
+  if (hit !== undefined) return hit;
+  const req = Math.max(clearanceFor(env, q), entry.density);
+  entry.byTarget.set(q, req);
   return req;
 }
+
+/**
+ * Clearances found so far, per orbital key: the density clearance, and the bound's clearance per
+ * rounded target (numeric keys: no string is built per site).
+ */
+export type ClearanceCache = Map<string, { density: number; byTarget: Map<number, number> }>;
 
 export function farFieldCheck(design: Design, options: FarFieldOptions = {}): FarFieldReport {
   const eps = design.host.epsilonR;
@@ -303,7 +307,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
   const aniso: string[] = [];
   const sizes = orbitalSizeFindings(a);
   let worst = 0;
-  const reqCache = new Map<string, number>();
+  const reqCache: ClearanceCache = new Map();
   for (let i = 0; i < n; i++) {
     const s = sites[i];
     const inside = clear[i] > 0;

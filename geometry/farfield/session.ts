@@ -29,7 +29,7 @@ import { snapToLattice, siteToNm } from '../lattice';
 import { neglectedEnvelope, type Envelope } from './envelope';
 import { harmonicCount } from './harmonics';
 import { orbitalMoments } from './moments';
-import { ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, orbitalSizeFindings, requiredClearance, type FarFieldOptions, type FarFieldReport, type PairBound, type SiteBound } from './check';
+import { ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, orbitalSizeFindings, requiredClearance, type ClearanceCache, type FarFieldOptions, type FarFieldReport, type PairBound, type SiteBound } from './check';
 import { CloseSiteIndex } from './close-pairs';
 import { describeBoundary, elementBudgetWarning, findingsWarnings, pairsLimitedWarning } from './warnings';
 
@@ -121,7 +121,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   let boxStamp = 0;
   let reqStamp = 0;
   let envByKey = new Map<string, Envelope>();
-  let reqCache = new Map<string, number>();
+  let reqCache: ClearanceCache = new Map();
   // pair set (site indices); null when it must be rebuilt
   let pairI: Int32Array | null = null;
   let pairJ: Int32Array | null = null;
