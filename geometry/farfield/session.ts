@@ -11,11 +11,13 @@
  *              required clearance (bisection)                            its target or the tolerance
  *              moments of the unit density (when asked for)              the site's edit, the centre
  *   pair set   all pairs (≤ allPairsLimit sites) or the bond graph       positions, clusters, site list
- *   close pairs  sites closer than a (close-pairs.ts, as check.ts)           positions, clusters, lattice constant
- * Pair energies and bounds are recomputed on every update (O(pairs), cheap next to the rest);
- * the bond graph is rebuilt after a position edit when there are more sites than allPairsLimit
- * (Delaunay, O(N log N)): a local update could not promise delaunator's choice among
- * cocircular points, so it would not give the same pairs as the full check.
+ *   close pairs  sites closer than a (close-pairs.ts, as check.ts)       kept in an index that follows each moved
+ *                                                                     site; rebuilt on a new site list or lattice
+ * Pair energies and bounds are cached per pair and recomputed when one of its sites or the box
+ * changed. After a move (more sites than allPairsLimit) the bond pairs are taken from the kept
+ * triangulation when it provably stays the one delaunator would return (geometry/arrays/
+ * live-bonds.ts: no new triangulation, the distance rule applied again), otherwise from a full
+ * rebuild; either way the same pairs as the full check.
  *
  * Report order and ties follow check.ts step by step; keep the two in step when either changes.
  */
