@@ -45,29 +45,132 @@ export interface BondGraphOptions {
 export const DEFAULT_SHELL_FACTOR = 1.2;
 
 export function bondGraph(positions: Float64Array, options: BondGraphOptions = {}): BondGraph {
-  const n = positions.length / 3;
-  const factor = options.shellFactor ?? DEFAULT_SHELL_FACTOR;
-  // --- nodes
-  const members: number[][] = [];
-  const byLabel = new Map<string, number>();
-  for (let i = 0; i < n; i++) {
-    const label = options.groups?.[i];
-    if (label !== undefined) {
-      const at = byLabel.get(label);
-      if (at !== undefined) {
-        members[at].push(i);
-        continue;
-      }
-      byLabel.set(label, members.length);
-    }
-    members.push([i]);
-  }
-  const m = members.length;
-  const centroids = new Float64Array(3 * m);
+  const nodes = graphNodes(positions, options.groups);
+  const { m, start, list, centroids } = nodes;
+  const members: number[][] = new Array(m);
+  for (let p = 0; p < m; p++) members[p] = Array.from(list.subarray(start[p], start[p + 1]));
+  const { edges, lengths } = prunedEdges(centroids, m, options.shellFactor ?? DEFAULT_SHELL_FACTOR);
+  return { members, centroids, edges, lengths };
+}
+
+/**
+ * Buffers kept between builds of the bond graph of the same number of nodes: the live far-field
+ * session rebuilds it after every moved site, where allocating the triangulation again cost
+ * more than triangulating (delaunator's `update()` reruns it in place, same result).
+ */
+export interface BondScratch {
+  delaunay: Delaunator<Float64Array> | null;
+}
+
+export const bondScratch = (): BondScratch => ({ delaunay: null });
+
+/**
+ * The site pairs the far-field check takes from the bond graph, as site-index pairs (i < j) in the
+ * check's order: first the pairs inside each node (cluster), node by node, members in site order;
+ * then, edge by edge in the graph's order, every member of the first node with every member of
+ * the second. Same graph as bondGraph(), without building its per-node arrays.
+ */
+export function bondPairs(positions: Float64Array, options: BondGraphOptions = {}, scratch?: BondScratch): { I: Int32Array; J: Int32Array } {
+  const nodes = graphNodes(positions, options.groups);
+  const { edges } = prunedEdges(nodes.centroids, nodes.m, options.shellFactor ?? DEFAULT_SHELL_FACTOR, scratch);
+  return pairsFromEdges(nodes, edges);
+}
+
+/** The site pairs of bondPairs() from the nodes and the kept edges (shared with live-bonds.ts). */
+export function pairsFromEdges(nodes: GraphNodes, edges: Uint32Array): { I: Int32Array; J: Int32Array } {
+  const { m, start, list } = nodes;
+  const ne = edges.length / 2;
+  let count = 0;
   for (let p = 0; p < m; p++) {
-    for (const i of members[p]) for (let k = 0; k < 3; k++) centroids[3 * p + k] += positions[3 * i + k];
-    for (let k = 0; k < 3; k++) centroids[3 * p + k] /= members[p].length;
+    const k = start[p + 1] - start[p];
+    count += (k * (k - 1)) / 2;
   }
+  for (let e = 0; e < ne; e++) count += (start[edges[2 * e] + 1] - start[edges[2 * e]]) * (start[edges[2 * e + 1] + 1] - start[edges[2 * e + 1]]);
+  const I = new Int32Array(count);
+  const J = new Int32Array(count);
+  let t = 0;
+  for (let p = 0; p < m; p++) {
+    for (let u = start[p]; u < start[p + 1]; u++) for (let v = u + 1; v < start[p + 1]; v++) {
+      I[t] = Math.min(list[u], list[v]);
+      J[t++] = Math.max(list[u], list[v]);
+    }
+  }
+  for (let e = 0; e < ne; e++) {
+    const p = edges[2 * e], q = edges[2 * e + 1];
+    for (let u = start[p]; u < start[p + 1]; u++) for (let v = start[q]; v < start[q + 1]; v++) {
+      I[t] = Math.min(list[u], list[v]);
+      J[t++] = Math.max(list[u], list[v]);
+    }
+  }
+  return { I, J };
+}
+
+export interface GraphNodes {
+  m: number;
+  start: Uint32Array;
+  list: Uint32Array;
+  /** node of each site */
+  nodeOf: Uint32Array;
+  centroids: Float64Array;
+}
+
+/** Centroid of node p into centroids (members summed in site order, then divided: the one formula). */
+export function nodeCentroid(positions: Float64Array, nodes: GraphNodes, p: number): void {
+  const { start, list, centroids } = nodes;
+  for (let k = 0; k < 3; k++) centroids[3 * p + k] = 0;
+  for (let u = start[p]; u < start[p + 1]; u++) for (let k = 0; k < 3; k++) centroids[3 * p + k] += positions[3 * list[u] + k];
+  for (let k = 0; k < 3; k++) centroids[3 * p + k] /= start[p + 1] - start[p];
+}
+
+/**
+ * Nodes of the graph (rule 1): node p holds the sites list[start[p] .. start[p+1]) in site order;
+ * nodes are numbered by their first site.
+ */
+export function graphNodes(positions: Float64Array, groups: readonly (string | undefined)[] | undefined): GraphNodes {
+  const n = positions.length / 3;
+  const nodeOf = new Uint32Array(n);
+  let m = 0;
+  if (groups) {
+    const byLabel = new Map<string, number>();
+    for (let i = 0; i < n; i++) {
+      const label = groups[i];
+      if (label !== undefined) {
+        const at = byLabel.get(label);
+        if (at !== undefined) {
+          nodeOf[i] = at;
+          continue;
+        }
+        byLabel.set(label, m);
+      }
+      nodeOf[i] = m++;
+    }
+  } else {
+    for (let i = 0; i < n; i++) nodeOf[i] = i;
+    m = n;
+  }
+  const start = new Uint32Array(m + 1);
+  for (let i = 0; i < n; i++) start[nodeOf[i] + 1]++;
+  for (let p = 0; p < m; p++) start[p + 1] += start[p];
+  const fill = start.slice(0, m);
+  const list = new Uint32Array(n);
+  for (let i = 0; i < n; i++) list[fill[nodeOf[i]]++] = i;
+  const nodes: GraphNodes = { m, start, list, nodeOf, centroids: new Float64Array(3 * m) };
+  for (let p = 0; p < m; p++) nodeCentroid(positions, nodes, p);
+  return nodes;
+}
+
+/** Candidate edges (rule 2) of the m node centroids, pruned by the distance rule (rules 3, 4). */
+function prunedEdges(centroids: Float64Array, m: number, factor: number, scratch?: BondScratch): { edges: Uint32Array; lengths: Float64Array } {
+  return pruneKeys(candidateKeys(centroids, m, scratch).keys, centroids, m, factor);
+}
+
+/**
+ * Candidate edges (rule 2) as sorted keys p·m + q (p < q), with the triangulation they came
+ * from (null for fewer than three nodes or a line) and whether stacked duplicates were joined.
+ */
+export function candidateKeys(centroids: Float64Array, m: number, scratch?: BondScratch): { keys: Float64Array; delaunay: Delaunator<Float64Array> | null; stacked: boolean } {
+  let delaunay: Delaunator<Float64Array> | null = null;
+  let stacked = false;
   // --- candidate edges as keys p*m + q (p < q), collected into a typed array sized by the
   // proven bound: a planar triangulation of m points has at most 3m − 6 edges, plus at most
   // m − 1 edges joining stacked duplicates
@@ -87,7 +190,16 @@ export function bondGraph(positions: Float64Array, options: BondGraphOptions = {
     if (line) {
       for (let t = 0; t + 1 < line.length; t++) add(line[t], line[t + 1]);
     } else {
-      const d = new Delaunator(xy);
+      let d: Delaunator<Float64Array>;
+      if (scratch?.delaunay && scratch.delaunay.coords.length === xy.length) {
+        d = scratch.delaunay;
+        (d.coords as Float64Array).set(xy);
+        d.update();
+      } else {
+        d = new Delaunator(xy);
+        if (scratch) scratch.delaunay = d;
+      }
+      delaunay = d;
       const tri = d.triangles;
       const half = d.halfedges;
       const seen = new Uint8Array(m);
@@ -101,6 +213,7 @@ export function bondGraph(positions: Float64Array, options: BondGraphOptions = {
       let missing = false;
       for (let p = 0; p < m && !missing; p++) if (!seen[p]) missing = true;
       if (missing) {
+        stacked = true;
         const first = new Map<string, number>();
         for (let p = 0; p < m; p++) {
           const key = `${xy[2 * p]},${xy[2 * p + 1]}`;
@@ -111,7 +224,12 @@ export function bondGraph(positions: Float64Array, options: BondGraphOptions = {
       }
     }
   }
-  const keys = sortKeys(keysBuf, nk, m);
+  return { keys: sortKeys(keysBuf, nk, m), delaunay, stacked };
+}
+
+/** The distance rule (rules 3, 4) over sorted candidate keys: the kept edges and their lengths. */
+export function pruneKeys(keys: Float64Array, centroids: Float64Array, m: number, factor: number): { edges: Uint32Array; lengths: Float64Array } {
+  const nk = keys.length;
   // --- lengths and the distance rule
   const len = (p: number, q: number) => {
     const dx = centroids[3 * p] - centroids[3 * q];
@@ -150,7 +268,7 @@ export function bondGraph(positions: Float64Array, options: BondGraphOptions = {
     lengths[e] = L[t];
     e++;
   }
-  return { members, centroids, edges, lengths };
+  return { edges, lengths };
 }
 
 /**

@@ -30,7 +30,7 @@ import type { Design, Orbital, Vec3 } from '../design/types';
 import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
 import { chargeOutsideBox, orbitalScale, pairEnergy, radialTail, selfEnergy } from '../density';
-import { bondGraph, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
+import { bondPairs, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
 import { snapToLattice, siteToNm } from '../lattice';
 import { clearanceFor, neglectedEnvelope, type Envelope } from './envelope';
 import { combinedMoments, orbitalMoments } from './moments';
@@ -198,21 +198,25 @@ function dist(p: readonly number[], q: readonly number[]): number {
  * bisection so that sites with nearly equal targets share one search (a lower target only
  * asks for more room: conservative, by < 0.3 % in the target).
  */
-export function requiredClearance(o: Orbital, okey: string, env: Envelope, target: number, tol: number, cache: Map<string, number>): number {
+export function requiredClearance(o: Orbital, okey: string, env: Envelope, target: number, tol: number, cache: ClearanceCache): number {
   const q = target > 0 ? Math.pow(2, Math.floor(Math.log2(target) * 256) / 256) : 0;
-  const key = `${okey}|${q}`;
-  const hit = cache.get(key);
-  if (hit !== undefined) return hit;
-  const dkey = `${okey}|density`;
-  let dens = cache.get(dkey);
-  if (dens === undefined) {
-    dens = orbitalScale(o) * clearanceFor((u) => radialTail(o.model, u), tol / 10);
-    cache.set(dkey, dens);
+  let entry = cache.get(okey);
+  if (!entry) {
+    entry = { density: orbitalScale(o) * clearanceFor((u) => radialTail(o.model, u), tol / 10), byTarget: new Map() };
+    cache.set(okey, entry);
   }
-  const req = Math.max(clearanceFor(env, q), dens);
-  cache.set(key, req);
+  const hit = entry.byTarget.get(q);
+  if (hit !== undefined) return hit;
+  const req = Math.max(clearanceFor(env, q), entry.density);
+  entry.byTarget.set(q, req);
   return req;
 }
+
+/**
+ * Clearances found so far, per orbital key: the density clearance, and the bound's clearance per
+ * rounded target (numeric keys: no string is built per site).
+ */
+export type ClearanceCache = Map<string, { density: number; byTarget: Map<number, number> }>;
 
 export function farFieldCheck(design: Design, options: FarFieldOptions = {}): FarFieldReport {
   const eps = design.host.epsilonR;
@@ -254,27 +258,20 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
   }
 
   // ---- pairs
-  const pairI: number[] = [];
-  const pairJ: number[] = [];
+  let pairI: Int32Array;
+  let pairJ: Int32Array;
   if (n <= (options.allPairsLimit ?? ALL_PAIRS_LIMIT)) {
+    pairI = new Int32Array((n * (n - 1)) / 2);
+    pairJ = new Int32Array(pairI.length);
+    let t = 0;
     for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) {
-      pairI.push(i);
-      pairJ.push(j);
+      pairI[t] = i;
+      pairJ[t++] = j;
     }
   } else {
     const pos = new Float64Array(3 * n);
     for (let i = 0; i < n; i++) for (let k = 0; k < 3; k++) pos[3 * i + k] = sites[i].position[k];
-    const g = bondGraph(pos, { groups: sites.map((s) => s.cluster), shellFactor: options.shellFactor ?? DEFAULT_SHELL_FACTOR });
-    for (const mem of g.members) for (let u = 0; u < mem.length; u++) for (let v = u + 1; v < mem.length; v++) {
-      pairI.push(Math.min(mem[u], mem[v]));
-      pairJ.push(Math.max(mem[u], mem[v]));
-    }
-    for (let e = 0; e < g.edges.length / 2; e++) {
-      for (const i of g.members[g.edges[2 * e]]) for (const j of g.members[g.edges[2 * e + 1]]) {
-        pairI.push(Math.min(i, j));
-        pairJ.push(Math.max(i, j));
-      }
-    }
+    ({ I: pairI, J: pairJ } = bondPairs(pos, { groups: sites.map((s) => s.cluster), shellFactor: options.shellFactor ?? DEFAULT_SHELL_FACTOR }));
     warnings.push(pairsLimitedWarning(n));
   }
   const pairs: PairBound[] = [];
@@ -310,7 +307,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
   const aniso: string[] = [];
   const sizes = orbitalSizeFindings(a);
   let worst = 0;
-  const reqCache = new Map<string, number>();
+  const reqCache: ClearanceCache = new Map();
   for (let i = 0; i < n; i++) {
     const s = sites[i];
     const inside = clear[i] > 0;

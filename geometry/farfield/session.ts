@@ -11,11 +11,13 @@
  *              required clearance (bisection)                            its target or the tolerance
  *              moments of the unit density (when asked for)              the site's edit, the centre
  *   pair set   all pairs (≤ allPairsLimit sites) or the bond graph       positions, clusters, site list
- *   close pairs  sites closer than a (close-pairs.ts, as check.ts)           positions, clusters, lattice constant
- * Pair energies and bounds are recomputed on every update (O(pairs), cheap next to the rest);
- * the bond graph is rebuilt after a position edit when there are more sites than allPairsLimit
- * (Delaunay, O(N log N)): a local update could not promise delaunator's choice among
- * cocircular points, so it would not give the same pairs as the full check.
+ *   close pairs  sites closer than a (close-pairs.ts, as check.ts)       kept in an index that follows each moved
+ *                                                                     site; rebuilt on a new site list or lattice
+ * Pair energies and bounds are cached per pair and recomputed when one of its sites or the box
+ * changed. After a move (more sites than allPairsLimit) the bond pairs are taken from the kept
+ * triangulation when it provably stays the one delaunator would return (geometry/arrays/
+ * live-bonds.ts: no new triangulation, the distance rule applied again), otherwise from a full
+ * rebuild; either way the same pairs as the full check.
  *
  * Report order and ties follow check.ts step by step; keep the two in step when either changes.
  */
@@ -23,13 +25,14 @@ import type { Design, Enclosure, Host, Orbital, Refinement, Site, Vec3 } from '.
 import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
 import { chargeOutsideBox, pairEnergy, selfEnergy } from '../density';
-import { bondGraph, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
+import { DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
+import { LiveBondPairs } from '../arrays/live-bonds';
 import { snapToLattice, siteToNm } from '../lattice';
 import { neglectedEnvelope, type Envelope } from './envelope';
 import { harmonicCount } from './harmonics';
 import { orbitalMoments } from './moments';
-import { ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, orbitalSizeFindings, requiredClearance, type FarFieldOptions, type FarFieldReport, type PairBound, type SiteBound } from './check';
-import { closeSitePairs } from './close-pairs';
+import { ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, orbitalSizeFindings, requiredClearance, type ClearanceCache, type FarFieldOptions, type FarFieldReport, type PairBound, type SiteBound } from './check';
+import { CloseSiteIndex } from './close-pairs';
 import { describeBoundary, elementBudgetWarning, findingsWarnings, pairsLimitedWarning } from './warnings';
 
 /**
@@ -120,7 +123,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   let boxStamp = 0;
   let reqStamp = 0;
   let envByKey = new Map<string, Envelope>();
-  let reqCache = new Map<string, number>();
+  let reqCache: ClearanceCache = new Map();
   // pair set (site indices); null when it must be rebuilt
   let pairI: Int32Array | null = null;
   let pairJ: Int32Array | null = null;
@@ -130,14 +133,29 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   let prevPairJ: Int32Array | null = null;
   // per pair of the pair set: the PairBound given out last time, the two site states, box stamp
   // and energy scale it was computed from, and V in nm⁻¹ (for the targets)
+  // (two sets of buffers, swapped at each rebuild of the pair set, so a rebuild allocates nothing
+  // once they are large enough; entries past pairCount are stale)
+  let pairCount = 0;
   let pairObj: (PairBound | null)[] = [];
   let pairStA: (SiteState | null)[] = [];
   let pairStB: (SiteState | null)[] = [];
   let pairV = new Float64Array(0);
   let pairBox = new Float64Array(0);
+  let spare = { obj: [] as (PairBound | null)[], stA: [] as (SiteState | null)[], stB: [] as (SiteState | null)[], v: new Float64Array(0), box: new Float64Array(0) };
   let pairEv = NaN;
-  // what the overlap sweep found (null: sweep again)
-  let sweepFound: { coincide: string[]; overlap: string[] } | null = null;
+  // the bond graph, updated site by site while sites move (live-bonds.ts); movedSites lists the
+  // sites moved since it last gave pairs, bondsStale asks for a full rebuild
+  const bonds = new LiveBondPairs(options.shellFactor ?? DEFAULT_SHELL_FACTOR);
+  let bondPos = new Float64Array(0);
+  let movedSites: number[] = [];
+  let bondsStale = true;
+  // sites closer than a lattice constant, kept up to date site by site as sites move (null: scan
+  // again, after a change of the site list or of the lattice constant); siteList is the array of
+  // sites it reads, states[i].site
+  let close: CloseSiteIndex | null = null;
+  let siteList: Site[] = [];
+  // site id → index in states (null: rebuild, after a change of the site list)
+  let indexById: Map<string, number> | null = null;
   let cached: FarFieldReport | null = null;
   let cachedWithElements: FarFieldReport | null = null;
   let momentsCenterKey = '';
@@ -167,7 +185,10 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   const structureChanged = () => {
     pairI = pairJ = null;
     prevPairI = prevPairJ = null;
-    sweepFound = null;
+    bondsStale = true;
+    movedSites = [];
+    close = null;
+    indexById = null;
   };
 
   const reset = (d: Design) => {
@@ -186,7 +207,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
         // the lattice test and the overlap window depend on the lattice constant
         if (latticeChanged) {
           states = states.map((st) => newState(st.site));
-          sweepFound = null;
+          close = null;
         }
         touched = true;
       }
@@ -201,25 +222,33 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       }
     }
     if (c.upserted?.length) {
-      const at = new Map<string, number>();
-      states.forEach((st, i) => at.set(st.site.id, i));
+      if (!indexById) {
+        indexById = new Map();
+        for (let i = 0; i < states.length; i++) indexById.set(states[i].site.id, i);
+      }
+      const at = indexById;
       for (const s of c.upserted) {
         const i = at.get(s.id);
         if (i === undefined) {
-          at.set(s.id, states.length);
           states.push(newState(s));
           structureChanged();
+          // appending keeps every earlier index: the map stays valid with the new site added
+          at.set(s.id, states.length - 1);
+          indexById = at;
         } else {
           const old = states[i].site;
           states[i] = newState(s);
+          if (close) siteList[i] = states[i].site;
+          if (!sameVec(old.position, s.position)) close?.move(i, old.position, siteList);
           if (!sameVec(old.position, s.position) || old.cluster !== s.cluster) {
             // the bond graph depends on positions and clusters; all pairs do not
+            if (old.cluster !== s.cluster) bondsStale = true;
+            else movedSites.push(i);
             if (states.length > limit && pairI && pairJ) {
               prevPairI = pairI;
               prevPairJ = pairJ;
               pairI = pairJ = null;
             }
-            sweepFound = null;
           }
         }
         touched = true;
@@ -314,30 +343,36 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
 
     // ---- pairs
     if (!pairI || !pairJ) {
-      const I: number[] = [];
-      const J: number[] = [];
       if (n <= limit) {
+        pairI = new Int32Array((n * (n - 1)) / 2);
+        pairJ = new Int32Array(pairI.length);
+        let t = 0;
         for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) {
-          I.push(i);
-          J.push(j);
+          pairI[t] = i;
+          pairJ[t++] = j;
         }
       } else {
-        const pos = new Float64Array(3 * n);
-        for (let i = 0; i < n; i++) for (let k = 0; k < 3; k++) pos[3 * i + k] = states[i].site.position[k];
-        const g = bondGraph(pos, { groups: states.map((st) => st.site.cluster), shellFactor: options.shellFactor ?? DEFAULT_SHELL_FACTOR });
-        for (const mem of g.members) for (let u = 0; u < mem.length; u++) for (let v = u + 1; v < mem.length; v++) {
-          I.push(Math.min(mem[u], mem[v]));
-          J.push(Math.max(mem[u], mem[v]));
+        if (bondPos.length !== 3 * n) bondPos = new Float64Array(3 * n);
+        let clustered = false;
+        for (let i = 0; i < n; i++) {
+          const p = states[i].site.position;
+          bondPos[3 * i] = p[0];
+          bondPos[3 * i + 1] = p[1];
+          bondPos[3 * i + 2] = p[2];
+          if (states[i].site.cluster !== undefined) clustered = true;
         }
-        for (let e = 0; e < g.edges.length / 2; e++) {
-          for (const i of g.members[g.edges[2 * e]]) for (const j of g.members[g.edges[2 * e + 1]]) {
-            I.push(Math.min(i, j));
-            J.push(Math.max(i, j));
-          }
+        let found: { I: Int32Array; J: Int32Array } | null = null;
+        if (!bondsStale && movedSites.length) {
+          let local = true;
+          for (const i of movedSites) if (!(local = bonds.moved(bondPos, i))) break;
+          if (local) found = bonds.pairs();
         }
+        // no labels at all gives the same nodes as a list of undefined labels (check.ts passes one)
+        found ??= bonds.build(bondPos, clustered ? states.map((st) => st.site.cluster) : undefined);
+        ({ I: pairI, J: pairJ } = found);
+        movedSites = [];
+        bondsStale = false;
       }
-      pairI = Int32Array.from(I);
-      pairJ = Int32Array.from(J);
       carryPairs(pairI, pairJ);
     }
     if (ev !== pairEv) {
@@ -345,7 +380,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       pairEv = ev;
     }
     if (n > limit) warnings.push(pairsLimitedWarning(n));
-    const pairs: PairBound[] = [];
+    let dropped = 0;
     const coincide: string[] = [];
     const overlap: string[] = [];
     const grounded = boundary.kind === 'grounded';
@@ -377,18 +412,23 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       }
       if (pb === null) {
         coincide.push(si.site.id, sj.site.id);
+        dropped++;
         continue;
       }
-      pairs.push(pb);
       if (tol * v < target[i]) target[i] = tol * v;
       if (tol * v < target[j]) target[j] = tol * v;
     }
 
-    // ---- close pairs (close-pairs.ts, shared with check.ts); what it finds
-    // depends on positions, clusters and the lattice constant only, so it is kept until they change
-    if (!sweepFound) sweepFound = overlapSweep(a);
-    coincide.push(...sweepFound.coincide);
-    overlap.push(...sweepFound.overlap);
+    // the report's list is a copy of the cache (a later update rewrites the cache in place)
+    const pairs = (dropped ? pairObj.slice(0, pairCount).filter((pb) => pb !== null) : pairObj.slice(0, pairCount)) as PairBound[];
+
+    // ---- close pairs (close-pairs.ts, shared with check.ts): the index is kept and follows each
+    // moved site; which close pair counts as an overlap (clusters) is decided as it lists them
+    if (!close) {
+      siteList = states.map((st) => st.site);
+      close = new CloseSiteIndex(siteList, a);
+    }
+    close.emit(coincide, overlap);
 
     // ---- site results, recommended box
     const out: SiteBound[] = new Array(n);
@@ -478,13 +518,18 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
    */
   function carryPairs(I: Int32Array, J: Int32Array): void {
     const m = I.length;
-    const obj: (PairBound | null)[] = new Array(m).fill(null);
-    const stA: (SiteState | null)[] = new Array(m).fill(null);
-    const stB: (SiteState | null)[] = new Array(m).fill(null);
-    const val = new Float64Array(m);
-    const box = new Float64Array(m).fill(-1);
+    if (spare.obj.length < m) {
+      const cap = Math.ceil(m * 1.25);
+      spare = { obj: new Array(cap).fill(null), stA: new Array(cap).fill(null), stB: new Array(cap).fill(null), v: new Float64Array(cap), box: new Float64Array(cap) };
+    }
+    const { obj, stA, stB, v: val, box } = spare;
+    for (let t = 0; t < m; t++) {
+      obj[t] = null;
+      stA[t] = stB[t] = null;
+      box[t] = -1;
+    }
     const oldI = prevPairI, oldJ = prevPairJ;
-    if (oldI && oldJ && oldI.length === pairObj.length) {
+    if (oldI && oldJ && oldI.length === pairCount) {
       const n = states.length;
       const start = new Uint32Array(n + 1);
       for (let t = 0; t < oldI.length; t++) start[oldI[t] + 1]++;
@@ -506,23 +551,15 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
         }
       }
     }
+    // the old buffers become the spare set for the next rebuild
+    spare = { obj: pairObj, stA: pairStA, stB: pairStB, v: pairV, box: pairBox };
     pairObj = obj;
     pairStA = stA;
     pairStB = stB;
     pairV = val;
     pairBox = box;
+    pairCount = m;
     prevPairI = prevPairJ = null;
-  }
-
-  function overlapSweep(a: number): { coincide: string[]; overlap: string[] } {
-    const found = { coincide: [] as string[], overlap: [] as string[] };
-    closeSitePairs(
-      states.map((st) => st.site),
-      a,
-      found.coincide,
-      found.overlap,
-    );
-    return found;
   }
 
   /** Moments as check.ts gives them: per-site arrays cached, the array sum redone in site order. */

@@ -137,15 +137,34 @@ function randomEdit(d: Design, rnd: () => number, serial: number): { next: Desig
   return { next: { ...d, host }, changes: { host }, label: `host εr ${host.epsilonR}` };
 }
 
+/** One to three sites moved by up to 2.5 nm, to lattice points, sent as one update (edits folded while the worker was busy). */
+function randomMoves(d: Design, rnd: () => number): { next: Design; changes: FarFieldChanges; label: string } {
+  const sites = d.sites.slice();
+  const upserted = new Map<string, Site>();
+  const count = 1 + Math.floor(rnd() * 3);
+  for (let k = 0; k < count && sites.length; k++) {
+    const index = Math.floor(rnd() * sites.length);
+    const p = sites[index].position;
+    const moved: Site = { ...sites[index], position: siteToNm(snapToLattice([p[0] + (rnd() - 0.5) * 5, p[1] + (rnd() - 0.5) * 5, p[2]], A), A) };
+    sites[index] = moved;
+    upserted.set(moved.id, moved);
+  }
+  return { next: { ...d, sites }, changes: { upserted: [...upserted.values()] }, label: `move ${[...upserted.keys()].join(', ')}` };
+}
+
 const estimate = (h: Vec3) => Math.round(10 * h[0] * h[1] * h[2]);
 
 describe('far-field session (invariant: equal to the full check after every edit)', () => {
-  const cases: { label: string; design: () => Design; steps: number; seed: number; moments?: boolean }[] = [
+  const cases: { label: string; design: () => Design; steps: number; seed: number; moments?: boolean; moves?: boolean }[] = [
     { label: 'all pairs, 3×3 square, multipole 2, with moments', design: () => startDesign('square', 3, 3, 1, { kind: 'multipole', order: 2 }), steps: 120, seed: 1, moments: true },
     { label: 'all pairs, chain of 2-donor clusters, grounded', design: () => startDesign('chain', 6, 1, 2, { kind: 'grounded' }), steps: 120, seed: 2 },
     { label: 'bond graph, 10×9 triangular, multipole 4', design: () => startDesign('triangular', 10, 9, 1, { kind: 'multipole', order: 4 }), steps: 80, seed: 3 },
     // 64 sites: adding one crosses the all-pairs limit (64) into bond-graph pairs, removing one goes back
     { label: 'crossing the all-pairs limit, 8×8 square, grounded, with moments', design: () => startDesign('square', 8, 8, 1, { kind: 'grounded' }), steps: 120, seed: 4, moments: true },
+    // mostly moves, some folded into one update: the bond pairs follow moved sites without a new
+    // triangulation when they can (live-bonds.ts), the close pairs follow them in their index
+    { label: 'bond graph, 14×12 triangular, mostly moves (local bond updates)', design: () => startDesign('triangular', 14, 12, 1, { kind: 'multipole', order: 2 }), steps: 150, seed: 5, moves: true },
+    { label: 'bond graph, 10×10 square of 2-donor clusters, mostly moves', design: () => startDesign('square', 10, 10, 2, { kind: 'grounded' }), steps: 100, seed: 6, moves: true },
   ];
   for (const c of cases) {
     it(c.label, () => {
@@ -154,7 +173,7 @@ describe('far-field session (invariant: equal to the full check after every edit
       const session = createFarFieldSession(d, { moments: c.moments, estimateElements: (h) => estimate(h) });
       expectSame(session.report(), farFieldCheck(d, { moments: c.moments }), 'initial');
       for (let step = 0; step < c.steps; step++) {
-        const e = randomEdit(d, rnd, step);
+        const e = c.moves && rnd() < 0.8 ? randomMoves(d, rnd) : randomEdit(d, rnd, step);
         d = e.next;
         const label = `step ${step}: ${e.label}`;
         expectSame(session.applyChanges(e.changes), farFieldCheck(d, { moments: c.moments }), label);
