@@ -14,9 +14,10 @@
  * --moments adds the multipole moments to order 4 of every site's unit density and of the array
  * (weights = electrons) about the enclosure centre: a `moments` key in the JSON, a table otherwise.
  * Without it, a readable table with the model assumptions.
- * Exit codes: 0 checked, 1 invalid document or unreadable file, 2 usage, 3 checked but the report
- * holds an error-level warning (a site outside the enclosure, sites at the same position): the
- * numbers are printed, and scripts can still tell that the design is not fit to mesh.
+ * Exit codes: 0 checked, 1 invalid document or unreadable file, 2 usage, 3 checked but the design
+ * is not fit to mesh as it stands: the worst bound misses the design's targetRelError, or the report
+ * holds an error-level warning (a site outside the domain box, sites at the same position). The
+ * numbers are printed either way.
  */
 import { farFieldCheck, type FarFieldReport } from '../../geometry/farfield';
 import type { Design } from '../../geometry/design/types';
@@ -126,5 +127,15 @@ export async function run(argv: string[]): Promise<number> {
   });
   const body = json ? JSON.stringify(moments ? { ...toCheckJson(report), moments: report.moments } : toCheckJson(report), null, 2) : toReadable(design, report);
   console.log(body);
-  return report.warnings.some((w) => w.severity === 'error') ? 3 : 0;
+  return unfit(report) ? 3 : 0;
+}
+
+/**
+ * Not fit to mesh as it stands: an error-level warning (a site outside the box, two sites at one
+ * position), or a worst bound that misses the design's own target, so that a script watching the
+ * exit status stops instead of meshing a box that cuts the far field.
+ */
+export function unfit(report: FarFieldReport): boolean {
+  if (report.warnings.some((w) => w.severity === 'error')) return true;
+  return report.worstRelBound !== null && report.worstRelBound > report.tolerance;
 }
