@@ -10,7 +10,9 @@
  *    (snap dots near the pointer), move the selection with a handle that snaps to lattice sites;
  *  - views along [001], [100], [110], fit-to-view, a scale bar in nm;
  *  - `window.__tetrawellCanvasStats`: draw calls and triangles of the last frame (renderer's own
- *    counters), recent frame times, instances per species — read by the browser tests.
+ *    counters), recent frame times, instances per species — read by the browser tests;
+ *  - `window.__tetrawellCanvasProbe.toScreen(p)`: where a scene point (nm) is on the page (CSS px)
+ *    and how far it is from the camera, so the browser tests can aim real mouse drags at handles.
  */
 import { ringSegments } from './markerDetail';
 import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, type MutableRefObject } from 'react';
@@ -42,9 +44,15 @@ export interface CanvasStats {
   frames: number;
 }
 
+/** Test hook: a scene point (nm) → page coordinates (CSS px, as mouse events use) and camera distance (nm). */
+export interface CanvasProbe {
+  toScreen: (p: [number, number, number]) => { x: number; y: number; distance: number };
+}
+
 declare global {
   interface Window {
     __tetrawellCanvasStats?: CanvasStats;
+    __tetrawellCanvasProbe?: CanvasProbe;
   }
 }
 
@@ -369,7 +377,12 @@ function PlacementGuide({ doc, layerK, species, onPlace }: { doc: DesignDocument
   );
 }
 
-/** A translate handle at the selection's centroid; each moved site snaps to its nearest lattice site. */
+/**
+ * A translate handle at the selection's centroid; each moved site snaps to its nearest lattice site.
+ * The drag works from the sites as they were when it began: while it runs, the canvas draws the
+ * preview document, whose moved sites must not become the reference (else the release compares the
+ * preview with itself and the move is lost).
+ */
 function MoveHandle({ doc, selection, onPreview, onCommit }: { doc: DesignDocument; selection: readonly string[]; onPreview: (d: DesignDocument | null) => void; onCommit: (p: Record<string, Vec3>) => void }) {
   const group = useRef<THREE.Group>(null);
   const picked = useMemo(() => doc.sites.filter((s) => selection.includes(s.id)), [doc.sites, selection]);
@@ -378,14 +391,15 @@ function MoveHandle({ doc, selection, onPreview, onCommit }: { doc: DesignDocume
     for (const s of picked) for (let k = 0; k < 3; k++) c[k] += s.position[k] / picked.length;
     return c;
   }, [picked]);
+  const start = useRef<{ doc: DesignDocument; picked: typeof picked; centroid: Vec3 } | null>(null);
   const pending = useRef<Record<string, Vec3> | null>(null);
   if (picked.length === 0) return null;
   const a = doc.host.latticeConstantNm;
-  const snappedMove = (): Record<string, Vec3> => {
+  const snappedMove = (from: NonNullable<typeof start.current>): Record<string, Vec3> => {
     const g = group.current!;
-    const d = [g.position.x - centroid[0], g.position.y - centroid[1], g.position.z - centroid[2]];
+    const d = [g.position.x - from.centroid[0], g.position.y - from.centroid[1], g.position.z - from.centroid[2]];
     const out: Record<string, Vec3> = {};
-    for (const s of picked) out[s.id] = siteToNm(snapToLattice([s.position[0] + d[0], s.position[1] + d[1], s.position[2] + d[2]], a), a);
+    for (const s of from.picked) out[s.id] = siteToNm(snapToLattice([s.position[0] + d[0], s.position[1] + d[1], s.position[2] + d[2]], a), a);
     return out;
   };
   return (
@@ -395,17 +409,23 @@ function MoveHandle({ doc, selection, onPreview, onCommit }: { doc: DesignDocume
         object={group as unknown as MutableRefObject<THREE.Object3D>}
         mode="translate"
         size={0.8}
+        onMouseDown={() => {
+          start.current = { doc, picked, centroid };
+        }}
         onObjectChange={() => {
-          const moved = snappedMove();
+          const from = start.current;
+          if (!from) return;
+          const moved = snappedMove(from);
           pending.current = moved;
-          onPreview({ ...doc, sites: doc.sites.map((s) => (moved[s.id] ? { ...s, position: moved[s.id] } : s)) });
+          onPreview({ ...from.doc, sites: from.doc.sites.map((s) => (moved[s.id] ? { ...s, position: moved[s.id] } : s)) });
         }}
         onMouseUp={() => {
-          const moved = pending.current;
+          const moved = pending.current, from = start.current;
           pending.current = null;
+          start.current = null;
           onPreview(null);
-          if (moved && picked.some((s) => moved[s.id].some((v, k) => Math.abs(v - s.position[k]) > 1e-12))) onCommit(moved);
-          else group.current?.position.set(...centroid);
+          if (moved && from && from.picked.some((s) => moved[s.id].some((v, k) => Math.abs(v - s.position[k]) > 1e-12))) onCommit(moved);
+          else if (from) group.current?.position.set(...from.centroid);
         }}
       />
     </>
@@ -455,6 +475,21 @@ function Rig({ doc, onViewApi, onScale }: { doc: DesignDocument; onViewApi: (api
     });
     return () => onViewApi(null);
   }, [camera, controls, onViewApi]);
+
+  useEffect(() => {
+    const v = new THREE.Vector3();
+    window.__tetrawellCanvasProbe = {
+      toScreen: (p) => {
+        camera.updateMatrixWorld();
+        const rect = gl.domElement.getBoundingClientRect();
+        v.set(p[0], p[1], p[2]).project(camera);
+        return { x: rect.left + ((v.x + 1) / 2) * rect.width, y: rect.top + ((1 - v.y) / 2) * rect.height, distance: camera.position.distanceTo(new THREE.Vector3(p[0], p[1], p[2])) };
+      },
+    };
+    return () => {
+      delete window.__tetrawellCanvasProbe;
+    };
+  }, [camera, gl]);
 
   // This frame callback (priority 1) takes over rendering, so it can time the render and read the
   // renderer's own counters for exactly this frame. The canvas renders on demand (an orbit, an edit,
