@@ -212,3 +212,27 @@ test('dragging a domain-box face changes its half-extent in nm; shrinking it far
   await expect(tooClose).toHaveCount(0, { timeout: 20_000 });
   await expect(page.getByRole('button', { name: 'Undo' })).toBeDisabled();
 });
+
+test('a face drag in the select tool is not a selection band: the sites it passes over stay unselected', async ({ page }) => {
+  await signUp(page, { email: uniqueEmail('kaia'), name: 'Kaia Sorensen' });
+  const projectId = await createProject(page, 'Faces and bands');
+  // s2 at (32, −16, 0) a/4 (a diamond site), under the path of the +x face as it is pulled in
+  const sites = [
+    { id: 's1', species: 'P', position: [0, 0, 0], electrons: 1 },
+    { id: 's2', species: 'P', position: [8 * A, -4 * A, 0], electrons: 1 },
+  ];
+  const design = await designWith(page, projectId, 'Two donors', sites, [6, 6, 6]);
+  await openLookingDown(page, projectId, design.id);
+  await expect(page.getByRole('radio', { name: /^Select/ })).toHaveAttribute('aria-checked', 'true');
+  const grip = await toScreen(page, [6, 0, 0]);
+  // the face follows the pointer's x alone in this view; the pointer also wanders to y = −3 nm
+  const end = await toScreen(page, [4, -3, 0]);
+  await page.mouse.move(grip.x, grip.y);
+  await page.mouse.down();
+  await page.mouse.move(end.x, end.y, { steps: 8 });
+  await page.mouse.up();
+  const halfX = page.getByRole('form', { name: 'Domain box and refinement' }).getByLabel('Half-extent x (nm)');
+  await expect.poll(async () => Number(await halfX.inputValue())).toBeLessThan(5);
+  await expect(page.getByText(/\d+ selected/)).toHaveCount(0);
+  await expect(table(page).locator('tr[aria-selected="true"]')).toHaveCount(0);
+});

@@ -81,6 +81,8 @@ export interface DesignCanvasProps {
 }
 
 const tmpMatrix = new THREE.Matrix4();
+/** Pointer-downs a box-face handle took: the canvas' selection band leaves these alone. */
+const claimedByHandle = new WeakSet<Event>();
 const tmpColor = new THREE.Color();
 
 function SpeciesInstances({ species, sites, unit, selected, onPick }: { species: Species; sites: { id: string; position: number[] }[]; unit: number; selected: ReadonlySet<string>; onPick: (id: string, e: ThreeEvent<MouseEvent>) => void }) {
@@ -219,6 +221,7 @@ function DomainBox({ doc, report, readOnly, onPreview, onCommit }: { doc: Design
   const startDrag = (e: ThreeEvent<PointerEvent>) => {
     if (readOnly || e.instanceId === undefined || e.button !== 0) return;
     e.stopPropagation();
+    claimedByHandle.add(e.nativeEvent);
     const face = FACE_AXES[e.instanceId];
     const orbit = getThree().controls as unknown as { enabled: boolean } | null;
     if (orbit) orbit.enabled = false;
@@ -584,7 +587,8 @@ export default function DesignCanvas(props: DesignCanvasProps) {
 
   // box select: in the select tool a left drag on the canvas draws a band; sites projected inside it are selected
   const onPointerDown = (e: React.PointerEvent) => {
-    if (tool !== 'select' || e.button !== 0) return;
+    // three.js' own handler runs first (on the canvas), so a face handle has claimed its drag by now
+    if (tool !== 'select' || e.button !== 0 || claimedByHandle.has(e.nativeEvent)) return;
     const r = wrapper.current!.getBoundingClientRect();
     const x0 = e.clientX - r.left, y0 = e.clientY - r.top;
     let last = { x0, y0, x1: x0, y1: y0 };
