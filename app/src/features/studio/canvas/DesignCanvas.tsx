@@ -8,7 +8,8 @@
  *  - far-field warnings: flagged sites ringed, flagged faces tinted;
  *  - tools: select (click, shift-click, drag a box), place a donor on the active (001) layer
  *    (snap dots near the pointer), move the selection with a handle that snaps to lattice sites;
- *  - views along [001], [100], [110], fit-to-view, a scale bar in nm;
+ *  - views along [001], [100], [110], fit-to-view, a scale bar in nm, the crystal axes in a corner;
+ *  - a light ground and our own species palette (palette.ts: CANVAS_THEME, SPECIES_STYLE);
  *  - `window.__tetrawellCanvasStats`: draw calls and triangles of the last frame (renderer's own
  *    counters), recent frame times, instances per species — read by the browser tests;
  *  - `window.__tetrawellCanvasProbe.toScreen(p)`: where a scene point (nm) is on the page (CSS px)
@@ -24,7 +25,8 @@ import type { FarFieldReport } from '../../../../../geometry/farfield';
 import { bondGraph } from '../../../../../geometry/arrays';
 import { siteToNm, snapToLattice } from '../../../../../geometry/lattice';
 import type { Species } from '../../../../../geometry/design/types';
-import { SELECTED_CSS, SPECIES_ORDER, SPECIES_STYLE, WARNING_CSS } from '../palette';
+import { CANVAS_THEME, SELECTED_CSS, SELECTED_SCALE, SPECIES_ORDER, SPECIES_STYLE, WARNING_CSS } from '../palette';
+import { AxisTriad, type AxisDirections } from './AxisTriad';
 import type { Vec3 } from '../editorStore';
 import { layerPointsNear, snapInLayer } from './layerSnap';
 
@@ -84,6 +86,8 @@ const tmpMatrix = new THREE.Matrix4();
 /** Pointer-downs a box-face handle took: the canvas' selection band leaves these alone. */
 const claimedByHandle = new WeakSet<Event>();
 const tmpColor = new THREE.Color();
+/** labels over the canvas: ink on a near-opaque white panel (contrast checked in tests/app/palette.test.ts) */
+const labelPanel = { color: CANVAS_THEME.labelInk, background: `color-mix(in srgb, ${CANVAS_THEME.labelPanel} ${CANVAS_THEME.labelPanelAlpha * 100}%, transparent)`, boxShadow: '0 0 0 1px rgb(0 0 0 / 0.08)' } as const;
 
 function SpeciesInstances({ species, sites, unit, selected, onPick }: { species: Species; sites: { id: string; position: number[] }[]; unit: number; selected: ReadonlySet<string>; onPick: (id: string, e: ThreeEvent<MouseEvent>) => void }) {
   const ref = useRef<THREE.InstancedMesh>(null);
@@ -93,9 +97,12 @@ function SpeciesInstances({ species, sites, unit, selected, onPick }: { species:
     const mesh = ref.current;
     if (!mesh) return;
     sites.forEach((s, i) => {
-      tmpMatrix.makeScale(r, r, r).setPosition(s.position[0], s.position[1], s.position[2]);
+      // a selected site: darker and larger (a second cue besides colour)
+      const on = selected.has(s.id);
+      const ri = on ? r * SELECTED_SCALE : r;
+      tmpMatrix.makeScale(ri, ri, ri).setPosition(s.position[0], s.position[1], s.position[2]);
       mesh.setMatrixAt(i, tmpMatrix);
-      mesh.setColorAt(i, tmpColor.set(selected.has(s.id) ? SELECTED_CSS : style.css));
+      mesh.setColorAt(i, tmpColor.set(on ? SELECTED_CSS : style.css));
     });
     mesh.instanceMatrix.needsUpdate = true;
     if (mesh.instanceColor) mesh.instanceColor.needsUpdate = true;
@@ -264,20 +271,20 @@ function DomainBox({ doc, report, readOnly, onPreview, onCommit }: { doc: Design
     <group>
       <mesh position={center} raycast={() => null} renderOrder={2}>
         <boxGeometry args={[2 * h[0], 2 * h[1], 2 * h[2]]} />
-        <meshBasicMaterial color="#7de3d3" transparent opacity={0.07} depthWrite={false} side={THREE.DoubleSide} />
+        <meshBasicMaterial color={CANVAS_THEME.boxFill} transparent opacity={0.06} depthWrite={false} side={THREE.DoubleSide} />
       </mesh>
       <lineSegments position={center} geometry={boxEdges} raycast={() => null}>
-        <lineBasicMaterial color="#0d7a6e" />
+        <lineBasicMaterial color={CANVAS_THEME.boxEdge} />
       </lineSegments>
       {flagged.size > 0 && (
         <mesh geometry={faceGeometry} raycast={() => null} renderOrder={3}>
-          <meshBasicMaterial color={WARNING_CSS} transparent opacity={0.22} depthWrite={false} side={THREE.DoubleSide} />
+          <meshBasicMaterial color={WARNING_CSS} transparent opacity={0.16} depthWrite={false} side={THREE.DoubleSide} />
         </mesh>
       )}
       {!readOnly && (
         <instancedMesh ref={handles} args={[undefined, undefined, 6]} onPointerDown={startDrag} name="domain-box-handles">
           <boxGeometry args={[1, 1, 1]} />
-          <meshStandardMaterial color="#3fd0bd" emissive="#0d7a6e" />
+          <meshStandardMaterial color={CANVAS_THEME.handle} roughness={0.6} />
         </instancedMesh>
       )}
     </group>
@@ -324,7 +331,7 @@ function Bonds({ doc }: { doc: DesignDocument }) {
         }}
         onPointerOut={() => setHover(null)}
       >
-        <lineBasicMaterial color="#566d82" transparent opacity={0.7} />
+        <lineBasicMaterial color={CANVAS_THEME.bond} />
       </lineSegments>
       {hover && (
         <Html position={hover.at} center style={{ pointerEvents: 'none' }}>
@@ -363,11 +370,11 @@ function PlacementGuide({ doc, layerK, species, onPlace }: { doc: DesignDocument
         }}
       >
         <planeGeometry args={[span, span]} />
-        <meshBasicMaterial transparent opacity={0.04} color="#1fb3a3" depthWrite={false} side={THREE.DoubleSide} />
+        <meshBasicMaterial transparent opacity={0.06} color={CANVAS_THEME.layer} depthWrite={false} side={THREE.DoubleSide} />
       </mesh>
       {pointer && (
         <points geometry={dots} raycast={() => null}>
-          <pointsMaterial color="#0d7a6e" size={4} sizeAttenuation={false} />
+          <pointsMaterial color={CANVAS_THEME.snapDot} size={4} sizeAttenuation={false} />
         </points>
       )}
       {ghost && (
@@ -436,7 +443,7 @@ function MoveHandle({ doc, selection, onPreview, onCommit }: { doc: DesignDocume
 }
 
 /** Camera commands for the toolbar and keyboard, the scale bar, and the renderer statistics. */
-function Rig({ doc, onViewApi, onScale }: { doc: DesignDocument; onViewApi: (api: ViewApi | null) => void; onScale: (widthPx: number, label: string) => void }) {
+function Rig({ doc, onViewApi, onScale, onAxes }: { doc: DesignDocument; onViewApi: (api: ViewApi | null) => void; onScale: (widthPx: number, label: string) => void; onAxes: (d: AxisDirections) => void }) {
   const { camera, controls, size, gl } = useThree();
   const docRef = useRef(doc);
   useEffect(() => {
@@ -520,6 +527,13 @@ function Rig({ doc, onViewApi, onScale }: { doc: DesignDocument; onViewApi: (api
     const p = Math.pow(10, Math.floor(Math.log10(want)));
     const nice = [1, 2, 5, 10].map((m) => m * p).reduce((best, v) => (Math.abs(v - want) < Math.abs(best - want) ? v : best));
     onScale(Math.round(nice / nmPerPx), `${nice >= 1 ? nice.toFixed(0) : nice.toPrecision(1)} nm`);
+    // the crystal axes as the camera sees them (view-space x right, y up)
+    const m = camera.matrixWorldInverse.elements;
+    onAxes([
+      [m[0], m[1]],
+      [m[4], m[5]],
+      [m[8], m[9]],
+    ]);
   }, 1);
   useEffect(() => {
     const counts: Partial<Record<Species, number>> = {};
@@ -567,6 +581,8 @@ export default function DesignCanvas(props: DesignCanvasProps) {
     return doc.sites.filter((s) => ids.has(s.id)).map((s) => s.position);
   }, [doc.sites, report]);
   const scaleBar = useRef<HTMLDivElement>(null);
+  const axesApi = useRef<((d: AxisDirections) => void) | null>(null);
+  const onAxes = useCallback((d: AxisDirections) => axesApi.current?.(d), []);
   const scaleLabel = useRef<HTMLSpanElement>(null);
   const wrapper = useRef<HTMLDivElement>(null);
   const cameraRef = useRef<THREE.Camera | null>(null);
@@ -621,7 +637,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
   const c = doc.enclosure.center;
 
   return (
-    <div ref={wrapper} role="region" aria-label="Design canvas" className="relative h-full min-h-[320px] lg:min-h-0 overflow-hidden rounded-md bg-wafer-950" onPointerDown={onPointerDown}>
+    <div ref={wrapper} role="region" aria-label="Design canvas" className="relative h-full min-h-[320px] overflow-hidden rounded-md border border-wafer-200 lg:min-h-0" style={{ background: CANVAS_THEME.ground }} onPointerDown={onPointerDown}>
       <Canvas
         frameloop="demand"
         camera={{ position: [c[0] + initialDist * 0.55, c[1] - initialDist * 0.75, c[2] + initialDist * 0.6], up: [0, 0, 1], fov: 40, near: 0.01, far: 1e5 }}
@@ -634,7 +650,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
           if (tool === 'select' && !e.shiftKey) props.onSelect([], 'replace');
         }}
       >
-        <color attach="background" args={['#0b131a']} />
+        <color attach="background" args={[CANVAS_THEME.ground]} />
         <ambientLight intensity={1.1} />
         <directionalLight position={[30, -40, 60]} intensity={2.2} />
         <directionalLight position={[-40, 30, -20]} intensity={0.6} />
@@ -644,7 +660,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
           enableDamping={false}
           mouseButtons={tool === 'select' ? { LEFT: -1 as unknown as THREE.MOUSE, MIDDLE: THREE.MOUSE.PAN, RIGHT: THREE.MOUSE.ROTATE } : { LEFT: THREE.MOUSE.ROTATE, MIDDLE: THREE.MOUSE.DOLLY, RIGHT: THREE.MOUSE.PAN }}
         />
-        <Rig doc={doc} onViewApi={onViewApi} onScale={onScale} />
+        <Rig doc={doc} onViewApi={onViewApi} onScale={onScale} onAxes={onAxes} />
         {SPECIES_ORDER.filter((sp) => bySpecies.has(sp)).map((sp) => (
           <SpeciesInstances key={sp} species={sp} sites={bySpecies.get(sp)!} unit={unit} selected={selected} onPick={onPick} />
         ))}
@@ -657,30 +673,35 @@ export default function DesignCanvas(props: DesignCanvasProps) {
       {band && (
         <div
           aria-hidden="true"
-          className="pointer-events-none absolute border border-phosphor-300 bg-phosphor-300/15"
+          className="pointer-events-none absolute border border-phosphor-700 bg-phosphor-500/10"
           style={{ left: Math.min(band.x0, band.x1), top: Math.min(band.y0, band.y1), width: Math.abs(band.x1 - band.x0), height: Math.abs(band.y1 - band.y0) }}
         />
       )}
-      <div className="pointer-events-none absolute bottom-2 left-2 flex flex-col gap-1 rounded bg-wafer-950/80 px-2 py-1.5 text-fine text-wafer-100">
-        <div className="flex items-center gap-2">
-          <div ref={scaleBar} className="h-1.5 border-x border-b border-wafer-100" style={{ width: 100 }} />
-          <span ref={scaleLabel} className="num">— nm</span>
-        </div>
+      <AxisTriad apiRef={axesApi} />
+      <div className="pointer-events-none absolute bottom-2 left-2 flex items-center gap-2 rounded px-2 py-1.5 text-fine" style={labelPanel}>
+        <div ref={scaleBar} className="h-1.5 border-x-2 border-b-2" style={{ width: 100, borderColor: CANVAS_THEME.labelInk }} />
+        <span ref={scaleLabel} className="num font-semibold">— nm</span>
       </div>
-      <ul aria-label="Species legend" className="pointer-events-none absolute bottom-2 right-2 space-y-0.5 rounded bg-wafer-950/80 px-2 py-1.5 text-fine text-wafer-100">
+      <ul aria-label="Species legend" className="pointer-events-none absolute bottom-2 right-2 space-y-0.5 rounded px-2 py-1.5 text-fine" style={labelPanel}>
         {legend.map((sp) => (
           <li key={sp} className="flex items-center gap-1.5">
             <span aria-hidden="true" className="inline-block rounded-full" style={{ background: SPECIES_STYLE[sp].css, width: 6 + 8 * SPECIES_STYLE[sp].radiusA, height: 6 + 8 * SPECIES_STYLE[sp].radiusA }} />
-            {SPECIES_STYLE[sp].label} <span className="num text-wafer-300">× {bySpecies.get(sp)!.length}</span>
+            {SPECIES_STYLE[sp].label} <span className="num" style={{ color: CANVAS_THEME.labelMuted }}>× {bySpecies.get(sp)!.length}</span>
           </li>
         ))}
+        {selection.length > 0 && (
+          <li className="flex items-center gap-1.5">
+            <span aria-hidden="true" className="inline-block h-3 w-3 rounded-full" style={{ background: SELECTED_CSS }} />
+            selected (drawn larger)
+          </li>
+        )}
         {warnedPositions.length > 0 && (
           <li className="flex items-center gap-1.5">
             <span aria-hidden="true" className="inline-block h-3 w-3 rounded-full border-2" style={{ borderColor: WARNING_CSS }} />
             far-field warning
           </li>
         )}
-        <li className="text-wafer-300">sphere size tells species apart too</li>
+        <li style={{ color: CANVAS_THEME.labelMuted }}>sphere size tells species apart too</li>
       </ul>
     </div>
   );
