@@ -15,7 +15,7 @@
  *  - `window.__tetrawellCanvasProbe.toScreen(p)`: where a scene point (nm) is on the page (CSS px)
  *    and how far it is from the camera, so the browser tests can aim real mouse drags at handles.
  */
-import { ringSegments } from './markerDetail';
+import { ringSegments, sphereSegments } from './markerDetail';
 import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, type MutableRefObject } from 'react';
 import { Canvas, useFrame, useThree, type ThreeEvent } from '@react-three/fiber';
 import { Html, OrbitControls, TransformControls } from '@react-three/drei';
@@ -89,10 +89,11 @@ const tmpColor = new THREE.Color();
 /** labels over the canvas: ink on a near-opaque white panel (contrast checked in tests/app/palette.test.ts) */
 const labelPanel = { color: CANVAS_THEME.labelInk, background: `color-mix(in srgb, ${CANVAS_THEME.labelPanel} ${CANVAS_THEME.labelPanelAlpha * 100}%, transparent)`, boxShadow: '0 0 0 1px rgb(0 0 0 / 0.08)' } as const;
 
-function SpeciesInstances({ species, sites, unit, selected, onPick }: { species: Species; sites: { id: string; position: number[] }[]; unit: number; selected: ReadonlySet<string>; onPick: (id: string, e: ThreeEvent<MouseEvent>) => void }) {
+function SpeciesInstances({ species, sites, totalSites, unit, selected, onPick }: { species: Species; sites: { id: string; position: number[] }[]; totalSites: number; unit: number; selected: ReadonlySet<string>; onPick: (id: string, e: ThreeEvent<MouseEvent>) => void }) {
   const ref = useRef<THREE.InstancedMesh>(null);
   const style = SPECIES_STYLE[species];
   const r = style.radiusA * unit;
+  const seg = sphereSegments(totalSites);
   useLayoutEffect(() => {
     const mesh = ref.current;
     if (!mesh) return;
@@ -110,7 +111,7 @@ function SpeciesInstances({ species, sites, unit, selected, onPick }: { species:
   }, [sites, selected, r, style.css]);
   return (
     <instancedMesh
-      key={sites.length > 2000 ? `${sites.length}-coarse` : sites.length}
+      key={`${sites.length}-${seg.width}`}
       ref={ref}
       name={`sites-${species}`}
       args={[undefined, undefined, sites.length]}
@@ -120,8 +121,8 @@ function SpeciesInstances({ species, sites, unit, selected, onPick }: { species:
         onPick(sites[e.instanceId].id, e);
       }}
     >
-      {/* fewer facets for large arrays: 10,000 spheres stay at about a million triangles */}
-      <sphereGeometry args={sites.length > 2000 ? [1, 8, 6] : [1, 16, 12]} />
+      {/* fewer facets for large designs: 10,000 spheres stay under a million triangles */}
+      <sphereGeometry args={[1, seg.width, seg.height]} />
       <meshStandardMaterial color="#ffffff" roughness={0.45} metalness={0.05} />
     </instancedMesh>
   );
@@ -662,7 +663,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
         />
         <Rig doc={doc} onViewApi={onViewApi} onScale={onScale} onAxes={onAxes} />
         {SPECIES_ORDER.filter((sp) => bySpecies.has(sp)).map((sp) => (
-          <SpeciesInstances key={sp} species={sp} sites={bySpecies.get(sp)!} unit={unit} selected={selected} onPick={onPick} />
+          <SpeciesInstances key={sp} species={sp} sites={bySpecies.get(sp)!} totalSites={doc.sites.length} unit={unit} selected={selected} onPick={onPick} />
         ))}
         <WarnedSites positions={warnedPositions} radius={1.1 * unit} />
         <Bonds doc={doc} />
