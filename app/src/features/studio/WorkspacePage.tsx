@@ -306,8 +306,8 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, canRun, aut
           </>
         )}
         <span className="num text-fine text-wafer-600">
-          {sitesTotal} site{sitesTotal === 1 ? '' : 's'}
-          {selectedCount > 0 && `, ${selectedCount} selected`}
+          {sitesTotal.toLocaleString('en-US')} site{sitesTotal === 1 ? '' : 's'}
+          {selectedCount > 0 && `, ${selectedCount.toLocaleString('en-US')} selected`}
         </span>
         <SaveBadge state={autosave.state} dirty={autosave.dirty} readOnly={readOnly} />
         <div className="ml-auto flex flex-wrap items-center gap-1.5">

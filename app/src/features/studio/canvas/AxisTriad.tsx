@@ -15,9 +15,9 @@ const AXES = [
   { name: 'y', dir: '[010]' },
   { name: 'z', dir: '[001]' },
 ] as const;
-const SIZE = 112;
+const SIZE = 120;
 const C = SIZE / 2;
-const L = 22;
+const L = 30;
 
 export function AxisTriad({ apiRef }: { apiRef: MutableRefObject<((d: AxisDirections) => void) | null> }) {
   const lines = useRef<(SVGLineElement | null)[]>([]);
@@ -31,7 +31,7 @@ export function AxisTriad({ apiRef }: { apiRef: MutableRefObject<((d: AxisDirect
         line.setAttribute('y2', (C - L * y).toFixed(1));
         // the name sits beyond the arrow's tip; an axis seen end-on gets its name just above the centre
         const len = Math.hypot(x, y);
-        const [lx, ly] = len > 0.15 ? [C + (L + 15) * (x / len) * Math.max(len, 0.6), C - (L + 15) * (y / len) * Math.max(len, 0.6)] : [C + 14, C - 8];
+        const [lx, ly] = len > 0.15 ? [C + L * x + 16 * (x / len), C - L * y - 9 * (y / len)] : [C + 16, C - 8];
         label.setAttribute('x', lx.toFixed(1));
         label.setAttribute('y', (ly + 3.5).toFixed(1));
       });
@@ -50,7 +50,7 @@ export function AxisTriad({ apiRef }: { apiRef: MutableRefObject<((d: AxisDirect
       {AXES.map((a, k) => (
         <g key={a.name}>
           <line ref={(el) => void (lines.current[k] = el)} x1={C} y1={C} x2={C} y2={C} stroke={CANVAS_THEME.labelInk} strokeWidth={1.5} markerEnd="url(#axis-tip)" />
-          <text ref={(el) => void (labels.current[k] = el)} x={C} y={C} textAnchor="middle" fontSize={10} fill={CANVAS_THEME.labelInk} className="num">
+          <text ref={(el) => void (labels.current[k] = el)} x={C} y={C} textAnchor="middle" fontSize={11} fill={CANVAS_THEME.labelInk} className="num">
             <tspan fontWeight={700}>{a.name}</tspan> {a.dir}
           </text>
         </g>

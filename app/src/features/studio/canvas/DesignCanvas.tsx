@@ -279,7 +279,7 @@ function DomainBox({ doc, report, readOnly, onPreview, onCommit }: { doc: Design
       </lineSegments>
       {flagged.size > 0 && (
         <mesh geometry={faceGeometry} raycast={() => null} renderOrder={3}>
-          <meshBasicMaterial color={WARNING_CSS} transparent opacity={0.16} depthWrite={false} side={THREE.DoubleSide} />
+          <meshBasicMaterial color={WARNING_CSS} transparent opacity={0.12} depthWrite={false} side={THREE.DoubleSide} />
         </mesh>
       )}
       {!readOnly && (
