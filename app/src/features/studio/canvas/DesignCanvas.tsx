@@ -687,7 +687,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
         {legend.map((sp) => (
           <li key={sp} className="flex items-center gap-1.5">
             <span aria-hidden="true" className="inline-block rounded-full" style={{ background: SPECIES_STYLE[sp].css, width: 6 + 8 * SPECIES_STYLE[sp].radiusA, height: 6 + 8 * SPECIES_STYLE[sp].radiusA }} />
-            {SPECIES_STYLE[sp].label} <span className="num" style={{ color: CANVAS_THEME.labelMuted }}>× {bySpecies.get(sp)!.length}</span>
+            {SPECIES_STYLE[sp].label} <span className="num" style={{ color: CANVAS_THEME.labelMuted }}>× {bySpecies.get(sp)!.length.toLocaleString('en-US')}</span>
           </li>
         ))}
         {selection.length > 0 && (
