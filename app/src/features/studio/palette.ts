@@ -39,10 +39,10 @@ export const WARNING_CSS = '#b9354a';
 export const CANVAS_THEME = {
   /** the 3D ground (the app's wafer-50, a shade off the page's paper so the view reads as a pane) */
   ground: '#f3f2ee',
-  /** domain-box edges and face handles */
+  /** domain-box edges; the face handles in the app's accent, so they read as things to grab, not as sites */
   boxEdge: '#4e4b44',
   boxFill: '#8e897e',
-  handle: '#3a3833',
+  handle: '#0d7a6e',
   bond: '#8e897e',
   /** the active layer and its snap dots (the app's accent) */
   layer: '#1fb3a3',
