@@ -31,7 +31,10 @@ export function AxisTriad({ apiRef }: { apiRef: MutableRefObject<((d: AxisDirect
         line.setAttribute('y2', (C - L * y).toFixed(1));
         // the name sits beyond the arrow's tip; an axis seen end-on gets its name just above the centre
         const len = Math.hypot(x, y);
-        const [lx, ly] = len > 0.15 ? [C + L * x + 16 * (x / len), C - L * y - 9 * (y / len)] : [C + 16, C - 8];
+        // the text grows away from the tip (start, end or centred on it), so it stays inside the drawing
+        const [ux, uy] = len > 0.15 ? [x / len, y / len] : [0.6, 0.8];
+        const [lx, ly] = [C + L * x + 4 * ux, C - L * y - 9 * uy];
+        label.setAttribute('text-anchor', ux > 0.4 ? 'start' : ux < -0.4 ? 'end' : 'middle');
         label.setAttribute('x', lx.toFixed(1));
         label.setAttribute('y', (ly + 3.5).toFixed(1));
       });
