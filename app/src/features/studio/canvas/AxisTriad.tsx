@@ -15,9 +15,9 @@ const AXES = [
   { name: 'y', dir: '[010]' },
   { name: 'z', dir: '[001]' },
 ] as const;
-const SIZE = 120;
+const SIZE = 140;
 const C = SIZE / 2;
-const L = 30;
+const L = 24;
 
 export function AxisTriad({ apiRef }: { apiRef: MutableRefObject<((d: AxisDirections) => void) | null> }) {
   const lines = useRef<(SVGLineElement | null)[]>([]);
