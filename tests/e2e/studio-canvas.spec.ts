@@ -40,10 +40,21 @@ test('a donor placed by clicking the canvas sits on the lattice; its orbital ove
   const siteId = (await cells.nth(0).innerText()).trim();
   await page.getByRole('button', { name: `Edit orbital of site ${siteId}` }).click();
   const editor = page.getByRole('group', { name: `Orbital of site ${siteId}` });
+  // the editor shows whole, however short the table it opens from (one row here): nothing of it is
+  // clipped by the table's scroll box or the window, and its last button is the element on top there
+  const wholeAndOnTop = async () => {
+    await expect(editor).toBeInViewport({ ratio: 1 });
+    const apply = (await editor.getByRole('button', { name: 'Apply' }).boundingBox())!;
+    const onTop = await page.evaluate(([x, y]) => document.elementFromPoint(x, y)?.textContent ?? null, [apply.x + apply.width / 2, apply.y + apply.height / 2]);
+    expect(onTop).toBe('Apply');
+  };
+  await editor.getByLabel('Orbital model').selectOption('anisotropic-1s');
+  await wholeAndOnTop();
   await editor.getByLabel('Orbital model').selectOption('gaussian');
   await editor.getByLabel(/Sigma/).fill('-1');
   await editor.getByRole('button', { name: 'Apply' }).click();
   await expect(editor.getByRole('alert')).toContainText('Sigma (nm)');
+  await wholeAndOnTop();
   await editor.getByLabel(/Sigma/).fill('1.2');
   await page.screenshot({ path: 'tests/artifacts/studio-orbital-editor.png', fullPage: true });
   await editor.getByRole('button', { name: 'Apply' }).click();

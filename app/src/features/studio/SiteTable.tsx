@@ -13,7 +13,7 @@ import { useEditor, useEditorStore } from './editorContext';
 import type { Site } from './editorStore';
 import { ON_LATTICE_TOLERANCE_NM, siteRows, type SiteRow } from './siteColumns';
 import { SPECIES_STYLE } from './palette';
-import { editOrbital, orbitalFieldsOf, type OrbitalChoice } from './orbitalEdit';
+import { OrbitalCell } from './OrbitalCell';
 
 const ROW_HEIGHT = 32;
 
@@ -115,95 +115,6 @@ function EditableCell({ row, field, display, readOnly }: { row: SiteRow; field: 
       {error && (
         <span role="alert" className="absolute left-0 top-full z-10 mt-0.5 w-64 rounded bg-garnet-700 px-2 py-1 text-fine text-white">
           {error}
-        </span>
-      )}
-    </span>
-  );
-}
-
-/** The orbital cell: its description, and (for editors) a small form to set or drop the site's own override. */
-function OrbitalCell({ row, readOnly }: { row: SiteRow; readOnly: boolean }) {
-  const store = useEditorStore();
-  const [open, setOpen] = useState(false);
-  const start = orbitalFieldsOf(row.site);
-  const [model, setModel] = useState<OrbitalChoice>(start.model);
-  const [size, setSize] = useState(start.fields.size);
-  const [sizeZ, setSizeZ] = useState(start.fields.sizeZ);
-  const [error, setError] = useState<string | null>(null);
-  const id = row.site.id;
-  const text = (
-    <>
-      {row.orbitalText}
-      {row.orbitalIsPreset ? (
-        <span className="ml-1 rounded bg-wafer-100 px-1 text-fine text-wafer-600">species preset</span>
-      ) : (
-        <span className="ml-1 rounded bg-phosphor-50 px-1 text-fine text-phosphor-800">own override</span>
-      )}
-    </>
-  );
-  if (readOnly) return <span>{text}</span>;
-  const apply = () => {
-    const r = editOrbital(row.site, model, { size, sizeZ });
-    if ('error' in r) return setError(r.error);
-    setError(null);
-    setOpen(false);
-    if (JSON.stringify(r.site.orbital) !== JSON.stringify(row.site.orbital)) store.getState().updateSite(id, { orbital: r.site.orbital });
-  };
-  return (
-    <span className="relative block w-full" onClick={(e) => e.stopPropagation()}>
-      <button
-        type="button"
-        aria-label={`Edit orbital of site ${id}`}
-        aria-expanded={open}
-        className="w-full rounded px-1 text-left hover:bg-phosphor-50 focus-visible:outline-2 focus-visible:outline-phosphor-500"
-        onClick={() => {
-          const f = orbitalFieldsOf(row.site);
-          setModel(f.model);
-          setSize(f.fields.size);
-          setSizeZ(f.fields.sizeZ);
-          setError(null);
-          setOpen((o) => !o);
-        }}
-      >
-        {text}
-      </button>
-      {open && (
-        <span
-          role="group"
-          aria-label={`Orbital of site ${id}`}
-          className="absolute right-0 top-full z-20 mt-0.5 block w-72 space-y-1.5 whitespace-normal rounded-md border border-wafer-300 bg-white p-2 text-note shadow-lg"
-          onKeyDown={(e) => {
-            e.stopPropagation();
-            if (e.key === 'Enter') apply();
-            if (e.key === 'Escape') setOpen(false);
-          }}
-        >
-          <label className="block text-fine font-semibold text-wafer-700">
-            Orbital model
-            <select value={model} onChange={(e) => setModel(e.target.value as OrbitalChoice)} className="mt-0.5 block w-full rounded border border-wafer-300 bg-white px-1 py-0.5 font-normal">
-              <option value="preset">Species preset (no override)</option>
-              <option value="hydrogenic-1s">Hydrogenic 1s</option>
-              <option value="anisotropic-1s">Anisotropic 1s</option>
-              <option value="gaussian">Gaussian</option>
-            </select>
-          </label>
-          {model !== 'preset' && (
-            <label className="block text-fine font-semibold text-wafer-700">
-              {model === 'gaussian' ? 'Sigma' : model === 'anisotropic-1s' ? 'In-plane radius' : 'Radius'} <span className="font-normal text-wafer-500">(nm)</span>
-              <input value={size} onChange={(e) => setSize(e.target.value)} inputMode="decimal" className="num mt-0.5 block w-full rounded border border-wafer-300 px-1 py-0.5 font-normal" />
-            </label>
-          )}
-          {model === 'anisotropic-1s' && (
-            <label className="block text-fine font-semibold text-wafer-700">
-              Radius along [001] <span className="font-normal text-wafer-500">(nm)</span>
-              <input value={sizeZ} onChange={(e) => setSizeZ(e.target.value)} inputMode="decimal" className="num mt-0.5 block w-full rounded border border-wafer-300 px-1 py-0.5 font-normal" />
-            </label>
-          )}
-          {error && <span role="alert" className="block text-fine text-garnet-700">{error}</span>}
-          <span className="flex gap-1.5">
-            <button type="button" onClick={apply} className="rounded-md bg-phosphor-700 px-2.5 py-1 font-semibold text-white">Apply</button>
-            <button type="button" onClick={() => setOpen(false)} className="rounded-md border border-wafer-300 px-2.5 py-1 font-semibold">Cancel</button>
-          </span>
         </span>
       )}
     </span>

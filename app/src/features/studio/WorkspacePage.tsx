@@ -146,7 +146,7 @@ function Workspace({ projectId, projectName, designId, initial, readOnly, canRun
 }
 
 function ViewButtons({ viewRef }: { viewRef: React.RefObject<ViewApi | null> }) {
-  const cls = 'rounded bg-wafer-900/85 px-2 py-1 text-fine font-semibold text-wafer-100 hover:bg-wafer-700';
+  const cls = 'rounded border border-wafer-200 bg-white/95 px-2 py-1 text-fine font-semibold text-wafer-800 hover:bg-wafer-100 focus-visible:outline-2 focus-visible:outline-phosphor-500';
   return (
     <div role="toolbar" aria-label="View" className="absolute left-2 top-2 flex gap-1">
       <button type="button" className={cls} onClick={() => viewRef.current?.fit()}>Fit to view</button>
@@ -301,8 +301,8 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, canRun, aut
           </>
         )}
         <span className="num text-fine text-wafer-600">
-          {sitesTotal} site{sitesTotal === 1 ? '' : 's'}
-          {selectedCount > 0 && `, ${selectedCount} selected`}
+          {sitesTotal.toLocaleString('en-US')} site{sitesTotal === 1 ? '' : 's'}
+          {selectedCount > 0 && `, ${selectedCount.toLocaleString('en-US')} selected`}
         </span>
         <SaveBadge state={autosave.state} dirty={autosave.dirty} readOnly={readOnly} />
         <div className="ml-auto flex flex-wrap items-center gap-1.5">

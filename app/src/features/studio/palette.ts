@@ -1,8 +1,14 @@
 /**
- * Tetrawell's own species palette for the canvas, the legend and the table, with a second cue
- * besides colour: each species is drawn at its own sphere size (acceptor smallest, heavier donors
- * larger), and the legend names it. Colours chosen to stay apart for the common colour-vision
- * deficiencies (blue/orange/purple axes rather than red/green); common practice, no outside source.
+ * Tetrawell's own look for the design canvas: a light ground that sits in the light app frame, and
+ * a species palette of our own choosing, with a second cue besides colour (each species has its
+ * own sphere size: the acceptor smallest, heavier donors larger; the legend names them; a selected
+ * site is drawn larger as well as darker).
+ *
+ * The species colours were picked to stay apart for people with protan, deutan and tritan colour
+ * vision as well as typical vision, and to stand out from the ground; `tests/app/palette.test.ts`
+ * checks both with the CIEDE2000 colour difference under the Machado–Oliveira–Fernandes (2009)
+ * dichromacy simulation, and the WCAG 2 contrast of every label on the canvas. They are not the
+ * element colours of molecular viewers (that test checks this too).
  */
 import type { Species } from '../../../../geometry/design/types';
 
@@ -16,12 +22,35 @@ export interface SpeciesStyle {
 export const SPECIES_ORDER: readonly Species[] = ['P', 'As', 'Sb', 'Bi', 'B'];
 
 export const SPECIES_STYLE: Record<Species, SpeciesStyle> = {
-  P: { css: '#1fb3a3', radiusA: 0.5, label: 'P donor' },
-  As: { css: '#7b5cd6', radiusA: 0.6, label: 'As donor' },
-  Sb: { css: '#e08a1e', radiusA: 0.7, label: 'Sb donor' },
-  Bi: { css: '#2f6fd0', radiusA: 0.8, label: 'Bi donor' },
-  B: { css: '#d6d6d6', radiusA: 0.38, label: 'B acceptor' },
+  P: { css: '#233989', radiusA: 0.5, label: 'P donor' }, // deep navy
+  As: { css: '#918d00', radiusA: 0.6, label: 'As donor' }, // olive gold
+  Sb: { css: '#008663', radiusA: 0.7, label: 'Sb donor' }, // sea green
+  Bi: { css: '#663e00', radiusA: 0.8, label: 'Bi donor' }, // umber
+  B: { css: '#897ced', radiusA: 0.38, label: 'B acceptor' }, // periwinkle
 };
 
-export const SELECTED_CSS = '#f6c97a';
+/** a selected site: near-black, and drawn SELECTED_SCALE times larger */
+export const SELECTED_CSS = '#1b1a17';
+export const SELECTED_SCALE = 1.3;
+/** far-field warnings on the canvas (rings round sites, tinted box faces); the app's garnet */
 export const WARNING_CSS = '#b9354a';
+
+/** The canvas' own colours: its ground, the domain box, bonds and the labels drawn over it. */
+export const CANVAS_THEME = {
+  /** the 3D ground (the app's wafer-50, a shade off the page's paper so the view reads as a pane) */
+  ground: '#f3f2ee',
+  /** domain-box edges; the face handles in the app's accent, so they read as things to grab, not as sites */
+  boxEdge: '#4e4b44',
+  boxFill: '#8e897e',
+  handle: '#0d7a6e',
+  bond: '#8e897e',
+  /** the active layer and its snap dots (the app's accent) */
+  layer: '#1fb3a3',
+  snapDot: '#0d7a6e',
+  /** labels over the canvas (scale bar, axes, legend, view buttons): ink on a near-opaque panel */
+  labelInk: '#292823',
+  labelMuted: '#4e4b44',
+  labelPanel: '#ffffff',
+  /** how opaque the label panels are over the ground (contrast is checked against the mix) */
+  labelPanelAlpha: 0.92,
+} as const;

@@ -8,11 +8,14 @@
  *  - far-field warnings: flagged sites ringed, flagged faces tinted;
  *  - tools: select (click, shift-click, drag a box), place a donor on the active (001) layer
  *    (snap dots near the pointer), move the selection with a handle that snaps to lattice sites;
- *  - views along [001], [100], [110], fit-to-view, a scale bar in nm;
+ *  - views along [001], [100], [110], fit-to-view, a scale bar in nm, the crystal axes in a corner;
+ *  - a light ground and our own species palette (palette.ts: CANVAS_THEME, SPECIES_STYLE);
  *  - `window.__tetrawellCanvasStats`: draw calls and triangles of the last frame (renderer's own
- *    counters), recent frame times, instances per species — read by the browser tests.
+ *    counters), recent frame times, instances per species — read by the browser tests;
+ *  - `window.__tetrawellCanvasProbe.toScreen(p)`: where a scene point (nm) is on the page (CSS px)
+ *    and how far it is from the camera, so the browser tests can aim real mouse drags at handles.
  */
-import { ringSegments } from './markerDetail';
+import { ringSegments, sphereSegments } from './markerDetail';
 import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, type MutableRefObject } from 'react';
 import { Canvas, useFrame, useThree, type ThreeEvent } from '@react-three/fiber';
 import { Html, OrbitControls, TransformControls } from '@react-three/drei';
@@ -22,7 +25,8 @@ import type { FarFieldReport } from '../../../../../geometry/farfield';
 import { bondGraph } from '../../../../../geometry/arrays';
 import { siteToNm, snapToLattice } from '../../../../../geometry/lattice';
 import type { Species } from '../../../../../geometry/design/types';
-import { SELECTED_CSS, SPECIES_ORDER, SPECIES_STYLE, WARNING_CSS } from '../palette';
+import { CANVAS_THEME, SELECTED_CSS, SELECTED_SCALE, SPECIES_ORDER, SPECIES_STYLE, WARNING_CSS } from '../palette';
+import { AxisTriad, type AxisDirections } from './AxisTriad';
 import type { Vec3 } from '../editorStore';
 import { layerPointsNear, snapInLayer } from './layerSnap';
 
@@ -42,9 +46,15 @@ export interface CanvasStats {
   frames: number;
 }
 
+/** Test hook: a scene point (nm) → page coordinates (CSS px, as mouse events use) and camera distance (nm). */
+export interface CanvasProbe {
+  toScreen: (p: [number, number, number]) => { x: number; y: number; distance: number };
+}
+
 declare global {
   interface Window {
     __tetrawellCanvasStats?: CanvasStats;
+    __tetrawellCanvasProbe?: CanvasProbe;
   }
 }
 
@@ -73,19 +83,27 @@ export interface DesignCanvasProps {
 }
 
 const tmpMatrix = new THREE.Matrix4();
+/** Pointer-downs a box-face handle took: the canvas' selection band leaves these alone. */
+const claimedByHandle = new WeakSet<Event>();
 const tmpColor = new THREE.Color();
+/** labels over the canvas: ink on a near-opaque white panel (contrast checked in tests/app/palette.test.ts) */
+const labelPanel = { color: CANVAS_THEME.labelInk, background: `color-mix(in srgb, ${CANVAS_THEME.labelPanel} ${CANVAS_THEME.labelPanelAlpha * 100}%, transparent)`, boxShadow: '0 0 0 1px rgb(0 0 0 / 0.08)' } as const;
 
-function SpeciesInstances({ species, sites, unit, selected, onPick }: { species: Species; sites: { id: string; position: number[] }[]; unit: number; selected: ReadonlySet<string>; onPick: (id: string, e: ThreeEvent<MouseEvent>) => void }) {
+function SpeciesInstances({ species, sites, totalSites, unit, selected, onPick }: { species: Species; sites: { id: string; position: number[] }[]; totalSites: number; unit: number; selected: ReadonlySet<string>; onPick: (id: string, e: ThreeEvent<MouseEvent>) => void }) {
   const ref = useRef<THREE.InstancedMesh>(null);
   const style = SPECIES_STYLE[species];
   const r = style.radiusA * unit;
+  const seg = sphereSegments(totalSites);
   useLayoutEffect(() => {
     const mesh = ref.current;
     if (!mesh) return;
     sites.forEach((s, i) => {
-      tmpMatrix.makeScale(r, r, r).setPosition(s.position[0], s.position[1], s.position[2]);
+      // a selected site: darker and larger (a second cue besides colour)
+      const on = selected.has(s.id);
+      const ri = on ? r * SELECTED_SCALE : r;
+      tmpMatrix.makeScale(ri, ri, ri).setPosition(s.position[0], s.position[1], s.position[2]);
       mesh.setMatrixAt(i, tmpMatrix);
-      mesh.setColorAt(i, tmpColor.set(selected.has(s.id) ? SELECTED_CSS : style.css));
+      mesh.setColorAt(i, tmpColor.set(on ? SELECTED_CSS : style.css));
     });
     mesh.instanceMatrix.needsUpdate = true;
     if (mesh.instanceColor) mesh.instanceColor.needsUpdate = true;
@@ -93,7 +111,7 @@ function SpeciesInstances({ species, sites, unit, selected, onPick }: { species:
   }, [sites, selected, r, style.css]);
   return (
     <instancedMesh
-      key={sites.length > 2000 ? `${sites.length}-coarse` : sites.length}
+      key={`${sites.length}-${seg.width}`}
       ref={ref}
       name={`sites-${species}`}
       args={[undefined, undefined, sites.length]}
@@ -103,8 +121,8 @@ function SpeciesInstances({ species, sites, unit, selected, onPick }: { species:
         onPick(sites[e.instanceId].id, e);
       }}
     >
-      {/* fewer facets for large arrays: 10,000 spheres stay at about a million triangles */}
-      <sphereGeometry args={sites.length > 2000 ? [1, 8, 6] : [1, 16, 12]} />
+      {/* fewer facets for large designs: 10,000 spheres stay under a million triangles */}
+      <sphereGeometry args={[1, seg.width, seg.height]} />
       <meshStandardMaterial color="#ffffff" roughness={0.45} metalness={0.05} />
     </instancedMesh>
   );
@@ -211,6 +229,7 @@ function DomainBox({ doc, report, readOnly, onPreview, onCommit }: { doc: Design
   const startDrag = (e: ThreeEvent<PointerEvent>) => {
     if (readOnly || e.instanceId === undefined || e.button !== 0) return;
     e.stopPropagation();
+    claimedByHandle.add(e.nativeEvent);
     const face = FACE_AXES[e.instanceId];
     const orbit = getThree().controls as unknown as { enabled: boolean } | null;
     if (orbit) orbit.enabled = false;
@@ -253,20 +272,20 @@ function DomainBox({ doc, report, readOnly, onPreview, onCommit }: { doc: Design
     <group>
       <mesh position={center} raycast={() => null} renderOrder={2}>
         <boxGeometry args={[2 * h[0], 2 * h[1], 2 * h[2]]} />
-        <meshBasicMaterial color="#7de3d3" transparent opacity={0.07} depthWrite={false} side={THREE.DoubleSide} />
+        <meshBasicMaterial color={CANVAS_THEME.boxFill} transparent opacity={0.06} depthWrite={false} side={THREE.DoubleSide} />
       </mesh>
       <lineSegments position={center} geometry={boxEdges} raycast={() => null}>
-        <lineBasicMaterial color="#0d7a6e" />
+        <lineBasicMaterial color={CANVAS_THEME.boxEdge} />
       </lineSegments>
       {flagged.size > 0 && (
         <mesh geometry={faceGeometry} raycast={() => null} renderOrder={3}>
-          <meshBasicMaterial color={WARNING_CSS} transparent opacity={0.22} depthWrite={false} side={THREE.DoubleSide} />
+          <meshBasicMaterial color={WARNING_CSS} transparent opacity={0.12} depthWrite={false} side={THREE.DoubleSide} />
         </mesh>
       )}
       {!readOnly && (
         <instancedMesh ref={handles} args={[undefined, undefined, 6]} onPointerDown={startDrag} name="domain-box-handles">
           <boxGeometry args={[1, 1, 1]} />
-          <meshStandardMaterial color="#3fd0bd" emissive="#0d7a6e" />
+          <meshStandardMaterial color={CANVAS_THEME.handle} roughness={0.6} />
         </instancedMesh>
       )}
     </group>
@@ -313,7 +332,7 @@ function Bonds({ doc }: { doc: DesignDocument }) {
         }}
         onPointerOut={() => setHover(null)}
       >
-        <lineBasicMaterial color="#566d82" transparent opacity={0.7} />
+        <lineBasicMaterial color={CANVAS_THEME.bond} />
       </lineSegments>
       {hover && (
         <Html position={hover.at} center style={{ pointerEvents: 'none' }}>
@@ -352,11 +371,11 @@ function PlacementGuide({ doc, layerK, species, onPlace }: { doc: DesignDocument
         }}
       >
         <planeGeometry args={[span, span]} />
-        <meshBasicMaterial transparent opacity={0.04} color="#1fb3a3" depthWrite={false} side={THREE.DoubleSide} />
+        <meshBasicMaterial transparent opacity={0.06} color={CANVAS_THEME.layer} depthWrite={false} side={THREE.DoubleSide} />
       </mesh>
       {pointer && (
         <points geometry={dots} raycast={() => null}>
-          <pointsMaterial color="#0d7a6e" size={4} sizeAttenuation={false} />
+          <pointsMaterial color={CANVAS_THEME.snapDot} size={4} sizeAttenuation={false} />
         </points>
       )}
       {ghost && (
@@ -369,7 +388,12 @@ function PlacementGuide({ doc, layerK, species, onPlace }: { doc: DesignDocument
   );
 }
 
-/** A translate handle at the selection's centroid; each moved site snaps to its nearest lattice site. */
+/**
+ * A translate handle at the selection's centroid; each moved site snaps to its nearest lattice site.
+ * The drag works from the sites as they were when it began: while it runs, the canvas draws the
+ * preview document, whose moved sites must not become the reference (else the release compares the
+ * preview with itself and the move is lost).
+ */
 function MoveHandle({ doc, selection, onPreview, onCommit }: { doc: DesignDocument; selection: readonly string[]; onPreview: (d: DesignDocument | null) => void; onCommit: (p: Record<string, Vec3>) => void }) {
   const group = useRef<THREE.Group>(null);
   const picked = useMemo(() => doc.sites.filter((s) => selection.includes(s.id)), [doc.sites, selection]);
@@ -378,14 +402,15 @@ function MoveHandle({ doc, selection, onPreview, onCommit }: { doc: DesignDocume
     for (const s of picked) for (let k = 0; k < 3; k++) c[k] += s.position[k] / picked.length;
     return c;
   }, [picked]);
+  const start = useRef<{ doc: DesignDocument; picked: typeof picked; centroid: Vec3 } | null>(null);
   const pending = useRef<Record<string, Vec3> | null>(null);
   if (picked.length === 0) return null;
   const a = doc.host.latticeConstantNm;
-  const snappedMove = (): Record<string, Vec3> => {
+  const snappedMove = (from: NonNullable<typeof start.current>): Record<string, Vec3> => {
     const g = group.current!;
-    const d = [g.position.x - centroid[0], g.position.y - centroid[1], g.position.z - centroid[2]];
+    const d = [g.position.x - from.centroid[0], g.position.y - from.centroid[1], g.position.z - from.centroid[2]];
     const out: Record<string, Vec3> = {};
-    for (const s of picked) out[s.id] = siteToNm(snapToLattice([s.position[0] + d[0], s.position[1] + d[1], s.position[2] + d[2]], a), a);
+    for (const s of from.picked) out[s.id] = siteToNm(snapToLattice([s.position[0] + d[0], s.position[1] + d[1], s.position[2] + d[2]], a), a);
     return out;
   };
   return (
@@ -395,17 +420,23 @@ function MoveHandle({ doc, selection, onPreview, onCommit }: { doc: DesignDocume
         object={group as unknown as MutableRefObject<THREE.Object3D>}
         mode="translate"
         size={0.8}
+        onMouseDown={() => {
+          start.current = { doc, picked, centroid };
+        }}
         onObjectChange={() => {
-          const moved = snappedMove();
+          const from = start.current;
+          if (!from) return;
+          const moved = snappedMove(from);
           pending.current = moved;
-          onPreview({ ...doc, sites: doc.sites.map((s) => (moved[s.id] ? { ...s, position: moved[s.id] } : s)) });
+          onPreview({ ...from.doc, sites: from.doc.sites.map((s) => (moved[s.id] ? { ...s, position: moved[s.id] } : s)) });
         }}
         onMouseUp={() => {
-          const moved = pending.current;
+          const moved = pending.current, from = start.current;
           pending.current = null;
+          start.current = null;
           onPreview(null);
-          if (moved && picked.some((s) => moved[s.id].some((v, k) => Math.abs(v - s.position[k]) > 1e-12))) onCommit(moved);
-          else group.current?.position.set(...centroid);
+          if (moved && from && from.picked.some((s) => moved[s.id].some((v, k) => Math.abs(v - s.position[k]) > 1e-12))) onCommit(moved);
+          else if (from) group.current?.position.set(...from.centroid);
         }}
       />
     </>
@@ -413,7 +444,7 @@ function MoveHandle({ doc, selection, onPreview, onCommit }: { doc: DesignDocume
 }
 
 /** Camera commands for the toolbar and keyboard, the scale bar, and the renderer statistics. */
-function Rig({ doc, onViewApi, onScale }: { doc: DesignDocument; onViewApi: (api: ViewApi | null) => void; onScale: (widthPx: number, label: string) => void }) {
+function Rig({ doc, onViewApi, onScale, onAxes }: { doc: DesignDocument; onViewApi: (api: ViewApi | null) => void; onScale: (widthPx: number, label: string) => void; onAxes: (d: AxisDirections) => void }) {
   const { camera, controls, size, gl } = useThree();
   const docRef = useRef(doc);
   useEffect(() => {
@@ -456,6 +487,21 @@ function Rig({ doc, onViewApi, onScale }: { doc: DesignDocument; onViewApi: (api
     return () => onViewApi(null);
   }, [camera, controls, onViewApi]);
 
+  useEffect(() => {
+    const v = new THREE.Vector3();
+    window.__tetrawellCanvasProbe = {
+      toScreen: (p) => {
+        camera.updateMatrixWorld();
+        const rect = gl.domElement.getBoundingClientRect();
+        v.set(p[0], p[1], p[2]).project(camera);
+        return { x: rect.left + ((v.x + 1) / 2) * rect.width, y: rect.top + ((1 - v.y) / 2) * rect.height, distance: camera.position.distanceTo(new THREE.Vector3(p[0], p[1], p[2])) };
+      },
+    };
+    return () => {
+      delete window.__tetrawellCanvasProbe;
+    };
+  }, [camera, gl]);
+
   // This frame callback (priority 1) takes over rendering, so it can time the render and read the
   // renderer's own counters for exactly this frame. The canvas renders on demand (an orbit, an edit,
   // a hover), not in a loop, so an idle workspace costs no CPU.
@@ -482,6 +528,13 @@ function Rig({ doc, onViewApi, onScale }: { doc: DesignDocument; onViewApi: (api
     const p = Math.pow(10, Math.floor(Math.log10(want)));
     const nice = [1, 2, 5, 10].map((m) => m * p).reduce((best, v) => (Math.abs(v - want) < Math.abs(best - want) ? v : best));
     onScale(Math.round(nice / nmPerPx), `${nice >= 1 ? nice.toFixed(0) : nice.toPrecision(1)} nm`);
+    // the crystal axes as the camera sees them (view-space x right, y up)
+    const m = camera.matrixWorldInverse.elements;
+    onAxes([
+      [m[0], m[1]],
+      [m[4], m[5]],
+      [m[8], m[9]],
+    ]);
   }, 1);
   useEffect(() => {
     const counts: Partial<Record<Species, number>> = {};
@@ -529,6 +582,8 @@ export default function DesignCanvas(props: DesignCanvasProps) {
     return doc.sites.filter((s) => ids.has(s.id)).map((s) => s.position);
   }, [doc.sites, report]);
   const scaleBar = useRef<HTMLDivElement>(null);
+  const axesApi = useRef<((d: AxisDirections) => void) | null>(null);
+  const onAxes = useCallback((d: AxisDirections) => axesApi.current?.(d), []);
   const scaleLabel = useRef<HTMLSpanElement>(null);
   const wrapper = useRef<HTMLDivElement>(null);
   const cameraRef = useRef<THREE.Camera | null>(null);
@@ -549,7 +604,8 @@ export default function DesignCanvas(props: DesignCanvasProps) {
 
   // box select: in the select tool a left drag on the canvas draws a band; sites projected inside it are selected
   const onPointerDown = (e: React.PointerEvent) => {
-    if (tool !== 'select' || e.button !== 0) return;
+    // three.js' own handler runs first (on the canvas), so a face handle has claimed its drag by now
+    if (tool !== 'select' || e.button !== 0 || claimedByHandle.has(e.nativeEvent)) return;
     const r = wrapper.current!.getBoundingClientRect();
     const x0 = e.clientX - r.left, y0 = e.clientY - r.top;
     let last = { x0, y0, x1: x0, y1: y0 };
@@ -582,7 +638,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
   const c = doc.enclosure.center;
 
   return (
-    <div ref={wrapper} role="region" aria-label="Design canvas" className="relative h-full min-h-[320px] lg:min-h-0 overflow-hidden rounded-md bg-wafer-950" onPointerDown={onPointerDown}>
+    <div ref={wrapper} role="region" aria-label="Design canvas" className="relative h-full min-h-[320px] overflow-hidden rounded-md border border-wafer-200 lg:min-h-0" style={{ background: CANVAS_THEME.ground }} onPointerDown={onPointerDown}>
       <Canvas
         frameloop="demand"
         camera={{ position: [c[0] + initialDist * 0.55, c[1] - initialDist * 0.75, c[2] + initialDist * 0.6], up: [0, 0, 1], fov: 40, near: 0.01, far: 1e5 }}
@@ -595,7 +651,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
           if (tool === 'select' && !e.shiftKey) props.onSelect([], 'replace');
         }}
       >
-        <color attach="background" args={['#0b131a']} />
+        <color attach="background" args={[CANVAS_THEME.ground]} />
         <ambientLight intensity={1.1} />
         <directionalLight position={[30, -40, 60]} intensity={2.2} />
         <directionalLight position={[-40, 30, -20]} intensity={0.6} />
@@ -605,9 +661,9 @@ export default function DesignCanvas(props: DesignCanvasProps) {
           enableDamping={false}
           mouseButtons={tool === 'select' ? { LEFT: -1 as unknown as THREE.MOUSE, MIDDLE: THREE.MOUSE.PAN, RIGHT: THREE.MOUSE.ROTATE } : { LEFT: THREE.MOUSE.ROTATE, MIDDLE: THREE.MOUSE.DOLLY, RIGHT: THREE.MOUSE.PAN }}
         />
-        <Rig doc={doc} onViewApi={onViewApi} onScale={onScale} />
+        <Rig doc={doc} onViewApi={onViewApi} onScale={onScale} onAxes={onAxes} />
         {SPECIES_ORDER.filter((sp) => bySpecies.has(sp)).map((sp) => (
-          <SpeciesInstances key={sp} species={sp} sites={bySpecies.get(sp)!} unit={unit} selected={selected} onPick={onPick} />
+          <SpeciesInstances key={sp} species={sp} sites={bySpecies.get(sp)!} totalSites={doc.sites.length} unit={unit} selected={selected} onPick={onPick} />
         ))}
         <WarnedSites positions={warnedPositions} radius={1.1 * unit} />
         <Bonds doc={doc} />
@@ -618,30 +674,35 @@ export default function DesignCanvas(props: DesignCanvasProps) {
       {band && (
         <div
           aria-hidden="true"
-          className="pointer-events-none absolute border border-phosphor-300 bg-phosphor-300/15"
+          className="pointer-events-none absolute border border-phosphor-700 bg-phosphor-500/10"
           style={{ left: Math.min(band.x0, band.x1), top: Math.min(band.y0, band.y1), width: Math.abs(band.x1 - band.x0), height: Math.abs(band.y1 - band.y0) }}
         />
       )}
-      <div className="pointer-events-none absolute bottom-2 left-2 flex flex-col gap-1 rounded bg-wafer-950/80 px-2 py-1.5 text-fine text-wafer-100">
-        <div className="flex items-center gap-2">
-          <div ref={scaleBar} className="h-1.5 border-x border-b border-wafer-100" style={{ width: 100 }} />
-          <span ref={scaleLabel} className="num">— nm</span>
-        </div>
+      <AxisTriad apiRef={axesApi} />
+      <div className="pointer-events-none absolute bottom-2 left-2 flex items-center gap-2 rounded px-2 py-1.5 text-fine" style={labelPanel}>
+        <div ref={scaleBar} className="h-1.5 border-x-2 border-b-2" style={{ width: 100, borderColor: CANVAS_THEME.labelInk }} />
+        <span ref={scaleLabel} className="num font-semibold">— nm</span>
       </div>
-      <ul aria-label="Species legend" className="pointer-events-none absolute bottom-2 right-2 space-y-0.5 rounded bg-wafer-950/80 px-2 py-1.5 text-fine text-wafer-100">
+      <ul aria-label="Species legend" className="pointer-events-none absolute bottom-2 right-2 space-y-0.5 rounded px-2 py-1.5 text-fine" style={labelPanel}>
         {legend.map((sp) => (
           <li key={sp} className="flex items-center gap-1.5">
             <span aria-hidden="true" className="inline-block rounded-full" style={{ background: SPECIES_STYLE[sp].css, width: 6 + 8 * SPECIES_STYLE[sp].radiusA, height: 6 + 8 * SPECIES_STYLE[sp].radiusA }} />
-            {SPECIES_STYLE[sp].label} <span className="num text-wafer-300">× {bySpecies.get(sp)!.length}</span>
+            {SPECIES_STYLE[sp].label} <span className="num" style={{ color: CANVAS_THEME.labelMuted }}>× {bySpecies.get(sp)!.length.toLocaleString('en-US')}</span>
           </li>
         ))}
+        {selection.length > 0 && (
+          <li className="flex items-center gap-1.5">
+            <span aria-hidden="true" className="inline-block h-3 w-3 rounded-full" style={{ background: SELECTED_CSS }} />
+            selected (drawn larger)
+          </li>
+        )}
         {warnedPositions.length > 0 && (
           <li className="flex items-center gap-1.5">
             <span aria-hidden="true" className="inline-block h-3 w-3 rounded-full border-2" style={{ borderColor: WARNING_CSS }} />
             far-field warning
           </li>
         )}
-        <li className="text-wafer-300">sphere size tells species apart too</li>
+        <li style={{ color: CANVAS_THEME.labelMuted }}>sphere size tells species apart too</li>
       </ul>
     </div>
   );

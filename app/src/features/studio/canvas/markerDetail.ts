@@ -15,3 +15,15 @@ export function ringSegments(count: number): { radial: number; tubular: number }
 export function torusTriangles(seg: { radial: number; tubular: number }): number {
   return 2 * seg.radial * seg.tubular;
 }
+
+/**
+ * Site spheres: fine up to SPHERE_COARSE_ABOVE sites in the whole design, coarse above. The choice
+ * goes by the total, not by each species' count: five species of 2,000 sites each are as many
+ * spheres as one of 10,000, and must not be drawn finer.
+ */
+export const SPHERE_COARSE_ABOVE = 2000;
+
+/** sphere width and height segment counts when the design has `totalSites` sites */
+export function sphereSegments(totalSites: number): { width: number; height: number } {
+  return totalSites > SPHERE_COARSE_ABOVE ? { width: 8, height: 6 } : { width: 16, height: 12 };
+}
