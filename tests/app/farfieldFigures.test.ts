@@ -20,7 +20,7 @@ describe('far-field panel figures', () => {
   });
 
   it('every formatted number carries its unit; missing values are a dash', () => {
-    expect(percent(0.00123)).toBe('0.123 %');
+    expect(percent(0.00123)).toBe('0.123\u00a0%'); // no-break space: the unit never wraps away from its number
     expect(meV(0.0456)).toBe('45.6 meV');
     expect(nm(12.3456)).toBe('12.35 nm');
     expect(percent(null)).toBe('—');

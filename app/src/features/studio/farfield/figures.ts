@@ -26,7 +26,8 @@ export function worstV(r: FarFieldReport): { value: number | null; count: number
 /** A fraction as a percentage with three significant digits: 0.00123 → "0.123 %". */
 export function percent(x: number | null): string {
   if (x === null || !Number.isFinite(x)) return '—';
-  return `${(100 * x).toPrecision(3)} %`;
+  // a no-break space (U+00A0) keeps the unit on the line of its number when a panel wraps
+  return `${(100 * x).toPrecision(3)}\u00a0%`;
 }
 
 /** An energy in eV shown in meV, three significant digits. */
