@@ -30,6 +30,10 @@ describe('editOrbital', () => {
     expect('error' in big && big.error).toMatch(/^Radius \(nm\)/);
     const neg = editOrbital(p1, 'anisotropic-1s', { size: '2', sizeZ: '-1' });
     expect('error' in neg && neg.error).toMatch(/^Radius along \[001\] \(nm\)/);
+    // the range in plain words with the unit, not the validator's own phrasing
+    expect('error' in big && big.error).toBe(`Radius (nm): must be at most ${MAX_RADIUS_NM} nm.`);
+    const tiny = editOrbital(p1, 'gaussian', { size: '1e-6', sizeZ: '' });
+    expect('error' in tiny && tiny.error).toMatch(/^Sigma \(nm\): must be (at least|more than) [0-9.e-]+ nm\.$/);
   });
   it('"preset" drops the override and the fields read back what was set', () => {
     const withG = { ...p1, orbital: { model: 'gaussian' as const, sigmaNm: 1.1 } };

@@ -43,7 +43,14 @@ export function editOrbital(site: Site, model: OrbitalChoice, f: OrbitalFields):
     const iss = parsed.error.issues[0];
     const key = String(iss.path.at(-1));
     const label = key === 'radiusZNm' ? 'Radius along [001]' : sizeName;
-    return { error: `${label} (nm): ${iss.message}` };
+    return { error: `${label} (nm): ${plainWords(iss)}` };
   }
   return { site: next };
+}
+
+/** zod's range issues in words with the unit ("must be at least 0.0001 nm"); other issues as zod words them */
+function plainWords(iss: { code: string; message: string; minimum?: unknown; maximum?: unknown; inclusive?: boolean }): string {
+  if (iss.code === 'too_small' && typeof iss.minimum === 'number') return `must be ${iss.inclusive === false ? 'more than' : 'at least'} ${iss.minimum} nm.`;
+  if (iss.code === 'too_big' && typeof iss.maximum === 'number') return `must be ${iss.inclusive === false ? 'less than' : 'at most'} ${iss.maximum} nm.`;
+  return iss.message;
 }
