@@ -8,7 +8,6 @@ import type { AddressInfo } from 'node:net';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import session from 'express-session';
-import connectPgSimple from 'connect-pg-simple';
 import pg from 'pg';
 import type { Express } from 'express';
 import type { Knex } from 'knex';
@@ -18,6 +17,7 @@ import { createMailer } from './mail/mailer';
 import { createServices, type Services } from './services';
 import { createApp } from './app';
 import { createDesignBodyReader } from './http/designBody';
+import { createSessionStore } from './http/sessionStore';
 import { consoleLogger, DEFAULT_BODY_LIMIT, DEFAULT_RATE_LIMITS, type ServerOptions } from './config';
 import { queueName, sendOptions, startBoss } from './jobs/queue';
 import { DEFAULT_JOB_SETTINGS } from './jobs/settings';
@@ -50,16 +50,9 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   // listens on its own connections already (dialects/postgres: connection.on('error')).
   const sessionPool = new pg.Pool({ connectionString: opts.databaseUrl, max: 5, connectionTimeoutMillis: 5_000 });
   sessionPool.on('error', (err) => logger.warn('session store: an idle database connection ended:', err.message));
-  const PgStore = connectPgSimple(session);
-  const sessionStore = new PgStore({
-    pool: sessionPool,
-    tableName: 'sessions',
-    createTableIfMissing: false,
-    // expired rows (mostly short anonymous sessions) are deleted this often (±50 %, randomised by the store)
-    pruneSessionInterval: opts.sessionPruneIntervalSeconds ?? 5 * 60,
-    // No UPDATE of the row's expiry on every request: the browser's cookie is not renewed either (rolling: false),
-    // so a sign-in lasts sessionMaxAgeMs from sign-in whatever the store does; the write per request only cost time.
-    disableTouch: true,
+  // connect-pg-simple, reading the signed-in account in the same query as the session (server/http/sessionStore.ts)
+  const { store: sessionStore, userOf: sessionUser } = createSessionStore(session, sessionPool, {
+    pruneSessionIntervalSeconds: opts.sessionPruneIntervalSeconds ?? 5 * 60,
     errorLog: (...args: unknown[]) => logger.error('session store:', ...args),
   });
 
@@ -105,6 +98,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   const app = createApp({
     services,
     sessionStore,
+    sessionUser,
     sessionSecret,
     sessionMaxAgeMs: opts.sessionMaxAgeMs ?? 7 * 24 * 3_600_000,
     anonymousSessionMaxAgeMs: opts.anonymousSessionMaxAgeMs ?? 60 * 60_000,
