@@ -38,14 +38,22 @@ export interface DesignVersionRecord {
   createdBy: string | null;
 }
 
-/** What a save writes: the current row and the new version row get the same figures. */
-export interface DesignWrite {
+/**
+ * What a save writes: the current row and the new version row get the same figures. The document is JSON text,
+ * or (from the off-thread reader, server/http/designBody.worker.ts) `documentJsonb`: the bytes of PostgreSQL's
+ * jsonb binary input, a version byte 1 then the UTF-8 text (PostgreSQL docs, jsonb_recv in
+ * src/backend/utils/adt/jsonb.c). pg sends a Buffer parameter in binary format as it is, so a 17 MB document is
+ * never encoded to UTF-8 on the request thread (it was, twice: current row and version row).
+ */
+export type DesignWrite = {
   name: string;
-  documentJson: string;
   siteCount: number;
   worstRelBound: number | null;
   sha256: string;
-}
+} & ({ documentJson: string; documentJsonb?: undefined } | { documentJsonb: Buffer; documentJson?: undefined });
+
+/** The document as the query parameter: text, or the jsonb binary bytes (a Buffer goes in binary format). */
+const documentParam = (w: DesignWrite): string | Buffer => w.documentJsonb ?? w.documentJson;
 
 interface DesignRow {
   id: number;
@@ -126,7 +134,7 @@ export function designsRepo(db: Db) {
         .insert({
           project_id: projectId,
           name: w.name,
-          document: w.documentJson,
+          document: documentParam(w),
           site_count: w.siteCount,
           worst_rel_bound: w.worstRelBound,
           created_by: userId,
@@ -143,7 +151,7 @@ export function designsRepo(db: Db) {
         .where({ project_id: projectId, id: designId, version })
         .update({
           name: w.name,
-          document: w.documentJson,
+          document: documentParam(w),
           site_count: w.siteCount,
           worst_rel_bound: w.worstRelBound,
           version: db.raw('version + 1'),
@@ -162,7 +170,7 @@ export function designsRepo(db: Db) {
         version,
         name: w.name,
         site_count: w.siteCount,
-        document: w.documentJson,
+        document: documentParam(w),
         sha256: w.sha256,
         created_by: userId,
       });
