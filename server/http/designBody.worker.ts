@@ -15,6 +15,10 @@ import type { DesignWrite } from '../repositories/designs';
 import { issuesToDetails, type FieldIssue } from '../services/errors';
 import { computeFigures } from '../workers/designFigures';
 import { findTextProblems, textProblemsAnswer } from './wellFormed';
+import { lowerThreadPriority } from '../workers/lowPriority';
+
+// requests and the database come first on a busy machine (server/workers/lowPriority.ts)
+lowerThreadPriority();
 
 /** `create`: POST …/designs ({ name, document? } or { name, copyOf }); `update`: PUT …/designs/:designId. */
 export type DesignBodyKind = 'create' | 'update';

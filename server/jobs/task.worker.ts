@@ -7,6 +7,10 @@ import type { JobKind, JobOptions } from '@contracts/api';
 import type { Design } from '../../geometry/design/types';
 import { JobRefusal, runPipeline } from './pipeline';
 import { packFile, type PackedFile } from './storage';
+import { lowerThreadPriority } from '../workers/lowPriority';
+
+// requests and the database come first on a busy machine (server/workers/lowPriority.ts)
+lowerThreadPriority();
 
 export interface TaskInput {
   kind: JobKind;
