@@ -114,8 +114,8 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
     }
     if (!(await repo.markRunning(jobId))) return settle('complete', kind, bj.id);
     const job = (await repo.byId(jobId))!;
-    const version = await designsRepo(knex).getVersion(job.designId, job.designVersion);
-    if (!version) {
+    const documentJson = await designsRepo(knex).getVersionText(job.designId, job.designVersion);
+    if (documentJson === null) {
       await repo.finish(jobId, 'failed', { error: `Version ${job.designVersion} of the design is no longer stored, so there is nothing to compute.` });
       return settle('complete', kind, bj.id);
     }
@@ -144,7 +144,7 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
     const t0 = performance.now();
     let out;
     try {
-      out = await threads.run({ kind, documentJson: JSON.stringify(version.document), options: job.options, chunkBytes: settings.chunkBytes }, { onProgress, signal: ac.signal });
+      out = await threads.run({ kind, documentJson, options: job.options, chunkBytes: settings.chunkBytes }, { onProgress, signal: ac.signal });
     } catch (e) {
       if (ac.signal.aborted) return settle('complete', kind, bj.id);
       return fault(kind, bj, words(e));

@@ -190,6 +190,15 @@ export function designsRepo(db: Db) {
       return rows.map(toVersion);
     },
 
+    /**
+     * A version's document as JSON text, for a job thread that parses it itself: `document::text` comes from
+     * PostgreSQL as a string, so the caller's thread neither parses the jsonb (pg would) nor stringifies it again.
+     */
+    async getVersionText(designId: number, version: number): Promise<string | null> {
+      const r = (await db('design_versions').where({ design_id: designId, version }).first(db.raw('document::text as document'))) as { document: string } | undefined;
+      return r?.document ?? null;
+    },
+
     async getVersion(designId: number, version: number): Promise<(DesignVersionRecord & { document: unknown }) | null> {
       const r = (await db('design_versions as v')
         .leftJoin('users as u', 'u.id', 'v.created_by')

@@ -30,7 +30,8 @@ const here = path.dirname(fileURLToPath(import.meta.url));
 const root = path.resolve(here, '..', '..');
 const READ_SECONDS = 10;
 const CONNECTIONS = 20;
-const PUT_ROUNDS = 2;
+/** TETRAWELL_BENCH_PUT_ROUNDS overrides (e.g. 1 for a quick profile) */
+const PUT_ROUNDS = Number(process.env.TETRAWELL_BENCH_PUT_ROUNDS ?? 2);
 const PUTS_PER_ROUND = 4;
 /** silicon lattice constant, nm (CODATA 2018) */
 const A = 0.5431020511;
