@@ -141,7 +141,7 @@ export function designsRepo(db: Db) {
           updated_by: userId,
         })
         .returning(['id', 'version'])) as { id: number; version: number }[];
-      await repo.insertVersion(r.id, r.version, w, userId);
+      await repo.insertVersionFromCurrent(r.id, w.sha256, userId);
       return r.id;
     },
 
@@ -160,20 +160,21 @@ export function designsRepo(db: Db) {
         })
         .returning(['version'])) as { version: number }[];
       if (!r) return null;
-      await repo.insertVersion(designId, r.version, w, userId);
+      await repo.insertVersionFromCurrent(designId, w.sha256, userId);
       return r.version;
     },
 
-    async insertVersion(designId: number, version: number, w: DesignWrite, userId: number | null): Promise<void> {
-      await db('design_versions').insert({
-        design_id: designId,
-        version,
-        name: w.name,
-        site_count: w.siteCount,
-        document: documentParam(w),
-        sha256: w.sha256,
-        created_by: userId,
-      });
+    /**
+     * The version row of what the current row now holds, copied inside PostgreSQL: the document (up to ~17 MB)
+     * travels from the server once per save, not twice (current row and version row). Call it in the
+     * transaction that wrote the current row.
+     */
+    async insertVersionFromCurrent(designId: number, sha256: string, userId: number | null): Promise<void> {
+      await db.raw(
+        `INSERT INTO design_versions (design_id, version, name, site_count, document, sha256, created_by)
+         SELECT id, version, name, site_count, document, ?, ? FROM designs WHERE id = ?`,
+        [sha256, userId, designId],
+      );
     },
 
     async delete(projectId: number, designId: number): Promise<boolean> {
