@@ -32,6 +32,8 @@ import './http/types';
 export interface AppDeps {
   services: Services;
   sessionStore: Store;
+  /** the account the store read with this request's session, when it did (server/http/sessionStore.ts) */
+  sessionUser?: (req: express.Request) => User | false | undefined;
   sessionSecret: string;
   /** lifetime of a signed-in session (cookie and stored row), counted from sign-in */
   sessionMaxAgeMs: number;
@@ -156,7 +158,11 @@ export function createApp(deps: AppDeps): Express {
     }),
   );
   pass.serializeUser<number>((user, done) => done(null, (user as User).id));
-  pass.deserializeUser<number>((id, done) => {
+  // three parameters: passport then passes the request first
+  pass.deserializeUser<number>((req: express.Request, id: number, done: (err: unknown, user?: User | false) => void) => {
+    // the store read the account with the session row (one round trip for both); false = the account is gone
+    const read = deps.sessionUser?.(req);
+    if (read !== undefined && (read === false || read.id === id)) return done(null, read);
     // a deleted account simply ends the session (false = signed out)
     services.auth.getUser(id).then((u) => done(null, u ?? false), done);
   });

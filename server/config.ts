@@ -3,6 +3,7 @@
  * Environment variables are read only in server/main.ts; everything below is plain values,
  * so tests can start the real server with their own settings.
  */
+import type { MailQueueSettings } from './mail/queue';
 import type { JobSettings } from './jobs/settings';
 
 export interface Logger {
@@ -100,6 +101,8 @@ export interface ServerOptions {
   /** how often expired session rows are deleted (5 minutes) */
   sessionPruneIntervalSeconds?: number;
   jobs?: JobOptionsConfig;
+  /** retries and polling of the mail queue (server/mail/queue.ts); the queue's name takes `jobs.settings.queuePrefix` */
+  mailQueue?: Partial<MailQueueSettings>;
 }
 
 /**

@@ -8,16 +8,17 @@ import type { AddressInfo } from 'node:net';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import session from 'express-session';
-import connectPgSimple from 'connect-pg-simple';
 import pg from 'pg';
 import type { Express } from 'express';
 import type { Knex } from 'knex';
 import type PgBoss from 'pg-boss';
 import { createKnex } from './db/config';
-import { createMailer } from './mail/mailer';
+import { createMailer, type Mailer } from './mail/mailer';
+import { DEFAULT_MAIL_QUEUE, mailKey, queuedMailer, startMailDelivery, type MailDelivery } from './mail/queue';
 import { createServices, type Services } from './services';
 import { createApp } from './app';
 import { createDesignBodyReader } from './http/designBody';
+import { createSessionStore } from './http/sessionStore';
 import { consoleLogger, DEFAULT_BODY_LIMIT, DEFAULT_RATE_LIMITS, type ServerOptions } from './config';
 import { queueName, sendOptions, startBoss } from './jobs/queue';
 import { DEFAULT_JOB_SETTINGS } from './jobs/settings';
@@ -50,16 +51,9 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   // listens on its own connections already (dialects/postgres: connection.on('error')).
   const sessionPool = new pg.Pool({ connectionString: opts.databaseUrl, max: 5, connectionTimeoutMillis: 5_000 });
   sessionPool.on('error', (err) => logger.warn('session store: an idle database connection ended:', err.message));
-  const PgStore = connectPgSimple(session);
-  const sessionStore = new PgStore({
-    pool: sessionPool,
-    tableName: 'sessions',
-    createTableIfMissing: false,
-    // expired rows (mostly short anonymous sessions) are deleted this often (±50 %, randomised by the store)
-    pruneSessionInterval: opts.sessionPruneIntervalSeconds ?? 5 * 60,
-    // No UPDATE of the row's expiry on every request: the browser's cookie is not renewed either (rolling: false),
-    // so a sign-in lasts sessionMaxAgeMs from sign-in whatever the store does; the write per request only cost time.
-    disableTouch: true,
+  // connect-pg-simple, reading the signed-in account in the same query as the session (server/http/sessionStore.ts)
+  const { store: sessionStore, userOf: sessionUser } = createSessionStore(session, sessionPool, {
+    pruneSessionIntervalSeconds: opts.sessionPruneIntervalSeconds ?? 5 * 60,
     errorLog: (...args: unknown[]) => logger.error('session store:', ...args),
   });
 
@@ -78,16 +72,35 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     passwordResetTtlMs: (opts.passwordResetTtlMinutes ?? 60) * 60_000,
     emailVerificationTtlMs: (opts.emailVerificationTtlHours ?? 48) * 3_600_000,
   };
-  const mailer = createMailer(opts.smtp, config.mailFrom, logger);
   const jobSettings = { ...DEFAULT_JOB_SETTINGS, ...opts.jobs?.settings };
+  // the SMTP transport; with SMTP configured, services and job e-mails queue their mail and this process
+  // delivers it from the queue with retries (server/mail/queue.ts); without, mail is logged and dropped as before
+  const smtpMailer = createMailer(opts.smtp, config.mailFrom, logger);
+  const mailSettings = { ...DEFAULT_MAIL_QUEUE, ...opts.mailQueue };
+  const sealKey = mailKey(sessionSecret);
+  let delivery: MailDelivery | null = null;
   // pg-boss starts in the background: the server answers (health 503 and all) while the database is down,
   // and a failed start is tried again at the next send
   let bossStarting: Promise<PgBoss> | null = null;
   const getBoss = () =>
-    (bossStarting ??= startBoss(opts.databaseUrl, jobSettings, logger).catch((e: unknown) => {
-      bossStarting = null;
-      throw e;
-    }));
+    (bossStarting ??= startBoss(opts.databaseUrl, jobSettings, logger)
+      .then(async (boss) => {
+        if (opts.smtp && !delivery) {
+          try {
+            delivery = await startMailDelivery({ boss, prefix: jobSettings.queuePrefix, key: sealKey, smtp: smtpMailer, settings: mailSettings });
+          } catch (e) {
+            logger.error(`Mail delivery from the queue could not start: ${e instanceof Error ? e.message : String(e)}`);
+          }
+        }
+        return boss;
+      })
+      .catch((e: unknown) => {
+        bossStarting = null;
+        throw e;
+      }));
+  const mailer: Mailer = opts.smtp
+    ? queuedMailer({ boss: getBoss, prefix: jobSettings.queuePrefix, key: sealKey, settings: mailSettings, logger, queued: () => delivery?.wake() })
+    : smtpMailer;
   getBoss().catch((e: unknown) => logger.warn(`The job queue is not ready yet (${e instanceof Error ? e.message : String(e)}); it is tried again when a job is started.`));
   const queue: JobQueue = {
     async send(kind, jobId, bossJobId) {
@@ -97,6 +110,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   };
   const stopBoss = async () => {
     const b = await bossStarting?.catch(() => null);
+    await delivery?.stop();
     await b?.stop({ graceful: false, wait: true });
   };
   const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() }, { queue, settings: jobSettings });
@@ -105,6 +119,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   const app = createApp({
     services,
     sessionStore,
+    sessionUser,
     sessionSecret,
     sessionMaxAgeMs: opts.sessionMaxAgeMs ?? 7 * 24 * 3_600_000,
     anonymousSessionMaxAgeMs: opts.anonymousSessionMaxAgeMs ?? 60 * 60_000,
@@ -130,7 +145,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   } catch (err) {
     sessionStore.close();
     await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), designBodies.destroy(), stopBoss()]);
-    mailer.close();
+    smtpMailer.close();
     throw err;
   }
   const workers = opts.jobs?.workers ?? 0;
@@ -169,8 +184,9 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
       // npm start sends SIGTERM 8 s after SIGINT: running jobs get 5 s, then their threads end and pg-boss retries them later
       await jobWorker?.stop(5_000);
       sessionStore.close();
-      mailer.close();
+      // a mail being handed to the SMTP server finishes first (stopBoss waits for it); the rest stays queued
       await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), designBodies.destroy(), stopBoss()]);
+      smtpMailer.close();
     })());
 
   return { url, port, app, knex, services, jobWorker, stop };

@@ -50,7 +50,10 @@ export function createDesignBodyReader(options: { maxThreads?: number } = {}): D
       const task: DesignBodyTask = { bytes, kind };
       const r = (await getPool().run(task, { transferList: [bytes.buffer as ArrayBuffer] })) as DesignBodyResult;
       if (!r.ok) throw new AppError(r.code, r.message, r.details);
-      return 'write' in r ? { prepared: r.write, version: r.version } : { body: r.body };
+      if (!('write' in r)) return { body: r.body };
+      // a Buffer view of the bytes that came back (no copy): pg sends a Buffer parameter in binary format
+      const b = r.write.documentJsonb;
+      return { prepared: { ...r.write, documentJsonb: Buffer.from(b.buffer, b.byteOffset, b.byteLength) }, version: r.version };
     },
     async destroy() {
       await pool?.destroy();

@@ -15,6 +15,10 @@ import type { DesignWrite } from '../repositories/designs';
 import { issuesToDetails, type FieldIssue } from '../services/errors';
 import { computeFigures } from '../workers/designFigures';
 import { findTextProblems, textProblemsAnswer } from './wellFormed';
+import { lowerThreadPriority } from '../workers/lowPriority';
+
+// requests and the database come first on a busy machine (server/workers/lowPriority.ts)
+lowerThreadPriority();
 
 /** `create`: POST …/designs ({ name, document? } or { name, copyOf }); `update`: PUT …/designs/:designId. */
 export type DesignBodyKind = 'create' | 'update';
@@ -26,16 +30,31 @@ export interface DesignBodyTask {
 
 export type DesignBodyResult =
   /** a document body, validated and ready to write; `version` is the one the save names (update only) */
-  | { ok: true; write: DesignWrite; version: number | null }
+  | { ok: true; write: PreparedInWorker; version: number | null }
   /** a body without a document ({ name, copyOf } or { name }): small, handed back for the ordinary path */
   | { ok: true; body: unknown }
   | { ok: false; code: 'bad_request' | 'validation_failed'; message: string; details?: FieldIssue[] };
 
 const BAD_JSON = 'The request body is not valid JSON (or holds a NUL character, which the server does not store).';
 
+/** The shape the result has in the worker: the jsonb bytes as a Uint8Array (a Buffer arrives as one anyway). */
+export type PreparedInWorker = Omit<DesignWrite, 'documentJsonb' | 'documentJson'> & { documentJsonb: Uint8Array };
+
+/**
+ * jsonb binary input: the version byte 1, then the UTF-8 JSON text (PostgreSQL, jsonb_recv). Encoded here, in the
+ * worker, into one pre-sized buffer, so the request thread neither encodes nor copies the text.
+ */
+function jsonbBytes(text: string): Uint8Array {
+  const out = new Uint8Array(1 + Buffer.byteLength(text, 'utf8'));
+  out[0] = 1;
+  new TextEncoder().encodeInto(text, out.subarray(1));
+  return out;
+}
+
 function prepared(doc: DesignDocument, version: number | null): DesignBodyResult {
   const documentJson = JSON.stringify(doc);
-  return { ok: true, version, write: { name: doc.name, documentJson, siteCount: doc.sites.length, ...computeFigures(doc) } };
+  const { sha256, worstRelBound } = computeFigures(doc);
+  return { ok: true, version, write: { name: doc.name, documentJsonb: jsonbBytes(documentJson), siteCount: doc.sites.length, sha256, worstRelBound } };
 }
 
 export function parseDesignBody(bytes: Uint8Array, kind: DesignBodyKind): DesignBodyResult {

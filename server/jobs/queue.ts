@@ -11,6 +11,7 @@ import PgBoss from 'pg-boss';
 import { jobKinds, type JobKind } from '@contracts/api';
 import type { Logger } from '../config';
 import { isDatabaseUnavailable } from '../http/errors';
+import { mailQueueName } from '../mail/queue';
 
 export const BOSS_SCHEMA = 'pgboss';
 
@@ -58,8 +59,8 @@ export async function startBoss(databaseUrl: string, settings: QueueSettings, lo
     else logger.error('job queue:', text);
   });
   await boss.start();
-  for (const kind of jobKinds) {
-    const name = queueName(kind, settings.queuePrefix);
+  // the job kinds' queues, and the outgoing mail's (server/mail/queue.ts: every send names its own retries)
+  for (const name of [...jobKinds.map((kind) => queueName(kind, settings.queuePrefix)), mailQueueName(settings.queuePrefix)]) {
     const queue = {
       name,
       retryLimit: settings.retryLimit,
@@ -67,13 +68,15 @@ export async function startBoss(databaseUrl: string, settings: QueueSettings, lo
       retryBackoff: true,
       expireInSeconds: settings.expireInSeconds,
     };
-    // the queue's own settings are only defaults: every send names its retry and expiry settings
-    if (!(await boss.getQueue(name))) {
+    // the queue's own settings are only defaults: every send names its retry and expiry settings.
+    // Two processes starting at once may both create it: one wins, the other sees a unique violation or a
+    // deadlock (both add the queue's partition) and finds the queue on a later look.
+    for (let attempt = 1; !(await boss.getQueue(name)); attempt++) {
       try {
         await boss.createQueue(name, queue);
       } catch (e) {
-        // another process created it at the same moment
-        if (!(await boss.getQueue(name))) throw e;
+        if (attempt >= 5) throw e;
+        await new Promise((r) => setTimeout(r, 100 * attempt));
       }
     }
   }

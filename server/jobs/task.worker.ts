@@ -10,6 +10,10 @@ import type { Design } from '../../geometry/design/types';
 import { releaseSpmvMemory } from '../../geometry/fem/index';
 import { JobRefusal, runPipeline } from './pipeline';
 import { packFile, type PackedFile } from './storage';
+import { lowerThreadPriority } from '../workers/lowPriority';
+
+// requests and the database come first on a busy machine (server/workers/lowPriority.ts)
+lowerThreadPriority();
 
 export interface TaskInput {
   kind: JobKind;

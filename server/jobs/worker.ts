@@ -37,6 +37,7 @@ import { softwareVersion } from './software';
 import { storedSize } from './storage';
 import { jobNotifier } from './notify';
 import type { Mailer } from '../mail/mailer';
+import { queuedMailer } from '../mail/queue';
 
 export interface JobWorkerOptions {
   databaseUrl: string;
@@ -46,8 +47,10 @@ export interface JobWorkerOptions {
   logger: Logger;
   /** how often an idle worker asks the queue for work, and a running job checks for a cancel (ms) */
   pollIntervalMs?: number;
-  /** sends the job e-mails (server/jobs/notify.ts); none are sent without it */
+  /** sends the job e-mails (server/jobs/notify.ts); by default they go into the mail queue (server/mail/queue.ts) */
   mailer?: Mailer;
+  /** seals the queued job e-mails (mailKey(SESSION_SECRET)); null writes them in the clear (they hold no secret) */
+  mailKey?: Buffer | null;
   /** base of the links in those e-mails */
   publicUrl?: () => string;
 }
@@ -79,8 +82,10 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
   const boss: PgBoss = await startBoss(opts.databaseUrl, settings, logger);
   const threads: JobThreads = jobThreads(concurrency);
   const software = softwareVersion();
-  const mailer = opts.mailer;
-  const notifier = mailer ? jobNotifier({ knex, mailer, publicUrl: opts.publicUrl ?? (() => ''), notifyAfterSeconds: settings.notifyAfterSeconds, logger }) : null;
+  // without a mailer of the app's (a standalone `npm run worker`), job e-mails go into the mail queue through
+  // this worker's own pg-boss; the app process delivers them (server/mail/queue.ts)
+  const mailer = opts.mailer ?? queuedMailer({ boss: async () => boss, prefix: settings.queuePrefix, key: opts.mailKey ?? null, logger });
+  const notifier = jobNotifier({ knex, mailer, publicUrl: opts.publicUrl ?? (() => ''), notifyAfterSeconds: settings.notifyAfterSeconds, logger });
 
   let active = 0;
   let stopped = false;
@@ -109,8 +114,8 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
     }
     if (!(await repo.markRunning(jobId))) return settle('complete', kind, bj.id);
     const job = (await repo.byId(jobId))!;
-    const version = await designsRepo(knex).getVersion(job.designId, job.designVersion);
-    if (!version) {
+    const documentJson = await designsRepo(knex).getVersionText(job.designId, job.designVersion);
+    if (documentJson === null) {
       await repo.finish(jobId, 'failed', { error: `Version ${job.designVersion} of the design is no longer stored, so there is nothing to compute.` });
       return settle('complete', kind, bj.id);
     }
@@ -139,7 +144,7 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
     const t0 = performance.now();
     let out;
     try {
-      out = await threads.run({ kind, documentJson: JSON.stringify(version.document), options: job.options, chunkBytes: settings.chunkBytes }, { onProgress, signal: ac.signal });
+      out = await threads.run({ kind, documentJson, options: job.options, chunkBytes: settings.chunkBytes }, { onProgress, signal: ac.signal });
     } catch (e) {
       if (ac.signal.aborted) return settle('complete', kind, bj.id);
       return fault(kind, bj, words(e));
@@ -243,7 +248,7 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
         if (!got) break;
         active++;
         const p = handle(got.kind, got.job)
-          .then(() => notifier?.afterJob(got.job.data.jobId))
+          .then(() => notifier.afterJob(got.job.data.jobId))
           .catch((e: unknown) => logger.error(`job ${got.job.data.jobId}: ${words(e)}`))
           .finally(() => {
             active--;
@@ -265,6 +270,8 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
         await jobsRepo(knex).finish(o.id, 'failed', {
           error: `The job was started ${o.retryCount + 1} time(s) and never finished: the worker running it stopped (ended, killed or out of memory) or it ran past its time limit of ${settings.expireInSeconds} s.`,
         });
+        // its starter hears of it like of any other failed job (the claim in jobs.notified_at keeps it to one mail)
+        await notifier.afterJob(o.id);
       }
     } catch (e) {
       logger.error(`job sweep: ${words(e)}`);

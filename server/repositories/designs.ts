@@ -38,14 +38,22 @@ export interface DesignVersionRecord {
   createdBy: string | null;
 }
 
-/** What a save writes: the current row and the new version row get the same figures. */
-export interface DesignWrite {
+/**
+ * What a save writes: the current row and the new version row get the same figures. The document is JSON text,
+ * or (from the off-thread reader, server/http/designBody.worker.ts) `documentJsonb`: the bytes of PostgreSQL's
+ * jsonb binary input, a version byte 1 then the UTF-8 text (PostgreSQL docs, jsonb_recv in
+ * src/backend/utils/adt/jsonb.c). pg sends a Buffer parameter in binary format as it is, so a 17 MB document is
+ * never encoded to UTF-8 on the request thread (it was, twice: current row and version row).
+ */
+export type DesignWrite = {
   name: string;
-  documentJson: string;
   siteCount: number;
   worstRelBound: number | null;
   sha256: string;
-}
+} & ({ documentJson: string; documentJsonb?: undefined } | { documentJsonb: Buffer; documentJson?: undefined });
+
+/** The document as the query parameter: text, or the jsonb binary bytes (a Buffer goes in binary format). */
+const documentParam = (w: DesignWrite): string | Buffer => w.documentJsonb ?? w.documentJson;
 
 interface DesignRow {
   id: number;
@@ -126,14 +134,14 @@ export function designsRepo(db: Db) {
         .insert({
           project_id: projectId,
           name: w.name,
-          document: w.documentJson,
+          document: documentParam(w),
           site_count: w.siteCount,
           worst_rel_bound: w.worstRelBound,
           created_by: userId,
           updated_by: userId,
         })
         .returning(['id', 'version'])) as { id: number; version: number }[];
-      await repo.insertVersion(r.id, r.version, w, userId);
+      await repo.insertVersionFromCurrent(r.id, w.sha256, userId);
       return r.id;
     },
 
@@ -143,7 +151,7 @@ export function designsRepo(db: Db) {
         .where({ project_id: projectId, id: designId, version })
         .update({
           name: w.name,
-          document: w.documentJson,
+          document: documentParam(w),
           site_count: w.siteCount,
           worst_rel_bound: w.worstRelBound,
           version: db.raw('version + 1'),
@@ -152,20 +160,21 @@ export function designsRepo(db: Db) {
         })
         .returning(['version'])) as { version: number }[];
       if (!r) return null;
-      await repo.insertVersion(designId, r.version, w, userId);
+      await repo.insertVersionFromCurrent(designId, w.sha256, userId);
       return r.version;
     },
 
-    async insertVersion(designId: number, version: number, w: DesignWrite, userId: number | null): Promise<void> {
-      await db('design_versions').insert({
-        design_id: designId,
-        version,
-        name: w.name,
-        site_count: w.siteCount,
-        document: w.documentJson,
-        sha256: w.sha256,
-        created_by: userId,
-      });
+    /**
+     * The version row of what the current row now holds, copied inside PostgreSQL: the document (up to ~17 MB)
+     * travels from the server once per save, not twice (current row and version row). Call it in the
+     * transaction that wrote the current row.
+     */
+    async insertVersionFromCurrent(designId: number, sha256: string, userId: number | null): Promise<void> {
+      await db.raw(
+        `INSERT INTO design_versions (design_id, version, name, site_count, document, sha256, created_by)
+         SELECT id, version, name, site_count, document, ?, ? FROM designs WHERE id = ?`,
+        [sha256, userId, designId],
+      );
     },
 
     async delete(projectId: number, designId: number): Promise<boolean> {
@@ -180,6 +189,15 @@ export function designsRepo(db: Db) {
         .where('v.design_id', designId)
         .orderBy('v.version', 'desc')) as VersionRow[];
       return rows.map(toVersion);
+    },
+
+    /**
+     * A version's document as JSON text, for a job thread that parses it itself: `document::text` comes from
+     * PostgreSQL as a string, so the caller's thread neither parses the jsonb (pg would) nor stringifies it again.
+     */
+    async getVersionText(designId: number, version: number): Promise<string | null> {
+      const r = (await db('design_versions').where({ design_id: designId, version }).first(db.raw('document::text as document'))) as { document: string } | undefined;
+      return r?.document ?? null;
     },
 
     async getVersion(designId: number, version: number): Promise<(DesignVersionRecord & { document: unknown }) | null> {

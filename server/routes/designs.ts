@@ -27,7 +27,7 @@ import {
 import { AppError, parseOr422 } from '../services/errors';
 import { currentUser, projectAccess } from '../http/access';
 import type { RouteModule } from './context';
-import type { DesignMeta } from '../services/designs';
+import { documentText, type DesignMeta } from '../services/designs';
 
 /** Largest uploaded site file: a 100,000-site CSV with long ids is about 8 MB. */
 export const IMPORT_MAX_BYTES = 16 * 1024 * 1024;
@@ -69,9 +69,19 @@ function receiveFile(req: Request, res: Response): Promise<Express.Multer.File> 
  * `{ design: { …meta, document } }` with the document spliced in as the JSON text it was stored from: a large
  * document is never parsed or stringified on the request thread.
  */
-function sendDesignText(res: Response, status: number, meta: DesignMeta, documentJson: string): void {
-  const head = JSON.stringify(meta);
-  res.status(status).type('application/json').send(`{"design":${head.slice(0, -1)},"document":${documentJson}}}`);
+function sendDesignText(res: Response, status: number, meta: DesignMeta, documentJson: string | Buffer): void {
+  const head = `{"design":${JSON.stringify(meta).slice(0, -1)},"document":`;
+  if (typeof documentJson === 'string') {
+    res.status(status).type('application/json').send(`${head}${documentJson}}}`);
+    return;
+  }
+  // UTF-8 bytes from the off-thread reader: written as they are, without joining them into one string or buffer
+  const headBytes = Buffer.from(head, 'utf8');
+  res.status(status).type('application/json');
+  res.setHeader('Content-Length', headBytes.byteLength + documentJson.byteLength + 2);
+  res.write(headBytes);
+  res.write(documentJson);
+  res.end('}}');
 }
 
 export const designRoutes: RouteModule = (router, { services, access, designBodies }) => {
@@ -85,7 +95,7 @@ export const designRoutes: RouteModule = (router, { services, access, designBodi
     const { projectId } = projectAccess(res);
     const read = await designBodies.read(req, 'create');
     if (read.prepared) {
-      sendDesignText(res, 201, await services.designs.createPrepared(projectId, read.prepared, currentUser(req).id), read.prepared.documentJson);
+      sendDesignText(res, 201, await services.designs.createPrepared(projectId, read.prepared, currentUser(req).id), documentText(read.prepared));
       return;
     }
     // parse with the branch the body means, so field errors carry their paths (a failed union would not)
@@ -106,7 +116,7 @@ export const designRoutes: RouteModule = (router, { services, access, designBodi
     const read = await designBodies.read(req, 'update');
     if (read.prepared) {
       const meta = await services.designs.updatePrepared(projectId, designId, read.prepared, read.version ?? 0, currentUser(req).id);
-      sendDesignText(res, 200, meta, read.prepared.documentJson);
+      sendDesignText(res, 200, meta, documentText(read.prepared));
       return;
     }
     const body = parseOr422(designUpdateBodySchema, read.body, 'design');

@@ -45,6 +45,11 @@ export function designWriteSync(doc: DesignDocument): DesignWrite {
 }
 
 /** A file name from a design name: ASCII letters, digits and dashes, at most 80 characters. */
+/** The UTF-8 JSON text of a write's document: bytes (a view of the jsonb input, no copy) or the string it is. */
+export function documentText(w: DesignWrite): string | Buffer {
+  return w.documentJsonb ? w.documentJsonb.subarray(1) : w.documentJson;
+}
+
 export function fileBaseName(name: string): string {
   const slug = name
     .normalize('NFKD')

@@ -2,6 +2,10 @@
 import type { DesignDocument } from '@contracts/design';
 import { computeFigures, type DesignFigures, type ImportOutcome } from './designFigures';
 import { importSites, ImportRefused, type ImportContext } from '../formats';
+import { lowerThreadPriority } from './lowPriority';
+
+// requests and the database come first on a busy machine (server/workers/lowPriority.ts)
+lowerThreadPriority();
 
 /** JSON text of a (validated) design document → its stored figures. */
 export default function run(documentJson: string): DesignFigures {

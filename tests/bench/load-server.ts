@@ -4,6 +4,7 @@
  * A process of its own so the benchmark's client work (building and sending 17 MB bodies, reading answers)
  * does not share the event loop it measures.
  */
+import { monitorEventLoopDelay } from 'node:perf_hooks';
 import { start } from '../../server/index';
 import { silentLogger } from '../../server/config';
 
@@ -22,6 +23,16 @@ const server = await start({
   rateLimits: { signIn: relaxed, signInAddress: relaxed, signUp: relaxed, passwordReset: relaxed, verifyEmail: relaxed, resetConfirm: relaxed, passwordChange: relaxed },
 });
 console.log(`LISTENING ${server.url}`);
+// `eld` on stdin: print the main thread's event-loop delay (ms) since the last `eld`, then start afresh
+const delay = monitorEventLoopDelay({ resolution: 5 });
+delay.enable();
+process.stdin.setEncoding('utf8');
+process.stdin.on('data', (line: string) => {
+  if (!line.includes('eld')) return;
+  const ms = (ns: number) => ns / 1e6;
+  console.log(`ELD ${JSON.stringify({ p50: ms(delay.percentile(50)), p99: ms(delay.percentile(99)), max: ms(delay.max) })}`);
+  delay.reset();
+});
 process.on('SIGTERM', () => {
   void server.stop().then(() => process.exit(0));
 });

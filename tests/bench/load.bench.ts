@@ -20,14 +20,18 @@ import bcrypt from 'bcryptjs';
 import { startCluster, type Cluster } from '../../server/ops/postgres.mjs';
 import { prepareDatabase } from '../../server/ops/setup.mjs';
 import { freePort } from '../../server/ops/sys.mjs';
+import type { Knex } from 'knex';
 import { createKnex } from '../../server/db/config';
 import { MAX_SITES } from '../../server/contracts/design';
+import { readFileSync } from 'node:fs';
+import os from 'node:os';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
 const root = path.resolve(here, '..', '..');
 const READ_SECONDS = 10;
 const CONNECTIONS = 20;
-const PUT_ROUNDS = 2;
+/** TETRAWELL_BENCH_PUT_ROUNDS overrides (e.g. 1 for a quick profile) */
+const PUT_ROUNDS = Number(process.env.TETRAWELL_BENCH_PUT_ROUNDS ?? 2);
 const PUTS_PER_ROUND = 4;
 /** silicon lattice constant, nm (CODATA 2018) */
 const A = 0.5431020511;
@@ -40,11 +44,56 @@ async function database(): Promise<{ url: string; cluster: Cluster | null }> {
   return { url, cluster };
 }
 
+/**
+ * CPU time (user + system, ms) a process has used so far, from /proc/<pid>/stat fields 14 and 15 (proc(5)), in
+ * clock ticks of 1/100 s on Linux (USER_HZ). The figure the lead compares between runs on a loaded machine:
+ * wall-clock latencies move with other people's load, CPU per request much less.
+ */
+function cpuMs(pid: number, thread?: 'main'): number {
+  // /proc/<pid>/task/<pid>/stat is the main thread alone (its thread id is the process id): the event loop's share
+  const stat = readFileSync(thread === 'main' ? `/proc/${pid}/task/${pid}/stat` : `/proc/${pid}/stat`, 'utf8');
+  // the command name (field 2) may hold spaces: count fields after its closing parenthesis
+  const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+  return (Number(f[11]) + Number(f[12])) * 10;
+}
+
+/**
+ * Transactions PostgreSQL has finished in the bench database: every statement outside an explicit transaction is
+ * one, so the difference over a run divided by the requests is the database round trips per request. The
+ * statistics collector flushes at most once a second (PGSTAT_MIN_INTERVAL), hence the wait.
+ */
+async function transactions(knex: Knex): Promise<number> {
+  await new Promise((res) => setTimeout(res, 1_500));
+  const r = await knex.raw<{ rows: { n: string }[] }>(`SELECT xact_commit + xact_rollback AS n FROM pg_stat_database WHERE datname = current_database()`);
+  return Number(r.rows[0]!.n);
+}
+
+const loadAverage = (): string => os.loadavg().map((x) => x.toFixed(2)).join(' / ');
+
+/** Ask the bench server for its event-loop delay since the last ask (load-server.ts answers `ELD {…}` on stdout). */
+function eventLoopDelay(child: ChildProcess): Promise<{ p50: number; p99: number; max: number }> {
+  return new Promise((resolve) => {
+    let out = '';
+    const onData = (d: Buffer) => {
+      out += d.toString();
+      const m = /ELD (\{[^\n]*\})/.exec(out);
+      if (m) {
+        child.stdout!.off('data', onData);
+        resolve(JSON.parse(m[1]) as { p50: number; p99: number; max: number });
+      }
+    };
+    child.stdout!.on('data', onData);
+    child.stdin!.write('eld\n');
+  });
+}
+
 function startServer(databaseUrl: string): Promise<{ child: ChildProcess; url: string }> {
-  const child = spawn(process.execPath, ['--import', 'tsx', path.join(here, 'load-server.ts')], {
+  // TETRAWELL_BENCH_NODE_ARGS, e.g. `--cpu-prof --cpu-prof-dir=.data/prof`, goes to the server's node
+  const extra = (process.env.TETRAWELL_BENCH_NODE_ARGS ?? '').split(' ').filter(Boolean);
+  const child = spawn(process.execPath, [...extra, '--import', 'tsx', path.join(here, 'load-server.ts')], {
     cwd: root,
     env: { ...process.env, TETRAWELL_BENCH_DATABASE_URL: databaseUrl, NODE_ENV: 'production' },
-    stdio: ['ignore', 'pipe', 'inherit'],
+    stdio: ['pipe', 'pipe', 'inherit'],
   });
   return new Promise((resolve, reject) => {
     let out = '';
@@ -164,11 +213,23 @@ export async function run(): Promise<void> {
     if (parts.includes('reads')) {
     const warm = await autocannon({ url: `${url}/api/projects`, connections: CONNECTIONS, duration: 2, headers: { cookie: s.cookie } });
     void warm;
+    const tx0 = await transactions(knex);
+    const cpu0 = cpuMs(child.pid!);
+    await eventLoopDelay(child);
     const r = await autocannon({ url: `${url}/api/projects`, connections: CONNECTIONS, duration: READ_SECONDS, headers: { cookie: s.cookie } });
-    console.log(`GET /api/projects, signed in, ${CONNECTIONS} connections, ${READ_SECONDS} s:`);
+    const cpu = cpuMs(child.pid!) - cpu0;
+    const eld = await eventLoopDelay(child);
+    // the bench's own statement and pg-boss's background work count too: a few dozen against thousands of requests
+    const tx = (await transactions(knex)) - tx0 - 1;
+    console.log(`GET /api/projects, signed in, ${CONNECTIONS} connections, ${READ_SECONDS} s (load average ${loadAverage()}):`);
     console.log(
       `  ${r.requests.average.toFixed(0)} req/s   latency p50 ${r.latency.p50} ms   p99 ${r.latency.p99} ms   max ${r.latency.max} ms   ` +
         `(${r.requests.total} requests, ${r.non2xx} non-2xx, ${r.errors} errors)`,
+    );
+    console.log(
+      `  server CPU ${(cpu / 1000).toFixed(2)} s = ${((cpu / Math.max(1, r.requests.total)) * 1000).toFixed(0)} µs per request; ` +
+        `event-loop delay p50 ${eld.p50.toFixed(1)} ms, p99 ${eld.p99.toFixed(1)} ms, max ${eld.max.toFixed(1)} ms; ` +
+        `${(tx / Math.max(1, r.requests.total)).toFixed(2)} database round trips per request`,
     );
 
     }
@@ -185,7 +246,10 @@ export async function run(): Promise<void> {
     }
     const putTimes: number[] = [];
     const statuses: number[] = [];
-    const health = healthPoller(url, 180_000);
+    const cpu0 = cpuMs(child.pid!);
+    const main0 = cpuMs(child.pid!, 'main');
+    await eventLoopDelay(child);
+    const health = healthPoller(url, 600_000);
     await new Promise((res) => setTimeout(res, 500));
     const t0 = performance.now();
     for (let round = 0; round < PUT_ROUNDS; round++) {
@@ -206,8 +270,16 @@ export async function run(): Promise<void> {
     }
     const putWall = performance.now() - t0;
     const during = await health.stop();
+    const cpu = cpuMs(child.pid!) - cpu0;
+    const mainCpu = cpuMs(child.pid!, 'main') - main0;
+    const eld = await eventLoopDelay(child);
     console.log(`  PUT statuses ${[...new Set(statuses)].join(', ')}; each PUT p50 ${pct(putTimes, 50).toFixed(0)} ms, max ${Math.max(...putTimes).toFixed(0)} ms; all rounds ${putWall.toFixed(0)} ms`);
     console.log(`  health: ${during.length} polls, p50 ${pct(during, 50).toFixed(1)} ms, p99 ${pct(during, 99).toFixed(1)} ms, max ${Math.max(...during).toFixed(1)} ms`);
+    console.log(
+      `  server CPU (all threads) ${(cpu / 1000).toFixed(2)} s = ${(cpu / statuses.length).toFixed(0)} ms per PUT, of which the main thread ` +
+        `${(mainCpu / statuses.length).toFixed(0)} ms per PUT; main-thread event-loop delay ` +
+        `p50 ${eld.p50.toFixed(1)} ms, p99 ${eld.p99.toFixed(1)} ms, max ${eld.max.toFixed(1)} ms (load average ${loadAverage()})`,
+    );
     }
   } finally {
     await knex.destroy();

@@ -64,7 +64,12 @@ export async function startTestEnv(opts: Partial<ServerOptions> = {}): Promise<T
     rateLimits: RELAXED_LIMITS,
     staticDir: null,
     logger: testLogger,
+    // mail leaves through the queue (server/mail/queue.ts): a retry a second after a failure, not five
+    mailQueue: { retryDelaySeconds: 1, pollSeconds: 0.5 },
     ...opts,
+    // each test server its own queue names, so one file's server never takes (and, stopping, strands) another
+    // file's mail or jobs; a file that names a prefix keeps it
+    jobs: { ...opts.jobs, settings: { queuePrefix: `t${randomBytes(4).toString('hex')}-`, ...opts.jobs?.settings } },
   });
   const mailBase = (opts.publicUrl ?? server.url).replace(/\/+$/, '');
   return {
@@ -226,6 +231,19 @@ export async function waitForMail(
     if (hit) return hit;
     if (Date.now() > until) throw new Error(`no mail to ${to} matching ${subject} within ${timeoutMs} ms`);
     // mail leaves after the HTTP answer: poll briefly rather than sleep long
+    await new Promise((r) => setTimeout(r, 25));
+  }
+}
+
+/**
+ * Wait (up to `timeoutMs`) until `to` has `n` captured messages. Mail leaves through the queue after the HTTP
+ * answer (server/mail/queue.ts), so a count right after a request may still be short.
+ */
+export async function waitForMailCount(knex: Knex, to: string, n: number, timeoutMs = 8_000): Promise<number> {
+  const until = Date.now() + timeoutMs;
+  for (;;) {
+    const got = await countMail(knex, to);
+    if (got >= n || Date.now() > until) return got;
     await new Promise((r) => setTimeout(r, 25));
   }
 }

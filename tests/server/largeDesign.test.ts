@@ -126,6 +126,28 @@ describe('a design at the site limit', () => {
     expect(audit.detail).toMatchObject({ sites: MAX_SITES, version: cur.version + 1 });
   });
 
+  // the off-thread path hands PostgreSQL jsonb binary input (version byte 1, then UTF-8; PostgreSQL's jsonb_recv)
+  // and writes the answer from those bytes: text beyond ASCII must come back unchanged, and the answer's
+  // Content-Length must count bytes, not characters
+  it('a large save keeps text beyond ASCII exactly, in the answer and in the database', async () => {
+    const cur = await current();
+    const name = 'Ångström array µ-scale, 𝛼 sites (invented example)';
+    const design = bigDesign(cur.design, 3_000, (site, i) => {
+      site.id = `site-${i}-é`;
+    });
+    const body = { document: { ...design, name }, version: cur.version };
+    expect(JSON.stringify(body).length).toBeGreaterThan(256 * 1024);
+    const r = await owner.client.put(cur.path, body);
+    expect(r.status).toBe(200);
+    expect(Number(r.headers['content-length'])).toBe(Buffer.byteLength(r.text, 'utf8'));
+    expect(r.body.design.name).toBe(name);
+    expect(r.body.design.document.sites[2_999].id).toBe('site-2999-é');
+    const back = await owner.client.get(cur.path);
+    expect(back.body.design.document).toEqual(r.body.design.document);
+    const stored = await env.knex('design_versions').where({ version: cur.version + 1 }).whereRaw(`document->>'name' = ?`, [name]).first('site_count');
+    expect(stored?.site_count).toBe(3_000);
+  });
+
   it('creates a large design off the request thread with the same stored figures as the in-place code', async () => {
     const cur = await current();
     const document = bigDesign(cur.design, 20_000);

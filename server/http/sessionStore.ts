@@ -1,0 +1,107 @@
+/**
+ * The session store: connect-pg-simple's, with one change on the hot path. Reading a session also reads the
+ * account it is signed in as, in the same query, so a signed-in request costs one database round trip for
+ * "who is this" instead of two (session row, then user row in passport's deserializeUser).
+ *
+ * Nothing is cached: the user row is read at the same moment as the session row, on every request, so
+ * sign-out (row deleted), a password change (other rows deleted), a role change and account removal take
+ * effect at the very next request, exactly as before. The user travels from `get` to `deserializeUser` on the
+ * session's own `passport` object (express-session copies that object by reference into `req.session`), held
+ * in a WeakMap, so nothing outlives the request and two requests never see each other's rows.
+ */
+import type session from 'express-session';
+import type { Request } from 'express';
+import connectPgSimple from 'connect-pg-simple';
+import type pg from 'pg';
+import type { SiteRole } from '@contracts/roles';
+import type { User } from '@contracts/api';
+
+interface SessionUserRow {
+  sess: unknown;
+  user_id: number | null;
+  email: string | null;
+  display_name: string | null;
+  site_role: SiteRole | null;
+  version: number | null;
+}
+
+// `passport.user` is the numeric user id (serializeUser in app.ts); anything else joins no user. The regular
+// expression keeps the cast from failing on a malformed row, and the join stays a primary-key lookup.
+// `expire >= to_timestamp($2)` is connect-pg-simple's own test, with its own clock (whole seconds, rounded up).
+const GET_WITH_USER = `
+  SELECT s.sess, u.id AS user_id, u.email, u.display_name, u.site_role, u.version
+  FROM sessions s
+  LEFT JOIN users u ON u.id = CASE WHEN (s.sess -> 'passport' ->> 'user') ~ '^[0-9]{1,9}$'
+                                   THEN (s.sess -> 'passport' ->> 'user')::int END
+  WHERE s.sid = $1 AND s.expire >= to_timestamp($2)`;
+
+export interface SessionStoreWithUsers {
+  store: session.Store & { close(): void };
+  /**
+   * The account read with this request's session: a User, false when the session names an account that no
+   * longer exists, undefined when the session was not read by `get` in this request (then ask the database).
+   */
+  userOf(req: Request): User | false | undefined;
+}
+
+export function createSessionStore(
+  sessionModule: typeof session,
+  pool: pg.Pool,
+  opts: { pruneSessionIntervalSeconds: number; errorLog: (...args: unknown[]) => void },
+): SessionStoreWithUsers {
+  const PgStore = connectPgSimple(sessionModule);
+  const users = new WeakMap<object, User | false>();
+
+  class PgStoreWithUsers extends PgStore {
+    override get(sid: string, fn: (err: unknown, sess?: session.SessionData | null) => void): void {
+      pool.query<SessionUserRow>(GET_WITH_USER, [sid, Math.ceil(Date.now() / 1000)]).then(
+        (res) => {
+          const row = res.rows[0];
+          // express-session reads null as "no such session"
+          if (!row) return fn(null);
+          let sess: session.SessionData & { passport?: { user?: unknown } };
+          try {
+            sess = (typeof row.sess === 'string' ? JSON.parse(row.sess) : row.sess) as typeof sess;
+          } catch {
+            // connect-pg-simple's behaviour for an unreadable row: drop it, no session
+            return this.destroy(sid, (e) => fn(e ?? null));
+          }
+          const p = sess.passport;
+          if (p && typeof p === 'object' && p.user !== undefined) {
+            users.set(
+              p,
+              row.user_id === null
+                ? false
+                : { id: row.user_id, email: row.email!, displayName: row.display_name!, siteRole: row.site_role!, version: row.version! },
+            );
+          }
+          fn(null, sess);
+        },
+        (err: unknown) => fn(err),
+      );
+    }
+  }
+
+  const store = new PgStoreWithUsers({
+    pool,
+    tableName: 'sessions',
+    createTableIfMissing: false,
+    // expired rows (mostly short anonymous sessions) are deleted this often (±50 %, randomised by the store)
+    pruneSessionInterval: opts.pruneSessionIntervalSeconds,
+    // No UPDATE of the row's expiry on every request: the browser's cookie is not renewed either (rolling: false),
+    // so a sign-in lasts sessionMaxAgeMs from sign-in whatever the store does; the write per request only cost time.
+    disableTouch: true,
+    errorLog: opts.errorLog,
+  });
+  // connect-pg-simple arms its prune timer from get/set/destroy; our get does not call it, so prune once now
+  // (which arms the timer): a server that only serves reads still deletes expired rows
+  store.pruneSessions();
+
+  return {
+    store,
+    userOf(req) {
+      const p = (req.session as { passport?: unknown } | undefined)?.passport;
+      return p && typeof p === 'object' ? users.get(p) : undefined;
+    },
+  };
+}

@@ -1,0 +1,39 @@
+/**
+ * Worker threads that compute beside the request thread lower their own nice value (server/workers/lowPriority.ts),
+ * and only their own: on Linux the nice value is per thread (setpriority(2), NOTES), so the request thread keeps
+ * its priority. Checked in a real worker thread, reading both values back with os.getPriority.
+ */
+import { Worker } from 'node:worker_threads';
+import { getPriority } from 'node:os';
+import { fileURLToPath } from 'node:url';
+import { describe, expect, it } from 'vitest';
+import { WORKER_NICE } from '../../server/workers/lowPriority';
+
+const MODULE = fileURLToPath(new URL('../../server/workers/lowPriority.ts', import.meta.url));
+
+describe('lowerThreadPriority', () => {
+  it.runIf(process.platform === 'linux')('lowers the calling worker thread alone', async () => {
+    const before = getPriority(process.pid);
+    const script = `
+      const { parentPort } = require('node:worker_threads');
+      const { readlinkSync } = require('node:fs');
+      const { getPriority } = require('node:os');
+      // tsx's loader registered in this thread, so it can import the TypeScript module
+      import('tsx/esm/api').then(({ register }) => { register(); return import(${JSON.stringify(MODULE)}); }).then((m) => {
+        const ok = m.lowerThreadPriority();
+        const tid = Number(readlinkSync('/proc/thread-self').split('/').pop());
+        parentPort.postMessage({ ok, tid, nice: getPriority(tid) });
+      });`;
+    const w = new Worker(script, { eval: true });
+    const got = await new Promise<{ ok: boolean; tid: number; nice: number }>((resolve, reject) => {
+      w.once('message', resolve);
+      w.once('error', reject);
+    });
+    await w.terminate();
+    expect(got.ok).toBe(true);
+    expect(got.tid).not.toBe(process.pid);
+    // raised to WORKER_NICE, or kept when it already was lower (a process started under nice)
+    expect(got.nice).toBe(Math.max(before, WORKER_NICE));
+    expect(getPriority(process.pid)).toBe(before);
+  });
+});
