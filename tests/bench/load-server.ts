@@ -1,5 +1,5 @@
 /**
- * The server process of the load benchmark (tests/bench/load.bench.ts): the real `start()` on 127.0.0.1, port 0,
+ * The server process of the load benchmarks (tests/bench/load.bench.ts, jobs.bench.ts): the real `start()` on 127.0.0.1, port 0,
  * against TETRAWELL_BENCH_DATABASE_URL, printing `LISTENING <url>` once it listens and stopping on SIGTERM.
  * A process of its own so the benchmark's client work (building and sending 17 MB bodies, reading answers)
  * does not share the event loop it measures.
@@ -21,6 +21,8 @@ const server = await start({
   // explicit, so a server from before issue 8 (5 MB default) takes the same large designs
   bodyLimit: '40mb',
   rateLimits: { signIn: relaxed, signInAddress: relaxed, signUp: relaxed, passwordReset: relaxed, verifyEmail: relaxed, resetConfirm: relaxed, passwordChange: relaxed },
+  // the jobs bench runs the app's own job worker here: TETRAWELL_BENCH_JOBS is the `jobs` option as JSON
+  ...(process.env.TETRAWELL_BENCH_JOBS ? { jobs: JSON.parse(process.env.TETRAWELL_BENCH_JOBS) as object } : {}),
 });
 console.log(`LISTENING ${server.url}`);
 // `eld` on stdin: print the main thread's event-loop delay (ms) since the last `eld`, then start afresh
