@@ -273,7 +273,7 @@ export function coreLowerBound(
     const side = a / 4;
     const perVoxel = side ** 3 * density;
     const n = [0, 1, 2].map((ax) => Math.max(1, Math.ceil((boxMax[ax] - boxMin[ax]) / side)));
-    const seen = new Set<number>(); // membership only, never iterated
+    const seen = new VoxelSet();
     const p = c.positions;
     const a2 = a * a;
     for (let q = 0; q < p.length; q += 3) {
@@ -302,4 +302,47 @@ export function coreLowerBound(
     best = Math.max(best, seen.size * perVoxel);
   }
   return best;
+}
+
+/**
+ * Distinct voxels, counted: an open-addressing hash (linear probing, power-of-two table, load ≤ 1/2)
+ * of the flat voxel index, which can pass 2^31, where a Set<number> keyed by it falls back to slow
+ * heap numbers. Keys are exact doubles (integers below 2^53); the slot mixes their low and high 32
+ * bits with odd multiplicative constants (Knuth's multiplicative hashing, TAOCP vol. 3 §6.4; the
+ * constants are common practice). Membership and size only, never iterated.
+ */
+class VoxelSet {
+  size = 0;
+  private keys = new Float64Array(1 << 12).fill(-1);
+  private mask = (1 << 12) - 1;
+
+  add(key: number): void {
+    const t = this.keys;
+    let h = this.slot(key);
+    for (let v = t[h]; v !== -1; v = t[h]) {
+      if (v === key) return;
+      h = (h + 1) & this.mask;
+    }
+    t[h] = key;
+    if (++this.size * 2 > t.length) this.grow();
+  }
+
+  private slot(key: number): number {
+    const h = Math.imul(key >>> 0, 0x9e3779b1) ^ Math.imul(Math.floor(key / 4294967296) | 0, 0x85ebca77);
+    return (h ^ (h >>> 16)) & this.mask;
+  }
+
+  private grow(): void {
+    const old = this.keys;
+    const t = (this.keys = new Float64Array(old.length * 2).fill(-1));
+    this.mask = t.length - 1;
+    // every old key is distinct: find each an empty slot
+    for (let q = 0; q < old.length; q++) {
+      const key = old[q];
+      if (key === -1) continue;
+      let h = this.slot(key);
+      while (t[h] !== -1) h = (h + 1) & this.mask;
+      t[h] = key;
+    }
+  }
 }

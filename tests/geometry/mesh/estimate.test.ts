@@ -214,3 +214,46 @@ describe('refusals', () => {
     }
   });
 });
+
+describe('coreLowerBound counts each voxel once', () => {
+  // Reference: the voxels (side a/4) lying wholly inside some ball of radius a, counted with a Set
+  // of "i,j,k" strings over each ball's index range (plain geometry: a box lies inside a ball when
+  // its farthest corner does). The box is wide enough that flat voxel indices pass 2^32.
+  const a = 1, side = a / 4;
+  const boxMin = [-5000, -5000, -5], boxMax = [5000, 5000, 5];
+  const cells: [number, number, number] = [1000, 1000, 1];
+  const reference = (pos: Float64Array): number => {
+    const seen = new Set<string>();
+    for (let q = 0; q < pos.length; q += 3) {
+      const c = [pos[q], pos[q + 1], pos[q + 2]];
+      const lo = c.map((v, ax) => Math.floor((v - a - boxMin[ax]) / side));
+      const hi = c.map((v, ax) => Math.floor((v + a - boxMin[ax]) / side));
+      for (let k = lo[2]; k <= hi[2]; k++)
+        for (let j = lo[1]; j <= hi[1]; j++)
+          for (let i = lo[0]; i <= hi[0]; i++) {
+            const far = [i, j, k].map((t, ax) => {
+              const l = boxMin[ax] + t * side;
+              return Math.max(Math.abs(c[ax] - l), Math.abs(c[ax] - l - side));
+            });
+            if (far[0] ** 2 + far[1] ** 2 + far[2] ** 2 <= a * a) seen.add(`${i},${j},${k}`);
+          }
+    }
+    return seen.size;
+  };
+  const bound = (pos: Float64Array) => coreLowerBound({ exponent: 1, hmaxNm: 100, classes: [{ h0Nm: 0.5, coreRadiusNm: a, positions: pos }] }, boxMin, boxMax, cells);
+
+  it('matches a string-keyed reference count for 400 overlapping cores near the far corner', () => {
+    const pos = new Float64Array(3 * 400);
+    for (let s = 0; s < 400; s++) {
+      // a 20 × 20 grid, spacing 0.7 a: neighbouring cores overlap, so shared voxels must count once
+      pos[3 * s] = 4980 - 0.7 * (s % 20) + 0.013 * s;
+      pos[3 * s + 1] = 4980 - 0.7 * Math.floor(s / 20);
+      pos[3 * s + 2] = 0.1 * ((s % 7) - 3);
+    }
+    const one = new Float64Array([0.01, 0.02, 0.03]);
+    const n = reference(pos), n1 = reference(one);
+    expect(n).toBeGreaterThan(4096); // several table growths
+    expect(n).toBeLessThan(400 * n1); // the overlap is real
+    expect(bound(pos) / bound(one)).toBeCloseTo(n / n1, 9);
+  });
+});
