@@ -13,8 +13,6 @@
  * a queue of mesh jobs of distinct designs keeps the worker busy for the whole 30 s.
  */
 import { randomBytes } from 'node:crypto';
-import { spawn, type ChildProcess } from 'node:child_process';
-import path from 'node:path';
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import os from 'node:os';
@@ -28,30 +26,12 @@ import { startJobWorker } from '../../server/jobs/worker';
 import { startCluster, type Cluster } from '../../server/ops/postgres.mjs';
 import { prepareDatabase } from '../../server/ops/setup.mjs';
 import { freePort } from '../../server/ops/sys.mjs';
+import { benchServerProcess } from './server-process';
 
 const PAIR = JSON.parse(readFileSync(fileURLToPath(new URL('../fixtures/designs/pair-coarse.json', import.meta.url)), 'utf8')) as { name: string };
 const lots = { windowMs: 60_000, limit: 1_000_000 };
 
-const here = path.dirname(fileURLToPath(import.meta.url));
-const root = path.resolve(here, '..', '..');
 const PLAQUETTE = JSON.parse(readFileSync(fileURLToPath(new URL('../fixtures/designs/plaquette.json', import.meta.url)), 'utf8')) as { name: string };
-
-function serverProcess(databaseUrl: string, jobs: object): Promise<{ child: ChildProcess; url: string }> {
-  const child = spawn(process.execPath, ['--import', 'tsx', path.join(here, 'load-server.ts')], {
-    cwd: root,
-    env: { ...process.env, TETRAWELL_BENCH_DATABASE_URL: databaseUrl, TETRAWELL_BENCH_JOBS: JSON.stringify(jobs), NODE_ENV: 'production' },
-    stdio: ['pipe', 'pipe', 'inherit'],
-  });
-  return new Promise((resolve, reject) => {
-    let out = '';
-    child.stdout!.on('data', (d: Buffer) => {
-      out += d.toString();
-      const m = /LISTENING (\S+)/.exec(out);
-      if (m) resolve({ child, url: m[1] });
-    });
-    child.once('exit', (code) => reject(new Error(`the bench server exited with ${code}`)));
-  });
-}
 
 /** the CPU seconds (user + system) a process has used so far, from /proc (Linux) */
 function processCpuSeconds(pid: number): number {
@@ -83,7 +63,7 @@ export async function run(): Promise<void> {
   const password = 'bench-password-123';
   await knex('users').insert({ email, password_hash: bcrypt.hashSync(password, 4), display_name: 'Bench', email_verified_at: knex.fn.now() });
   // part 1 runs against a server process with one job worker; part 2 against a server in this process without one
-  const app = await serverProcess(databaseUrl, { workers: 1, settings: jobSettings, pollIntervalMs: 100 });
+  const app = await benchServerProcess(databaseUrl, { env: { TETRAWELL_BENCH_JOBS: JSON.stringify({ workers: 1, settings: jobSettings, pollIntervalMs: 100 }) } });
   let base = app.url;
 
   let cookie = '';

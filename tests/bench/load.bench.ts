@@ -13,21 +13,18 @@
  * TETRAWELL_BENCH_LOAD_PARTS=reads (or health) runs one part only.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { fileURLToPath } from 'node:url';
-import path from 'node:path';
 import autocannon from 'autocannon';
 import bcrypt from 'bcryptjs';
 import { startCluster, type Cluster } from '../../server/ops/postgres.mjs';
 import { prepareDatabase } from '../../server/ops/setup.mjs';
 import { freePort } from '../../server/ops/sys.mjs';
+import { benchServerProcess } from './server-process';
 import type { Knex } from 'knex';
 import { createKnex } from '../../server/db/config';
 import { MAX_SITES } from '../../server/contracts/design';
 import { readFileSync } from 'node:fs';
 import os from 'node:os';
 
-const here = path.dirname(fileURLToPath(import.meta.url));
-const root = path.resolve(here, '..', '..');
 const READ_SECONDS = 10;
 const CONNECTIONS = 20;
 /** TETRAWELL_BENCH_PUT_ROUNDS overrides (e.g. 1 for a quick profile) */
@@ -89,21 +86,7 @@ function eventLoopDelay(child: ChildProcess): Promise<{ p50: number; p99: number
 
 function startServer(databaseUrl: string): Promise<{ child: ChildProcess; url: string }> {
   // TETRAWELL_BENCH_NODE_ARGS, e.g. `--cpu-prof --cpu-prof-dir=.data/prof`, goes to the server's node
-  const extra = (process.env.TETRAWELL_BENCH_NODE_ARGS ?? '').split(' ').filter(Boolean);
-  const child = spawn(process.execPath, [...extra, '--import', 'tsx', path.join(here, 'load-server.ts')], {
-    cwd: root,
-    env: { ...process.env, TETRAWELL_BENCH_DATABASE_URL: databaseUrl, NODE_ENV: 'production' },
-    stdio: ['pipe', 'pipe', 'inherit'],
-  });
-  return new Promise((resolve, reject) => {
-    let out = '';
-    child.stdout!.on('data', (d: Buffer) => {
-      out += d.toString();
-      const m = /LISTENING (\S+)/.exec(out);
-      if (m) resolve({ child, url: m[1] });
-    });
-    child.once('exit', (code) => reject(new Error(`the bench server exited with ${code}`)));
-  });
+  return benchServerProcess(databaseUrl, { nodeArgs: (process.env.TETRAWELL_BENCH_NODE_ARGS ?? '').split(' ').filter(Boolean) });
 }
 
 /** One browser-like session: the cookie jar is a single cookie, the CSRF token is refetched after sign-in. */
