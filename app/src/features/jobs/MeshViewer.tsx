@@ -146,7 +146,7 @@ function Viewer({ mesh, sites, potential }: { mesh: TetMesh; sites: Vec3[] | nul
     <div className="space-y-3">
       <div className="grid grid-cols-1 gap-3 md:grid-cols-[minmax(0,1fr)_16rem]">
         <div className="space-y-1">
-          <div className="relative h-80 rounded bg-wafer-900" aria-label="Mesh view" role="img">
+          <div className="relative h-80 rounded border border-wafer-200 bg-wafer-50" aria-label="Mesh view" role="img">
             <Canvas frameloop="demand" camera={{ position: [span * 0.9, span * 0.7, span * 0.9], near: span / 1000, far: span * 10 }}>
               <ambientLight intensity={0.6} />
               <directionalLight position={[1, 2, 3]} intensity={1.2} />
