@@ -1,5 +1,5 @@
 /**
- * The design document (format version 1) as plain TypeScript types.
+ * The design document (format version 2) as plain TypeScript types.
  *
  * The numerical core never imports zod: the runtime schema lives in
  * `server/contracts/design.ts` and a type-level test asserts that the schema's
@@ -42,7 +42,7 @@ export interface Host {
 
 export type Boundary = { kind: 'grounded' } | { kind: 'multipole'; order: number };
 
-export interface Enclosure {
+export interface Domain {
   center: Vec3;
   halfExtentsNm: Vec3;
   boundary: Boundary;
@@ -57,10 +57,10 @@ export interface Refinement {
 
 export interface Design {
   format: 'tetrawell-design';
-  version: 1;
+  version: 2;
   name: string;
   host: Host;
   sites: Site[];
-  enclosure: Enclosure;
+  domain: Domain;
   refinement: Refinement;
 }

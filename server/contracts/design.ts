@@ -1,5 +1,5 @@
 /**
- * Runtime schema of the design document (format version 1).
+ * Runtime schema of the design document (format version 2).
  * Dependency-free apart from zod: imported by the server, the CLI and the app.
  * The matching plain types live in geometry/design/types.ts (a type-level test keeps them in step).
  *
@@ -17,7 +17,7 @@
  *   Kohn & Luttinger 1955, from memory) and already far beyond any shallow impurity state (common
  *   practice). Sizes inside these bounds but implausible for a donor in silicon (below a hundredth
  *   of the lattice constant, above 100 nm) are warnings of the far-field check, not refusals.
- * Sites outside the enclosure are valid documents (a design may be mid-edit); the far-field
+ * Sites outside the domain are valid documents (a design may be mid-edit); the far-field
  * check reports them as an error-level warning.
  *
  * The JSON Schema in design.schema.json is generated from `designSchema` by
@@ -27,7 +27,7 @@
 import { z } from 'zod';
 
 export const DESIGN_FORMAT = 'tetrawell-design';
-export const CURRENT_DESIGN_VERSION = 1;
+export const CURRENT_DESIGN_VERSION = 2;
 export const MAX_SITES = 100_000;
 /**
  * Donors sharing a cluster label form one array site: the generators make clusters of 1–4 donors, and a
@@ -73,7 +73,7 @@ const halfExtent = z.number().positive().max(MAX_LENGTH_NM);
 export const designSchema = z
   .object({
     format: z.literal(DESIGN_FORMAT),
-    version: z.literal(1),
+    version: z.literal(2),
     name: z.string().min(1).max(200),
     host: z.object({
       material: z.literal('Si'),
@@ -81,7 +81,7 @@ export const designSchema = z
       latticeConstantNm: z.number().positive().max(10),
     }),
     sites: z.array(siteSchema).max(MAX_SITES, { error: (iss) => tooManySites(Array.isArray(iss.input) ? iss.input.length : undefined) }),
-    enclosure: z.object({
+    domain: z.object({
       center: vec3Schema,
       halfExtentsNm: z.tuple([halfExtent, halfExtent, halfExtent]),
       boundary: boundarySchema,
@@ -201,14 +201,21 @@ export function plainIssueMessage(iss: z.core.$ZodRawIssue): string | undefined 
 type Migration = (doc: Record<string, unknown>) => Record<string, unknown>;
 
 /**
- * MIGRATIONS[v] turns a version-v document into version v+1. Version 1 is current, so the table
- * is empty; a version 2 adds `1: (doc) => ({ ...doc, version: 2, … })` here.
+ * MIGRATIONS[v] turns a version-v document into version v+1, keeping every other field as it is.
+ *   1 → 2: the box the solvers work in is called `domain` (the trade's word) instead of `enclosure`;
+ *          same content (centre, half-extents, boundary). A version-1 document that already has a
+ *          `domain` and no `enclosure` keeps it, so the validator then names what is wrong.
  */
-export const MIGRATIONS: Record<number, Migration> = {};
+export const MIGRATIONS: Record<number, Migration> = {
+  1: (doc) => {
+    const { enclosure, ...rest } = doc;
+    return { ...rest, version: 2, ...(enclosure !== undefined || !('domain' in rest) ? { domain: enclosure } : {}) };
+  },
+};
 
 export type MigrationResult = { ok: true; doc: Record<string, unknown> } | { ok: false; issues: DesignIssue[] };
 
-/** Bring a stored document of any known version to the current one (identity for version 1). */
+/** Bring a stored document of any known version to the current one (identity for the current version). */
 export function migrateDesign(doc: unknown): MigrationResult {
   if (typeof doc !== 'object' || doc === null || Array.isArray(doc)) return { ok: false, issues: [{ path: [], message: `must be a JSON object, not ${describe(doc)}` }] };
   const d = doc as Record<string, unknown>;
@@ -255,8 +262,8 @@ export function designJsonSchema(): Record<string, unknown> {
   const schema = z.toJSONSchema(designSchema, { io: 'input' }) as Record<string, unknown>;
   return {
     $schema: schema.$schema,
-    $id: 'https://tetrawell.invalid/schema/design-v1.json',
-    title: 'Tetrawell design document, format version 1',
+    $id: 'https://tetrawell.invalid/schema/design-v2.json',
+    title: 'Tetrawell design document, format version 2',
     description: 'Lengths in nm, energies in eV. Generated from server/contracts/design.ts with zod z.toJSONSchema; do not edit by hand.',
     ...Object.fromEntries(Object.entries(schema).filter(([k]) => k !== '$schema')),
   };

@@ -64,11 +64,11 @@ export function demoDesign(): DesignDocument {
   const steps = [-9, -3, 3, 9];
   return designSchema.parse({
     format: 'tetrawell-design',
-    version: 1,
+    version: 2,
     name: DEMO_PROJECT_NAME,
     host: { material: 'Si', epsilonR: SI_EPSILON_R, latticeConstantNm: a },
     sites: steps.map((k, i) => ({ id: `P${i + 1}`, species: 'P', position: [k * a, k * a, 0], electrons: 1 })),
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [25, 25, 25], boundary: { kind: 'multipole', order: 2 } },
+    domain: { center: [0, 0, 0], halfExtentsNm: [25, 25, 25], boundary: { kind: 'multipole', order: 2 } },
     refinement: { order: 2, targetRelError: 0.01, maxElements: 500_000 },
   });
 }
@@ -80,11 +80,11 @@ export const DEMO_SQUARE_NAME = '3 × 3 square array, about 4.3 nm pitch';
 function demoDocument(name: string, sites: DesignDocument['sites'], halfExtentNm: number): DesignDocument {
   return designSchema.parse({
     format: 'tetrawell-design',
-    version: 1,
+    version: 2,
     name,
     host: { material: 'Si', epsilonR: SI_EPSILON_R, latticeConstantNm: SI_LATTICE_CONSTANT_NM },
     sites,
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [halfExtentNm, halfExtentNm, halfExtentNm], boundary: { kind: 'multipole', order: 2 } },
+    domain: { center: [0, 0, 0], halfExtentsNm: [halfExtentNm, halfExtentNm, halfExtentNm], boundary: { kind: 'multipole', order: 2 } },
     refinement: { order: 2, targetRelError: 0.01, maxElements: 500_000 },
   });
 }

@@ -7,6 +7,7 @@
 import type { MessagePort } from 'node:worker_threads';
 import type { JobKind, JobOptions } from '@contracts/api';
 import type { Design } from '../../geometry/design/types';
+import { migrateDesign } from '@contracts/design';
 import { releaseSpmvMemory } from '../../geometry/fem/index';
 import { JobRefusal, runPipeline } from './pipeline';
 import { packFile, type PackedFile } from './storage';
@@ -29,7 +30,10 @@ export type TaskOutput =
   | { ok: false; refusal: string };
 
 export default function runTask(input: TaskInput): TaskOutput {
-  const design = JSON.parse(input.documentJson) as Design;
+  // stored versions keep the format they were saved in; the pipeline reads the current one
+  const m = migrateDesign(JSON.parse(input.documentJson));
+  if (!m.ok) return { ok: false, refusal: `The stored design cannot be read: ${m.issues.map((i) => i.message).join('; ')}` };
+  const design = m.doc as unknown as Design;
   let last = 0;
   try {
     const out = runPipeline(input.kind, design, input.options, {

@@ -9,6 +9,7 @@
  * Documents travel as JSON text prepared by the caller (`documentJson`), so a large document is
  * stringified once per save.
  */
+import { migrateDesign } from '@contracts/design';
 import { type Db, iso } from './db';
 
 export interface DesignRecord {
@@ -67,11 +68,22 @@ interface DesignRow {
   updated_by_name: string | null;
 }
 
+/**
+ * Stored documents keep the format version they were saved in (versions are append-only); readers get
+ * them in the current format. A document the migration cannot read is handed back as it is, so the
+ * validator that reads it next names what is wrong.
+ */
+const current = (doc: unknown): unknown => {
+  if (doc === undefined) return doc;
+  const m = migrateDesign(doc);
+  return m.ok ? m.doc : doc;
+};
+
 const toDesign = (r: DesignRow): DesignRecord => ({
   id: r.id,
   projectId: r.project_id,
   name: r.name,
-  document: r.document,
+  document: current(r.document),
   version: r.version,
   siteCount: r.site_count,
   worstRelBound: r.worst_rel_bound === null ? null : Number(r.worst_rel_bound),
@@ -206,7 +218,7 @@ export function designsRepo(db: Db) {
         .select('v.version', 'v.name', 'v.site_count', 'v.sha256', 'v.created_at', 'u.display_name as created_by_name', 'v.document')
         .where({ 'v.design_id': designId, 'v.version': version })
         .first()) as VersionRow | undefined;
-      return r ? { ...toVersion(r), document: r.document } : null;
+      return r ? { ...toVersion(r), document: current(r.document) } : null;
     },
   };
   return repo;
