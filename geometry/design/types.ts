@@ -34,18 +34,55 @@ export interface Site {
   cluster?: string;
 }
 
+/**
+ * One layer of a planar stack along [001] (z), listed from bottom to top; `zMinNm` of the lowest
+ * layer and `zMaxNm` of the highest may be null (unbounded). Layers touch: each layer's zMinNm is
+ * the previous layer's zMaxNm.
+ */
+export interface HostLayer {
+  name: string;
+  epsilonR: number;
+  zMinNm: number | null;
+  zMaxNm: number | null;
+}
+
 export interface Host {
   material: 'Si';
+  /** the host's relative permittivity everywhere when `layers` is absent (the version-1 meaning) */
   epsilonR: number;
   latticeConstantNm: number;
+  /** a planar stack (silicon under an oxide and vacuum, …); absent: one homogeneous host */
+  layers?: HostLayer[];
+}
+
+/**
+ * A metal box at a set voltage, clipped to the domain box and cut out of it (a Dirichlet
+ * boundary). A box spanning the domain's whole x–y cross-section is a metal plane (a top or back
+ * gate). A heavily doped in-plane lead is modelled as such a metal box.
+ */
+export interface Electrode {
+  name: string;
+  minNm: Vec3;
+  maxNm: Vec3;
+  voltageV: number;
 }
 
 export type Boundary = { kind: 'grounded' } | { kind: 'multipole'; order: number };
+
+/**
+ * What the domain's walls are for the electrodes' (Laplace) problem of the lever arms:
+ *   'grounded'           every wall at 0 V (a far grounded enclosure of the device)
+ *   'zero-normal-field'  ∂φ/∂n = 0 on the walls (field lines leave no charge there; right for walls
+ *                        that electrodes cross, wrong where real metal is near)
+ */
+export type ElectrodeWalls = 'grounded' | 'zero-normal-field';
 
 export interface Domain {
   center: Vec3;
   halfExtentsNm: Vec3;
   boundary: Boundary;
+  /** the walls of the electrodes' problem (default 'grounded') */
+  electrodeWalls?: ElectrodeWalls;
 }
 
 export interface Refinement {
@@ -62,5 +99,7 @@ export interface Design {
   host: Host;
   sites: Site[];
   domain: Domain;
+  /** metal electrodes at set voltages (absent or empty: none) */
+  electrodes?: Electrode[];
   refinement: Refinement;
 }

@@ -1,27 +1,12 @@
 /**
  * Input and output types of the layered host (issue 11). The field names of `HostLayer` and
- * `Electrode` are the issue's contract (`host.layers`, `electrodes`); the design document itself
- * does not carry them yet, so these types are the numerical core's own view of them.
+ * `Electrode` are the design document's (`host.layers`, `electrodes`, geometry/design/types.ts).
  *
  * Units: lengths in nm, potentials in V, energies in eV (meV/V for lever arms).
  */
-import type { Vec3 } from '../design/types';
+import type { Electrode, HostLayer } from '../design/types';
 
-/** One layer of a planar stack along [001] (z). `null` bounds only on the lowest / highest layer. */
-export interface HostLayer {
-  name: string;
-  epsilonR: number;
-  zMinNm: number | null;
-  zMaxNm: number | null;
-}
-
-/** A metal box at a set voltage. A box spanning the domain's whole x–y cross-section is a metal plane. */
-export interface Electrode {
-  name: string;
-  minNm: Vec3;
-  maxNm: Vec3;
-  voltageV: number;
-}
+export type { Electrode, HostLayer };
 
 /**
  * A planar stack after checking: `interfaces[k]` (nm, strictly increasing) separates region k

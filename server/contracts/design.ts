@@ -9,6 +9,9 @@
  *   should carry, and far beyond what one finite-element solve resolves; the far-field check is
  *   linear in the number of sites (~1 ms per 1,000).
  *   lengths ≤ 10⁶ nm, 10⁻⁴ nm ≤ radii ≤ 10³ nm, 1 ≤ εr ≤ 10³, 0 < a ≤ 10 nm.
+ *   Device (version 2): host.layers ≤ MAX_LAYERS = 16 touching layers bottom to top (only the ends
+ *   unbounded, no site within ON_INTERFACE_NM of an interface); electrodes ≤ MAX_ELECTRODES = 32
+ *   boxes of positive size, |voltageV| ≤ 100 V, no site inside one.
  *   Orbital radii (radiusNm, radiusZNm, sigmaNm): the floor MIN_RADIUS_NM = 10⁻⁴ nm lies below the
  *   smallest bound-electron envelope of any atom, the hydrogen-like 1s of a bare nucleus, a0/Z =
  *   0.0529177 nm / 92 = 5.75·10⁻⁴ nm (Bohr radius a0 from CODATA 2018; Bohr model a0/Z); a smaller
@@ -70,6 +73,65 @@ export const boundarySchema = z.discriminatedUnion('kind', [
 
 const halfExtent = z.number().positive().max(MAX_LENGTH_NM);
 
+/** At most this many layers and electrodes: a device stack, not a superlattice. Common practice. */
+export const MAX_LAYERS = 16;
+export const MAX_ELECTRODES = 32;
+/** |voltageV| ≤ 100 V: beyond any gate on a nanometre oxide (SiO₂ breaks down near 1 V/nm; from memory). */
+export const MAX_VOLTAGE_V = 100;
+/** A site closer than this to an interface counts as on it (its density would straddle the interface). */
+export const ON_INTERFACE_NM = 1e-6;
+
+export const layerSchema = z.object({
+  name: z.string().min(1).max(64),
+  epsilonR: z.number().min(1).max(1000),
+  zMinNm: coordinate.nullable(),
+  zMaxNm: coordinate.nullable(),
+});
+
+export const electrodeSchema = z.object({
+  name: z.string().min(1).max(64),
+  minNm: vec3Schema,
+  maxNm: vec3Schema,
+  voltageV: z.number().min(-MAX_VOLTAGE_V).max(MAX_VOLTAGE_V),
+});
+
+const fmt = (x: number) => `${+x.toPrecision(6)} nm`;
+
+/** Stack rules: ordered bottom to top, touching, only the ends unbounded, names unique. */
+function checkLayers(layers: readonly z.infer<typeof layerSchema>[], ctx: z.RefinementCtx): void {
+  const names = new Map<string, number>();
+  layers.forEach((l, k) => {
+    const at = names.get(l.name);
+    if (at === undefined) names.set(l.name, k);
+    else ctx.addIssue({ code: 'custom', path: ['host', 'layers', k, 'name'], message: `repeats the name "${l.name}" of layer ${at}; every layer needs its own name` });
+    if (l.zMinNm === null && k > 0)
+      ctx.addIssue({ code: 'custom', path: ['host', 'layers', k, 'zMinNm'], message: 'may be null (unbounded) only on the lowest layer' });
+    if (l.zMaxNm === null && k < layers.length - 1)
+      ctx.addIssue({ code: 'custom', path: ['host', 'layers', k, 'zMaxNm'], message: 'may be null (unbounded) only on the highest layer' });
+    if (l.zMinNm !== null && l.zMaxNm !== null && !(l.zMaxNm > l.zMinNm))
+      ctx.addIssue({ code: 'custom', path: ['host', 'layers', k, 'zMaxNm'], message: `must be above zMinNm (${fmt(l.zMinNm)}); layers are listed from bottom to top` });
+    if (k > 0) {
+      const below = layers[k - 1].zMaxNm;
+      if (below !== null && l.zMinNm !== null && l.zMinNm !== below)
+        ctx.addIssue({
+          code: 'custom',
+          path: ['host', 'layers', k, 'zMinNm'],
+          message: `is ${fmt(l.zMinNm)} but the layer below ends at ${fmt(below)}; layers touch, listed from bottom to top`,
+        });
+    }
+  });
+}
+
+/** Interfaces (z, nm) of a valid stack, bottom to top. */
+export function layerInterfaces(layers: readonly { zMinNm: number | null; zMaxNm: number | null }[]): number[] {
+  const out: number[] = [];
+  for (let k = 1; k < layers.length; k++) {
+    const z = layers[k].zMinNm ?? layers[k - 1].zMaxNm;
+    if (z !== null) out.push(z);
+  }
+  return out;
+}
+
 export const designSchema = z
   .object({
     format: z.literal(DESIGN_FORMAT),
@@ -79,13 +141,16 @@ export const designSchema = z
       material: z.literal('Si'),
       epsilonR: z.number().min(1).max(1000),
       latticeConstantNm: z.number().positive().max(10),
+      layers: z.array(layerSchema).min(1).max(MAX_LAYERS).optional(),
     }),
     sites: z.array(siteSchema).max(MAX_SITES, { error: (iss) => tooManySites(Array.isArray(iss.input) ? iss.input.length : undefined) }),
     domain: z.object({
       center: vec3Schema,
       halfExtentsNm: z.tuple([halfExtent, halfExtent, halfExtent]),
       boundary: boundarySchema,
+      electrodeWalls: z.enum(['grounded', 'zero-normal-field']).optional(),
     }),
+    electrodes: z.array(electrodeSchema).max(MAX_ELECTRODES).optional(),
     refinement: z.object({
       order: z.union([z.literal(1), z.literal(2)]),
       targetRelError: z.number().gt(0).lt(1),
@@ -99,6 +164,38 @@ export const designSchema = z
       if (at === undefined) first.set(s.id, i);
       else ctx.addIssue({ code: 'custom', path: ['sites', i, 'id'], message: `repeats the id "${s.id}" of site ${at}; every site needs its own id` });
     });
+    const layers = doc.host.layers;
+    if (layers) {
+      checkLayers(layers, ctx);
+      const faces = layerInterfaces(layers);
+      doc.sites.forEach((s, i) => {
+        const z = s.position[2];
+        const face = faces.find((f) => Math.abs(z - f) < ON_INTERFACE_NM);
+        if (face !== undefined)
+          ctx.addIssue({
+            code: 'custom',
+            path: ['sites', i, 'position', 2],
+            message: `puts the site on the interface at z = ${fmt(face)}; a site must lie inside one layer (move it off the interface)`,
+          });
+      });
+    }
+    const electrodes = doc.electrodes ?? [];
+    const enames = new Map<string, number>();
+    electrodes.forEach((e, k) => {
+      const at = enames.get(e.name);
+      if (at === undefined) enames.set(e.name, k);
+      else ctx.addIssue({ code: 'custom', path: ['electrodes', k, 'name'], message: `repeats the name "${e.name}" of electrode ${at}; every electrode needs its own name` });
+      for (let a = 0; a < 3; a++)
+        if (!(e.maxNm[a] > e.minNm[a]))
+          ctx.addIssue({ code: 'custom', path: ['electrodes', k, 'maxNm', a], message: `must be above minNm[${a}] (${fmt(e.minNm[a])}); an electrode is a box of positive size` });
+    });
+    if (electrodes.length > 0)
+      doc.sites.forEach((s, i) => {
+        const p = s.position;
+        const k = electrodes.findIndex((e) => p.every((x, a) => x >= e.minNm[a] && x <= e.maxNm[a]));
+        if (k >= 0)
+          ctx.addIssue({ code: 'custom', path: ['sites', i, 'position'], message: `lies inside electrode "${electrodes[k].name}"; sites sit in the host, not in metal` });
+      });
     const members = new Map<string, number>();
     doc.sites.forEach((s, i) => {
       if (s.cluster === undefined) return;

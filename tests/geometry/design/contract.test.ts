@@ -168,3 +168,57 @@ describe('species presets', () => {
     expect(resolveOrbital({ species: 'As', orbital: { model: 'gaussian', sigmaNm: 1 } })).toEqual({ model: 'gaussian', sigmaNm: 1 });
   });
 });
+
+describe('version 2: layers and electrodes', () => {
+  // A buried donor pair under a 5 nm oxide with two gates: our own invented device.
+  const device = () => {
+    const d = example() as Record<string, unknown> & { host: Record<string, unknown>; sites: { position: number[] }[] };
+    d.host.layers = [
+      { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
+      { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: 5 },
+      { name: 'vacuum', epsilonR: 1, zMinNm: 5, zMaxNm: null },
+    ];
+    d.electrodes = [
+      { name: 'left gate', minNm: [-20, -5, 5], maxNm: [-2, 5, 7], voltageV: 0.3 },
+      { name: 'right gate', minNm: [2, -5, 5], maxNm: [20, 5, 7], voltageV: -0.1 },
+    ];
+    for (const s of d.sites) s.position[2] = -20;
+    return d;
+  };
+  it('a layered device with two gates is valid and keeps its fields', () => {
+    const r = parseDesign(device());
+    expect(r.ok).toBe(true);
+    if (!r.ok) return;
+    expect(r.design.host.layers?.map((l) => l.name)).toEqual(['silicon', 'oxide', 'vacuum']);
+    expect(r.design.electrodes?.[1]).toEqual({ name: 'right gate', minNm: [2, -5, 5], maxNm: [20, 5, 7], voltageV: -0.1 });
+  });
+  it('gaps, overlaps, inner unbounded ends and repeated names are refused in plain words', () => {
+    const gap = device();
+    (gap.host.layers as { zMinNm: number }[])[2].zMinNm = 6;
+    expect(lines(gap)).toContain('host.layers[2].zMinNm: is 6 nm but the layer below ends at 5 nm; layers touch, listed from bottom to top');
+    const inner = device();
+    (inner.host.layers as { zMaxNm: number | null }[])[1].zMaxNm = null;
+    expect(lines(inner).join('\n')).toMatch(/host\.layers\[1\]\.zMaxNm: may be null \(unbounded\) only on the highest layer/);
+    const twice = device();
+    (twice.electrodes as { name: string }[])[1].name = 'left gate';
+    expect(lines(twice)).toContain('electrodes[1].name: repeats the name "left gate" of electrode 0; every electrode needs its own name');
+  });
+  it('a site on an interface or inside an electrode is refused, naming the site', () => {
+    const on = device();
+    on.sites[0].position[2] = 0;
+    expect(lines(on)).toContain('sites[0].position[2]: puts the site on the interface at z = 0 nm; a site must lie inside one layer (move it off the interface)');
+    const inMetal = device();
+    inMetal.sites[0].position = [-10, 0, 6];
+    expect(lines(inMetal).join('\n')).toMatch(/sites\[0\]\.position: lies inside electrode "left gate"/);
+    const flat = device();
+    (flat.electrodes as { maxNm: number[] }[])[0].maxNm[2] = 5;
+    expect(lines(flat).join('\n')).toMatch(/electrodes\[0\]\.maxNm\[2\]: must be above minNm\[2\]/);
+  });
+  it('the electrode walls are a stated choice with two values', () => {
+    const d = device() as unknown as Record<string, unknown> & { domain: Record<string, unknown> };
+    d.domain.electrodeWalls = 'zero-normal-field';
+    expect(parseDesign(d).ok).toBe(true);
+    d.domain.electrodeWalls = 'floating';
+    expect(lines(d).join('\n')).toMatch(/domain\.electrodeWalls/);
+  });
+});
