@@ -5,7 +5,7 @@
  */
 import { z } from 'zod';
 import { capabilities, projectRoleSchema, siteRoleSchema } from './roles';
-import { designSchema, siteSchema } from './design';
+import { designInputSchema, designSchema, siteSchema } from './design';
 
 // ---------- errors ----------
 export const errorCodeSchema = z.enum([
@@ -184,9 +184,9 @@ export const designResponseSchema = z.object({ design: designDetailSchema });
 /** `{ name, document? }` starts a design (an empty one without `document`); `{ name, copyOf }` duplicates one of the project. */
 export const designCreateBodySchema = z.union([
   z.object({ name: designNameSchema, copyOf: idSchema }).strict(),
-  z.object({ name: designNameSchema, document: designSchema.optional() }).strict(),
+  z.object({ name: designNameSchema, document: designInputSchema.optional() }).strict(),
 ]);
-export const designUpdateBodySchema = z.object({ document: designSchema, version: versionSchema, name: designNameSchema.optional() });
+export const designUpdateBodySchema = z.object({ document: designInputSchema, version: versionSchema, name: designNameSchema.optional() });
 
 export const designVersionSummarySchema = z.object({
   version: z.number().int(),

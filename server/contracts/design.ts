@@ -333,6 +333,15 @@ export function migrateDesign(doc: unknown): MigrationResult {
   return { ok: true, doc: cur };
 }
 
+/**
+ * The design schema for inputs (API bodies): a document of an older format version is migrated
+ * first, so a file saved by an earlier build uploads as it is. Output type: the current document.
+ */
+export const designInputSchema = z.preprocess((v) => {
+  const m = migrateDesign(v);
+  return m.ok ? m.doc : v;
+}, designSchema);
+
 export type ParseDesignResult = { ok: true; design: DesignDocument } | { ok: false; issues: DesignIssue[] };
 
 /**
