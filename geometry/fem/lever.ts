@@ -17,9 +17,9 @@
  * E_i = Σ_g (∂E_i/∂V_g) V_g (against every electrode at 0 V).
  *
  * One mesh: one stiffness matrix, one lifting, one multigrid preconditioner for all electrodes
- * (only the Dirichlet values change between them). Error bars: the lever arms on nested graded
- * meshes (coarser levels double every size of the field: core h0, hmax and the electrode-edge
- * size), extrapolated with the Coulomb solver's own `richardson` (grid convergence index,
+ * (only the Dirichlet values change between them). Error bars: the lever arms on nested meshes
+ * (leverFamily: a coarse graded base and its uniform refinements), extrapolated with the Coulomb
+ * solver's own `richardson` (grid convergence index,
  * s = N^(−1/3), theoretical rate 2p: ∫ρφ is a smooth linear functional of φ, whose error is the
  * square of the energy-norm error, Aubin–Nitsche duality; e.g. Ciarlet 1978, §3.2).
  *
@@ -32,7 +32,7 @@ import { resolveOrbital } from '../design/presets';
 import type { CoreProgress } from '../progress';
 import { CoreError, throwIfAborted } from '../errors';
 import { meshDesign, refineUniform, toTetMesh, type MeshDesignOptions } from '../mesh/index';
-import { sizeFieldFromDesign } from '../mesh/sizefield';
+import { sizeFieldFromDesign, ELECTRODE_EDGE_DIVISOR } from '../mesh/sizefield';
 import { clippedElectrodes, tagDevice } from '../mesh/device';
 import type { TetMesh } from '../mesh/types';
 import { buildSpace, type FeSpace } from './space';
@@ -85,6 +85,8 @@ export interface LeverLevel {
   elements: number;
   dofs: number;
   iterations: number;
+  /** this level's lever arms, site-major like `leverArms` (meV/V) */
+  meVPerV: number[];
 }
 
 export interface LeverArmResult {
@@ -196,25 +198,37 @@ export function leverArmsOnMesh(design: Design, mesh: TetMesh, order: 1 | 2, opt
 }
 
 /**
- * The nested meshes of the lever arms, coarsest first, finest = the design's own mesh. A coarser
- * level multiplies every size of the field (h0, hmax, electrode-edge size) by 2, 4, …; it is kept
- * only when really coarser (≤ 0.8× the vertices of the next), as in the Coulomb solver's family.
- * When no coarser distinct mesh exists the finest is bisected uniformly three times (h/2).
+ * The nested meshes of the lever arms, coarsest first: a base mesh graded like the design's but
+ * with every size of the field (site core h0, hmax, electrode-edge size) multiplied by
+ * 2^(levels−2), then that base bisected uniformly 3, 6, … times (each round of three halves every
+ * edge), so the next-to-finest level has the design's hmax and electrode-edge size and the finest
+ * half of them (about 8× the tets). The site core gets the electrode-edge size unless h0Nm is
+ * given: φ_g varies on the device's scale, and load.ts integrates a density accurately on
+ * elements larger than the orbital. Uniform refinement of one base gives the clean
+ * ratio 2 in h that Richardson extrapolation assumes; independently graded meshes for coarser
+ * sizes did not (their hmax-limited bulk hardly changed while the electrode region did, and the
+ * differences grew instead of shrinking on a gate 6 nm above a donor).
  */
 export function leverFamily(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions = {}): TetMesh[] {
   const hmax = sizeFieldFromDesign(design, { order, ...meshOpts }).spec.hmaxNm;
-  const finest = meshDesign(design, { order, ...meshOpts, keepBisectionMesh: true });
-  const out: TetMesh[] = [finest.mesh];
-  let factor = 1;
-  while (out.length < levels && factor < 16) {
-    factor *= 2;
-    const base = meshOpts.h0Factor ?? 1;
-    const coarse = meshDesign(design, { order, ...meshOpts, h0Factor: base * factor, hmaxNm: hmax * factor, electrodeSizeFactor: (meshOpts.electrodeSizeFactor ?? 1) * factor }).mesh;
-    if (coarse.coords.length <= 0.8 * out[0].coords.length) out.unshift(coarse);
-  }
-  if (out.length < 2) {
-    const fine = refineUniform(finest.bisectionMesh!, 3, { maxTets: Math.min(design.refinement.maxElements, meshOpts.hardCap ?? Infinity) });
-    const tm = toTetMesh(fine);
+  const F = Math.pow(2, levels - 2);
+  // φ_g varies on the device's scale, not the orbital's: the sites get the electrode-edge size
+  // (load.ts integrates a density exactly enough on elements larger than the orbital)
+  const h0 = meshOpts.h0Nm ?? hmax / ELECTRODE_EDGE_DIVISOR;
+  const base = meshDesign(design, {
+    order,
+    ...meshOpts,
+    h0Nm: h0 * F,
+    hmaxNm: hmax * F,
+    electrodeSizeFactor: (meshOpts.electrodeSizeFactor ?? 1) * F,
+    keepBisectionMesh: true,
+  });
+  const bm = base.bisectionMesh!;
+  const maxTets = Math.min(meshOpts.maxElements ?? design.refinement.maxElements, meshOpts.hardCap ?? Infinity);
+  const out: TetMesh[] = [];
+  for (let l = 0; l < levels; l++) {
+    if (l > 0) refineUniform(bm, 3, { maxTets });
+    const tm = toTetMesh(bm);
     tm.vertexElectrode = tagDevice(design, tm.coords, tm.tets, tm.coords.length / 3, tm.tets.length / 4, tm.tetRegion);
     out.push(tm);
   }
@@ -250,7 +264,7 @@ export function solveLeverArms(design: Design, opts: LeverArmOptions = {}): Leve
     done += w[l];
     s.push(Math.pow(r.dofs, -1 / 3));
     values.push(r.meVPerV);
-    result.levels.push({ elements: mesh.tets.length / 4, dofs: r.dofs, iterations: r.iterations });
+    result.levels.push({ elements: mesh.tets.length / 4, dofs: r.dofs, iterations: r.iterations, meVPerV: Array.from(r.meVPerV) });
   });
   const last = values[values.length - 1];
   const err = new Float64Array(last.length);
@@ -271,7 +285,7 @@ export function solveLeverArms(design: Design, opts: LeverArmOptions = {}): Leve
     }
     result.siteEnergies.push({ id: site.id, eV: e, errorEv: de });
   });
-  if (meshes.length < 3) result.notes.push('Only two nested meshes were available for the lever arms: their error bars use the theoretical rate with a safety factor of 3.');
+  if (meshes.length < 3) result.notes.push('Only two nested meshes were used for the lever arms: their error bars use the theoretical rate with a safety factor of 3.');
   opts.onProgress?.({ phase: 'done', fraction: 1 });
   return result;
 }

@@ -68,7 +68,7 @@ export function leverArmsJson(r: LeverArmResult, seconds: number) {
     walls: r.walls,
     ...leverJson(r),
     siteEnergyErrors: r.siteEnergies.map((s) => ({ id: s.id, errorEv: s.errorEv })),
-    levels: r.levels,
+    levels: r.levels.map((l) => ({ elements: l.elements, dofs: l.dofs, iterations: l.iterations })),
     seconds,
     notes: r.notes,
   };
