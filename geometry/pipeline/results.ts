@@ -176,6 +176,7 @@ export interface ConvergenceResults {
 
 /** A refinement or box sweep (geometry/fem runConvergence) and its two outward shapes. */
 export function convergenceResults(design: Design, options: ConvergenceOptions): ConvergenceResults {
+  refuseDeviceCoulomb(design);
   const result = runConvergence(design, options);
   return { result, json: convergenceJson(result), table: convergenceTable(result) };
 }

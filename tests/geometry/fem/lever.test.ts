@@ -9,7 +9,7 @@ import { solveLeverArms, leverArmsOnMesh, leverFamily } from '../../../geometry/
 import { richardson } from '../../../geometry/fem/coulomb';
 import { planeLeverArms } from '../../../geometry/host/index';
 import { CoreError } from '../../../geometry/errors';
-import { coulombResults, coulombJson, coulombJsonWithLever, leverArmResults } from '../../../geometry/pipeline/index';
+import { coulombResults, convergenceResults, coulombJson, coulombJsonWithLever, leverArmResults } from '../../../geometry/pipeline/index';
 
 const gauss = (id: string, species: Site['species'], position: [number, number, number], sigmaNm = 0.5): Site => ({
   id, species, position, electrons: 1, orbital: { model: 'gaussian', sigmaNm },
@@ -165,15 +165,18 @@ describe('lever arms of a finite gate', () => {
 
 describe('pipeline', () => {
   it('refuses U and V of a design with layers or electrodes (CoreError device-not-supported) instead of homogeneous numbers', () => {
+    const calls = [(d: Design) => coulombResults(d), (d: Design) => convergenceResults(d, { kind: 'refinement', order: 1 })];
     for (const d of [gate('grounded'), { ...gate('grounded'), electrodes: undefined }]) {
-      let err: unknown = null;
-      try {
-        coulombResults(d);
-      } catch (e) {
-        err = e;
+      for (const call of calls) {
+        let err: unknown = null;
+        try {
+          call(d);
+        } catch (e) {
+          err = e;
+        }
+        expect(err).toBeInstanceOf(CoreError);
+        expect((err as CoreError).code).toBe('device-not-supported');
       }
-      expect(err).toBeInstanceOf(CoreError);
-      expect((err as CoreError).code).toBe('device-not-supported');
     }
   });
 
