@@ -23,6 +23,8 @@ const AREA: Record<CoreErrorCode, RefusalArea> = {
   'not-converged': 'solve',
   'solver-failed': 'solve',
   'bad-hierarchy': 'solve',
+  'electrode-outside': 'solve',
+  'device-not-supported': 'solve',
   aborted: 'cancelled',
 };
 

@@ -45,3 +45,9 @@ export type { CoulombOptions, CoulombResult, SiteEnergy, PairEnergy, ErrorBudget
 export { residualIndicator, dorflerMark } from './adaptive';
 export { runConvergence, fitLogLog } from './convergence';
 export type { ConvergenceOptions, ConvergenceResult, ConvergencePlot, RefinementRow, BoxRow } from './convergence';
+
+// Layers and electrodes (issue 11): εr per region, the electrodes' Dirichlet dofs, gate lever arms.
+export { epsByRegion, electrodeDofs, electrodeValues, METAL_EPSILON } from './electrodes';
+export type { ElectrodeDofs } from './electrodes';
+export { solveLeverArms, leverArmsOnMesh, leverFamily, leverSites, LEVER_ARM_ASSUMPTIONS } from './lever';
+export type { LeverArm, LeverArmOptions, LeverArmResult, LeverSiteEnergy, LeverLevel, LeverOnMesh } from './lever';

@@ -56,6 +56,12 @@ export interface KuhnBoxOptions {
    * Arrays grow by doubling when a hint is too small.
    */
   capacity?: { tets?: number; vertices?: number };
+  /**
+   * Explicit grid coordinates per axis (a tensor grid with non-uniform spacing), increasing, the
+   * first and last equal to the box ends; `cells` must then be their counts minus one. Used to put
+   * grid planes at layer interfaces and electrode faces (device.ts). Omitted: uniform spacing.
+   */
+  lines?: readonly [ArrayLike<number>, ArrayLike<number>, ArrayLike<number>];
 }
 
 /**
@@ -154,8 +160,17 @@ export function kuhnBox(opts: KuhnBoxOptions): BisectionMesh {
 
   // Lattice coordinates: the last plane is set to the box max exactly so that boundary
   // vertices lie exactly on the box faces (midpoints of them then do too).
+  const lines = opts.lines;
+  if (lines) {
+    for (let a = 0; a < 3; a++) {
+      const l = lines[a];
+      let ok = l.length === counts[a] + 1 && l[0] === lo[a] && l[l.length - 1] === hi[a];
+      for (let i = 1; ok && i < l.length; i++) ok = l[i] > l[i - 1];
+      if (!ok) throw new MeshError('degenerate-box', `grid lines along ${'xyz'[a]} must increase from the box min to the box max, one more than the cells`);
+    }
+  }
   const axisCoord = (a: number, i: number): number =>
-    i === 0 ? lo[a] : i === counts[a] ? hi[a] : lo[a] + ((hi[a] - lo[a]) * i) / counts[a];
+    lines ? lines[a][i] : i === 0 ? lo[a] : i === counts[a] ? hi[a] : lo[a] + ((hi[a] - lo[a]) * i) / counts[a];
   for (let k = 0; k <= nz; k++) {
     const z = axisCoord(2, k);
     const fz = (k === 0 ? 16 : 0) | (k === nz ? 32 : 0);

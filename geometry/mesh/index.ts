@@ -27,3 +27,12 @@ export { SizeField, sizeFieldFromDesign, gradingExponent, autoCoreSize, orbitalL
 export type { SizeFieldSpec, SizeFieldParams, SizeFieldOptions, SizeClassSpec } from './sizefield';
 export { estimateTetCount, LADDER_MEAN_CONSTANT } from './estimate';
 export type { EstimateResult } from './estimate';
+
+/*
+ *   layers and electrodes (device.ts): grid planes at interfaces and electrode faces, region per
+ *   layer, ELECTRODE_REGION inside electrodes, vertexElectrode (NO_ELECTRODE elsewhere).
+ */
+export { ELECTRODE_REGION, NO_ELECTRODE, hasDevice, clippedElectrodes, deviceGrid, layerIndexAt, electrodeEdgeSegments } from './device';
+export type { DeviceGrid, ClippedElectrode } from './device';
+export { electrodeEdgeExponent, ELECTRODE_EDGE_DIVISOR } from './sizefield';
+export type { ElectrodeEdgeSpec } from './sizefield';

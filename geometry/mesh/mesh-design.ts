@@ -11,6 +11,7 @@
  */
 import type { Design } from '../design/types';
 import { kuhnBox, refineToSize, toTetMesh, type BisectionMesh } from './bisection';
+import { deviceGrid, tagDevice, type DeviceGrid } from './device';
 import { MeshError } from './errors';
 import { CLOSURE_ALLOWANCE, coreLowerBound, estimateTetCount } from './estimate';
 import { SizeField, sizeFieldFromDesign, type SizeFieldOptions, type SizeFieldParams } from './sizefield';
@@ -133,6 +134,8 @@ export interface DesignEstimate {
   spec: ReturnType<typeof sizeFieldFromDesign>['spec'];
   params: ReturnType<typeof sizeFieldFromDesign>['params'];
   seconds: number;
+  /** the tensor grid with planes at layer interfaces and electrode faces (null: the plain uniform grid) */
+  grid: DeviceGrid | null;
 }
 
 /**
@@ -147,9 +150,12 @@ export function estimateDesignElements(design: Design, options: MeshDesignOption
   const limit = Math.min(hardCap, maxElements);
   const { spec, params } = sizeFieldFromDesign(design, options);
   const field = new SizeField(spec);
-  const cells = chooseInitialCells(halfExtentsNm, options.initialCells ?? 2);
+  const plainCells = chooseInitialCells(halfExtentsNm, options.initialCells ?? 2);
   const boxMin = [0, 1, 2].map((a) => center[a] - halfExtentsNm[a]);
   const boxMax = [0, 1, 2].map((a) => center[a] + halfExtentsNm[a]);
+  // layers and electrodes: grid planes at every interface and face (device.ts)
+  const grid = deviceGrid(design, plainCells);
+  const cells: [number, number, number] = grid ? [grid.lines[0].length - 1, grid.lines[1].length - 1, grid.lines[2].length - 1] : plainCells;
   const initialTets = 6 * cells[0] * cells[1] * cells[2];
 
   const t0 = performance.now();
@@ -169,14 +175,20 @@ export function estimateDesignElements(design: Design, options: MeshDesignOption
       spec,
       params,
       seconds: (performance.now() - t0) / 1000,
+      grid,
     };
   }
-  // a cheap lower bound first (milliseconds even for 10⁵ sites), then the cubature
-  const lower = CLOSURE_ALLOWANCE * coreLowerBound(spec, boxMin, boxMax, cells, limit / CLOSURE_ALLOWANCE);
+  // a cheap lower bound first (milliseconds even for 10⁵ sites), then the cubature. On the device
+  // grid a cell may be up to 1.5× the plain spacing per axis (round(L/s)), so the plain grid's
+  // bound is divided by 8, one ladder cycle (every generation's edge halves per 3 bisections).
+  const lower = (CLOSURE_ALLOWANCE * coreLowerBound(spec, boxMin, boxMax, plainCells, limit / CLOSURE_ALLOWANCE)) / (grid ? 8 : 1);
+  const maxLeaves = options.maxEstimateLeaves ?? ESTIMATE_MAX_LEAVES;
   const est =
     lower > limit
       ? { tets: lower, sizeDriven: lower / CLOSURE_ALLOWANCE, leaves: 0, aborted: true, stoppedBy: 'count' as const }
-      : estimateTetCount({ field, boxMin, boxMax, cells, stopAbove: 1.5 * limit, maxLeaves: options.maxEstimateLeaves ?? ESTIMATE_MAX_LEAVES });
+      : grid
+        ? estimateOnGrid(field, grid, 1.5 * limit, maxLeaves)
+        : estimateTetCount({ field, boxMin, boxMax, cells, stopAbove: 1.5 * limit, maxLeaves });
   return {
     estimate: Math.max(initialTets, est.tets),
     aborted: est.aborted,
@@ -190,11 +202,45 @@ export function estimateDesignElements(design: Design, options: MeshDesignOption
     spec,
     params,
     seconds: (performance.now() - t0) / 1000,
+    grid,
   };
 }
 
+/**
+ * The estimate on the device grid: the grid is uniform inside each block between required lines,
+ * so the ladder of estimate.ts applies block by block (each with its own cell shape); the count
+ * and work bounds are shared by all blocks.
+ */
+function estimateOnGrid(field: SizeField, grid: DeviceGrid, stopAbove: number, maxLeaves: number): ReturnType<typeof estimateTetCount> {
+  const { lines, pieces } = grid;
+  let tets = 0;
+  let sizeDriven = 0;
+  let leaves = 0;
+  for (let k = 0; k + 1 < pieces[2].length; k++) {
+    for (let j = 0; j + 1 < pieces[1].length; j++) {
+      for (let i = 0; i + 1 < pieces[0].length; i++) {
+        const ia = [pieces[0][i], pieces[1][j], pieces[2][k]];
+        const ib = [pieces[0][i + 1], pieces[1][j + 1], pieces[2][k + 1]];
+        const r = estimateTetCount({
+          field,
+          boxMin: [lines[0][ia[0]], lines[1][ia[1]], lines[2][ia[2]]],
+          boxMax: [lines[0][ib[0]], lines[1][ib[1]], lines[2][ib[2]]],
+          cells: [ib[0] - ia[0], ib[1] - ia[1], ib[2] - ia[2]],
+          stopAbove: stopAbove - tets,
+          maxLeaves: Math.max(1, maxLeaves - leaves),
+        });
+        tets += r.tets;
+        sizeDriven += r.sizeDriven;
+        leaves += r.leaves;
+        if (r.aborted) return { tets, sizeDriven, leaves, aborted: true, stoppedBy: r.stoppedBy };
+      }
+    }
+  }
+  return { tets, sizeDriven, leaves, aborted: false, stoppedBy: null };
+}
+
 export function meshDesign(design: Design, options: MeshDesignOptions = {}): MeshDesignResult {
-  const { estimate, aborted, stoppedBy, limit, maxElements, hardCap, cells, initialTets, leaves, spec, params, seconds } = estimateDesignElements(design, options);
+  const { estimate, aborted, stoppedBy, limit, maxElements, hardCap, cells, initialTets, leaves, spec, params, seconds, grid } = estimateDesignElements(design, options);
   const { center, halfExtentsNm } = design.domain;
   const field = new SizeField(spec);
   const t1 = performance.now();
@@ -224,7 +270,7 @@ export function meshDesign(design: Design, options: MeshDesignOptions = {}): Mes
   // graded Kuhn meshes have about 5–6 tets per vertex, so vertices ≤ tets/4 is generous.
   // Arrays still double if a run needs more.
   const tetCap = Math.ceil(1.4 * estimate) + initialTets;
-  const mesh = kuhnBox({ center, halfExtents: halfExtentsNm, cells, capacity: { tets: tetCap, vertices: Math.ceil(tetCap / 4) } });
+  const mesh = kuhnBox({ center, halfExtents: halfExtentsNm, cells, capacity: { tets: tetCap, vertices: Math.ceil(tetCap / 4) }, lines: grid?.lines });
   // The running guard: the estimate may be a little low, so the refinement itself stops (with the
   // same error code) rather than return a mesh above maxElements or the server cap.
   const refineStats = refineToSize(mesh, field.tooLarge, {
@@ -233,6 +279,13 @@ export function meshDesign(design: Design, options: MeshDesignOptions = {}): Mes
   });
   const t2 = performance.now();
   const tetMesh = toTetMesh(mesh);
+  // regions per layer, ELECTRODE_REGION inside electrodes, the electrode of each vertex (device.ts)
+  if (grid) {
+    const nT = tetMesh.tets.length / 4;
+    tetMesh.vertexElectrode = tagDevice(design, tetMesh.coords, tetMesh.tets, tetMesh.coords.length / 3, nT, tetMesh.tetRegion);
+    // the tagged bisection mesh carries the same regions, for further refinement
+    mesh.tetRegion.set(tetMesh.tetRegion.subarray(0, nT));
+  }
   const t3 = performance.now();
   let maxLevel = 0;
   for (let t = 0; t < tetMesh.tetLevel.length; t++) if (tetMesh.tetLevel[t] > maxLevel) maxLevel = tetMesh.tetLevel[t];

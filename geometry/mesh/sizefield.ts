@@ -58,6 +58,7 @@ import type { Design, Orbital } from '../design/types';
 import { resolveOrbital } from '../design/presets';
 import { MeshError } from './errors';
 import type { TooLarge } from './bisection';
+import { electrodeEdgeSegments } from './device';
 
 /** C_p of the rule above, index p − 1 (see header: measured on default graded meshes). */
 export const CORE_ERROR_CONSTANT: readonly [number, number] = [0.24, 6.5e-3];
@@ -101,7 +102,36 @@ export interface SizeFieldSpec {
   exponent: number;
   hmaxNm: number;
   classes: SizeClassSpec[];
+  /** refinement towards electrode edges (absent without electrodes): see ElectrodeEdgeSpec */
+  edges?: ElectrodeEdgeSpec;
 }
+
+/**
+ * Electrode edges and corners, where the electrodes' potential is singular (near a re-entrant
+ * edge of angle 3π/2 it behaves like d^λ, λ = 2/3; Jackson §2.11 for the wedge):
+ *
+ *     h_E(d) = h_E · max(1, d/h_E)^{β_E},   β_E = 1 − μ,  μ = ¾·λ/p   (λ = 2/3, p the order)
+ *
+ * d the distance to the nearest electrode edge segment (its endpoints are the corners). A mesh
+ * graded as d^{1−μ} with μ < λ/p restores the order-p rate near such an edge (Apel, Sändig &
+ * Whiteman, Math. Methods Appl. Sci. 19 (1996) 63–85; from memory); ¾ keeps μ clear of the limit
+ * (common practice). β_E = 1/2 for P1, 3/4 for P2. h_E defaults to hmax/4 (common practice: two
+ * bisection cycles below the far-field size), times `electrodeSizeFactor`.
+ */
+export interface ElectrodeEdgeSpec {
+  /** axis-aligned segments, 6 numbers each (two endpoints, nm) */
+  segments: Float64Array;
+  hNm: number;
+  exponent: number;
+}
+
+/** β_E = 1 − ¾·(2/3)/p (see ElectrodeEdgeSpec). */
+export function electrodeEdgeExponent(order: 1 | 2): number {
+  return 1 - (0.75 * (2 / 3)) / order;
+}
+
+/** h_E = hmax / ELECTRODE_EDGE_DIVISOR by default (common practice, see ElectrodeEdgeSpec). */
+export const ELECTRODE_EDGE_DIVISOR = 4;
 
 /** The parameters as plain data (what meshDesign reports). */
 export interface SizeFieldParams {
@@ -113,6 +143,8 @@ export interface SizeFieldParams {
   h0MinNm: number;
   classes: { h0Nm: number; coreRadiusNm: number; sites: number }[];
   rule: string;
+  /** present only when the design has electrode edges inside the domain */
+  electrodeEdges?: { segments: number; hNm: number; exponent: number; rule: string };
 }
 
 export interface SizeFieldOptions {
@@ -128,6 +160,8 @@ export interface SizeFieldOptions {
   order?: 1 | 2;
   /** tolerance; default design.refinement.targetRelError */
   targetRelError?: number;
+  /** multiplies the size h_E at electrode edges (default 1; the lever-arm levels use 2, 4) */
+  electrodeSizeFactor?: number;
 }
 
 function positive(name: string, v: number): number {
@@ -161,6 +195,18 @@ export function sizeFieldFromDesign(design: Design, options: SizeFieldOptions = 
   }
   const classes = groups.map((g) => ({ h0Nm: g.h0, coreRadiusNm: g.a, positions: Float64Array.from(g.pos) }));
   const spec: SizeFieldSpec = { exponent, hmaxNm, classes };
+  const segments = electrodeEdgeSegments(design);
+  let edgeParams: SizeFieldParams['electrodeEdges'];
+  if (segments.length > 0) {
+    const hNm = Math.min(hmaxNm, (positive('electrodeSizeFactor', options.electrodeSizeFactor ?? 1) * hmaxNm) / ELECTRODE_EDGE_DIVISOR);
+    spec.edges = { segments, hNm, exponent: electrodeEdgeExponent(order) };
+    edgeParams = {
+      segments: segments.length / 6,
+      hNm,
+      exponent: spec.edges.exponent,
+      rule: 'h = min(hmax, hE·max(1, d/hE)^βE), d = distance to the nearest electrode edge, βE = 1 − (3/4)(2/3)/p, hE = hmax/4',
+    };
+  }
   const params: SizeFieldParams = {
     order,
     targetRelError: tol,
@@ -173,6 +219,7 @@ export function sizeFieldFromDesign(design: Design, options: SizeFieldOptions = 
         ? `h = min(hmax, h0·max(1, r/a)^β), h0 = ${options.h0Nm} nm (given)`
         : `h = min(hmax, h0·max(1, r/a)^β), h0 = ${factor === 1 ? '' : `${factor}·`}a·(tol/(${CORE_SAFETY_FACTOR}·C_p))^(1/2p) capped at a/2, C_1 = ${CORE_ERROR_CONSTANT[0]}, C_2 = ${CORE_ERROR_CONSTANT[1]}, β = 2(p+2)/(2p+3)`,
   };
+  if (edgeParams) params.electrodeEdges = edgeParams;
   return { spec, params };
 }
 
@@ -368,6 +415,12 @@ export class SizeField {
   /** per class: reach for the last longest edge seen by tooLarge (−1: no refinement) */
   private readonly reach: Float64Array;
   private lastL2 = -1;
+  /** electrode edges: segments, h_E, 1/β_E, β_E and the reach where h_E(d) passes hmax (0: none) */
+  private readonly edgeSeg: Float64Array;
+  private readonly edgeH: number;
+  private readonly edgeExp: number;
+  private readonly edgeInvExp: number;
+  private readonly edgeReachMax: number;
 
   constructor(spec: SizeFieldSpec) {
     this.exponent = positive('exponent', spec.exponent);
@@ -381,6 +434,26 @@ export class SizeField {
         return { h0, a, grid: new SiteGrid(c.positions), reachMax: h0 < this.hmax ? a * Math.pow(this.hmax / h0, this.invExponent) : 0 };
       });
     this.reach = new Float64Array(this.classes.length);
+    const e = spec.edges;
+    this.edgeSeg = e ? e.segments : new Float64Array(0);
+    this.edgeH = e ? positive('electrode edge size', e.hNm) : 0;
+    this.edgeExp = e ? positive('electrode edge exponent', e.exponent) : 1;
+    this.edgeInvExp = 1 / this.edgeExp;
+    this.edgeReachMax = e && this.edgeH < this.hmax ? this.edgeH * Math.pow(this.hmax / this.edgeH, this.edgeInvExp) : 0;
+  }
+
+  /** squared distance from the box [l, u] to the nearest electrode edge segment (both are boxes: exact) */
+  private edgeDist2(l0: number, l1: number, l2: number, u0: number, u1: number, u2: number): number {
+    const s = this.edgeSeg;
+    let best = Infinity;
+    for (let k = 0; k < s.length; k += 6) {
+      const g0 = Math.max(0, l0 - Math.max(s[k], s[k + 3]), Math.min(s[k], s[k + 3]) - u0);
+      const g1 = Math.max(0, l1 - Math.max(s[k + 1], s[k + 4]), Math.min(s[k + 1], s[k + 4]) - u1);
+      const g2 = Math.max(0, l2 - Math.max(s[k + 2], s[k + 5]), Math.min(s[k + 2], s[k + 5]) - u2);
+      const d2 = g0 * g0 + g1 * g1 + g2 * g2;
+      if (d2 < best) best = d2;
+    }
+    return best;
   }
 
   /** min of h over the box [l, u] */
@@ -393,6 +466,13 @@ export class SizeField {
       const r = Math.sqrt(d2);
       const hc = r <= c.a ? c.h0 : c.h0 * Math.pow(r / c.a, this.exponent);
       if (hc < h) h = hc;
+    }
+    if (this.edgeReachMax > 0) {
+      const r = Math.sqrt(this.edgeDist2(l0, l1, l2, u0, u1, u2));
+      if (r < this.edgeReachMax) {
+        const he = r <= this.edgeH ? this.edgeH : this.edgeH * Math.pow(r / this.edgeH, this.edgeExp);
+        if (he < h) h = he;
+      }
     }
     return h;
   }
@@ -446,6 +526,17 @@ export class SizeField {
       const l1 = Math.min(y0, y1, y2, y3), u1 = Math.max(y0, y1, y2, y3);
       const l2 = Math.min(z0, z1, z2, z3), u2 = Math.max(z0, z1, z2, z3);
       if (c.grid.minDist2(l0, l1, l2, u0, u1, u2, R, true) !== Infinity) return true;
+    }
+    // electrode edges: h_E(d) < L ⇔ L > h_E and d < h_E·(L/h_E)^{1/β_E}
+    if (this.edgeReachMax > 0) {
+      const L = Math.sqrt(L2);
+      if (L > this.edgeH) {
+        const R = this.edgeH * Math.pow(L / this.edgeH, this.edgeInvExp);
+        const l0 = Math.min(x0, x1, x2, x3), u0 = Math.max(x0, x1, x2, x3);
+        const l1 = Math.min(y0, y1, y2, y3), u1 = Math.max(y0, y1, y2, y3);
+        const l2 = Math.min(z0, z1, z2, z3), u2 = Math.max(z0, z1, z2, z3);
+        if (this.edgeDist2(l0, l1, l2, u0, u1, u2) < R * R) return true;
+      }
     }
     return false;
   };

@@ -12,7 +12,10 @@ export interface TetMesh {
   tets: Uint32Array;
   /** bisection generation of each tetrahedron (0 for the initial Kuhn cells) */
   tetLevel: Uint8Array;
-  /** region id of each tetrahedron (0 = host) */
+  /**
+   * region id of each tetrahedron: the index of the layer it lies in (0 without layers), or
+   * ELECTRODE_REGION (255, geometry/mesh/device.ts) inside an electrode
+   */
   tetRegion: Uint8Array;
   /**
    * Vertex hierarchy from bisection: vertex i was created as the midpoint of
@@ -23,6 +26,11 @@ export interface TetMesh {
   vertexLevel: Uint8Array;
   /** 1 for vertices on the domain boundary */
   boundaryVertex: Uint8Array;
+  /**
+   * electrode index of each vertex in or on an electrode box, NO_ELECTRODE (0xff) elsewhere;
+   * present only when the design has layers or electrodes
+   */
+  vertexElectrode?: Uint8Array;
 }
 
 export const NO_PARENT = 0xffffffff;

@@ -8,13 +8,19 @@
  *   encodeMesh(artifact, 'vtu' | 'vtk' | 'binary') → Uint8Array  deterministic bytes
  *   coulombResults(design, options)             → { result, hasNumbers, json, table }
  *   convergenceResults(design, options)         → { result, json, table }
+ *   leverArmResults(design, options)            → { result, json, table }   gate lever arms, site energies
  *
  * Progress is data (geometry/progress.ts); refusals are CoreError (geometry/errors.ts).
  */
 export { buildMeshArtifact, encodeMesh, sitesOutsideDomain } from './mesh';
 export type { MeshArtifact, MeshArtifactOptions, MeshFormat, MeshSummary } from './mesh';
-export { coulombResults, convergenceResults, coulombJson, convergenceJson } from './results';
-export type { CoulombResults, ConvergenceResults, CoulombJson, ConvergenceJson, ResultTable } from './results';
+export {
+  coulombResults, convergenceResults, coulombJson, convergenceJson, leverArmResults, leverArmsJson, leverJson, leverTable, coulombJsonWithLever,
+  refuseDeviceCoulomb, COULOMB_SOLVES_DEVICES,
+} from './results';
+export type { CoulombResults, ConvergenceResults, CoulombJson, ConvergenceJson, ResultTable, LeverArmResults, LeverArmsJson } from './results';
+export { LEVER_ARM_ASSUMPTIONS } from '../fem/lever';
+export type { LeverArmResult, LeverArm, LeverSiteEnergy } from '../fem/lever';
 export type { CoreProgress, CorePhase } from '../progress';
 export { CoreError, CoreAbortError } from '../errors';
 export type { CoreErrorCode, CoreErrorDetails } from '../errors';

@@ -16,6 +16,10 @@ import { meshDesign, SizeField, sizeFieldFromDesign, orbitalLength, type MeshDes
 import { writeVtu, writeVtkLegacy, encodeMeshBinary } from '../mesh/export/index';
 import { qualityReport, type QualityReport, type ReportSite } from '../mesh/quality';
 import { solveSitePotentials } from '../fem/coulomb';
+import { buildSpace } from '../fem/space';
+import { electrodeDofs } from '../fem/electrodes';
+import { leverArmsOnMesh } from '../fem/lever';
+import { hasDevice, NO_ELECTRODE } from '../mesh/device';
 import type { CoreProgress } from '../progress';
 
 export type MeshFormat = 'vtu' | 'vtk' | 'binary';
@@ -38,8 +42,14 @@ export interface MeshArtifact {
   meshed: MeshDesignResult;
   /** the size field at the mesh vertices (nm), written as point data (the writers extend it to P2 nodes) */
   sizeField: Float64Array;
-  /** with `solve`: φ of every site with electrons in V per elementary charge, on all nodes of the order */
-  pointData: { name: string; values: Float64Array }[];
+  /**
+   * with `solve`: φ of every site with electrons in V per elementary charge, on all nodes of the
+   * order ("Potential_<id>"); for a design with layers or electrodes instead each electrode's
+   * potential with it at 1 V and the others at 0 ("ElectrodePotential_<name>", V per V), the site
+   * potentials waiting for the layered Coulomb solve. Designs with layers or electrodes also get
+   * "ElectrodeId" (Int16 per node: the electrode index, −1 for none).
+   */
+  pointData: { name: string; values: Float64Array | Int16Array }[];
   /** sites outside the domain: allowed (a design may be mid-edit), but the mesh is not graded around them */
   outsideSiteIds: string[];
   quality: QualityReport;
@@ -87,7 +97,16 @@ export function buildMeshArtifact(design: Design, options: MeshArtifactOptions =
   for (let v = 0; v < nV; v++) sizeField[v] = field.valueAt(mesh.coords[3 * v], mesh.coords[3 * v + 1], mesh.coords[3 * v + 2]);
 
   const pointData: MeshArtifact['pointData'] = [];
-  if (options.solve) {
+  const device = hasDevice(design);
+  if (options.solve && device) {
+    if ((design.electrodes?.length ?? 0) > 0) {
+      const lever = leverArmsOnMesh(design, mesh, order, {
+        signal: options.signal,
+        onProgress: options.onProgress && ((p) => options.onProgress!({ ...p, fraction: 0.1 + 0.8 * p.fraction })),
+      });
+      lever.potentials.forEach((phi, g) => pointData.push({ name: `ElectrodePotential_${design.electrodes![g].name}`, values: phi }));
+    }
+  } else if (options.solve) {
     const solved = solveSitePotentials(design, mesh, order, {
       signal: options.signal,
       onProgress: options.onProgress && ((p) => options.onProgress!({ ...p, fraction: 0.1 + 0.8 * p.fraction })),
@@ -98,6 +117,14 @@ export function buildMeshArtifact(design: Design, options: MeshArtifactOptions =
       for (let k = 0; k < phi.length; k++) volts[k] = phi[k] * COULOMB_EV_NM;
       pointData.push({ name: `Potential_${id}`, values: volts });
     });
+  }
+
+  if (device) {
+    // the electrode of every node of the order (P2 edge nodes: both ends on one electrode)
+    const of = electrodeDofs(buildSpace(mesh, order), design).electrodeOfDof;
+    const ids = new Int16Array(of.length);
+    for (let i = 0; i < of.length; i++) ids[i] = of[i] === NO_ELECTRODE ? -1 : of[i];
+    pointData.push({ name: 'ElectrodeId', values: ids });
   }
 
   options.onProgress?.({ phase: 'quality', fraction: 0.9 });

@@ -9,6 +9,17 @@
 import type { Design } from '../design/types';
 import { solveCoulomb, type CoulombOptions, type CoulombResult } from '../fem/coulomb';
 import { runConvergence, type ConvergenceOptions, type ConvergenceResult, type RefinementRow, type BoxRow } from '../fem/convergence';
+import { solveLeverArms, type LeverArmOptions, type LeverArmResult } from '../fem/lever';
+import { hasDevice } from '../mesh/device';
+import { CoreError } from '../errors';
+
+/**
+ * Whether solveCoulomb computes U and V with layers and electrodes. Until it does (issue 11, the
+ * Coulomb restructure), coulombResults refuses such designs with CoreError 'device-not-supported'
+ * rather than print homogeneous-host numbers; lever arms (leverArmResults) and meshes work. The
+ * lead flips this when the layered solve lands; coulombResults then adds the lever arms.
+ */
+export const COULOMB_SOLVES_DEVICES = false;
 
 /** A table of results: column names and rows of numbers or strings (an empty string for no value). */
 export interface ResultTable {
@@ -31,6 +42,49 @@ export function coulombJson(r: CoulombResult) {
   };
 }
 export type CoulombJson = ReturnType<typeof coulombJson>;
+
+/** The lever-arm keys of `coulomb --json` (issue 11's names, in this order). */
+export function leverJson(r: LeverArmResult) {
+  return {
+    siteEnergies: r.siteEnergies.map((s) => ({ id: s.id, eV: s.eV })),
+    leverArms: r.leverArms.map((a) => ({ site: a.site, electrode: a.electrode, meVPerV: a.meVPerV, errorMeVPerV: a.errorMeVPerV })),
+  };
+}
+
+/**
+ * `coulomb --json` of a design with electrodes: the issue's keys, then siteEnergies and leverArms
+ * (present, possibly empty, exactly when the design has electrodes). Without electrodes the object
+ * is coulombJson's, key for key.
+ */
+export function coulombJsonWithLever(r: CoulombResult, lever: LeverArmResult | null) {
+  const base = coulombJson(r);
+  return lever ? { ...base, ...leverJson(lever) } : base;
+}
+
+/** `coulomb --lever-arms --json`: the lever arms alone, for designs whose U and V wait for the layered solve. */
+export function leverArmsJson(r: LeverArmResult, seconds: number) {
+  return {
+    order: r.order,
+    walls: r.walls,
+    ...leverJson(r),
+    siteEnergyErrors: r.siteEnergies.map((s) => ({ id: s.id, errorEv: s.errorEv })),
+    levels: r.levels.map((l) => ({ elements: l.elements, dofs: l.dofs, iterations: l.iterations })),
+    seconds,
+    notes: r.notes,
+  };
+}
+export type LeverArmsJson = ReturnType<typeof leverArmsJson>;
+
+/** Lever arms and site energies as a table (the server writes it as CSV). */
+export function leverTable(r: LeverArmResult): ResultTable {
+  return {
+    fields: ['quantity', 'site', 'electrode', 'value', 'error', 'unit'],
+    rows: [
+      ...r.leverArms.map((a) => ['lever_arm_mev_per_v', a.site, a.electrode, a.meVPerV, a.errorMeVPerV, 'meV/V']),
+      ...r.siteEnergies.map((s) => ['site_energy_ev', s.id, '', s.eV, s.errorEv, 'eV']),
+    ],
+  };
+}
 
 export function coulombTable(r: CoulombResult): ResultTable {
   return {
@@ -73,14 +127,45 @@ export interface CoulombResults {
   result: CoulombResult;
   /** false when adaptive refinement ran out of budget before the target: no numbers are given out then */
   hasNumbers: boolean;
-  json: CoulombJson;
+  json: CoulombJson | ReturnType<typeof coulombJsonWithLever>;
   table: ResultTable;
+  /** lever arms and site energies (designs with electrodes; null without) */
+  lever: LeverArmResult | null;
+}
+
+/** Refuse U and V of a design with layers or electrodes while the Coulomb solve ignores them. */
+export function refuseDeviceCoulomb(design: Design): void {
+  if (COULOMB_SOLVES_DEVICES || !hasDevice(design)) return;
+  const what = [(design.host.layers?.length ?? 0) > 0 ? 'layers' : '', (design.electrodes?.length ?? 0) > 0 ? 'electrodes' : ''].filter(Boolean).join(' and ');
+  throw new CoreError(
+    'device-not-supported',
+    `the design has ${what}, and U and V are not computed for layered hosts or electrodes yet (they would be the homogeneous host's numbers)` +
+      ((design.electrodes?.length ?? 0) > 0 ? '; the gate lever arms and site energies are: run coulomb with --lever-arms' : ''),
+    { layers: design.host.layers?.length ?? 0, electrodes: design.electrodes?.length ?? 0 },
+  );
 }
 
 /** U and V with error bars (geometry/fem solveCoulomb) and their two outward shapes. */
 export function coulombResults(design: Design, options: CoulombOptions = {}): CoulombResults {
+  refuseDeviceCoulomb(design);
   const result = solveCoulomb(design, options);
-  return { result, hasNumbers: !(result.mode === 'adaptive' && !result.meetsTarget), json: coulombJson(result), table: coulombTable(result) };
+  const lever = (design.electrodes?.length ?? 0) > 0 ? solveLeverArms(design, { order: options.order, signal: options.signal, mesh: options.mesh }) : null;
+  const table = coulombTable(result);
+  if (lever) table.rows.push(...leverTable(lever).rows.map((r) => [r[0], r[1], r[2], '', r[3], r[4]]));
+  return { result, hasNumbers: !(result.mode === 'adaptive' && !result.meetsTarget), json: coulombJsonWithLever(result, lever), table, lever };
+}
+
+export interface LeverArmResults {
+  result: LeverArmResult;
+  json: LeverArmsJson;
+  table: ResultTable;
+}
+
+/** Gate lever arms and site energies with error bars (geometry/fem solveLeverArms) and their two outward shapes. */
+export function leverArmResults(design: Design, options: LeverArmOptions = {}): LeverArmResults {
+  const t0 = performance.now();
+  const result = solveLeverArms(design, options);
+  return { result, json: leverArmsJson(result, (performance.now() - t0) / 1000), table: leverTable(result) };
 }
 
 export interface ConvergenceResults {
@@ -91,6 +176,7 @@ export interface ConvergenceResults {
 
 /** A refinement or box sweep (geometry/fem runConvergence) and its two outward shapes. */
 export function convergenceResults(design: Design, options: ConvergenceOptions): ConvergenceResults {
+  refuseDeviceCoulomb(design);
   const result = runConvergence(design, options);
   return { result, json: convergenceJson(result), table: convergenceTable(result) };
 }

@@ -1,6 +1,12 @@
 /**
- * `npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]… [--pairs …] [--theta x] [--json] [--progress]`:
+ * `npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]… [--pairs …] [--theta x] [--lever-arms] [--json] [--progress]`:
  * on-site U and inter-site V of a design with error bars.
+ *
+ * Designs with electrodes add `siteEnergies: [{ id, eV }]` and `leverArms: [{ site, electrode,
+ * meVPerV, errorMeVPerV }]` after the keys below (absent without electrodes, so those designs print
+ * what they always did). While U and V ignore layers and electrodes, such designs are refused
+ * (code device-not-supported) and `--lever-arms` computes the lever arms and site energies alone:
+ *   { order, walls, siteEnergies, leverArms, siteEnergyErrors: [{ id, errorEv }], levels, seconds, notes }
  *
  * With --json prints exactly one JSON object, the issue's keys first and in order:
  *   { order, elements, dofs, iterations, sites: [{ id, uEv, uErrorEv }],
@@ -20,11 +26,11 @@ import { notesAndAssumptions, table } from './text';
 import type { Design } from '../../geometry/design/types';
 import type { CoulombResult } from '../../geometry/fem/index';
 import { asRefusal, describeRefusal } from '../coreErrors';
-import { coulombResults, type CoulombResults } from '../../geometry/pipeline/index';
+import { coulombResults, leverArmResults, LEVER_ARM_ASSUMPTIONS, type CoulombResults, type LeverArmResult } from '../../geometry/pipeline/index';
 import { parseCli } from './args';
 import { progressLines } from './progress';
 
-const USAGE = 'usage: npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]... [--pairs auto|all|bond-graph|none] [--theta x] [--json] [--progress]';
+const USAGE = 'usage: npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]... [--pairs auto|all|bond-graph|none] [--theta x] [--lever-arms] [--json] [--progress]';
 
 /** The refusals the numerical core raises on purpose (CoreError): shown in words, never as a stack trace. */
 export function refusalMessage(err: unknown, lead: string): string | null {
@@ -69,6 +75,44 @@ export function toCoulombReadable(design: Design, r: CoulombResult): string {
   return out.join('\n');
 }
 
+/** The lever arms (meV/V) and site energies (meV) with their error bars, for the readable output. */
+export function leverReadable(design: Design, r: LeverArmResult): string[] {
+  const out: string[] = [];
+  const names = (design.electrodes ?? []).map((e) => e.name);
+  const volts = (design.electrodes ?? []).map((e) => `${e.name} ${e.voltageV} V`).join(', ');
+  out.push(
+    `Gate lever arms ∂E/∂V (meV/V; negative: an electron's energy falls as the electrode's voltage rises, a hole's rises), P${r.order}, ` +
+      `${r.levels.length} nested meshes (finest ${r.levels[r.levels.length - 1]?.elements ?? 0} tetrahedra), walls ${r.walls === 'grounded' ? 'grounded (0 V)' : 'with zero normal field'}`,
+  );
+  out.push('');
+  const byKey = new Map(r.leverArms.map((a) => [`${a.site}\u0000${a.electrode}`, a] as const));
+  const fmt = (x: number) => (Number.isFinite(x) ? x.toPrecision(6) : '—');
+  const fmtErr = (x: number) => (Number.isFinite(x) ? x.toPrecision(2) : '—');
+  out.push(
+    table([
+      ['site', ...names.flatMap((n) => [`${n} (meV/V)`, '± (meV/V)']), 'E at design voltages (meV)', '± (meV)'],
+      ...r.siteEnergies.map((s) => [
+        s.id,
+        ...names.flatMap((n) => {
+          const a = byKey.get(`${s.id}\u0000${n}`);
+          return a ? [fmt(a.meVPerV), fmtErr(a.errorMeVPerV)] : ['—', '—'];
+        }),
+        fmt(1000 * s.eV),
+        fmtErr(1000 * s.errorEv),
+      ]),
+    ]),
+  );
+  out.push(`(site energies at ${volts || 'no electrodes'}, against every electrode at 0 V; error columns: grid-convergence-index bar from nested meshes)`);
+  return out;
+}
+
+export function toLeverReadable(design: Design, r: LeverArmResult, seconds: number): string {
+  const out: string[] = [`Gate lever arms: ${design.name} (${seconds.toFixed(1)} s)`, ''];
+  out.push(...leverReadable(design, r));
+  out.push(...notesAndAssumptions(r.notes, LEVER_ARM_ASSUMPTIONS));
+  return out.join('\n');
+}
+
 export async function run(argv: string[]): Promise<number> {
   const args = parseCli(argv, {
     order: { type: 'string' },
@@ -78,6 +122,7 @@ export async function run(argv: string[]): Promise<number> {
     json: { type: 'boolean' },
     adaptive: { type: 'boolean' },
     progress: { type: 'boolean' },
+    'lever-arms': { type: 'boolean' },
     help: { type: 'boolean', short: 'h' },
   });
   if (!('error' in args) && args.values.help) {
@@ -109,6 +154,22 @@ export async function run(argv: string[]): Promise<number> {
   const design = await readDesign(args.positionals[0], json);
   if (!design) return 1;
   const progress = progressLines({ enabled: !json || !!v.progress });
+  if (v['lever-arms']) {
+    if (!(design.electrodes?.length)) {
+      console.error('--lever-arms needs a design with electrodes: this one has none');
+      return 1;
+    }
+    try {
+      const lever = leverArmResults(design, { order: orderArg ? (Number(orderArg) as 1 | 2) : undefined, onProgress: progress.onProgress });
+      console.log(json ? JSON.stringify(lever.json, null, 2) : toLeverReadable(design, lever.result, lever.json.seconds));
+      return 0;
+    } catch (err) {
+      const msg = refusalMessage(err, 'cannot compute the lever arms');
+      if (msg === null) throw err;
+      console.error(msg);
+      return 1;
+    }
+  }
   let out: CoulombResults;
   try {
     out = coulombResults(design, {
@@ -130,7 +191,7 @@ export async function run(argv: string[]): Promise<number> {
     console.error(`no result: ${result.notes[0] ?? 'the adaptive refinement did not reach the target'}`);
     return 3;
   }
-  console.log(json ? JSON.stringify(out.json, null, 2) : toCoulombReadable(design, result));
+  console.log(json ? JSON.stringify(out.json, null, 2) : toCoulombReadable(design, result) + (out.lever ? `\n\n${toLeverReadable(design, out.lever, 0)}` : ''));
   if (!result.meetsTarget) {
     console.error(
       `warning: the estimated relative error ${result.estimatedRelError.toExponential(2)} does not meet targetRelError ${result.targetRelError}; the numbers above do not have the accuracy asked for (exit code 3)`,

@@ -27,6 +27,8 @@
  *   5     parents          UInt32   2   (0xffffffff = none)
  *   6     vertexLevel      UInt8    1
  *   7     boundaryVertex   UInt8    1
+ *   8     vertexElectrode  UInt8    1   (optional: only meshes of designs with layers or electrodes;
+ *                                       0xff = no electrode; a reader that predates it skips it)
  *
  * Decoders reject a wrong magic, an unknown version, a length that does not match, arrays that
  * run past the end or disagree in size, and indices out of range — each with a plain message.
@@ -68,6 +70,8 @@ interface FieldSpec {
   key: keyof TetMesh;
   dtype: number;
   components: number;
+  /** written only when the mesh has it; never required by the reader */
+  optional?: boolean;
 }
 
 /** The arrays of a TetMesh, in file order. */
@@ -79,13 +83,14 @@ const FIELDS: FieldSpec[] = [
   { code: 5, key: 'parents', dtype: 3, components: 2 },
   { code: 6, key: 'vertexLevel', dtype: 1, components: 1 },
   { code: 7, key: 'boundaryVertex', dtype: 1, components: 1 },
+  { code: 8, key: 'vertexElectrode', dtype: 1, components: 1, optional: true },
 ];
 
 const align8 = (n: number) => (n + 7) & ~7;
 
 /** Encode a mesh (its seven arrays) into TWMESH bytes. */
 export function encodeMeshBinary(mesh: TetMesh): Uint8Array {
-  const arrays = FIELDS.map((f) => {
+  const arrays = FIELDS.filter((f) => !f.optional || mesh[f.key] !== undefined).map((f) => {
     const a = mesh[f.key] as ArrayLike<number> & ArrayBufferView;
     const Ctor = DTYPES[f.dtype];
     if (!(a instanceof Ctor)) throw new Error(`mesh.${String(f.key)} must be a ${Ctor.name}`);
@@ -172,9 +177,9 @@ export function decodeMeshBinary(bytes: Uint8Array): TetMesh {
     if (!HOST_LITTLE_ENDIAN && Ctor.BYTES_PER_ELEMENT > 1) dst.set(leBytes(arr)); // swap back to host order
     found.set(code, arr);
   }
-  for (const f of FIELDS) if (!found.has(f.code)) throw new MeshBinaryError(`TWMESH data lacks the ${String(f.key)} array`);
+  for (const f of FIELDS) if (!f.optional && !found.has(f.code)) throw new MeshBinaryError(`TWMESH data lacks the ${String(f.key)} array`);
 
-  const mesh = Object.fromEntries(FIELDS.map((f) => [f.key, found.get(f.code)])) as unknown as TetMesh;
+  const mesh = Object.fromEntries(FIELDS.filter((f) => found.has(f.code)).map((f) => [f.key, found.get(f.code)])) as unknown as TetMesh;
   const nV = mesh.coords.length / 3;
   const m = mesh.tets.length / 4;
   const expect = (key: keyof TetMesh, len: number) => {
@@ -186,6 +191,7 @@ export function decodeMeshBinary(bytes: Uint8Array): TetMesh {
   expect('parents', 2 * nV);
   expect('vertexLevel', nV);
   expect('boundaryVertex', nV);
+  if (mesh.vertexElectrode) expect('vertexElectrode', nV);
   for (let i = 0; i < mesh.tets.length; i++) {
     if (mesh.tets[i] >= nV) throw new MeshBinaryError(`tet ${Math.floor(i / 4)} refers to vertex ${mesh.tets[i]}, but there are ${nV}`);
   }

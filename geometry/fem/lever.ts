@@ -1,0 +1,291 @@
+/**
+ * Gate lever arms: how much each site's energy moves per volt on each electrode.
+ *
+ * For every electrode g, φ_g solves the Laplace problem of the device
+ *
+ *     −∇·(εr ∇φ_g) = 0   in the domain outside the metal,
+ *     φ_g = 1 V on electrode g, 0 V on the others, walls per design.domain.electrodeWalls
+ *
+ * (electrodes.ts: εr per region, Dirichlet dofs). A carrier of charge q bound at site i with the
+ * unit density ρ_i changes its energy by q∫ρ_i φ_g per volt on g, so
+ *
+ *     ∂E_i/∂V_g = −e ∫ρ_i φ_g  = −1000 · ∫ρ_i φ_g  meV/V   for an electron (donors),
+ *               = +1000 · ∫ρ_i φ_g  meV/V                  for a hole (species B),
+ *
+ * negative for an electron under a positive gate. The integral is load·φ: ∫ρ_i φ_h = Σ_k f_i[k] φ_h[k]
+ * with f_i = ∫ρ_i v_k from load.ts. Superposition gives the site energies at the design's voltages,
+ * E_i = Σ_g (∂E_i/∂V_g) V_g (against every electrode at 0 V).
+ *
+ * One mesh: one stiffness matrix, one lifting, one multigrid preconditioner for all electrodes
+ * (only the Dirichlet values change between them). Error bars: the lever arms on nested meshes
+ * (leverFamily: a coarse graded base and its uniform refinements), extrapolated with the Coulomb
+ * solver's own `richardson` (grid convergence index,
+ * s = N^(−1/3), theoretical rate 2p: ∫ρφ is a smooth linear functional of φ, whose error is the
+ * square of the energy-norm error, Aubin–Nitsche duality; e.g. Ciarlet 1978, §3.2).
+ *
+ * Assumptions (stated with every result): ideal metal at a fixed voltage, planar layers infinite
+ * in x and y within the domain, no free charge other than the site's (no screening by other
+ * carriers, no depletion), the walls' condition as chosen in the design.
+ */
+import type { Design, Orbital, Vec3 } from '../design/types';
+import { resolveOrbital } from '../design/presets';
+import type { CoreProgress } from '../progress';
+import { CoreError, throwIfAborted } from '../errors';
+import { meshDesign, refineUniform, toTetMesh, type MeshDesignOptions } from '../mesh/index';
+import { sizeFieldFromDesign, ELECTRODE_EDGE_DIVISOR } from '../mesh/sizefield';
+import { clippedElectrodes, tagDevice } from '../mesh/device';
+import type { TetMesh } from '../mesh/types';
+import { buildSpace, type FeSpace } from './space';
+import { assembleStiffness, applyDirichlet, applyDirichletRhs } from './assemble';
+import { multigridPreconditioner } from './multigrid';
+import { pcg, jacobi, type Preconditioner } from './pcg';
+import type { Csr } from './csr';
+import { densityLoad } from './load';
+import { richardson } from './coulomb';
+import { electrodeDofs, electrodeValues, epsByRegion } from './electrodes';
+
+/** The model behind every lever arm, in plain words for the CLI, the jobs and the studio. */
+export const LEVER_ARM_ASSUMPTIONS: readonly string[] = [
+  'Electrodes are ideal metal held at a fixed voltage; a heavily doped lead is modelled as such a metal.',
+  'Layers are planar and infinite in x and y within the domain; each has one relative permittivity.',
+  'No charge other than the site\'s own density (no screening by other carriers, no depletion); the site\'s orbital does not change with the voltages.',
+  'Domain walls for the electrodes\' problem: grounded (0 V), or zero normal field, as the design says.',
+  'Lever arms and site energies are estimates, to be confirmed by the group\'s own validated methods before any fabrication or design decision.',
+];
+
+export interface LeverArmOptions {
+  /** element order (default design.refinement.order) */
+  order?: 1 | 2;
+  /** nested meshes for the error bar (default 3, at least 2) */
+  levels?: number;
+  /** extra options of the finest mesh (the coarser levels scale its sizes) */
+  mesh?: MeshDesignOptions;
+  /** PCG relative residual (default 1e-10) */
+  solverTol?: number;
+  preconditioner?: 'multigrid' | 'jacobi';
+  onProgress?: (p: CoreProgress) => void;
+  signal?: { readonly aborted: boolean };
+}
+
+export interface LeverArm {
+  site: string;
+  electrode: string;
+  meVPerV: number;
+  errorMeVPerV: number;
+}
+
+export interface LeverSiteEnergy {
+  id: string;
+  /** Σ_g (∂E/∂V_g) V_g at the design's voltages, against all electrodes at 0 V (eV) */
+  eV: number;
+  errorEv: number;
+}
+
+export interface LeverLevel {
+  elements: number;
+  dofs: number;
+  iterations: number;
+  /** this level's lever arms, site-major like `leverArms` (meV/V) */
+  meVPerV: number[];
+}
+
+export interface LeverArmResult {
+  order: 1 | 2;
+  walls: 'grounded' | 'zero-normal-field';
+  /** site-major: every electrode for the first site, then the next site */
+  leverArms: LeverArm[];
+  siteEnergies: LeverSiteEnergy[];
+  levels: LeverLevel[];
+  assumptions: readonly string[];
+  notes: string[];
+}
+
+interface LeverSite {
+  id: string;
+  orbital: Orbital;
+  position: Vec3;
+  /** −1 electron, +1 hole */
+  sign: number;
+}
+
+/** Sites with a carrier (electrons > 0); an acceptor (B) binds a hole. */
+export function leverSites(design: Design): LeverSite[] {
+  const { center, halfExtentsNm } = design.domain;
+  const out: LeverSite[] = [];
+  for (const s of design.sites) {
+    if (!(s.electrons > 0)) continue;
+    if (s.position.some((x, k) => !(Math.abs(x - center[k]) < halfExtentsNm[k]))) {
+      throw new CoreError('site-outside', `site "${s.id}" is not strictly inside the domain: enlarge the box or move the site`, { siteId: s.id });
+    }
+    out.push({ id: s.id, orbital: resolveOrbital(s), position: s.position, sign: s.species === 'B' ? 1 : -1 });
+  }
+  return out;
+}
+
+/** One mesh's lever arms: sites × electrodes (meV/V, site-major) and the solver's figures. */
+export interface LeverOnMesh {
+  meVPerV: Float64Array;
+  dofs: number;
+  iterations: number;
+  /** the electrodes' potentials φ_g (V per V) on every dof, one per electrode */
+  potentials: Float64Array[];
+  space: FeSpace;
+}
+
+export function leverArmsOnMesh(design: Design, mesh: TetMesh, order: 1 | 2, opts: LeverArmOptions = {}, level = 1, fraction: [number, number] = [0, 1]): LeverOnMesh {
+  const electrodes = design.electrodes ?? [];
+  const sites = leverSites(design);
+  const m = electrodes.length;
+  const space = buildSpace(mesh, order);
+  const eps = epsByRegion(design);
+  const K = assembleStiffness(space, eps);
+  const dofs = electrodeDofs(space, design);
+  dofs.perElectrode.forEach((count, g) => {
+    if (count === 0) {
+      throw new CoreError('electrode-outside', `electrode "${electrodes[g].name}" has no volume inside the domain: move it into the box or enlarge the box`, { electrode: electrodes[g].name });
+    }
+  });
+  // the multigrid hierarchy treats `boundaryDof` as the Dirichlet set: give it the electrodes' one
+  const fixedSpace: FeSpace = { ...space, boundaryDof: dofs.fixed };
+  const n = space.nDofs;
+  const zero = new Float64Array(n);
+  const report = (f: number): void => opts.onProgress?.({ phase: 'solve', level, fraction: fraction[0] + (fraction[1] - fraction[0]) * f });
+  let A: Csr | null = null;
+  let M: Preconditioner | null = null;
+  let iterations = 0;
+  const potentials: Float64Array[] = [];
+  for (let g = 0; g < m; g++) {
+    throwIfAborted(opts.signal);
+    const gv = electrodeValues(dofs, g);
+    let rhs: Float64Array;
+    if (!A) {
+      const sys = applyDirichlet(K, zero, dofs.fixed, gv);
+      A = sys.A;
+      rhs = sys.b;
+      M = opts.preconditioner === 'jacobi' ? jacobi(A) : multigridPreconditioner(fixedSpace, A, { epsByRegion: eps });
+    } else rhs = applyDirichletRhs(K, zero, dofs.fixed, gv);
+    const res = pcg(A, rhs, gv, {
+      preconditioner: M!,
+      tol: opts.solverTol ?? 1e-10,
+      maxIter: 5000,
+      signal: opts.signal,
+      stage: `electrode ${electrodes[g].name}`,
+      onProgress: (_stage, f) => report((g + f) / (m + 1)),
+    });
+    if (!res.converged) {
+      throw new CoreError('solver-failed', `the solver did not reach its tolerance for electrode ${electrodes[g].name} (relative residual ${res.relResidual.toExponential(2)} after ${res.iterations} iterations)`, {
+        electrode: electrodes[g].name,
+        relResidual: res.relResidual,
+        iterations: res.iterations,
+      });
+    }
+    iterations = Math.max(iterations, res.iterations);
+    potentials.push(res.x);
+  }
+  const meVPerV = new Float64Array(sites.length * m);
+  sites.forEach((site, i) => {
+    throwIfAborted(opts.signal);
+    opts.onProgress?.({ phase: 'load', level, site: site.id, fraction: fraction[0] + (fraction[1] - fraction[0]) * ((m + i / sites.length) / (m + 1)) });
+    const L = densityLoad(space, site.orbital, site.position).load;
+    for (let g = 0; g < m; g++) {
+      const phi = potentials[g];
+      let s = 0;
+      for (let k = 0; k < n; k++) s += L[k] * phi[k];
+      meVPerV[i * m + g] = site.sign * 1000 * s;
+    }
+  });
+  return { meVPerV, dofs: n, iterations, potentials, space };
+}
+
+/**
+ * The nested meshes of the lever arms, coarsest first: a base mesh graded like the design's but
+ * with every size of the field (site core h0, hmax, electrode-edge size) multiplied by
+ * 2^(levels−2), then that base bisected uniformly 3, 6, … times (each round of three halves every
+ * edge), so the next-to-finest level has the design's hmax and electrode-edge size and the finest
+ * half of them (about 8× the tets). The site core gets the electrode-edge size unless h0Nm is
+ * given: φ_g varies on the device's scale, and load.ts integrates a density accurately on
+ * elements larger than the orbital. Uniform refinement of one base gives the clean
+ * ratio 2 in h that Richardson extrapolation assumes; independently graded meshes for coarser
+ * sizes did not (their hmax-limited bulk hardly changed while the electrode region did, and the
+ * differences grew instead of shrinking on a gate 6 nm above a donor).
+ */
+export function leverFamily(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions = {}): TetMesh[] {
+  const hmax = sizeFieldFromDesign(design, { order, ...meshOpts }).spec.hmaxNm;
+  const F = Math.pow(2, levels - 2);
+  // φ_g varies on the device's scale, not the orbital's: the sites get the electrode-edge size
+  // (load.ts integrates a density exactly enough on elements larger than the orbital)
+  const h0 = meshOpts.h0Nm ?? hmax / ELECTRODE_EDGE_DIVISOR;
+  const base = meshDesign(design, {
+    order,
+    ...meshOpts,
+    h0Nm: h0 * F,
+    hmaxNm: hmax * F,
+    electrodeSizeFactor: (meshOpts.electrodeSizeFactor ?? 1) * F,
+    keepBisectionMesh: true,
+  });
+  const bm = base.bisectionMesh!;
+  const maxTets = Math.min(meshOpts.maxElements ?? design.refinement.maxElements, meshOpts.hardCap ?? Infinity);
+  const out: TetMesh[] = [];
+  for (let l = 0; l < levels; l++) {
+    if (l > 0) refineUniform(bm, 3, { maxTets });
+    const tm = toTetMesh(bm);
+    tm.vertexElectrode = tagDevice(design, tm.coords, tm.tets, tm.coords.length / 3, tm.tets.length / 4, tm.tetRegion);
+    out.push(tm);
+  }
+  return out;
+}
+
+/**
+ * Lever arms (sites × electrodes) with error bars and the site energies at the design's voltages.
+ * A design without electrodes gives empty lists. Refuses (CoreError 'electrode-outside') an
+ * electrode with no volume inside the domain.
+ */
+export function solveLeverArms(design: Design, opts: LeverArmOptions = {}): LeverArmResult {
+  const order = opts.order ?? design.refinement.order;
+  const electrodes = design.electrodes ?? [];
+  const walls = design.domain.electrodeWalls ?? 'grounded';
+  const result: LeverArmResult = { order, walls, leverArms: [], siteEnergies: [], levels: [], assumptions: LEVER_ARM_ASSUMPTIONS, notes: [] };
+  if (electrodes.length === 0) return result;
+  const clipped = new Set(clippedElectrodes(design).map((e) => e.index));
+  electrodes.forEach((e, g) => {
+    if (!clipped.has(g)) throw new CoreError('electrode-outside', `electrode "${e.name}" has no volume inside the domain: move it into the box or enlarge the box`, { electrode: e.name });
+  });
+  const sites = leverSites(design);
+  const m = electrodes.length;
+  opts.onProgress?.({ phase: 'mesh', fraction: 0 });
+  const meshes = leverFamily(design, order, Math.max(2, Math.floor(opts.levels ?? 3)), opts.mesh ?? {});
+  const w = meshes.map((mesh) => mesh.tets.length);
+  const wSum = w.reduce((a, b) => a + b, 0);
+  let done = 0;
+  const s: number[] = [];
+  const values: Float64Array[] = [];
+  meshes.forEach((mesh, l) => {
+    const r = leverArmsOnMesh(design, mesh, order, opts, l + 1, [done / wSum, (done + w[l]) / wSum]);
+    done += w[l];
+    s.push(Math.pow(r.dofs, -1 / 3));
+    values.push(r.meVPerV);
+    result.levels.push({ elements: mesh.tets.length / 4, dofs: r.dofs, iterations: r.iterations, meVPerV: Array.from(r.meVPerV) });
+  });
+  const last = values[values.length - 1];
+  const err = new Float64Array(last.length);
+  for (let k = 0; k < last.length; k++) {
+    const series = values.map((v) => v[k]);
+    const r = richardson(s, series, 2 * order);
+    // a lever arm the same on every mesh (a linear potential, reproduced exactly) has no bar to give
+    err[k] = Number.isFinite(r.error) ? r.error : Infinity;
+  }
+  sites.forEach((site, i) => {
+    let e = 0;
+    let de = 0;
+    for (let g = 0; g < m; g++) {
+      const k = i * m + g;
+      result.leverArms.push({ site: site.id, electrode: electrodes[g].name, meVPerV: last[k], errorMeVPerV: err[k] });
+      e += (last[k] / 1000) * electrodes[g].voltageV;
+      de += (err[k] / 1000) * Math.abs(electrodes[g].voltageV);
+    }
+    result.siteEnergies.push({ id: site.id, eV: e, errorEv: de });
+  });
+  if (meshes.length < 3) result.notes.push('Only two nested meshes were used for the lever arms: their error bars use the theoretical rate with a safety factor of 3.');
+  opts.onProgress?.({ phase: 'done', fraction: 1 });
+  return result;
+}
