@@ -168,13 +168,19 @@ export function layeredContext(input: LayeredInput, siteZ: ArrayLike<number>): L
   };
 }
 
-/** Same stack and box (the caches of one context stay valid for the other's sites). */
-export function sameContext(a: LayeredContext, b: LayeredContext): boolean {
+/** Same stack and host εr: U, V and the image effect of one context hold for the other. */
+export function sameStack(a: LayeredContext, b: LayeredContext): boolean {
   const s = a.stack, t = b.stack;
   if (!s || !t) return false;
-  if (s.interfaces.length !== t.interfaces.length || a.finiteElectrodes !== b.finiteElectrodes || a.epsilonMin !== b.epsilonMin || a.hostEpsilonR !== b.hostEpsilonR) return false;
+  if (s.interfaces.length !== t.interfaces.length || a.hostEpsilonR !== b.hostEpsilonR) return false;
   for (let k = 0; k < s.interfaces.length; k++) if (s.interfaces[k] !== t.interfaces[k]) return false;
   for (let k = 0; k < s.epsilon.length; k++) if (s.epsilon[k] !== t.epsilon[k]) return false;
+  return true;
+}
+
+/** Same stack, box and electrode kinds: the bounds of one context hold for the other. */
+export function sameContext(a: LayeredContext, b: LayeredContext): boolean {
+  if (!sameStack(a, b) || a.finiteElectrodes !== b.finiteElectrodes || a.epsilonMin !== b.epsilonMin) return false;
   for (let k = 0; k < 3; k++) if (a.center[k] !== b.center[k] || a.half[k] !== b.half[k]) return false;
   return true;
 }

@@ -43,6 +43,7 @@ import {
   nearElectrode,
   pairImage,
   sameContext,
+  sameStack,
   siteImage,
   siteProfile,
   type LayeredContext,
@@ -67,6 +68,9 @@ export interface FarFieldChanges {
   /** the design's electrodes (issue 11; [] or absent: none) */
   electrodes?: Electrode[];
 }
+
+/** Image series kept per layered context before the cache starts afresh (common practice). */
+const SERIES_CACHE_LIMIT = 20_000;
 
 /** FarFieldOptions, with the element estimator also given the current design. */
 export type FarFieldSessionOptions = Omit<FarFieldOptions, 'estimateElements'> & {
@@ -110,10 +114,13 @@ interface SiteState {
   /** the last SiteBound given out, and the energy scale it was computed with */
   bound: SiteBound | null;
   boundEv: number;
-  /** layered host or electrodes: the stack's bound and U for layered context `layStamp` (layered.ts) */
+  /** layered host or electrodes: the stack's bound for context `layStamp`, U for stack `imgStamp` (layered.ts) */
   layStamp: number;
   layBound: LayeredSiteBound | null;
+  imgStamp: number;
   layImage: SiteImage | null;
+  /** V of pairs with later sites in the stack, by the other site's state (stack stamp kept with each) */
+  pairImages: WeakMap<SiteState, { stamp: number; image: PairImage }> | null;
 }
 
 function dist(p: readonly number[], q: readonly number[]): number {
@@ -149,10 +156,13 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   let name = initial.name;
   let host: Host = copyHost(initial.host);
   let electrodes: Electrode[] = copyElectrodes(initial.electrodes ?? []);
-  // layered host or electrodes: the context the per-site caches belong to (layStamp), and the
-  // layered pair images, by the PairBound object they were computed with
+  // layered host or electrodes: the context the bounds belong to (layStamp: stack, box, boundary),
+  // the one the images belong to (imgStamp: stack only, so a box drag keeps U and V), and the
+  // layered pair images by the PairBound object they were computed with
   let layCtx: LayeredContext | null = null;
   let layStamp = 0;
+  let imgCtx: LayeredContext | null = null;
+  let imgStamp = 0;
   const pairImages = new WeakMap<PairBound, PairImage>();
   // pair results are valid for one (box stamp, layered stamp): pairStamp counts those
   let pairStamp = 0;
@@ -215,7 +225,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       offLattice: dist(snapped, site.position) > 1e-6,
       env: null, boxStamp: -1, clear: 0, delta: 0, chargeOutside: 0,
       reqTarget: NaN, reqStamp: -1, req: 0, moments: null, bound: null, boundEv: NaN,
-      layStamp: -1, layBound: null, layImage: null,
+      layStamp: -1, layBound: null, imgStamp: -1, layImage: null, pairImages: null,
     };
   };
   const envFor = (st: SiteState): Envelope => {
@@ -388,10 +398,18 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
         layBoundaryKind = boundary.kind;
         layBoundaryOrder = boundary.kind === 'multipole' ? boundary.order : -1;
       }
+      if (!imgCtx || !sameStack(imgCtx, fresh)) {
+        imgCtx = fresh;
+        imgStamp++;
+      }
+      // the image series by heights: bounded, so a long session of 3-D moves cannot grow it without end
+      if (imgCtx.series.size > SERIES_CACHE_LIMIT) imgCtx.series.clear();
+      if (layCtx.series.size > SERIES_CACHE_LIMIT) layCtx.series.clear();
       collector = new ImageEffectCollector(fresh, electrodes, domain);
     } else if (layCtx) {
-      layCtx = null;
+      layCtx = imgCtx = null;
       layStamp++;
+      imgStamp++;
     }
     if (boxStamp !== pairStampBox || layStamp !== pairStampLay) {
       pairStamp++;
@@ -418,10 +436,14 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       }
       delta[i] = st.delta;
       self[i] = st.self;
-      if (collector && layCtx) {
+      if (collector && layCtx && imgCtx) {
         const dens = { position: st.site.position, orbital: st.orbital };
-        if (st.layStamp !== layStamp || !st.layBound || !st.layImage) {
-          st.layImage = siteImage(layCtx, dens);
+        if (st.imgStamp !== imgStamp || !st.layImage) {
+          st.layImage = siteImage(imgCtx, dens);
+          st.imgStamp = imgStamp;
+          st.layBound = null;
+        }
+        if (st.layStamp !== layStamp || !st.layBound) {
           st.layBound = layeredSiteBound(layCtx, st.site.position, siteProfile(st.orbital, boundary), envFor(st), boundary, st.layImage.leak);
           st.layStamp = layStamp;
           st.bound = null;
@@ -493,8 +515,15 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
           const exact = pairEnergy(si.orbital, sj.orbital, R);
           v = exact ?? 1 / R;
           let img: PairImage | null = null;
-          if (collector && layCtx) {
-            img = pairImage(layCtx, { position: si.site.position, orbital: si.orbital }, { position: sj.site.position, orbital: sj.orbital });
+          if (collector && imgCtx) {
+            // V in the stack does not depend on the box: kept per pair of site states and stack
+            si.pairImages ??= new WeakMap();
+            const hit = si.pairImages.get(sj);
+            if (hit && hit.stamp === imgStamp) img = hit.image;
+            else {
+              img = pairImage(imgCtx, { position: si.site.position, orbital: si.orbital }, { position: sj.site.position, orbital: sj.orbital });
+              si.pairImages.set(sj, { stamp: imgStamp, image: img });
+            }
             if (img.vEv !== null) v = img.vEv / ev;
           }
           const dl = grounded ? Math.min(delta[i], delta[j]) : Math.max(delta[i], delta[j]);
