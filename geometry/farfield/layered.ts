@@ -268,28 +268,52 @@ export function layeredSiteBound(
   if (!(dFace > 0)) return { delta: Infinity, kind: 'rigorous', reason: 'image-series' };
   const stack = ctx.stack;
   const z0 = position[2];
-  let worst = 0;
-  for (const piece of ctx.pieces) {
-    if (stack.epsilon[regionOfZ(stack, piece.zEvalLo)] === Infinity) continue; // e = 0 in metal
-    const both = pieceSeries(ctx, z0, piece);
-    if (!both) return fallback('too-many-interfaces');
-    const [a, b] = both;
-    // lateral distances from the site's vertical to the piece: nearest and farthest
-    let latMin2 = 0;
-    let latMax2 = 0;
+  // lateral distances from the site's vertical to each piece, nearest and farthest; the pieces are
+  // visited nearest first, and a piece whose crude bound Σ|c_k|·U(nearest lateral distance) cannot
+  // beat the worst so far is skipped (every term's distance is at least that, U is non-increasing)
+  const np = ctx.pieces.length;
+  const latMin = new Float64Array(np);
+  const latMax = new Float64Array(np);
+  const order = new Uint32Array(np);
+  for (let q = 0; q < np; q++) {
+    const piece = ctx.pieces[q];
+    let mn = 0;
+    let mx = 0;
     for (let k = 0; k < 2; k++) {
       if (k === piece.axis) {
         const d = piece.coord - position[k];
-        latMin2 += d * d;
-        latMax2 += d * d;
+        mn += d * d;
+        mx += d * d;
       } else {
         const lo = center[k] - half[k] - position[k];
         const hi = center[k] + half[k] - position[k];
         const near = lo > 0 ? lo : hi < 0 ? -hi : 0;
         const far = Math.max(Math.abs(lo), Math.abs(hi));
-        latMin2 += near * near;
-        latMax2 += far * far;
+        mn += near * near;
+        mx += far * far;
       }
+    }
+    latMin[q] = mn;
+    latMax[q] = mx;
+    order[q] = q;
+  }
+  order.sort((p, q) => latMin[p] - latMin[q] || p - q);
+  let worst = 0;
+  for (let o = 0; o < np; o++) {
+    const q = order[o];
+    const piece = ctx.pieces[q];
+    if (stack.epsilon[regionOfZ(stack, piece.zEvalLo)] === Infinity) continue; // e = 0 in metal
+    const both = pieceSeries(ctx, z0, piece);
+    if (!both) return fallback('too-many-interfaces');
+    const [a, b] = both;
+    const latMin2 = latMin[q];
+    const latMax2 = latMax[q];
+    if (worst > 0) {
+      let sumAbs = 0;
+      for (let k = 0; k < a.count; k++) sumAbs += Math.abs(a.coef[k]);
+      const lat = Math.sqrt(latMin2);
+      const crude = a.scale * sumAbs * (grounded ? profile.upper(lat) : profile.neglected(lat)) + Math.max(a.tailBound, b.tailBound);
+      if (crude <= worst) continue;
     }
     let up = 0;
     let low = 0;

@@ -119,6 +119,9 @@ interface SiteState {
   layBound: LayeredSiteBound | null;
   imgStamp: number;
   layImage: SiteImage | null;
+  /** the nearest electrode within a few orbital sizes, for electrode set `nearStamp` */
+  nearStamp: number;
+  near: { index: number; distanceNm: number } | null;
   /** V of pairs with later sites in the stack, by the other site's state (stack stamp kept with each) */
   pairImages: WeakMap<SiteState, { stamp: number; image: PairImage }> | null;
 }
@@ -163,6 +166,11 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   let layStamp = 0;
   let imgCtx: LayeredContext | null = null;
   let imgStamp = 0;
+  // what the last context was built from (host, electrodes and domain are replaced, never mutated,
+  // on a change; the metal planes depend on the sites only through their lowest and highest z)
+  let freshCtx: LayeredContext | null = null;
+  let freshKey: [Host, Electrode[], Domain, number, number] | null = null;
+  let electrodesStamp = 0;
   const pairImages = new WeakMap<PairBound, PairImage>();
   // pair results are valid for one (box stamp, layered stamp): pairStamp counts those
   let pairStamp = 0;
@@ -225,7 +233,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       offLattice: dist(snapped, site.position) > 1e-6,
       env: null, boxStamp: -1, clear: 0, delta: 0, chargeOutside: 0,
       reqTarget: NaN, reqStamp: -1, req: 0, moments: null, bound: null, boundEv: NaN,
-      layStamp: -1, layBound: null, imgStamp: -1, layImage: null, pairImages: null,
+      layStamp: -1, layBound: null, imgStamp: -1, layImage: null, nearStamp: -1, near: null, pairImages: null,
     };
   };
   const envFor = (st: SiteState): Envelope => {
@@ -257,6 +265,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
     let touched = false;
     if (c.electrodes && !sameJson(c.electrodes, electrodes)) {
       electrodes = copyElectrodes(c.electrodes);
+      electrodesStamp++;
       touched = true;
     }
     if (c.host) {
@@ -391,7 +400,19 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
     const layered = isLayered({ layers: host.layers, electrodes });
     let collector: ImageEffectCollector | null = null;
     if (layered) {
-      const fresh = layeredContext({ epsilonR: eps, layers: host.layers, electrodes, domain }, Float64Array.from(states, (st) => st.site.position[2]));
+      let zLo = Infinity;
+      let zHi = -Infinity;
+      for (const st of states) {
+        const z = st.site.position[2];
+        if (z < zLo) zLo = z;
+        if (z > zHi) zHi = z;
+      }
+      const k = freshKey;
+      if (!freshCtx || !k || k[0] !== host || k[1] !== electrodes || k[2] !== domain || k[3] !== zLo || k[4] !== zHi) {
+        freshCtx = layeredContext({ epsilonR: eps, layers: host.layers, electrodes, domain }, n ? [zLo, zHi] : []);
+        freshKey = [host, electrodes, domain, zLo, zHi];
+      }
+      const fresh = freshCtx;
       if (!layCtx || !sameContext(layCtx, fresh) || boundary.kind !== layBoundaryKind || (boundary.kind === 'multipole' && boundary.order !== layBoundaryOrder)) {
         layCtx = fresh;
         layStamp++;
@@ -448,7 +469,11 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
           st.layStamp = layStamp;
           st.bound = null;
         }
-        collector.site(i, st.layImage, nearElectrode(electrodes, dens));
+        if (st.nearStamp !== electrodesStamp) {
+          st.near = nearElectrode(electrodes, dens);
+          st.nearStamp = electrodesStamp;
+        }
+        collector.site(i, st.layImage, st.near);
         delta[i] = st.layBound.delta * eps;
         if (st.layImage.uEv !== null) self[i] = st.layImage.uEv / ev;
       }
