@@ -124,6 +124,8 @@ export interface LayeredContext {
   options: ImageOptions;
   /** image series by heights, shared by every site of one height */
   series: Map<string, ReturnType<typeof imageSeries>>;
+  /** the two series of every wall piece, by the site's height (undefined: not built yet) */
+  pieceSeries: Map<number, ([ImageSeries, ImageSeries] | null | undefined)[]>;
 }
 
 export function layeredContext(input: LayeredInput, siteZ: ArrayLike<number>): LayeredContext {
@@ -165,6 +167,7 @@ export function layeredContext(input: LayeredInput, siteZ: ArrayLike<number>): L
     half: [half[0], half[1], half[2]],
     options: { toleranceNm1: LAYERED_TOLERANCE_NM1 },
     series: new Map(),
+    pieceSeries: new Map(),
   };
 }
 
@@ -201,8 +204,22 @@ function seriesFor(ctx: LayeredContext, z0: number, z: number, maxRoundTrips?: n
   return hit;
 }
 
-/** The two series of a piece (at its lower and upper evaluation heights) with the same terms, or null. */
-function pieceSeries(ctx: LayeredContext, z0: number, piece: WallPiece): [ImageSeries, ImageSeries] | null {
+/** The two series of a piece (at its lower and upper evaluation heights) with the same terms, or null; cached by height. */
+function pieceSeries(ctx: LayeredContext, z0: number, q: number): [ImageSeries, ImageSeries] | null {
+  let row = ctx.pieceSeries.get(z0);
+  if (!row) {
+    row = new Array(ctx.pieces.length);
+    ctx.pieceSeries.set(z0, row);
+  }
+  let hit = row[q];
+  if (hit === undefined) {
+    hit = buildPieceSeries(ctx, z0, ctx.pieces[q]);
+    row[q] = hit;
+  }
+  return hit;
+}
+
+function buildPieceSeries(ctx: LayeredContext, z0: number, piece: WallPiece): [ImageSeries, ImageSeries] | null {
   let a = seriesFor(ctx, z0, piece.zEvalLo).series;
   let b = piece.zEvalHi === piece.zEvalLo ? a : seriesFor(ctx, z0, piece.zEvalHi).series;
   if (!a || !b) return null;
@@ -303,7 +320,7 @@ export function layeredSiteBound(
     const q = order[o];
     const piece = ctx.pieces[q];
     if (stack.epsilon[regionOfZ(stack, piece.zEvalLo)] === Infinity) continue; // e = 0 in metal
-    const both = pieceSeries(ctx, z0, piece);
+    const both = pieceSeries(ctx, z0, q);
     if (!both) return fallback('too-many-interfaces');
     const [a, b] = both;
     const latMin2 = latMin[q];

@@ -426,6 +426,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       // the image series by heights: bounded, so a long session of 3-D moves cannot grow it without end
       if (imgCtx.series.size > SERIES_CACHE_LIMIT) imgCtx.series.clear();
       if (layCtx.series.size > SERIES_CACHE_LIMIT) layCtx.series.clear();
+      if (layCtx.pieceSeries.size > SERIES_CACHE_LIMIT) layCtx.pieceSeries.clear();
       collector = new ImageEffectCollector(fresh, electrodes, domain);
     } else if (layCtx) {
       layCtx = imgCtx = null;
