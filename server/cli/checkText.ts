@@ -10,6 +10,9 @@ import type { BoundReason, ImageFinding } from '../../geometry/farfield/layered'
 const pct = (x: number | null | undefined) => (x === null || x === undefined || !Number.isFinite(x) ? '—' : `${(100 * x).toPrecision(3)}%`);
 const nm = (x: number | undefined) => (x === undefined || !Number.isFinite(x) ? '?' : `${x.toPrecision(3)} nm`);
 
+/** Findings of one code listed in words before the rest are counted (common practice). */
+export const FINDINGS_PER_CODE = 8;
+
 /** What a bound's reason means, in one clause. */
 export const BOUND_REASON_WORDS: Record<BoundReason, string> = {
   'image-series': 'rigorous: the largest potential on the walls from the image series of the stack (maximum principle)',
@@ -46,7 +49,7 @@ export function findingWords(design: Design, f: ImageFinding): string {
     case 'electrode-straddles':
       return `${electrodeName(design, f.index)} spans the cross-section but has sites on both sides, so it is not treated as a metal plane; its images are not in the figures.`;
     case 'site-near-electrode':
-      return `${siteName(design, f.index)} is ${nm(f.value)} from an electrode, within a few orbital sizes: its density touches the metal, which no model here describes well.`;
+      return `${siteName(design, f.index)} is ${nm(f.value)} from an electrode, within a few orbital sizes: its density reaches close to the metal, where an ideal metal face and a fixed density are least reliable.`;
     case 'density-leaks':
       return `${pct(f.value)} of the density of ${siteName(design, f.index)} lies across an interface: its image figures are an approximation of that size.`;
     case 'too-many-interfaces':
@@ -118,7 +121,14 @@ export function layeredSection(design: Design, r: FarFieldReport): string[] {
   if (e.findings.length) {
     out.push('');
     out.push('findings for layers and electrodes:');
-    for (const f of e.findings) out.push(`  [${findingSeverity(f)}] ${f.code}: ${findingWords(design, f)}`);
+    // at most FINDINGS_PER_CODE of one code (a large array can have one per site); --json has all
+    const shown = new Map<string, number>();
+    for (const f of e.findings) {
+      const k = shown.get(f.code) ?? 0;
+      shown.set(f.code, k + 1);
+      if (k < FINDINGS_PER_CODE) out.push(`  [${findingSeverity(f)}] ${f.code}: ${findingWords(design, f)}`);
+    }
+    for (const [code, k] of shown) if (k > FINDINGS_PER_CODE) out.push(`  … and ${k - FINDINGS_PER_CODE} more ${code} findings (use --json for all)`);
   }
   return out;
 }
