@@ -36,6 +36,20 @@ import { clearanceFor, neglectedEnvelope, type Envelope } from './envelope';
 import { combinedMoments, orbitalMoments } from './moments';
 import { closeSitePairs } from './close-pairs';
 import { describeBoundary, elementBudgetWarning, findingsWarnings, pairsLimitedWarning } from './warnings';
+import {
+  ImageEffectCollector,
+  isLayered,
+  LAYERED_ASSUMPTIONS,
+  layeredContext,
+  layeredSiteBound,
+  nearElectrode,
+  pairImage,
+  siteImage,
+  siteProfile,
+  type BoundKind,
+  type BoundReason,
+  type ImageEffectReport,
+} from './layered';
 
 /** Stable warning codes: the UI and scripts may key on them; never rename, only add. */
 export const WARNING_CODES = [
@@ -75,6 +89,12 @@ export interface SiteBound {
   clearanceNm: number;
   /** clearance this site needs for the tolerance (nm) */
   requiredClearanceNm: number;
+  /**
+   * Layered hosts and electrodes only (absent in a homogeneous host, where every bound is
+   * rigorous): whether uBoundEv is a rigorous bound or an estimate, and why (layered.ts).
+   */
+  boundKind?: BoundKind;
+  boundReason?: BoundReason;
 }
 
 export interface PairBound {
@@ -112,6 +132,11 @@ export interface FarFieldReport {
    */
   moments?: { center: Vec3; order: number; values: number[]; sites: { id: string; values: number[] }[] };
   assumptions: string[];
+  /**
+   * With layers or electrodes: the worst image-charge effect on U and V against an infinite host
+   * of host.epsilonR, over the check's pairs (layered.ts). Absent otherwise.
+   */
+  imageEffect?: ImageEffectReport;
 }
 
 export interface FarFieldOptions {
@@ -257,6 +282,30 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     target[i] = tol * self[i];
   }
 
+  // ---- layered host or electrodes: the stack's bound and U in the stack (layered.ts). Values stay
+  // in the units of the homogeneous path (εr = host, ×ev for eV), so everything below is shared.
+  const layered = isLayered({ layers: design.host.layers, electrodes: design.electrodes });
+  const electrodes = design.electrodes ?? [];
+  const ctx = layered ? layeredContext({ epsilonR: eps, layers: design.host.layers, electrodes, domain: design.domain }, Float64Array.from(sites, (s) => s.position[2])) : null;
+  const collector = ctx ? new ImageEffectCollector(ctx, electrodes, design.domain) : null;
+  const kinds: BoundKind[] = [];
+  const reasons: BoundReason[] = [];
+  if (ctx && collector) {
+    for (let i = 0; i < n; i++) {
+      const site = { position: sites[i].position, orbital: orbitals[i] };
+      const img = siteImage(ctx, site);
+      collector.site(i, img, nearElectrode(electrodes, site));
+      const b = layeredSiteBound(ctx, sites[i].position, siteProfile(orbitals[i], boundary), envs[i], boundary, img.leak);
+      delta[i] = b.delta * eps;
+      kinds[i] = b.kind;
+      reasons[i] = b.reason;
+      if (img.uEv !== null) {
+        self[i] = img.uEv / ev;
+        target[i] = tol * self[i];
+      }
+    }
+  }
+
   // ---- pairs
   let pairI: Int32Array;
   let pairJ: Int32Array;
@@ -286,7 +335,12 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
       continue;
     }
     const exact = pairEnergy(orbitals[i], orbitals[j], R);
-    const v = exact ?? 1 / R;
+    let v = exact ?? 1 / R;
+    if (ctx && collector) {
+      const img = pairImage(ctx, { position: si.position, orbital: orbitals[i] }, { position: sj.position, orbital: orbitals[j] });
+      collector.pair(t, i, img);
+      if (img.vEv !== null) v = img.vEv / ev;
+    }
     const dl = boundary.kind === 'grounded' ? Math.min(delta[i], delta[j]) : Math.max(delta[i], delta[j]);
     const bounded = Number.isFinite(dl);
     pairs.push({ a: si.id, b: sj.id, distanceNm: R, vEv: ev * v, vModel: exact === null ? 'point-charge' : 'closed-form', vBoundEv: bounded ? ev * dl : null, vRelBound: bounded ? dl / v : null });
@@ -324,6 +378,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
       uEv: ev * self[i],
       clearanceNm: clear[i],
       requiredClearanceNm: req,
+      ...(layered ? { boundKind: kinds[i], boundReason: reasons[i] } : {}),
     });
     if (!inside) outside.push(s.id);
     else {
@@ -371,8 +426,9 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     elementsEstimate,
     elementsEstimateIsLowerBound,
     warnings,
-    assumptions: MODEL_ASSUMPTIONS,
+    assumptions: layered ? LAYERED_ASSUMPTIONS : MODEL_ASSUMPTIONS,
   };
+  if (collector) report.imageEffect = collector.report(sites.map((s) => s.id), (t) => [sites[pairI[t]].id, sites[pairJ[t]].id]);
   if (options.moments) {
     const c: Vec3 = options.momentsCenter ? [...options.momentsCenter] : [center[0], center[1], center[2]];
     const vals = combinedMoments(

@@ -21,7 +21,7 @@
  *
  * Report order and ties follow check.ts step by step; keep the two in step when either changes.
  */
-import type { Design, Domain, Host, Orbital, Refinement, Site, Vec3 } from '../design/types';
+import type { Design, Domain, Electrode, Host, Orbital, Refinement, Site, Vec3 } from '../design/types';
 import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
 import { chargeOutsideBox, pairEnergy, selfEnergy } from '../density';
@@ -34,6 +34,23 @@ import { orbitalMoments } from './moments';
 import { ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, orbitalSizeFindings, requiredClearance, type ClearanceCache, type FarFieldOptions, type FarFieldReport, type PairBound, type SiteBound } from './check';
 import { CloseSiteIndex } from './close-pairs';
 import { describeBoundary, elementBudgetWarning, findingsWarnings, pairsLimitedWarning } from './warnings';
+import {
+  ImageEffectCollector,
+  isLayered,
+  LAYERED_ASSUMPTIONS,
+  layeredContext,
+  layeredSiteBound,
+  nearElectrode,
+  pairImage,
+  sameContext,
+  sameStack,
+  siteImage,
+  siteProfile,
+  type LayeredContext,
+  type LayeredSiteBound,
+  type PairImage,
+  type SiteImage,
+} from './layered';
 
 /**
  * Edits since the last update. Applied in this order: `removed` (by id), `upserted` (a site with
@@ -48,7 +65,12 @@ export interface FarFieldChanges {
   host?: Host;
   domain?: Domain;
   refinement?: Refinement;
+  /** the design's electrodes (issue 11; [] or absent: none) */
+  electrodes?: Electrode[];
 }
+
+/** Image series kept per layered context before the cache starts afresh (common practice). */
+const SERIES_CACHE_LIMIT = 20_000;
 
 /** FarFieldOptions, with the element estimator also given the current design. */
 export type FarFieldSessionOptions = Omit<FarFieldOptions, 'estimateElements'> & {
@@ -92,6 +114,16 @@ interface SiteState {
   /** the last SiteBound given out, and the energy scale it was computed with */
   bound: SiteBound | null;
   boundEv: number;
+  /** layered host or electrodes: the stack's bound for context `layStamp`, U for stack `imgStamp` (layered.ts) */
+  layStamp: number;
+  layBound: LayeredSiteBound | null;
+  imgStamp: number;
+  layImage: SiteImage | null;
+  /** the nearest electrode within a few orbital sizes, for electrode set `nearStamp` */
+  nearStamp: number;
+  near: { index: number; distanceNm: number } | null;
+  /** V of pairs with later sites in the stack, by the other site's state (stack stamp kept with each) */
+  pairImages: WeakMap<SiteState, { stamp: number; image: PairImage }> | null;
 }
 
 function dist(p: readonly number[], q: readonly number[]): number {
@@ -110,11 +142,42 @@ const copySite = (s: Site): Site => {
   if (s.cluster !== undefined) c.cluster = s.cluster;
   return c;
 };
-const copyDomain = (e: Domain): Domain => ({ center: [...e.center], halfExtentsNm: [...e.halfExtentsNm], boundary: { ...e.boundary } });
+const copyDomain = (e: Domain): Domain => {
+  const d: Domain = { center: [...e.center], halfExtentsNm: [...e.halfExtentsNm], boundary: { ...e.boundary } };
+  if (e.electrodeWalls !== undefined) d.electrodeWalls = e.electrodeWalls;
+  return d;
+};
+const copyHost = (h: Host): Host => {
+  const c: Host = { material: h.material, epsilonR: h.epsilonR, latticeConstantNm: h.latticeConstantNm };
+  if (h.layers !== undefined) c.layers = h.layers.map((l) => ({ ...l }));
+  return c;
+};
+const copyElectrodes = (list: readonly Electrode[]): Electrode[] => list.map((e) => ({ name: e.name, minNm: [...e.minNm], maxNm: [...e.maxNm], voltageV: e.voltageV }));
+const sameJson = (a: unknown, b: unknown) => JSON.stringify(a) === JSON.stringify(b);
 
 export function createFarFieldSession(initial: Design, options: FarFieldSessionOptions = {}): FarFieldSession {
   let name = initial.name;
-  let host: Host = { ...initial.host };
+  let host: Host = copyHost(initial.host);
+  let electrodes: Electrode[] = copyElectrodes(initial.electrodes ?? []);
+  // layered host or electrodes: the context the bounds belong to (layStamp: stack, box, boundary),
+  // the one the images belong to (imgStamp: stack only, so a box drag keeps U and V), and the
+  // layered pair images by the PairBound object they were computed with
+  let layCtx: LayeredContext | null = null;
+  let layStamp = 0;
+  let imgCtx: LayeredContext | null = null;
+  let imgStamp = 0;
+  // what the last context was built from (host, electrodes and domain are replaced, never mutated,
+  // on a change; the metal planes depend on the sites only through their lowest and highest z)
+  let freshCtx: LayeredContext | null = null;
+  let freshKey: [Host, Electrode[], Domain, number, number] | null = null;
+  let electrodesStamp = 0;
+  const pairImages = new WeakMap<PairBound, PairImage>();
+  // pair results are valid for one (box stamp, layered stamp): pairStamp counts those
+  let pairStamp = 0;
+  let pairStampBox = -1;
+  let pairStampLay = -1;
+  let layBoundaryKind = '';
+  let layBoundaryOrder = -1;
   let domain: Domain = copyDomain(initial.domain);
   let refinement: Refinement = { ...initial.refinement };
   let states: SiteState[] = [];
@@ -170,6 +233,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       offLattice: dist(snapped, site.position) > 1e-6,
       env: null, boxStamp: -1, clear: 0, delta: 0, chargeOutside: 0,
       reqTarget: NaN, reqStamp: -1, req: 0, moments: null, bound: null, boundEv: NaN,
+      layStamp: -1, layBound: null, imgStamp: -1, layImage: null, nearStamp: -1, near: null, pairImages: null,
     };
   };
   const envFor = (st: SiteState): Envelope => {
@@ -199,11 +263,16 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
 
   function applyChanges(c: FarFieldChanges): FarFieldReport {
     let touched = false;
+    if (c.electrodes && !sameJson(c.electrodes, electrodes)) {
+      electrodes = copyElectrodes(c.electrodes);
+      electrodesStamp++;
+      touched = true;
+    }
     if (c.host) {
       const h = c.host;
-      if (h.epsilonR !== host.epsilonR || h.latticeConstantNm !== host.latticeConstantNm || h.material !== host.material) {
+      if (h.epsilonR !== host.epsilonR || h.latticeConstantNm !== host.latticeConstantNm || h.material !== host.material || !sameJson(h.layers, host.layers)) {
         const latticeChanged = h.latticeConstantNm !== host.latticeConstantNm;
-        host = { ...h };
+        host = copyHost(h);
         // the lattice test and the overlap window depend on the lattice constant
         if (latticeChanged) {
           states = states.map((st) => newState(st.site));
@@ -298,15 +367,17 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
   }
 
   function currentDesign(): Design {
-    return {
+    const d: Design = {
       format: 'tetrawell-design',
       version: 2,
       name,
-      host: { ...host },
+      host: copyHost(host),
       sites: states.map((st) => st.site),
       domain: copyDomain(domain),
       refinement: { ...refinement },
     };
+    if (electrodes.length) d.electrodes = copyElectrodes(electrodes);
+    return d;
   }
 
   function report(): FarFieldReport {
@@ -324,8 +395,55 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
     const n = states.length;
     const warnings: FarFieldReport['warnings'] = [];
 
+    // ---- layered host or electrodes (layered.ts, as check.ts): a new context when the stack, the
+    // box or the host changed; findings (planes straddled, electrodes clipped) are read afresh
+    const layered = isLayered({ layers: host.layers, electrodes });
+    let collector: ImageEffectCollector | null = null;
+    if (layered) {
+      let zLo = Infinity;
+      let zHi = -Infinity;
+      for (const st of states) {
+        const z = st.site.position[2];
+        if (z < zLo) zLo = z;
+        if (z > zHi) zHi = z;
+      }
+      const k = freshKey;
+      if (!freshCtx || !k || k[0] !== host || k[1] !== electrodes || k[2] !== domain || k[3] !== zLo || k[4] !== zHi) {
+        freshCtx = layeredContext({ epsilonR: eps, layers: host.layers, electrodes, domain }, n ? [zLo, zHi] : []);
+        freshKey = [host, electrodes, domain, zLo, zHi];
+      }
+      const fresh = freshCtx;
+      if (!layCtx || !sameContext(layCtx, fresh) || boundary.kind !== layBoundaryKind || (boundary.kind === 'multipole' && boundary.order !== layBoundaryOrder)) {
+        layCtx = fresh;
+        layStamp++;
+        layBoundaryKind = boundary.kind;
+        layBoundaryOrder = boundary.kind === 'multipole' ? boundary.order : -1;
+      }
+      if (!imgCtx || !sameStack(imgCtx, fresh)) {
+        imgCtx = fresh;
+        imgStamp++;
+      }
+      // the image series by heights: bounded, so a long session of 3-D moves cannot grow it without end
+      if (imgCtx.series.size > SERIES_CACHE_LIMIT) imgCtx.series.clear();
+      if (layCtx.series.size > SERIES_CACHE_LIMIT) layCtx.series.clear();
+      if (layCtx.pieceSeries.size > SERIES_CACHE_LIMIT) layCtx.pieceSeries.clear();
+      collector = new ImageEffectCollector(fresh, electrodes, domain);
+    } else if (layCtx) {
+      layCtx = imgCtx = null;
+      layStamp++;
+      imgStamp++;
+    }
+    if (boxStamp !== pairStampBox || layStamp !== pairStampLay) {
+      pairStamp++;
+      pairStampBox = boxStamp;
+      pairStampLay = layStamp;
+    }
+
     // ---- per site: box-dependent values for sites whose stamp is old
     const target = new Float64Array(n);
+    // the site's bound and U in the units of the homogeneous path (layered: the stack's, as check.ts)
+    const delta = new Float64Array(n);
+    const self = new Float64Array(n);
     for (let i = 0; i < n; i++) {
       const st = states[i];
       if (st.boxStamp !== boxStamp) {
@@ -338,7 +456,29 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
         st.boxStamp = boxStamp;
         st.bound = null;
       }
-      target[i] = tol * st.self;
+      delta[i] = st.delta;
+      self[i] = st.self;
+      if (collector && layCtx && imgCtx) {
+        const dens = { position: st.site.position, orbital: st.orbital };
+        if (st.imgStamp !== imgStamp || !st.layImage) {
+          st.layImage = siteImage(imgCtx, dens);
+          st.imgStamp = imgStamp;
+          st.layBound = null;
+        }
+        if (st.layStamp !== layStamp || !st.layBound) {
+          st.layBound = layeredSiteBound(layCtx, st.site.position, siteProfile(st.orbital, boundary), envFor(st), boundary, st.layImage.leak);
+          st.layStamp = layStamp;
+          st.bound = null;
+        }
+        if (st.nearStamp !== electrodesStamp) {
+          st.near = nearElectrode(electrodes, dens);
+          st.nearStamp = electrodesStamp;
+        }
+        collector.site(i, st.layImage, st.near);
+        delta[i] = st.layBound.delta * eps;
+        if (st.layImage.uEv !== null) self[i] = st.layImage.uEv / ev;
+      }
+      target[i] = tol * self[i];
     }
 
     // ---- pairs
@@ -389,7 +529,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       const si = states[i], sj = states[j];
       let pb: PairBound | null;
       let v: number;
-      if (pairStA[t] === si && pairStB[t] === sj && pairBox[t] === boxStamp) {
+      if (pairStA[t] === si && pairStB[t] === sj && pairBox[t] === pairStamp) {
         pb = pairObj[t];
         v = pairV[t];
       } else {
@@ -400,20 +540,37 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
         } else {
           const exact = pairEnergy(si.orbital, sj.orbital, R);
           v = exact ?? 1 / R;
-          const dl = grounded ? Math.min(si.delta, sj.delta) : Math.max(si.delta, sj.delta);
+          let img: PairImage | null = null;
+          if (collector && imgCtx) {
+            // V in the stack does not depend on the box: kept per pair of site states and stack
+            si.pairImages ??= new WeakMap();
+            const hit = si.pairImages.get(sj);
+            if (hit && hit.stamp === imgStamp) img = hit.image;
+            else {
+              img = pairImage(imgCtx, { position: si.site.position, orbital: si.orbital }, { position: sj.site.position, orbital: sj.orbital });
+              si.pairImages.set(sj, { stamp: imgStamp, image: img });
+            }
+            if (img.vEv !== null) v = img.vEv / ev;
+          }
+          const dl = grounded ? Math.min(delta[i], delta[j]) : Math.max(delta[i], delta[j]);
           const bounded = Number.isFinite(dl);
           pb = { a: si.site.id, b: sj.site.id, distanceNm: R, vEv: ev * v, vModel: exact === null ? 'point-charge' : 'closed-form', vBoundEv: bounded ? ev * dl : null, vRelBound: bounded ? dl / v : null };
+          if (img) pairImages.set(pb, img);
         }
         pairObj[t] = pb;
         pairStA[t] = si;
         pairStB[t] = sj;
-        pairBox[t] = boxStamp;
+        pairBox[t] = pairStamp;
         pairV[t] = v;
       }
       if (pb === null) {
         coincide.push(si.site.id, sj.site.id);
         dropped++;
         continue;
+      }
+      if (collector) {
+        const img = pairImages.get(pb);
+        if (img) collector.pair(t, i, img);
       }
       if (tol * v < target[i]) target[i] = tol * v;
       if (tol * v < target[j]) target[j] = tol * v;
@@ -455,15 +612,16 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       for (let k = 0; k < 3; k++) rec[k] = Math.max(rec[k], Math.abs(s.position[k] - center[k]) + req);
       const co = st.chargeOutside;
       let sb = st.bound;
-      if (!sb || st.boundEv !== ev || sb.requiredClearanceNm !== req) {
+      if (!sb || st.boundEv !== ev || sb.requiredClearanceNm !== req || (sb.boundKind !== undefined) !== layered) {
         sb = {
           id: s.id,
           chargeOutside: co,
-          uBoundEv: inside ? ev * st.delta : null,
-          uRelBound: inside ? st.delta / st.self : null,
-          uEv: ev * st.self,
+          uBoundEv: inside ? ev * delta[i] : null,
+          uRelBound: inside ? delta[i] / self[i] : null,
+          uEv: ev * self[i],
           clearanceNm: st.clear,
           requiredClearanceNm: req,
+          ...(layered && st.layBound ? { boundKind: st.layBound.kind, boundReason: st.layBound.reason } : {}),
         };
         st.bound = sb;
         st.boundEv = ev;
@@ -471,8 +629,8 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       out[i] = sb;
       if (!inside) outside.push(s.id);
       else {
-        worst = Math.max(worst, st.delta / st.self);
-        if (st.delta / st.self > tol) tooClose.push(s.id);
+        worst = Math.max(worst, delta[i] / self[i]);
+        if (delta[i] / self[i] > tol) tooClose.push(s.id);
       }
       if (inside && co > tol / 10) {
         cut.push(s.id);
@@ -505,8 +663,12 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       elementsEstimate: null,
       elementsEstimateIsLowerBound: false,
       warnings,
-      assumptions: MODEL_ASSUMPTIONS,
+      assumptions: layered ? LAYERED_ASSUMPTIONS : MODEL_ASSUMPTIONS,
     };
+    if (collector) {
+      const I = pairI!, J = pairJ!;
+      r.imageEffect = collector.report(states.map((st) => st.site.id), (t) => [states[I[t]].site.id, states[J[t]].site.id]);
+    }
     if (options.moments) r.moments = moments();
     return r;
   }

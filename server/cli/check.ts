@@ -11,6 +11,11 @@
  * box whose initial grid alone is larger, or CHECK_ESTIMATE_MAX_LEAVES of work) it stops and
  * recommendedElementsIsLowerBound is true: the mesh would need more than recommendedElements.
  * (null stands for "no bound": a site outside the domain, or a box no size can fix).
+ * With host.layers or electrodes (issue 11) each site adds boundKind ('rigorous' | 'estimated') and
+ * boundReason (geometry/farfield/layered.ts), and the object ends with imageEffect: { worstURel,
+ * worstUSite, worstVRel, worstVPair, tailBoundEv, maxLeak, findings: [{ code, index?, value? }] },
+ * the worst change of U and V by the interfaces and metal planes against an infinite host of
+ * host.epsilonR (relative numbers are fractions; U and V in the tables are then the stack's).
  * --moments adds the multipole moments to order 4 of every site's unit density and of the array
  * (weights = electrons) about the domain centre: a `moments` key in the JSON, a table otherwise.
  * Without it, a readable table with the model assumptions.
@@ -25,6 +30,7 @@ import { checkElementEstimate } from '../../geometry/mesh/index';
 import { readDesign } from './design-file';
 import { parseCli } from './args';
 import { notesAndAssumptions, table } from './text';
+import { layeredSection } from './checkText';
 
 const USAGE = 'usage: npm run cli -- check <design.json> [--json] [--moments]';
 
@@ -35,7 +41,14 @@ export function toCheckJson(r: FarFieldReport) {
   return {
     boundary: r.boundary,
     tolerance: r.tolerance,
-    sites: r.sites.map((s) => ({ id: s.id, chargeOutside: s.chargeOutside, uBoundEv: num(s.uBoundEv), uRelBound: num(s.uRelBound) })),
+    sites: r.sites.map((s) => ({
+      id: s.id,
+      chargeOutside: s.chargeOutside,
+      uBoundEv: num(s.uBoundEv),
+      uRelBound: num(s.uRelBound),
+      // layers or electrodes only (issue 11): rigorous or estimated, and why
+      ...(s.boundKind ? { boundKind: s.boundKind, boundReason: s.boundReason } : {}),
+    })),
     pairs: r.pairs.map((p) => ({ a: p.a, b: p.b, vBoundEv: num(p.vBoundEv), vRelBound: num(p.vRelBound) })),
     worstRelBound: num(r.worstRelBound),
     recommendedHalfExtentsNm: r.recommendedHalfExtentsNm.map(num),
@@ -43,6 +56,8 @@ export function toCheckJson(r: FarFieldReport) {
     warnings: r.warnings.map((w) => ({ code: w.code, message: w.message, siteIds: w.siteIds })),
     // added after the first release: keys are only ever added, at the end
     recommendedElementsIsLowerBound: r.elementsEstimateIsLowerBound,
+    // layers or electrodes only (issue 11): the worst image-charge effect against an infinite host
+    ...(r.imageEffect ? { imageEffect: r.imageEffect } : {}),
   };
 }
 
@@ -59,8 +74,8 @@ export function toReadable(design: Design, r: FarFieldReport): string {
   out.push('');
   out.push(
     table([
-      ['site', 'U model (meV)', 'clearance (nm)', 'density outside', '|ΔU| bound (meV)', 'relative'],
-      ...r.sites.slice(0, 200).map((s) => [s.id, meV(s.uEv), g(s.clearanceNm, 4), g(s.chargeOutside, 2), meV(s.uBoundEv), pct(s.uRelBound)]),
+      ['site', r.imageEffect ? 'U in stack (meV)' : 'U model (meV)', 'clearance (nm)', 'density outside', '|ΔU| bound (meV)', 'relative', ...(r.imageEffect ? ['bound'] : [])],
+      ...r.sites.slice(0, 200).map((s) => [s.id, meV(s.uEv), g(s.clearanceNm, 4), g(s.chargeOutside, 2), meV(s.uBoundEv), pct(s.uRelBound), ...(s.boundKind ? [s.boundKind] : [])]),
     ]),
   );
   if (r.sites.length > 200) out.push(`… ${r.sites.length - 200} more sites (use --json for all)`);
@@ -69,7 +84,7 @@ export function toReadable(design: Design, r: FarFieldReport): string {
     const shown = r.pairs.slice(0, 40);
     out.push(
       table([
-        ['pair', 'R (nm)', 'V model (meV)', '|ΔV| bound (meV)', 'relative'],
+        ['pair', 'R (nm)', r.imageEffect ? 'V in stack (meV)' : 'V model (meV)', '|ΔV| bound (meV)', 'relative'],
         ...shown.map((p) => [`${p.a}–${p.b}`, g(p.distanceNm, 4), `${meV(p.vEv)}${p.vModel === 'point-charge' ? '*' : ''}`, meV(p.vBoundEv), pct(p.vRelBound)]),
       ]),
     );
@@ -93,6 +108,7 @@ export function toReadable(design: Design, r: FarFieldReport): string {
     out.push(`multipole moments about (${r.moments.center.join(', ')}) nm, in e·nm^l (real solid harmonics, Racah normalisation; |Q_l| = norm over m):`);
     out.push(table([['', ...names, '|Q_2|', '|Q_3|', '|Q_4|'], ...r.moments.sites.slice(0, 40).map((m) => row(m.id, m.values)), row('array', r.moments.values)]));
   }
+  out.push(...layeredSection(design, r));
   if (r.warnings.length) {
     out.push('');
     out.push('warnings:');

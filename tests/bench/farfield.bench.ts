@@ -141,4 +141,25 @@ export async function runSession(): Promise<void> {
   timeSession('change one site\'s electrons', d10, electronsOne, 40);
   timeSession('drag the box (every site\'s clearance changes)', d1, dragBox, 200);
   timeSession('drag the box (every site\'s clearance changes)', d10, dragBox, 40);
+  // issue 11: the same arrays 20 nm under a 5 nm oxide with a finite gate (image effect and the
+  // stack's bound per site, recomputed for what an edit changes)
+  console.log(`\nlayered host and a gate (Si below z = 20 nm, SiO₂ to 25 nm, vacuum; gate on the oxide); load average now ${(await import('node:os')).loadavg()[0].toFixed(1)}`);
+  const dev1 = deviceOf(designOf(40, 25, { kind: 'grounded' }));
+  const dev10 = deviceOf(designOf(100, 100, { kind: 'grounded' }));
+  time('device, full check', dev1, 20);
+  time('device, full check', dev10, 3);
+  timeSession('device: move one site by a lattice step', dev1, moveOne, 200);
+  timeSession('device: move one site by a lattice step', dev10, moveOne, 40);
+  timeSession('device: drag the box', dev1, dragBox, 100);
+  timeSession('device: drag the box', dev10, dragBox, 10);
+}
+
+function deviceOf(d: Design): Design {
+  d.host.layers = [
+    { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 20 },
+    { name: 'oxide', epsilonR: 3.9, zMinNm: 20, zMaxNm: 25 },
+    { name: 'vacuum', epsilonR: 1, zMinNm: 25, zMaxNm: null },
+  ];
+  d.electrodes = [{ name: 'gate', minNm: [-20, -20, 25], maxNm: [20, 20, 30], voltageV: 0.5 }];
+  return d;
 }

@@ -8,7 +8,7 @@
  * value outlives the edit that should have refreshed it.
  */
 import { describe, expect, it } from 'vitest';
-import type { Design, Orbital, Site, Vec3 } from '../../../geometry/design/types';
+import type { Design, Electrode, HostLayer, Orbital, Site, Vec3 } from '../../../geometry/design/types';
 import { createFarFieldSession, farFieldCheck, type FarFieldChanges, type FarFieldReport } from '../../../geometry/farfield';
 import { generateArray, mulberry32 } from '../../../geometry/arrays';
 import { siteToNm, snapToLattice } from '../../../geometry/lattice';
@@ -154,8 +154,54 @@ function randomMoves(d: Design, rnd: () => number): { next: Design; changes: Far
 
 const estimate = (h: Vec3) => Math.round(10 * h[0] * h[1] * h[2]);
 
+/** Stacks and electrode sets the device edits pick from (issue 11; sites sit near z = 0). */
+const STACKS: (HostLayer[] | undefined)[] = [
+  undefined,
+  [
+    { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 4 },
+    { name: 'oxide', epsilonR: 3.9, zMinNm: 4, zMaxNm: 9 },
+    { name: 'vacuum', epsilonR: 1, zMinNm: 9, zMaxNm: null },
+  ],
+  [
+    { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 6.5 },
+    { name: 'vacuum', epsilonR: 1, zMinNm: 6.5, zMaxNm: null },
+  ],
+  [
+    { name: 'substrate', epsilonR: 3.9, zMinNm: null, zMaxNm: -7 },
+    { name: 'silicon', epsilonR: 11.7, zMinNm: -7, zMaxNm: 5 },
+    { name: 'oxide', epsilonR: 3.9, zMinNm: 5, zMaxNm: 8 },
+    { name: 'vacuum', epsilonR: 1, zMinNm: 8, zMaxNm: null },
+  ],
+];
+const ELECTRODES: Electrode[][] = [
+  [],
+  [{ name: 'gate', minNm: [-4, -4, 9], maxNm: [4, 4, 11], voltageV: 0.4 }],
+  [{ name: 'top', minNm: [-500, -500, 10], maxNm: [500, 500, 12], voltageV: 0.2 }],
+  [
+    { name: 'back', minNm: [-500, -500, -14], maxNm: [500, 500, -12], voltageV: -0.1 },
+    { name: 'lead', minNm: [10, -3, -1], maxNm: [30, 3, 1], voltageV: 0 },
+  ],
+];
+
+/** A device edit (layers or electrodes) one time in four, else an ordinary one. */
+function randomDeviceEdit(d: Design, rnd: () => number, serial: number): { next: Design; changes: FarFieldChanges; label: string } {
+  const r = rnd();
+  if (r < 0.12) {
+    const k = Math.floor(rnd() * STACKS.length);
+    const host = { ...d.host };
+    if (STACKS[k]) host.layers = STACKS[k];
+    else delete host.layers;
+    return { next: { ...d, host }, changes: { host }, label: `stack ${k}` };
+  }
+  if (r < 0.25) {
+    const k = Math.floor(rnd() * ELECTRODES.length);
+    return { next: { ...d, electrodes: ELECTRODES[k] }, changes: { electrodes: ELECTRODES[k] }, label: `electrodes ${k}` };
+  }
+  return rnd() < 0.5 ? randomMoves(d, rnd) : randomEdit(d, rnd, serial);
+}
+
 describe('far-field session (invariant: equal to the full check after every edit)', () => {
-  const cases: { label: string; design: () => Design; steps: number; seed: number; moments?: boolean; moves?: boolean }[] = [
+  const cases: { label: string; design: () => Design; steps: number; seed: number; moments?: boolean; moves?: boolean; device?: boolean }[] = [
     { label: 'all pairs, 3×3 square, multipole 2, with moments', design: () => startDesign('square', 3, 3, 1, { kind: 'multipole', order: 2 }), steps: 120, seed: 1, moments: true },
     { label: 'all pairs, chain of 2-donor clusters, grounded', design: () => startDesign('chain', 6, 1, 2, { kind: 'grounded' }), steps: 120, seed: 2 },
     { label: 'bond graph, 10×9 triangular, multipole 4', design: () => startDesign('triangular', 10, 9, 1, { kind: 'multipole', order: 4 }), steps: 80, seed: 3 },
@@ -165,6 +211,9 @@ describe('far-field session (invariant: equal to the full check after every edit
     // triangulation when they can (live-bonds.ts), the close pairs follow them in their index
     { label: 'bond graph, 14×12 triangular, mostly moves (local bond updates)', design: () => startDesign('triangular', 14, 12, 1, { kind: 'multipole', order: 2 }), steps: 150, seed: 5, moves: true },
     { label: 'bond graph, 10×10 square of 2-donor clusters, mostly moves', design: () => startDesign('square', 10, 10, 2, { kind: 'grounded' }), steps: 100, seed: 6, moves: true },
+    // issue 11: layers and electrodes come and go; the image effect and the stack's bounds follow
+    { label: 'device: all pairs, 3×3 square, layers and electrodes edited', design: () => startDesign('square', 3, 3, 1, { kind: 'grounded' }), steps: 120, seed: 7, device: true },
+    { label: 'device: bond graph, 9×8 triangular, layers and electrodes edited', design: () => startDesign('triangular', 9, 8, 1, { kind: 'multipole', order: 2 }), steps: 80, seed: 8, device: true },
   ];
   for (const c of cases) {
     it(c.label, () => {
@@ -173,7 +222,7 @@ describe('far-field session (invariant: equal to the full check after every edit
       const session = createFarFieldSession(d, { moments: c.moments, estimateElements: (h) => estimate(h) });
       expectSame(session.report(), farFieldCheck(d, { moments: c.moments }), 'initial');
       for (let step = 0; step < c.steps; step++) {
-        const e = c.moves && rnd() < 0.8 ? randomMoves(d, rnd) : randomEdit(d, rnd, step);
+        const e = c.device ? randomDeviceEdit(d, rnd, step) : c.moves && rnd() < 0.8 ? randomMoves(d, rnd) : randomEdit(d, rnd, step);
         d = e.next;
         const label = `step ${step}: ${e.label}`;
         expectSame(session.applyChanges(e.changes), farFieldCheck(d, { moments: c.moments }), label);
