@@ -5,7 +5,7 @@
  */
 import type { Orbital, Site, Species } from './types';
 
-export interface SpeciesPreset {
+interface SpeciesPreset {
   species: Species;
   kind: 'donor' | 'acceptor';
   /** charge of the ionised core in units of e (+1 for a donor, −1 for an acceptor) */
