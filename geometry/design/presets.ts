@@ -37,15 +37,6 @@ export function resolveOrbital(site: Pick<Site, 'species' | 'orbital'>): Orbital
   return site.orbital ?? SPECIES_PRESETS[site.species].orbital;
 }
 
-/**
- * The anisotropic single-valley envelope offered as an alternative to the hydrogenic default:
- * Kohn–Luttinger variational radii for P in Si, about 2.5 nm across and 1.4 nm along the valley
- * axis (Kohn & Luttinger 1955; from memory). A real donor state sums six valleys and is nearly
- * isotropic apart from lattice-scale oscillations; the UI must say so wherever it offers this.
- */
-export const KOHN_LUTTINGER_ANISOTROPIC: Orbital = { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 };
-export const KOHN_LUTTINGER_SOURCE = 'Kohn & Luttinger (1955) variational envelope radii for P in Si, from memory; single-valley model';
-
 /** Text the UI and CLI show beside species defaults. */
 export const PRESET_ASSUMPTION_NOTE =
   'Species defaults (core charge, binding energy, envelope radius) are model assumptions taken from the literature (some values from memory); override them per site where your own data differ.';
