@@ -288,3 +288,12 @@ export function densityBatch(orbital: Orbital, center: Vec3, points: Float64Arra
   for (let i = 0; i < n; i++) res[i] = m.density(orbital, points[3 * i] - cx, points[3 * i + 1] - cy, points[3 * i + 2] - cz);
   return res;
 }
+
+/**
+ * Share of the unit charge outside the ball of radius r (nm) about the centre: exact for the
+ * spherical models, an upper bound for a stretched one (the ball holds the stretched ball
+ * |A⁻¹x| ≤ r / largest axis, whose outside is the profile tail there).
+ */
+export function chargeBeyondRadius(o: Orbital, r: number): number {
+  return orbitalModel(o).profileTail(r / profileRadius(o));
+}

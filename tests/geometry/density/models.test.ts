@@ -7,6 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Orbital } from '../../../geometry/design/types';
 import { ORBITAL_MODELS, chargeBeyondPlaneZ, gaussLegendre, orbitalKey, orbitalLengths, orbitalModel, pairEnergy, sameOrbital } from '../../../geometry/density';
+import { chargeBeyondRadius } from '../../../geometry/density/models';
 import { orbitalLength } from '../../../geometry/mesh';
 import { BOHR_RADIUS_NM, COULOMB_EV_NM, HARTREE_EV } from '../../../geometry/units';
 
@@ -141,6 +142,21 @@ describe.each(ALL.map((o) => [orbitalKey(o), o] as const))('entry %s', (_key, o)
         inside += ang.weights[j] * radial((r) => r * r * m.density(o, r * st, 0, r * mu), 0, rEnd);
       }
       expect(Math.abs(m.profileTail(R) - (1 - 2 * Math.PI * inside))).toBeLessThan(1e-11);
+    }
+  });
+  it('charge outside a ball of radius r: exact for spherical models, an upper bound within the stretch otherwise (quadrature)', () => {
+    for (const t of [0.3, 1, 3]) {
+      const r = t * orbitalLengths(o).extent;
+      const ang = gaussLegendre(48);
+      let inside = 0;
+      for (let j = 0; j < ang.nodes.length; j++) {
+        const mu = ang.nodes[j];
+        const st = Math.sqrt(1 - mu * mu);
+        inside += ang.weights[j] * radial((s) => s * s * m.density(o, s * st, 0, s * mu), 0, r);
+      }
+      const exact = 1 - 2 * Math.PI * inside;
+      if (m.spherical) expect(Math.abs(chargeBeyondRadius(o, r) - exact)).toBeLessThan(1e-11);
+      else expect(chargeBeyondRadius(o, r)).toBeGreaterThanOrEqual(exact - 1e-12);
     }
   });
   it('share beyond a plane normal to z: quadrature of the density beyond it', () => {
