@@ -5,7 +5,7 @@
  */
 import type { Orbital, Site, Species } from './types';
 
-export interface SpeciesPreset {
+interface SpeciesPreset {
   species: Species;
   kind: 'donor' | 'acceptor';
   /** charge of the ionised core in units of e (+1 for a donor, −1 for an acceptor) */
@@ -36,15 +36,6 @@ export const SPECIES_PRESETS: Record<Species, SpeciesPreset> = {
 export function resolveOrbital(site: Pick<Site, 'species' | 'orbital'>): Orbital {
   return site.orbital ?? SPECIES_PRESETS[site.species].orbital;
 }
-
-/**
- * The anisotropic single-valley envelope offered as an alternative to the hydrogenic default:
- * Kohn–Luttinger variational radii for P in Si, about 2.5 nm across and 1.4 nm along the valley
- * axis (Kohn & Luttinger 1955; from memory). A real donor state sums six valleys and is nearly
- * isotropic apart from lattice-scale oscillations; the UI must say so wherever it offers this.
- */
-export const KOHN_LUTTINGER_ANISOTROPIC: Orbital = { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 };
-export const KOHN_LUTTINGER_SOURCE = 'Kohn & Luttinger (1955) variational envelope radii for P in Si, from memory; single-valley model';
 
 /** Text the UI and CLI show beside species defaults. */
 export const PRESET_ASSUMPTION_NOTE =

@@ -29,7 +29,7 @@
 import type { Design, Orbital, Vec3 } from '../design/types';
 import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
-import { chargeOutsideBox, orbitalScale, pairEnergy, radialTail, selfEnergy } from '../density';
+import { chargeOutsideBox, orbitalKey, orbitalModel, pairEnergy, profileRadius, selfEnergy } from '../density';
 import { bondPairs, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
 import { snapToLattice, siteToNm } from '../lattice';
 import { clearanceFor, neglectedEnvelope, type Envelope } from './envelope';
@@ -172,7 +172,7 @@ export const ORBITAL_MAX_PLAUSIBLE_NM = 100;
 
 /** the lengths a user gave for an orbital model */
 export function orbitalSizes(o: Orbital): number[] {
-  return o.model === 'anisotropic-1s' ? [o.radiusNm, o.radiusZNm] : o.model === 'gaussian' ? [o.sigmaNm] : [o.radiusNm];
+  return orbitalModel(o).sizes(o);
 }
 
 /** What the orbital-too-small / orbital-too-large warnings need, gathered site by site (check and session alike). */
@@ -227,7 +227,7 @@ export function requiredClearance(o: Orbital, okey: string, env: Envelope, targe
   const q = target > 0 ? Math.pow(2, Math.floor(Math.log2(target) * 256) / 256) : 0;
   let entry = cache.get(okey);
   if (!entry) {
-    entry = { density: orbitalScale(o) * clearanceFor((u) => radialTail(o.model, u), tol / 10), byTarget: new Map() };
+    entry = { density: profileRadius(o) * clearanceFor(orbitalModel(o).profileTail, tol / 10), byTarget: new Map() };
     cache.set(okey, entry);
   }
   const hit = entry.byTarget.get(q);
@@ -266,7 +266,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     const s = sites[i];
     const o = resolveOrbital(s);
     orbitals[i] = o;
-    const key = o.model === 'anisotropic-1s' ? `a${o.radiusNm},${o.radiusZNm}` : o.model === 'gaussian' ? `g${o.sigmaNm}` : `h${o.radiusNm}`;
+    const key = orbitalKey(o);
     orbitalKeys[i] = key;
     let env = envByKey.get(key);
     if (!env) {
@@ -390,7 +390,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
       if (co > worstCut) worstCut = co;
     }
     if (s.electrons === 0) noElectrons.push(s.id);
-    if (orbitals[i].model === 'anisotropic-1s') aniso.push(s.id);
+    if (orbitalModel(orbitals[i]).singleValley) aniso.push(s.id);
     sizes.add(s.id, orbitals[i]);
     const snapped = siteToNm(snapToLattice(s.position, a), a);
     if (dist(snapped, s.position) > 1e-6) offLattice.push(s.id);

@@ -9,12 +9,12 @@
  * being the distance from the site to the nearest face. Evaluated per site in O(1): this is
  * what makes the check fast enough for every pointer move.
  *
- * Spherical models (hydrogenic, gaussian): n is radial and decreasing, so the envelope is
+ * Spherical models (hydrogenic, gaussian: `spherical` in the registry of geometry/density): n is radial and decreasing, so the envelope is
  * exact (no sampling):
  *   grounded:    φ(d)                       (potential of a positive spherical density falls with r)
  *   multipole L: 1/d − φ(d), for every L     (all l ≥ 1 moments vanish about the centre, only
  *                hydrogenic (1/a + 1/d)e^{−2d/a}, gaussian erfc(d/σ√2)/d   the penetrating tail is left)
- * Anisotropic model: n is axially symmetric; we tabulate max over polar angle (33 directions
+ * Anisotropic model (no closed radial potential): n is axially symmetric; we tabulate max over polar angle (33 directions
  * from the axis to the plane, enough for the slowly varying P_l; checked against 513
  * directions in the tests) of |n| on a logarithmic radius grid from 0.02 to 40 orbital
  * radii, with the exact ellipsoid potential; take suffix maxima so the envelope is
@@ -24,12 +24,11 @@
  * distinct orbital and order, cached.
  */
 import type { Boundary, Orbital } from '../design/types';
-import { axialMoment, erfc, orbitalScale, potentialAt, radialPotential } from '../density';
+import { axialMoment, orbitalLengths, orbitalModel, potentialAt } from '../density';
 import { legendreP } from '../density/quadrature';
 
 export type Envelope = (d: number) => number;
 
-const SQRT2 = Math.SQRT2;
 const TABLE_R0 = 0.02;
 const TABLE_R1 = 40;
 const TABLE_N = 120;
@@ -45,26 +44,18 @@ export function keptOrder(boundary: Boundary): number {
 
 export function neglectedEnvelope(orbital: Orbital, boundary: Boundary): Envelope {
   const L = keptOrder(boundary);
-  switch (orbital.model) {
-    case 'hydrogenic-1s': {
-      const a = orbital.radiusNm;
-      if (L < 0) return (d) => radialPotential(orbital, Math.max(d, 0)) as number;
-      return (d) => (d <= 0 ? Infinity : (1 / a + 1 / d) * Math.exp((-2 * d) / a));
-    }
-    case 'gaussian': {
-      const s = orbital.sigmaNm;
-      if (L < 0) return (d) => radialPotential(orbital, Math.max(d, 0)) as number;
-      return (d) => (d <= 0 ? Infinity : erfc(d / (s * SQRT2)) / d);
-    }
-    case 'anisotropic-1s': {
-      const key = `${orbital.radiusNm}|${orbital.radiusZNm}|${L}`;
-      const hit = cache.get(key);
-      if (hit) return hit;
-      const env = anisotropicEnvelope(orbital, L);
-      cache.set(key, env);
-      return env;
-    }
+  const model = orbitalModel(orbital);
+  if (model.spherical) {
+    // closed forms from the registry: φ(d) grounded, the penetrating tail 1/d − φ(d) for any order
+    if (L < 0) return (d) => model.radialPotential(orbital, Math.max(d, 0)) as number;
+    return (d) => (d <= 0 ? Infinity : (model.penetratingPotential(orbital, d) as number));
   }
+  const key = `${model.key(orbital)}|${L}`;
+  const hit = cache.get(key);
+  if (hit) return hit;
+  const env = tabulatedEnvelope(orbital, L);
+  cache.set(key, env);
+  return env;
 }
 
 /** |n| at distance r and polar angle with cosine mu, for the anisotropic model. */
@@ -75,8 +66,8 @@ export function anisotropicNeglected(orbital: Orbital, L: number, q: Float64Arra
   return Math.abs(v);
 }
 
-function anisotropicEnvelope(orbital: Orbital, L: number): Envelope {
-  const scale = orbitalScale(orbital);
+function tabulatedEnvelope(orbital: Orbital, L: number): Envelope {
+  const scale = orbitalLengths(orbital).extent;
   const q = new Float64Array(SERIES_MAX_L + 1);
   for (let l = 0; l <= SERIES_MAX_L; l += 2) q[l] = axialMoment(orbital, l);
   const r0 = TABLE_R0 * scale;

@@ -2,9 +2,9 @@
  * Multipole moments Q_lm = ∫ρ(x) R_lm(x − c) d³x (real solid harmonics, Racah normalisation,
  * see harmonics.ts) of the orbital densities, up to order 4, about any centre c.
  *
- * Spherical models: ρ is spherical about its centre p, and R_lm is harmonic, so by the mean
+ * Spherical models (the registry's `spherical` entries, geometry/density): ρ is spherical about its centre p, and R_lm is harmonic, so by the mean
  * value property ∫ρ R_lm(x − c) = R_lm(p − c): exactly the point-charge moments.
- * Anisotropic model: ρ is a spherical profile in u = A⁻¹(x − p), so
+ * Stretched models (the anisotropic envelope): ρ is a spherical e^{−2|u|} profile in u = A⁻¹(x − p), so
  *   ∫ρ P(x) d³x = E_U E_v [ P(p + U·A v) ],  v uniform on the unit sphere, U with density ∝ U² e^{−2U}.
  * For a polynomial P of degree ≤ 4: the 12 icosahedron vertices are a spherical 5-design
  * (Delsarte–Goethals–Seidel 1977; Hardin & Sloane's tables), so E_v is exact with them; for
@@ -13,6 +13,7 @@
  * (central differences are exact for quartics). Hence 60 evaluations, exact to rounding.
  */
 import type { Orbital, Vec3 } from '../design/types';
+import { orbitalModel } from '../density';
 import { harmonicCount, regularHarmonics } from './harmonics';
 
 const PHI = (1 + Math.sqrt(5)) / 2;
@@ -52,14 +53,17 @@ export function orbitalMoments(orbital: Orbital, site: Vec3, center: Vec3, order
   const n = harmonicCount(order);
   const res = out ?? new Float64Array(n);
   const dx = site[0] - center[0], dy = site[1] - center[1], dz = site[2] - center[2];
-  if (orbital.model !== 'anisotropic-1s') return regularHarmonics(dx, dy, dz, order, res);
-  const a = orbital.radiusNm, b = orbital.radiusZNm;
+  const model = orbitalModel(orbital);
+  if (model.spherical) return regularHarmonics(dx, dy, dz, order, res);
+  // U_WEIGHTS hold the radial moments of the e^{−2U} profile, the only stretched profile in the registry
+  if (model.profile !== 'exp') throw new Error(`orbitalMoments: no radial weights for the ${model.profile} profile`);
+  const A = model.axes(orbital);
   const tmp = new Float64Array(n);
   res.fill(0, 0, n);
   for (const v of ICOSA) {
     for (let k = 0; k < 5; k++) {
       const U = k - 2;
-      regularHarmonics(dx + U * a * v[0], dy + U * a * v[1], dz + U * b * v[2], order, tmp);
+      regularHarmonics(dx + U * A[0] * v[0], dy + U * A[1] * v[1], dz + U * A[2] * v[2], order, tmp);
       const w = U_WEIGHTS[k] / ICOSA.length;
       for (let i = 0; i < n; i++) res[i] += w * tmp[i];
     }

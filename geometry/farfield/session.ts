@@ -24,7 +24,7 @@
 import type { Design, Domain, Electrode, Host, Orbital, Refinement, Site, Vec3 } from '../design/types';
 import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
-import { chargeOutsideBox, pairEnergy, selfEnergy } from '../density';
+import { chargeOutsideBox, orbitalKey, orbitalModel, pairEnergy, selfEnergy } from '../density';
 import { DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
 import { LiveBondPairs } from '../arrays/live-bonds';
 import { snapToLattice, siteToNm } from '../lattice';
@@ -131,7 +131,6 @@ function dist(p: readonly number[], q: readonly number[]): number {
   return Math.sqrt(dx * dx + dy * dy + dz * dz);
 }
 
-const orbitalKey = (o: Orbital) => (o.model === 'anisotropic-1s' ? `a${o.radiusNm},${o.radiusZNm}` : o.model === 'gaussian' ? `g${o.sigmaNm}` : `h${o.radiusNm}`);
 
 const sameVec = (p: readonly number[], q: readonly number[]) => p[0] === q[0] && p[1] === q[1] && p[2] === q[2];
 
@@ -637,7 +636,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
         if (co > worstCut) worstCut = co;
       }
       if (s.electrons === 0) noElectrons.push(s.id);
-      if (st.orbital.model === 'anisotropic-1s') aniso.push(s.id);
+      if (orbitalModel(st.orbital).singleValley) aniso.push(s.id);
       sizes.add(s.id, st.orbital);
       if (st.offLattice) offLattice.push(s.id);
     }

@@ -29,7 +29,7 @@
  * under an oxide or vacuum. Keep sites several σ or a from interfaces.
  */
 import type { Orbital, Vec3 } from '../design/types';
-import { erfc, halfSpaceTail1s, pairEnergy, selfEnergy } from '../density';
+import { chargeBeyondPlaneZ, pairEnergy, sameOrbital, selfEnergy } from '../density';
 import { COULOMB_EV_NM } from '../units';
 import { imageSeries, type ImageOptions, type ImageSeries } from './images';
 import type { HostFinding, PlanarStack } from './types';
@@ -67,22 +67,14 @@ function interaction(o1: Orbital, o2: Orbital, R: number): { value: number; poin
 
 /**
  * Share of the density beyond the nearest interface of the stack (exact for one plane):
- * Gaussian ½ erfc(d/(σ√2)); 1s ½(1 + d/a)e^{−2d/a} (density/index.ts halfSpaceTail1s), with a → the
- * z radius for the anisotropic model (the interfaces are normal to z).
+ * Gaussian ½ erfc(d/(σ√2)); 1s ½(1 + d/a)e^{−2d/a}, with a → the z radius for the anisotropic model
+ * (the interfaces are normal to z): the registry's `beyondPlaneZ` (geometry/density/models.ts).
  */
 export function leakBeyondInterfaces(stack: PlanarStack, site: DensitySite): number {
   let d = Infinity;
   for (let k = 0; k < stack.interfaces.length; k++) d = Math.min(d, Math.abs(site.position[2] - stack.interfaces[k]));
   if (d === Infinity) return 0;
-  const o = site.orbital;
-  switch (o.model) {
-    case 'gaussian':
-      return 0.5 * erfc(d / (o.sigmaNm * Math.SQRT2));
-    case 'hydrogenic-1s':
-      return halfSpaceTail1s(d / o.radiusNm);
-    case 'anisotropic-1s':
-      return halfSpaceTail1s(d / o.radiusZNm);
-  }
+  return chargeBeyondPlaneZ(site.orbital, d);
 }
 
 function sumOver(series: ImageSeries, o1: Orbital, o2: Orbital, s: number, skip: number): { value: number; point: boolean } {
@@ -113,13 +105,6 @@ function cachedSeries(stack: PlanarStack, z0: number, z: number, options: ImageO
     cache.set(key, hit);
   }
   return hit;
-}
-
-function sameOrbital(p: Orbital, q: Orbital): boolean {
-  if (p.model !== q.model) return false;
-  if (p.model === 'gaussian') return p.sigmaNm === (q as typeof p).sigmaNm;
-  if (p.model === 'hydrogenic-1s') return p.radiusNm === (q as typeof p).radiusNm;
-  return p.radiusNm === (q as typeof p).radiusNm && p.radiusZNm === (q as typeof p).radiusZNm;
 }
 
 /**

@@ -56,6 +56,7 @@
  */
 import type { Design, Orbital } from '../design/types';
 import { resolveOrbital } from '../design/presets';
+import { orbitalLengths } from '../density';
 import { MeshError } from './errors';
 import type { TooLarge } from './bisection';
 import { electrodeEdgeSegments } from './device';
@@ -69,16 +70,9 @@ export function gradingExponent(order: 1 | 2): number {
   return (2 * (order + 2)) / (2 * order + 3);
 }
 
-/** The orbital length a used by the size field (see header). */
+/** The orbital length a used by the size field (see header): the core length of geometry/density's one length rule. */
 export function orbitalLength(orbital: Orbital): number {
-  switch (orbital.model) {
-    case 'hydrogenic-1s':
-      return orbital.radiusNm;
-    case 'anisotropic-1s':
-      return Math.min(orbital.radiusNm, orbital.radiusZNm);
-    case 'gaussian':
-      return 2 * orbital.sigmaNm;
-  }
+  return orbitalLengths(orbital).core;
 }
 
 /** Largest automatic core size, as a fraction of the orbital length (see the header). */

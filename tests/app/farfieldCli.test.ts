@@ -4,7 +4,7 @@
  * exposes) is run here in Node: once from a whole document, once after a sequence of edits sent
  * as changes, and its report, in the CLI's JSON shape (toCheckJson), must equal what the CLI
  * prints — same keys, same numbers, same warnings, same element estimate. The reference is the
- * command line itself (its physics is tested in tests/geometry/farfield and tests/geometry/design).
+ * command line itself (its physics is tested in tests/geometry/farfield and tests/server/cli).
  */
 import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';

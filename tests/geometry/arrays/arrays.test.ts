@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { arrayPoints, bondGraph, disorderEnsemble, generateArray, mulberry32 } from '../../../geometry/arrays';
+import { bondGraph, disorderEnsemble, generateArray, mulberry32 } from '../../../geometry/arrays';
+import { arrayPoints } from '../../../geometry/arrays/generators';
 import { isLatticeSite, snapToLattice, siteToNm } from '../../../geometry/lattice';
 import { SI_LATTICE_CONSTANT_NM } from '../../../geometry/units';
 import type { Site } from '../../../geometry/design/types';

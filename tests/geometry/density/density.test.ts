@@ -3,19 +3,25 @@ import type { Orbital, Vec3 } from '../../../geometry/design/types';
 import {
   axialMoment,
   chargeOutsideBox,
-  chargeOutsideBoxByFaces,
   densityAt,
-  densityBatch,
   erf,
   erfc,
   gaussLegendre,
-  halfSpaceTail1s,
+  orbitalModel,
   pairEnergy,
   potentialAt,
   radialPotential,
   selfEnergy,
 } from '../../../geometry/density';
+import { densityBatch } from '../../../geometry/density/models';
+import { faceRuleOutside, halfSpaceTail1s } from '../../../geometry/density/outside';
 import { BOHR_RADIUS_NM, COULOMB_EV_NM, HARTREE_EV } from '../../../geometry/units';
+
+/** the face rule of outside.ts for one orbital, through its registry entry (the rule chargeOutsideBox falls back on) */
+function chargeOutsideBoxByFaces(o: Orbital, c: Vec3, boxCenter: Vec3, half: Vec3, n: number): number {
+  const m = orbitalModel(o);
+  return faceRuleOutside(m.profileTail, m.axes(o), c, boxCenter, half, n);
+}
 
 const H: Orbital = { model: 'hydrogenic-1s', radiusNm: 2.5 };
 const A: Orbital = { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 };

@@ -8,7 +8,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import type { Orbital, Vec3 } from '../../../geometry/design/types';
-import { erf, erfc, gaussLegendre, halfSpaceTail1s, radialPotential, selfEnergy } from '../../../geometry/density';
+import { erf, erfc, gaussLegendre, radialPotential, selfEnergy } from '../../../geometry/density';
+import { halfSpaceTail1s } from '../../../geometry/density/outside';
 import { imageSeries, layeredEnergy, planarStack, reactionAt } from '../../../geometry/host';
 import { leakBeyondInterfaces } from '../../../geometry/host/reaction';
 import { homogeneousStack } from '../../../geometry/host/stack';

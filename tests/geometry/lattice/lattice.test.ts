@@ -9,7 +9,7 @@ import {
   siteToNm,
   snapToLattice,
   sublattice,
-} from '../../../geometry/lattice';
+} from '../../../geometry/lattice/diamond';
 import { mulberry32 } from '../../../geometry/arrays/prng';
 import { SI_LATTICE_CONSTANT_NM } from '../../../geometry/units';
 import type { Vec3 } from '../../../geometry/design/types';

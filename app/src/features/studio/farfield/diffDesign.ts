@@ -9,6 +9,7 @@
 import type { DesignDocument } from '@contracts/design';
 import type { FarFieldChanges } from '../../../../../geometry/farfield';
 import type { Design, Orbital, Site } from '../../../../../geometry/design/types';
+import { sameOrbital as sameDensity } from '../../../../../geometry/density';
 
 export type DesignDiff =
   | { kind: 'reset'; design: Design }
@@ -19,15 +20,7 @@ const sameVec = (p: readonly number[], q: readonly number[]) => p === q || (p.le
 
 function sameOrbital(a: Orbital | undefined, b: Orbital | undefined): boolean {
   if (a === b) return true;
-  if (!a || !b || a.model !== b.model) return false;
-  switch (a.model) {
-    case 'hydrogenic-1s':
-      return a.radiusNm === (b as typeof a).radiusNm;
-    case 'anisotropic-1s':
-      return a.radiusNm === (b as typeof a).radiusNm && a.radiusZNm === (b as typeof a).radiusZNm;
-    case 'gaussian':
-      return a.sigmaNm === (b as typeof a).sigmaNm;
-  }
+  return !!a && !!b && sameDensity(a, b);
 }
 
 export function sameSite(a: Site, b: Site): boolean {

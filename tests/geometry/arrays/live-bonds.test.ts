@@ -8,7 +8,8 @@
  * taken: a test that only ever fell back to the full rebuild would prove nothing about it.
  */
 import { describe, expect, it } from 'vitest';
-import { bondPairs, generateArray, mulberry32 } from '../../../geometry/arrays';
+import { generateArray, mulberry32 } from '../../../geometry/arrays';
+import { bondPairs } from '../../../geometry/arrays/bonds';
 import { LiveBondPairs } from '../../../geometry/arrays/live-bonds';
 import { CloseSiteIndex } from '../../../geometry/farfield/close-pairs';
 import type { Site, Vec3 } from '../../../geometry/design/types';

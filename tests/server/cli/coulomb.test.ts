@@ -5,7 +5,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { run as coulomb } from '../../../server/cli/coulomb';
 import { run as convergence } from '../../../server/cli/convergence';
-import { oneSite } from './coulomb-fixtures';
+import { oneSite } from '../../geometry/fem/coulomb-fixtures';
 
 const dir = mkdtempSync(join(tmpdir(), 'tetrawell-coulomb-'));
 function designFile(name: string, doc: unknown): string {

@@ -7,7 +7,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it, vi } from 'vitest';
 import { run } from '../../../server/cli/mesh';
-import { siliconDesign } from '../design-fixtures';
+import { siliconDesign } from '../../geometry/design-fixtures';
 
 const dir = mkdtempSync(join(tmpdir(), 'tw-mesh-cli-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
