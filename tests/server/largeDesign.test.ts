@@ -163,4 +163,53 @@ describe('a design at the site limit', () => {
     const versions = (await owner.client.get(`/api/projects/${projectId}/designs/${r.body.design.id}/versions`)).body.versions as { sha256: string }[];
     expect(versions[0].sha256).toBe(expected.sha256);
   });
+
+  // issue 8, item 7 (health under 100 ms during large PUTs): the body worker writes a large document over its own
+  // database connection (server/services/designWrites.ts), so the request thread's pool never sends it
+  it('a large save and a large create are written by the body worker: no statement of the request thread carries the document', async () => {
+    const big: number[] = [];
+    const onQuery = (q: { bindings?: unknown[] }) => {
+      for (const b of q.bindings ?? []) {
+        const n = Buffer.isBuffer(b) ? b.byteLength : typeof b === 'string' ? b.length : 0;
+        if (n > 64 * 1024) big.push(n);
+      }
+    };
+    const cur = await current();
+    const document = bigDesign(cur.design, 20_000);
+    env.server.knex.on('query', onQuery);
+    let saved, created;
+    try {
+      saved = await owner.client.put(cur.path, { document, version: cur.version });
+      created = await owner.client.post(`/api/projects/${projectId}/designs`, { name: 'Written by the worker (invented example)', document });
+    } finally {
+      env.server.knex.off('query', onQuery);
+    }
+    expect(saved.status).toBe(200);
+    expect(created.status).toBe(201);
+    expect(big).toEqual([]);
+    // and everything a save writes is there: the current row, the version row, the audit entries, in the answer too
+    expect(saved.body.design.version).toBe(cur.version + 1);
+    expect(saved.body.design.document.sites).toHaveLength(20_000);
+    expect((await current()).version).toBe(cur.version + 1);
+    const designId = Number(cur.path.split('/').pop());
+    const version = await env.knex('design_versions').where({ design_id: designId, version: cur.version + 1 }).first('site_count');
+    expect(version?.site_count).toBe(20_000);
+    const audit = await env.knex('audit_events').where({ project_id: projectId, action: 'design.update' }).orderBy('id', 'desc').first();
+    expect(audit.detail).toMatchObject({ designId, version: cur.version + 1, sites: 20_000 });
+    const createdAudit = await env.knex('audit_events').where({ project_id: projectId, action: 'design.create' }).orderBy('id', 'desc').first();
+    expect(createdAudit.detail).toMatchObject({ designId: created.body.design.id, sites: 20_000 });
+  });
+
+  it('a large save answers as a small one when it cannot be written: 409 with the current version, 404 for a missing design', async () => {
+    const cur = await current();
+    const document = bigDesign(cur.design, 20_000);
+    const stale = await owner.client.put(cur.path, { document, version: cur.version - 1 });
+    expect(stale.status).toBe(409);
+    const err = errorBodySchema.parse(stale.body).error as { code: string; current?: { version: number } };
+    expect(err.code).toBe('stale_write');
+    expect(err.current?.version).toBe(cur.version);
+    const missing = await owner.client.put(`/api/projects/${projectId}/designs/999999999`, { document, version: 1 });
+    expect(missing.status).toBe(404);
+    expect((await current()).version).toBe(cur.version);
+  });
 });
