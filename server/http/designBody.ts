@@ -15,6 +15,7 @@
  */
 import { fileURLToPath } from 'node:url';
 import { existsSync } from 'node:fs';
+import { MessageChannel, type MessagePort } from 'node:worker_threads';
 import type { Request } from 'express';
 import Piscina from 'piscina';
 import type { DesignWrite } from '../repositories/designs';
@@ -61,6 +62,57 @@ function storeError(f: { message: string; name: string; code?: string }): Error 
   return e;
 }
 
+/** body-parser's errors for the same cases, so the error middleware answers them the same way (413, 400) */
+const tooLarge = () => Object.assign(new Error('request entity too large'), { status: 413, type: 'entity.too.large' });
+const badBody = (message: string) => Object.assign(new Error(message), { status: 400, type: 'request.aborted' });
+
+/**
+ * Post the request's body to `port` piece by piece as it arrives (each piece copied into the message: no buffer of
+ * the whole body on this thread), then `null` for the end; `{ abort }` tells the worker to stop. Resolves once the
+ * body is read; rejects (413, 400) when it is over `limit`, shorter or longer than its Content-Length, or aborted.
+ */
+function streamBody(req: Request, port: MessagePort, limit: number): Promise<void> {
+  const declared = Number(req.headers['content-length']);
+  return new Promise<void>((resolve, reject) => {
+    let received = 0;
+    let settled = false;
+    const fail = (e: Error) => {
+      if (settled) return;
+      settled = true;
+      port.postMessage({ abort: e.message });
+      cleanup();
+      // the rest of the body is not wanted: let it flow away unread
+      req.resume();
+      reject(e);
+    };
+    const onData = (chunk: Buffer) => {
+      received += chunk.byteLength;
+      if (received > limit) return fail(tooLarge());
+      port.postMessage(chunk);
+    };
+    const onEnd = () => {
+      if (settled) return;
+      if (Number.isFinite(declared) && received !== declared) return fail(badBody('request size did not match content length'));
+      settled = true;
+      port.postMessage(null);
+      cleanup();
+      resolve();
+    };
+    const onAborted = () => fail(badBody('request aborted'));
+    const onError = (e: Error) => fail(Object.assign(e, { status: 400 }));
+    function cleanup() {
+      req.off('data', onData);
+      req.off('end', onEnd);
+      req.off('aborted', onAborted);
+      req.off('error', onError);
+    }
+    req.on('data', onData);
+    req.on('end', onEnd);
+    req.on('aborted', onAborted);
+    req.on('error', onError);
+  });
+}
+
 export function createDesignBodyReader(options: { maxThreads?: number; databaseUrl?: string } = {}): DesignBodyReader {
   let pool: Piscina | null = null;
   const workerData: DesignBodyWorkerData = { databaseUrl: options.databaseUrl };
@@ -70,14 +122,35 @@ export function createDesignBodyReader(options: { maxThreads?: number; databaseU
 
   return {
     async read(req, kind, store) {
-      if (!Buffer.isBuffer(req.body)) return { body: req.body };
-      const buf = req.body;
-      // hand the bytes over without a copy when the Buffer owns its whole ArrayBuffer
-      const own = buf.byteOffset === 0 && buf.byteLength === buf.buffer.byteLength;
-      const bytes = own ? new Uint8Array(buf.buffer, 0, buf.byteLength) : new Uint8Array(buf);
-      req.body = undefined;
-      const task: DesignBodyTask = { bytes, kind, ...(store && options.databaseUrl ? { store } : {}) };
-      const r = (await getPool().run(task, { transferList: [bytes.buffer as ArrayBuffer] })) as DesignBodyResult;
+      const where = store && options.databaseUrl ? { store } : {};
+      let r: DesignBodyResult;
+      if (req.designBodyStream) {
+        // unread (server/http/bodies.ts): streamed into the worker, which assembles it in a buffer of its own
+        const { port1, port2 } = new MessageChannel();
+        const declared = Number(req.headers['content-length']);
+        const task: DesignBodyTask = { stream: port2, length: Number.isFinite(declared) ? declared : null, kind, ...where };
+        const running = getPool().run(task, { transferList: [port2] }) as Promise<DesignBodyResult>;
+        try {
+          await streamBody(req, port1, req.designBodyStream.limit);
+        } catch (e) {
+          // the worker stops at the abort message; its answer no longer matters
+          running.catch(() => {});
+          throw e;
+        } finally {
+          req.designBodyStream = undefined;
+        }
+        r = await running;
+        port1.close();
+      } else {
+        if (!Buffer.isBuffer(req.body)) return { body: req.body };
+        const buf = req.body;
+        // hand the bytes over without a copy when the Buffer owns its whole ArrayBuffer
+        const own = buf.byteOffset === 0 && buf.byteLength === buf.buffer.byteLength;
+        const bytes = own ? new Uint8Array(buf.buffer, 0, buf.byteLength) : new Uint8Array(buf);
+        req.body = undefined;
+        const task: DesignBodyTask = { bytes, kind, ...where };
+        r = (await getPool().run(task, { transferList: [bytes.buffer as ArrayBuffer] })) as DesignBodyResult;
+      }
       if (!r.ok) {
         if ('failure' in r) throw storeError(r.failure);
         throw new AppError(r.code, r.message, r.details, r.current);

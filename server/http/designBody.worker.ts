@@ -14,7 +14,7 @@
  * document's size: here they cost this thread's time, not the request thread's, which only gets the saved
  * metadata and the document's bytes back (transferred, not copied) for the answer.
  */
-import { workerData } from 'node:worker_threads';
+import { workerData, type MessagePort } from 'node:worker_threads';
 import Piscina from 'piscina';
 import type { Knex } from 'knex';
 import { designCreateBodySchema, designUpdateBodySchema } from '../contracts/api';
@@ -34,12 +34,15 @@ lowerThreadPriority();
 /** `create`: POST …/designs ({ name, document? } or { name, copyOf }); `update`: PUT …/designs/:designId. */
 export type DesignBodyKind = 'create' | 'update';
 
-export interface DesignBodyTask {
-  bytes: Uint8Array;
+export type DesignBodyTask = (
+  | { bytes: Uint8Array }
+  /** the body arrives piece by piece on this port (null ends it, `{ abort }` stops); `length` from Content-Length */
+  | { stream: MessagePort; length: number | null }
+) & {
   kind: DesignBodyKind;
   /** write the document here (the caller has checked the role): create in `projectId`, or save `designId` */
   store?: { projectId: number; designId: number | null; userId: number };
-}
+};
 
 /** the pool's workerData: where the worker writes when a task says `store` */
 export interface DesignBodyWorkerData {
@@ -141,8 +144,34 @@ async function store(r: Extract<DesignBodyResult, { write: PreparedInWorker }>, 
   }
 }
 
+/** the streamed body in one buffer, sized from Content-Length when there is one (grown by doubling otherwise) */
+function receive(port: MessagePort, length: number | null): Promise<Uint8Array> {
+  return new Promise((resolve, reject) => {
+    let buf = new Uint8Array(length ?? 1024 * 1024);
+    let n = 0;
+    port.on('message', (m: Uint8Array | null | { abort: string }) => {
+      if (m === null) {
+        port.close();
+        resolve(buf.subarray(0, n));
+      } else if (m instanceof Uint8Array) {
+        if (n + m.byteLength > buf.byteLength) {
+          const bigger = new Uint8Array(Math.max(2 * buf.byteLength, n + m.byteLength));
+          bigger.set(buf.subarray(0, n));
+          buf = bigger;
+        }
+        buf.set(m, n);
+        n += m.byteLength;
+      } else {
+        port.close();
+        reject(new Error(`the request body was not received: ${m.abort}`));
+      }
+    });
+  });
+}
+
 export default async function run(task: DesignBodyTask): Promise<DesignBodyResult | ReturnType<typeof Piscina.move>> {
-  const r = parseDesignBody(task.bytes, task.kind);
+  const bytes = 'stream' in task ? await receive(task.stream, task.length) : task.bytes;
+  const r = parseDesignBody(bytes, task.kind);
   if (!task.store || !r.ok || !('write' in r)) return r;
   const out = await store(r, task.store);
   if (!out.ok || !('stored' in out)) return out;
