@@ -12,7 +12,7 @@
  */
 export type CoreErrorCode =
   // the mesher (geometry/mesh)
-  /** an enclosure extent is zero, negative or not a finite number */
+  /** an domain extent is zero, negative or not a finite number */
   | 'degenerate-box'
   /** the element-count estimate (or the running count) exceeds maxElements or the server cap */
   | 'too-many-elements'

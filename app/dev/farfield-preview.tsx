@@ -22,7 +22,7 @@ function start(nx: number): DesignDocument {
     name: 'Preview: invented square array',
     host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: A },
     sites: generateArray({ kind: 'square', nx, ny: nx, spacingNm: 8 * A, latticeConstantNm: A }),
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [4 * A * nx + 20, 4 * A * nx + 20, 20], boundary: { kind: 'multipole', order: 2 } },
+    domain: { center: [0, 0, 0], halfExtentsNm: [4 * A * nx + 20, 4 * A * nx + 20, 20], boundary: { kind: 'multipole', order: 2 } },
     refinement: { order: 2, targetRelError: 1e-3, maxElements: 2_000_000 },
   };
 }
@@ -40,7 +40,7 @@ function Preview() {
       editedAt.current = 0;
     }
   }, [live.report, live.computing]);
-  const shrink = () => setDoc((d) => ({ ...d, enclosure: { ...d.enclosure, halfExtentsNm: d.enclosure.halfExtentsNm.map((h) => h * 0.8) as [number, number, number] } }));
+  const shrink = () => setDoc((d) => ({ ...d, domain: { ...d.domain, halfExtentsNm: d.domain.halfExtentsNm.map((h) => h * 0.8) as [number, number, number] } }));
   const move = () => {
     editedAt.current = performance.now();
     setDoc((d) => {
@@ -65,7 +65,7 @@ function Preview() {
         {...live}
         document={doc}
         readOnly={readOnly}
-        onApplyRecommended={(halfExtentsNm) => setDoc((d) => ({ ...d, enclosure: { ...d.enclosure, halfExtentsNm } }))}
+        onApplyRecommended={(halfExtentsNm) => setDoc((d) => ({ ...d, domain: { ...d.domain, halfExtentsNm } }))}
       />
     </main>
   );

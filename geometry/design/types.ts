@@ -42,7 +42,7 @@ export interface Host {
 
 export type Boundary = { kind: 'grounded' } | { kind: 'multipole'; order: number };
 
-export interface Enclosure {
+export interface Domain {
   center: Vec3;
   halfExtentsNm: Vec3;
   boundary: Boundary;
@@ -61,6 +61,6 @@ export interface Design {
   name: string;
   host: Host;
   sites: Site[];
-  enclosure: Enclosure;
+  domain: Domain;
   refinement: Refinement;
 }

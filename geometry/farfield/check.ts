@@ -1,9 +1,9 @@
 /**
- * The far-field check of a design: how much the enclosure's boundary condition can err in
+ * The far-field check of a design: how much the domain's boundary condition can err in
  * U_i and V_ij, before any mesh exists.
  *
  * Physics (maximum principle). In a homogeneous medium the difference between the potential
- * computed in the enclosure and the free-space potential is harmonic inside, so it is at most
+ * computed in the domain and the free-space potential is harmonic inside, so it is at most
  * its largest magnitude on the boundary, where it equals the neglected far field n_i (see
  * envelope.ts). For a unit charge inside the box, |ΔU_i| ≤ max_∂Ω |n_i| =: δ_i.
  * Pairs: grounded — the box Green's function is symmetric, so ΔV_ij is bounded by both δ_i and
@@ -39,7 +39,7 @@ import { describeBoundary, elementBudgetWarning, findingsWarnings, pairsLimitedW
 
 /** Stable warning codes: the UI and scripts may key on them; never rename, only add. */
 export const WARNING_CODES = [
-  'site-outside-enclosure',
+  'site-outside-domain',
   'boundary-too-close',
   'density-cut',
   'sites-coincide',
@@ -64,9 +64,9 @@ export interface FarFieldWarning {
 
 export interface SiteBound {
   id: string;
-  /** fraction of the site's unit density outside the enclosure */
+  /** fraction of the site's unit density outside the domain */
   chargeOutside: number;
-  /** bound on |ΔU_i| in eV; null when the site is not strictly inside the enclosure */
+  /** bound on |ΔU_i| in eV; null when the site is not strictly inside the domain */
   uBoundEv: number | null;
   uRelBound: number | null;
   /** the site's on-site energy in this model (eV), the denominator of uRelBound */
@@ -126,7 +126,7 @@ export interface FarFieldOptions {
   estimateElements?: (halfExtentsNm: Vec3) => number | { elements: number; atLeast: boolean };
   /** include the multipole moments up to order 4 of every site and of the array */
   moments?: boolean;
-  /** the centre the moments are taken about (default: the enclosure centre) */
+  /** the centre the moments are taken about (default: the domain centre) */
   momentsCenter?: Vec3;
 }
 
@@ -222,7 +222,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
   const eps = design.host.epsilonR;
   const a = design.host.latticeConstantNm;
   const tol = design.refinement.targetRelError;
-  const { center, halfExtentsNm: half, boundary } = design.enclosure;
+  const { center, halfExtentsNm: half, boundary } = design.domain;
   const ev = COULOMB_EV_NM / eps;
   const sites = design.sites;
   const n = sites.length;

@@ -5,7 +5,7 @@
  *   n(x) = φ(x)                       grounded (the whole free-space potential is dropped)
  *   n(x) = φ(x) − Σ_{l ≤ L} Q_lm I_lm   multipole of order L about the site's own centre
  * (εr = 1, unit charge). envelope(d) bounds |n(x)| over every x at distance ≥ d from the
- * site centre, so the maximum over the enclosure boundary is at most envelope(d_min), d_min
+ * site centre, so the maximum over the domain boundary is at most envelope(d_min), d_min
  * being the distance from the site to the nearest face. Evaluated per site in O(1): this is
  * what makes the check fast enough for every pointer move.
  *

@@ -1,7 +1,7 @@
 /**
  * Far-field check: multipole moments (real solid harmonics, Racah normalisation, order ≤ 4),
  * the neglected-far-field envelope per orbital, and the maximum-principle bounds on U_i and
- * V_ij with a recommended enclosure.
+ * V_ij with a recommended domain.
  */
 export { farFieldCheck, ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, WARNING_CODES, ORBITAL_MIN_LATTICE_FRACTION, ORBITAL_MAX_PLAUSIBLE_NM } from './check';
 export type { FarFieldOptions, FarFieldReport, FarFieldWarning, PairBound, SiteBound, WarningCode } from './check';

@@ -7,7 +7,7 @@
  * tests/geometry/farfield/session.test.ts runs random edit sequences against it. What is kept
  * between updates, and what invalidates it:
  *   per site   orbital, self energy, envelope key, lattice test          the site's own edit, host
- *              clearance, δ_i, density outside the box                    the site's edit, enclosure
+ *              clearance, δ_i, density outside the box                    the site's edit, domain
  *              required clearance (bisection)                            its target or the tolerance
  *              moments of the unit density (when asked for)              the site's edit, the centre
  *   pair set   all pairs (≤ allPairsLimit sites) or the bond graph       positions, clusters, site list
@@ -21,7 +21,7 @@
  *
  * Report order and ties follow check.ts step by step; keep the two in step when either changes.
  */
-import type { Design, Enclosure, Host, Orbital, Refinement, Site, Vec3 } from '../design/types';
+import type { Design, Domain, Host, Orbital, Refinement, Site, Vec3 } from '../design/types';
 import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
 import { chargeOutsideBox, pairEnergy, selfEnergy } from '../density';
@@ -46,7 +46,7 @@ export interface FarFieldChanges {
   order?: string[];
   name?: string;
   host?: Host;
-  enclosure?: Enclosure;
+  domain?: Domain;
   refinement?: Refinement;
 }
 
@@ -78,7 +78,7 @@ interface SiteState {
   offLattice: boolean;
   /** envelope for the current boundary; null when the boundary changed since */
   env: Envelope | null;
-  /** enclosure stamp the box-dependent values belong to (−1: none yet) */
+  /** domain stamp the box-dependent values belong to (−1: none yet) */
   boxStamp: number;
   clear: number;
   delta: number;
@@ -110,12 +110,12 @@ const copySite = (s: Site): Site => {
   if (s.cluster !== undefined) c.cluster = s.cluster;
   return c;
 };
-const copyEnclosure = (e: Enclosure): Enclosure => ({ center: [...e.center], halfExtentsNm: [...e.halfExtentsNm], boundary: { ...e.boundary } });
+const copyDomain = (e: Domain): Domain => ({ center: [...e.center], halfExtentsNm: [...e.halfExtentsNm], boundary: { ...e.boundary } });
 
 export function createFarFieldSession(initial: Design, options: FarFieldSessionOptions = {}): FarFieldSession {
   let name = initial.name;
   let host: Host = { ...initial.host };
-  let enclosure: Enclosure = copyEnclosure(initial.enclosure);
+  let domain: Domain = copyDomain(initial.domain);
   let refinement: Refinement = { ...initial.refinement };
   let states: SiteState[] = [];
   const limit = options.allPairsLimit ?? ALL_PAIRS_LIMIT;
@@ -176,7 +176,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
     if (st.env) return st.env;
     let env = envByKey.get(st.okey);
     if (!env) {
-      env = neglectedEnvelope(st.orbital, enclosure.boundary);
+      env = neglectedEnvelope(st.orbital, domain.boundary);
       envByKey.set(st.okey, env);
     }
     st.env = env;
@@ -269,20 +269,20 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       name = c.name;
       touched = true;
     }
-    if (c.enclosure) {
-      const e = c.enclosure;
-      if (e.boundary.kind !== enclosure.boundary.kind || (e.boundary.kind === 'multipole' && enclosure.boundary.kind === 'multipole' && e.boundary.order !== enclosure.boundary.order)) {
+    if (c.domain) {
+      const e = c.domain;
+      if (e.boundary.kind !== domain.boundary.kind || (e.boundary.kind === 'multipole' && domain.boundary.kind === 'multipole' && e.boundary.order !== domain.boundary.order)) {
         // envelopes, and the clearances required of them, belong to one boundary
         envByKey = new Map();
         for (const st of states) st.env = null;
         reqStamp++;
         reqCache = new Map();
       }
-      if (!sameVec(e.center, enclosure.center) || !sameVec(e.halfExtentsNm, enclosure.halfExtentsNm) || e.boundary.kind !== enclosure.boundary.kind || (e.boundary.kind === 'multipole' && enclosure.boundary.kind === 'multipole' && e.boundary.order !== enclosure.boundary.order)) {
+      if (!sameVec(e.center, domain.center) || !sameVec(e.halfExtentsNm, domain.halfExtentsNm) || e.boundary.kind !== domain.boundary.kind || (e.boundary.kind === 'multipole' && domain.boundary.kind === 'multipole' && e.boundary.order !== domain.boundary.order)) {
         boxStamp++;
         touched = true;
       }
-      enclosure = copyEnclosure(e);
+      domain = copyDomain(e);
     }
     if (c.refinement) {
       const r = c.refinement;
@@ -304,7 +304,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
       name,
       host: { ...host },
       sites: states.map((st) => st.site),
-      enclosure: copyEnclosure(enclosure),
+      domain: copyDomain(domain),
       refinement: { ...refinement },
     };
   }
@@ -319,7 +319,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
     const eps = host.epsilonR;
     const a = host.latticeConstantNm;
     const tol = refinement.targetRelError;
-    const { center, halfExtentsNm: half, boundary } = enclosure;
+    const { center, halfExtentsNm: half, boundary } = domain;
     const ev = COULOMB_EV_NM / eps;
     const n = states.length;
     const warnings: FarFieldReport['warnings'] = [];
@@ -564,7 +564,7 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
 
   /** Moments as check.ts gives them: per-site arrays cached, the array sum redone in site order. */
   function moments(): NonNullable<FarFieldReport['moments']> {
-    const c: Vec3 = options.momentsCenter ? [...options.momentsCenter] : [enclosure.center[0], enclosure.center[1], enclosure.center[2]];
+    const c: Vec3 = options.momentsCenter ? [...options.momentsCenter] : [domain.center[0], domain.center[1], domain.center[2]];
     const key = c.join(',');
     if (key !== momentsCenterKey) {
       for (const st of states) st.moments = null;

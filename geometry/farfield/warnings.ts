@@ -4,7 +4,7 @@
  * Order of the list: pairs-limited (when pairs are limited), then the site and pair findings
  * below, then element-budget (when an element estimate was asked for).
  * The words are shared by the command line and the studio's far-field panel; they say "domain
- * box" for the document's `enclosure` (the on-screen name, issue 9).
+ * box" for the document's `domain` (the on-screen name, issue 9).
  */
 import type { Boundary, Vec3 } from '../design/types';
 import { ORBITAL_MAX_PLAUSIBLE_NM, type FarFieldWarning, type OrbitalSizeFindings } from './check';
@@ -56,7 +56,7 @@ export function findingsWarnings(f: Findings): FarFieldWarning[] {
   if (f.siteCount === 0) warnings.push({ code: 'no-sites', severity: 'warning', message: 'The design has no sites, so there is nothing to bound.', siteIds: [] });
   if (f.outside.length)
     warnings.push({
-      code: 'site-outside-enclosure',
+      code: 'site-outside-domain',
       severity: 'error',
       message: `${f.outside.length} site(s) lie outside the domain box or on its boundary; no boundary bound exists for them. Move them inside or enlarge the half-extents.`,
       siteIds: f.outside,

@@ -1,5 +1,5 @@
 /**
- * Dirichlet values on the enclosure for the potential φ_i of one site's unit density ρ_i.
+ * Dirichlet values on the domain for the potential φ_i of one site's unit density ρ_i.
  *
  *   grounded   φ = 0 on the box. The simplest choice; it lowers U by roughly the potential the
  *              charge would have on the walls (≈ 1/(εr·L) for a centred charge in a box of
@@ -14,7 +14,7 @@
  *              spherical models everything beyond ℓ = 0 vanishes about the centre, so the
  *              boundary values are exactly 1/(εr·|x − p_i|).
  *
- * Expanding about the site's own centre (not the enclosure centre) keeps the omitted orders as
+ * Expanding about the site's own centre (not the domain centre) keeps the omitted orders as
  * small as the density's own shape allows, whatever the site's position in the box.
  */
 import type { Boundary, Orbital, Vec3 } from '../design/types';
@@ -47,7 +47,7 @@ export function boundaryValues(
     if (!boundaryDof[i]) continue;
     const x = dofCoords[3 * i], y = dofCoords[3 * i + 1], z = dofCoords[3 * i + 2];
     if (x === center[0] && y === center[1] && z === center[2]) {
-      throw new RangeError('a site lies on the enclosure boundary: multipole boundary values are undefined there');
+      throw new RangeError('a site lies on the domain boundary: multipole boundary values are undefined there');
     }
     g[i] = inv * multipolePotential(moments, order, center, x, y, z);
   }

@@ -9,7 +9,7 @@
  *               law error C N^(−r) the successive differences fall at the same rate r, so the
  *               fit needs no reference value. Theory on graded meshes: r = 2/3 (P1), 4/3 (P2).
  *
- *   box         the enclosure scaled by factors (default 0.5 … 2) about its centre, solved with a
+ *   box         the domain scaled by factors (default 0.5 … 2) about its centre, solved with a
  *               grounded and with a multipole boundary. Rows: half-width, boundary, U per site
  *               with its error bar and the far-field bound. Plot: U against the smallest
  *               half-width, one series per boundary kind. Grounded U rises towards the free-space
@@ -187,7 +187,7 @@ export function runConvergence(design: Design, options: ConvergenceOptions): Con
 
   // ---- box sweep
   const factors = options.factors ?? [0.5, 0.75, 1, 1.5, 2];
-  const mpOrder = options.multipoleOrder ?? (design.enclosure.boundary.kind === 'multipole' ? design.enclosure.boundary.order : 2);
+  const mpOrder = options.multipoleOrder ?? (design.domain.boundary.kind === 'multipole' ? design.domain.boundary.order : 2);
   const kinds: Boundary[] = [{ kind: 'grounded' }, { kind: 'multipole', order: mpOrder }];
   const rows: BoxRow[] = [];
   let siteIds: string[] = [];
@@ -195,8 +195,8 @@ export function runConvergence(design: Design, options: ConvergenceOptions): Con
   let done = 0;
   for (const boundary of kinds) {
     for (const f of factors) {
-      const half = design.enclosure.halfExtentsNm.map((h) => h * f) as [number, number, number];
-      const d: Design = { ...design, enclosure: { ...design.enclosure, halfExtentsNm: half, boundary } };
+      const half = design.domain.halfExtentsNm.map((h) => h * f) as [number, number, number];
+      const d: Design = { ...design, domain: { ...design.domain, halfExtentsNm: half, boundary } };
       const label = boundary.kind === 'grounded' ? 'grounded' : `multipole(${boundary.order})`;
       const r = solveCoulomb(d, {
         order, levels: 2, pairs: 'none', signal: options.signal,
@@ -218,7 +218,7 @@ export function runConvergence(design: Design, options: ConvergenceOptions): Con
   }
   const plots: ConvergencePlot[] = [
     {
-      title: `U of ${siteIds[0]} against the enclosure half-width`,
+      title: `U of ${siteIds[0]} against the domain half-width`,
       xLabel: 'smallest half-width (nm)',
       yLabel: 'U (eV)',
       logX: false,

@@ -3,7 +3,7 @@
  *
  * For every site i with electrons (its unit density ρ_i from the orbital model) we solve
  *
- *     −∇·(εr ∇φ_i) = 4π ρ_i  in the enclosure,   φ_i = boundary values (boundary.ts) on it,
+ *     −∇·(εr ∇φ_i) = 4π ρ_i  in the domain,   φ_i = boundary values (boundary.ts) on it,
  *
  * and, in the convention of geometry/units.ts,
  *
@@ -238,7 +238,7 @@ function solveLevel(
     throwIfAborted(opts.signal);
     report('load', site.id, s / ns);
     const L = densityLoad(space, site.orbital, site.position, opts.load);
-    const inside = 1 - chargeOutsideBox(site.orbital, site.position, design.enclosure.center, design.enclosure.halfExtentsNm);
+    const inside = 1 - chargeOutsideBox(site.orbital, site.position, design.domain.center, design.domain.halfExtentsNm);
     if (!(Math.abs(L.charge - inside) <= CHARGE_TOLERANCE)) {
       notes.push(
         `Site ${site.id}: the discrete charge ${L.charge.toFixed(9)} differs from the charge inside the box ${inside.toFixed(9)} by ${Math.abs(L.charge - inside).toExponential(2)} (more than ${CHARGE_TOLERANCE}): the density is under-resolved by the quadrature, so U and V carry an extra error of about that relative size.`,
@@ -246,7 +246,7 @@ function solveLevel(
     }
     const b = new Float64Array(n);
     for (let k = 0; k < n; k++) b[k] = 4 * Math.PI * L.load[k];
-    const g = boundaryValues(design.enclosure.boundary, site.orbital, site.position, design.host.epsilonR, space.dofCoords, space.boundaryDof);
+    const g = boundaryValues(design.domain.boundary, site.orbital, site.position, design.host.epsilonR, space.dofCoords, space.boundaryDof);
     // the lifted matrix is the same for every site: lift it once, then only the right-hand side
     let rhs: Float64Array;
     if (!A) {
@@ -430,7 +430,7 @@ function plan(design: Design, opts: CoulombOptions): Plan {
   for (const s of sites) {
     const b = boundById.get(s.id);
     if (!b || b.uBoundEv === null) {
-      throw new CoulombError('site-outside', `site "${s.id}" is not strictly inside the enclosure: enlarge the box or move the site`, { siteId: s.id });
+      throw new CoulombError('site-outside', `site "${s.id}" is not strictly inside the domain: enlarge the box or move the site`, { siteId: s.id });
     }
     siteBound.push(b.uBoundEv);
     siteCut.push(b.chargeOutside);
@@ -604,7 +604,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
   if (floor.rel > tol) {
     throw new CoulombError(
       'not-converged',
-      `${floor.what}: the enclosure's boundary error bound plus the density cut by the box is already ${floor.rel.toExponential(2)} relative, above targetRelError ${tol}; no refinement can fix that. ` +
+      `${floor.what}: the domain's boundary error bound plus the density cut by the box is already ${floor.rel.toExponential(2)} relative, above targetRelError ${tol}; no refinement can fix that. ` +
         'Enlarge the box (the check command recommends half-extents) or use a multipole boundary.',
       { relError: floor.rel, targetRelError: tol },
     );

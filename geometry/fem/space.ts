@@ -58,7 +58,7 @@ export interface FeSpace {
   dofCoords: Float64Array;
   /** global dofs of each tetrahedron, dofsPerTet per tet, local order of reference.ts */
   tetDofs: Uint32Array;
-  /** 1 where the dof's node lies on the enclosure boundary */
+  /** 1 where the dof's node lies on the domain boundary */
   boundaryDof: Uint8Array;
   /** edge endpoints (min, max), 2 per edge, sorted; empty for P1 */
   edges: Uint32Array;

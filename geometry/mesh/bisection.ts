@@ -87,7 +87,7 @@ export interface BisectionMesh {
   tetLevel: Uint8Array;
   /** region id (0 = host) */
   tetRegion: Uint8Array;
-  /** enclosure */
+  /** domain */
   boxMin: [number, number, number];
   boxMax: [number, number, number];
   /** cells per axis of the initial Kuhn mesh */
@@ -113,12 +113,12 @@ function checkBox(center: Vec3Like, half: Vec3Like): void {
     if (!Number.isFinite(c) || !Number.isFinite(h) || !(h > 0)) {
       throw new MeshError(
         'degenerate-box',
-        `the enclosure is degenerate: half-extent ${'xyz'[a]} = ${h} nm and centre ${c} nm must be finite, with a positive half-extent`,
+        `the domain is degenerate: half-extent ${'xyz'[a]} = ${h} nm and centre ${c} nm must be finite, with a positive half-extent`,
       );
     }
     // A box so thin that min and max round to the same double has no interior.
     if (!(c + h > c - h)) {
-      throw new MeshError('degenerate-box', `the enclosure has no interior along ${'xyz'[a]} (half-extent ${h} nm)`);
+      throw new MeshError('degenerate-box', `the domain has no interior along ${'xyz'[a]} (half-extent ${h} nm)`);
     }
   }
 }
@@ -505,7 +505,7 @@ function refineEngine(m: BisectionMesh, marks: Uint8Array | null, tooLarge: TooL
     }
     const level = tetLevel[t] + 1;
     if (level > MAX_LEVEL) {
-      throw new MeshError('level-overflow', `more than ${MAX_LEVEL} bisection generations requested; the size field is too fine for the enclosure`);
+      throw new MeshError('level-overflow', `more than ${MAX_LEVEL} bisection generations requested; the size field is too fine for the domain`);
     }
     const b = 4 * t;
     const k = tetTag[t];

@@ -4,7 +4,7 @@
  *
  *  - orientation: every tet has det[v1−v0, v2−v0, v3−v0] > 0 (types.ts);
  *  - conformity: every face is met by one or two tets; a face met by two is interior and the two
- *    tets see it with opposite orientations; a face met by one lies on the enclosure (the box);
+ *    tets see it with opposite orientations; a face met by one lies on the domain (the box);
  *  - volume: the compensated (Neumaier) sum of tet volumes against the box volume;
  *  - topology: Euler characteristic V − E + F − T, which is 1 for any triangulated ball
  *    (Euler–Poincaré formula), plus unused vertices and boundary-flag consistency.
@@ -19,7 +19,7 @@ export interface Box {
 }
 
 export interface CheckOptions {
-  /** The enclosure; defaults to the bounding box of the vertices. */
+  /** The domain; defaults to the bounding box of the vertices. */
   box?: Box;
   /** Tolerance for "on the box", relative to the box diagonal (default 1e-9: common practice). */
   relTol?: number;
@@ -39,7 +39,7 @@ export interface CheckResult {
   interiorFaces: number;
   boundaryFaces: number;
   /** boundary faces whose three vertices do not lie on one side of the box */
-  boundaryFacesOffEnclosure: number;
+  boundaryFacesOffDomain: number;
   /** faces met by more than two tets */
   overSharedFaces: number;
   /** interior faces whose two tets see them with the same orientation (folded mesh) */
@@ -146,7 +146,7 @@ export function checkMesh(mesh: TetMesh, options: CheckOptions = {}): CheckResul
       tets: m,
       interiorFaces: 0,
       boundaryFaces: 0,
-      boundaryFacesOffEnclosure: 0,
+      boundaryFacesOffDomain: 0,
       overSharedFaces: 0,
       orientationMismatches: 0,
       nonPositiveTets: 0,
@@ -192,7 +192,7 @@ export function checkMesh(mesh: TetMesh, options: CheckOptions = {}): CheckResul
   // faces: interior/boundary, orientation of shared faces, boundary faces on the box
   let interiorFaces = 0;
   let boundaryFaces = 0;
-  let boundaryFacesOffEnclosure = 0;
+  let boundaryFacesOffDomain = 0;
   let orientationMismatches = 0;
   const onBoundaryFace = new Uint8Array(nV);
   const onPlane = (v: number, axis: number, value: number) => Math.abs(coords[3 * v + axis] - value) <= tol;
@@ -223,7 +223,7 @@ export function checkMesh(mesh: TetMesh, options: CheckOptions = {}): CheckResul
           (onPlane(a, axis, lo) && onPlane(b, axis, lo) && onPlane(c, axis, lo)) ||
           (onPlane(a, axis, hi) && onPlane(b, axis, hi) && onPlane(c, axis, hi));
       }
-      if (!onSide) boundaryFacesOffEnclosure++;
+      if (!onSide) boundaryFacesOffDomain++;
     }
   }
 
@@ -243,8 +243,8 @@ export function checkMesh(mesh: TetMesh, options: CheckOptions = {}): CheckResul
   if (nonPositiveTets) problems.push(`${nonPositiveTets} tetrahedra are not positively oriented (det ≤ 0)`);
   if (ft.overSharedFaces) problems.push(`${ft.overSharedFaces} faces are met by more than two tetrahedra`);
   if (orientationMismatches) problems.push(`${orientationMismatches} interior faces are seen with the same orientation by both tetrahedra`);
-  if (boundaryFacesOffEnclosure)
-    problems.push(`${boundaryFacesOffEnclosure} faces with a single tetrahedron are not on the enclosure (hanging nodes or holes)`);
+  if (boundaryFacesOffDomain)
+    problems.push(`${boundaryFacesOffDomain} faces with a single tetrahedron are not on the domain (hanging nodes or holes)`);
   if (!(volumeRelError <= 1e-12)) problems.push(`volume ${volume} differs from the box volume ${boxVolume} (relative ${volumeRelError})`);
   if (euler !== 1) problems.push(`Euler characteristic V − E + F − T = ${euler}, expected 1 for a ball`);
   if (unusedVertices) problems.push(`${unusedVertices} vertices belong to no tetrahedron`);
@@ -259,7 +259,7 @@ export function checkMesh(mesh: TetMesh, options: CheckOptions = {}): CheckResul
     tets: m,
     interiorFaces,
     boundaryFaces,
-    boundaryFacesOffEnclosure,
+    boundaryFacesOffDomain,
     overSharedFaces: ft.overSharedFaces,
     orientationMismatches,
     nonPositiveTets,

@@ -1,7 +1,7 @@
 /**
  * meshDesign: from a design document to a graded, conforming tetrahedral mesh.
  *
- *   1. check the enclosure (degenerate → MeshError 'degenerate-box')
+ *   1. check the domain (degenerate → MeshError 'degenerate-box')
  *   2. size field from the sites and refinement.targetRelError (sizefield.ts)
  *   3. initial Kuhn cells: near-cubic, `initialCells` across the smallest axis
  *   4. estimate the tet count (estimate.ts; a quick lower bound first); refuse above maxElements
@@ -20,7 +20,7 @@ import type { TetMesh } from './types';
 export const DEFAULT_HARD_CAP = 5_000_000;
 
 export interface MeshDesignOptions extends SizeFieldOptions {
-  /** fewest initial Kuhn cells across the smallest enclosure axis (default 2; see chooseInitialCells) */
+  /** fewest initial Kuhn cells across the smallest domain axis (default 2; see chooseInitialCells) */
   initialCells?: number;
   /** server-wide cap (default DEFAULT_HARD_CAP) */
   hardCap?: number;
@@ -85,15 +85,15 @@ export function chooseInitialCells(halfExtents: readonly number[], nMin: number)
   return best;
 }
 
-function checkEnclosure(design: Design): void {
-  const { center, halfExtentsNm } = design.enclosure;
+function checkDomain(design: Design): void {
+  const { center, halfExtentsNm } = design.domain;
   for (let a = 0; a < 3; a++) {
     const h = halfExtentsNm[a];
     const c = center[a];
     if (!Number.isFinite(h) || !(h > 0) || !Number.isFinite(c) || !(c + h > c - h)) {
       throw new MeshError(
         'degenerate-box',
-        `the enclosure is degenerate along ${'xyz'[a]}: half-extent ${h} nm, centre ${c} nm (both must be finite numbers and the half-extent positive)`,
+        `the domain is degenerate along ${'xyz'[a]}: half-extent ${h} nm, centre ${c} nm (both must be finite numbers and the half-extent positive)`,
       );
     }
   }
@@ -137,11 +137,11 @@ export interface DesignEstimate {
 
 /**
  * The element count a design's graded mesh would have, from its size field, before any meshing
- * (estimate.ts; within ±30 % by test). The far-field check calls it for recommended enclosures.
+ * (estimate.ts; within ±30 % by test). The far-field check calls it for recommended domains.
  */
 export function estimateDesignElements(design: Design, options: MeshDesignOptions = {}): DesignEstimate {
-  checkEnclosure(design);
-  const { center, halfExtentsNm } = design.enclosure;
+  checkDomain(design);
+  const { center, halfExtentsNm } = design.domain;
   const hardCap = options.hardCap ?? DEFAULT_HARD_CAP;
   const maxElements = options.maxElements ?? design.refinement.maxElements;
   const limit = Math.min(hardCap, maxElements);
@@ -195,7 +195,7 @@ export function estimateDesignElements(design: Design, options: MeshDesignOption
 
 export function meshDesign(design: Design, options: MeshDesignOptions = {}): MeshDesignResult {
   const { estimate, aborted, stoppedBy, limit, maxElements, hardCap, cells, initialTets, leaves, spec, params, seconds } = estimateDesignElements(design, options);
-  const { center, halfExtentsNm } = design.enclosure;
+  const { center, halfExtentsNm } = design.domain;
   const field = new SizeField(spec);
   const t1 = performance.now();
   if (stoppedBy === 'initial-grid') {
@@ -204,7 +204,7 @@ export function meshDesign(design: Design, options: MeshDesignOptions = {}): Mes
     const aspect = Math.max(h[0], h[1], h[2]) / Math.min(h[0], h[1], h[2]);
     throw new MeshError(
       'too-many-elements',
-      `the enclosure's half-extents ${h.map((x) => x.toPrecision(4)).join(' × ')} nm (longest/shortest ${aspect.toPrecision(3)}) need ` +
+      `the domain's half-extents ${h.map((x) => x.toPrecision(4)).join(' × ')} nm (longest/shortest ${aspect.toPrecision(3)}) need ` +
         `${cells.map((c) => c.toPrecision(3)).join(' × ')} near-cubic initial cells, ${initialTets.toPrecision(3)} tetrahedra before any refinement, ` +
         `more than ${which}; make the box less flat or smaller`,
       { estimate, limit, maxElements, hardCap },
@@ -215,7 +215,7 @@ export function meshDesign(design: Design, options: MeshDesignOptions = {}): Mes
     throw new MeshError(
       'too-many-elements',
       `the size field needs ${aborted ? 'at least' : 'about'} ${Math.round(estimate)} tetrahedra, more than ${which}; ` +
-        'raise targetRelError, shrink the enclosure or raise maxElements',
+        'raise targetRelError, shrink the domain or raise maxElements',
       { estimate, limit, maxElements, hardCap },
     );
   }
@@ -273,7 +273,7 @@ export const CHECK_ESTIMATE_MAX_LEAVES = 120_000;
  */
 export function checkElementEstimate(design: Design, halfExtentsNm: readonly [number, number, number]): { elements: number; atLeast: boolean } {
   const e = estimateDesignElements(
-    { ...design, enclosure: { ...design.enclosure, halfExtentsNm: [halfExtentsNm[0], halfExtentsNm[1], halfExtentsNm[2]] } },
+    { ...design, domain: { ...design.domain, halfExtentsNm: [halfExtentsNm[0], halfExtentsNm[1], halfExtentsNm[2]] } },
     { maxEstimateLeaves: CHECK_ESTIMATE_MAX_LEAVES },
   );
   return { elements: Math.round(e.estimate), atLeast: e.aborted };

@@ -1,5 +1,5 @@
 /**
- * The size field: the longest tetrahedron edge wanted at each point of the enclosure.
+ * The size field: the longest tetrahedron edge wanted at each point of the domain.
  *
  *     h(x) = min( hmax, min over sites s of  h0_s · max(1, |x − p_s| / a_s)^β )
  *
@@ -120,7 +120,7 @@ export interface SizeFieldOptions {
   h0Nm?: number;
   /** multiplies the automatic h0 (e.g. 0.5 for a finer core) */
   h0Factor?: number;
-  /** cap on the size; default: a quarter of the smallest enclosure extent */
+  /** cap on the size; default: a quarter of the smallest domain extent */
   hmaxNm?: number;
   /** grading exponent; default 2(p+2)/(2p+3) */
   exponent?: number;
@@ -139,7 +139,7 @@ export function sizeFieldFromDesign(design: Design, options: SizeFieldOptions = 
   const order = options.order ?? design.refinement.order;
   const tol = positive('targetRelError', options.targetRelError ?? design.refinement.targetRelError);
   const exponent = positive('exponent', options.exponent ?? gradingExponent(order));
-  const ext = design.enclosure.halfExtentsNm;
+  const ext = design.domain.halfExtentsNm;
   const hmaxNm = positive('hmaxNm', options.hmaxNm ?? (2 * Math.min(ext[0], ext[1], ext[2])) / 4);
   const factor = positive('h0Factor', options.h0Factor ?? 1);
   if (options.h0Nm !== undefined) positive('h0Nm', options.h0Nm);

@@ -21,7 +21,7 @@ export interface TetMesh {
   parents: Uint32Array;
   /** generation in which each vertex was created (0 for initial vertices) */
   vertexLevel: Uint8Array;
-  /** 1 for vertices on the enclosure boundary */
+  /** 1 for vertices on the domain boundary */
   boundaryVertex: Uint8Array;
 }
 

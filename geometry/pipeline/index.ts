@@ -11,7 +11,7 @@
  *
  * Progress is data (geometry/progress.ts); refusals are CoreError (geometry/errors.ts).
  */
-export { buildMeshArtifact, encodeMesh, sitesOutsideEnclosure } from './mesh';
+export { buildMeshArtifact, encodeMesh, sitesOutsideDomain } from './mesh';
 export type { MeshArtifact, MeshArtifactOptions, MeshFormat, MeshSummary } from './mesh';
 export { coulombResults, convergenceResults, coulombJson, convergenceJson } from './results';
 export type { CoulombResults, ConvergenceResults, CoulombJson, ConvergenceJson, ResultTable } from './results';

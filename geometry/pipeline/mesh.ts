@@ -40,7 +40,7 @@ export interface MeshArtifact {
   sizeField: Float64Array;
   /** with `solve`: φ of every site with electrons in V per elementary charge, on all nodes of the order */
   pointData: { name: string; values: Float64Array }[];
-  /** sites outside the enclosure: allowed (a design may be mid-edit), but the mesh is not graded around them */
+  /** sites outside the domain: allowed (a design may be mid-edit), but the mesh is not graded around them */
   outsideSiteIds: string[];
   quality: QualityReport;
   summary: MeshSummary;
@@ -69,9 +69,9 @@ export function meshSummary(q: QualityReport): MeshSummary {
   };
 }
 
-/** Ids of the sites not strictly inside the enclosure. */
-export function sitesOutsideEnclosure(design: Design): string[] {
-  const { center, halfExtentsNm } = design.enclosure;
+/** Ids of the sites not strictly inside the domain. */
+export function sitesOutsideDomain(design: Design): string[] {
+  const { center, halfExtentsNm } = design.domain;
   return design.sites.filter((s) => s.position.some((x, k) => Math.abs(x - center[k]) >= halfExtentsNm[k])).map((s) => s.id);
 }
 
@@ -105,7 +105,7 @@ export function buildMeshArtifact(design: Design, options: MeshArtifactOptions =
     ? design.sites.map((s) => ({ id: s.id, position: s.position, radiusNm: orbitalLength(resolveOrbital(s)) }))
     : [];
   const quality = qualityReport(mesh, sites);
-  return { order, mesh, meshed, sizeField, pointData, outsideSiteIds: sitesOutsideEnclosure(design), quality, summary: meshSummary(quality) };
+  return { order, mesh, meshed, sizeField, pointData, outsideSiteIds: sitesOutsideDomain(design), quality, summary: meshSummary(quality) };
 }
 
 /** The artifact's bytes in one format. TWMESH holds the mesh alone (no point data). */

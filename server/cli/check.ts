@@ -10,9 +10,9 @@
  * on every valid design: past the cap (1.5 × min(maxElements, the mesher's server cap), or a flat
  * box whose initial grid alone is larger, or CHECK_ESTIMATE_MAX_LEAVES of work) it stops and
  * recommendedElementsIsLowerBound is true: the mesh would need more than recommendedElements.
- * (null stands for "no bound": a site outside the enclosure, or a box no size can fix).
+ * (null stands for "no bound": a site outside the domain, or a box no size can fix).
  * --moments adds the multipole moments to order 4 of every site's unit density and of the array
- * (weights = electrons) about the enclosure centre: a `moments` key in the JSON, a table otherwise.
+ * (weights = electrons) about the domain centre: a `moments` key in the JSON, a table otherwise.
  * Without it, a readable table with the model assumptions.
  * Exit codes: 0 checked, 1 invalid document or unreadable file, 2 usage, 3 checked but the design
  * is not fit to mesh as it stands: the worst bound misses the design's targetRelError, or the report
@@ -53,9 +53,9 @@ const meV = (x: number | null) => (x === null || !Number.isFinite(x) ? '—' : (
 
 export function toReadable(design: Design, r: FarFieldReport): string {
   const out: string[] = [];
-  const h = design.enclosure.halfExtentsNm;
+  const h = design.domain.halfExtentsNm;
   out.push(`Far-field check: ${design.name}`);
-  out.push(`boundary ${r.boundary}, tolerance ${pct(r.tolerance)}, enclosure half-extents ${h.join(' × ')} nm about (${design.enclosure.center.join(', ')}), εr = ${design.host.epsilonR}`);
+  out.push(`boundary ${r.boundary}, tolerance ${pct(r.tolerance)}, domain half-extents ${h.join(' × ')} nm about (${design.domain.center.join(', ')}), εr = ${design.host.epsilonR}`);
   out.push('');
   out.push(
     table([

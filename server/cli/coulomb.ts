@@ -40,7 +40,7 @@ export function toCoulombReadable(design: Design, r: CoulombResult): string {
   out.push(`Coulomb energies: ${design.name}`);
   out.push(
     `P${r.order} elements, ${r.mode === 'adaptive' ? 'adaptive refinement' : `${r.levels.length} nested graded meshes`}; finest mesh ${r.elements} tetrahedra, ${r.dofs} unknowns, ` +
-      `${r.iterations} PCG iterations; εr = ${design.host.epsilonR}, boundary ${design.enclosure.boundary.kind === 'grounded' ? 'grounded' : `multipole(order ${design.enclosure.boundary.order})`}; ${r.seconds.toFixed(1)} s`,
+      `${r.iterations} PCG iterations; εr = ${design.host.epsilonR}, boundary ${design.domain.boundary.kind === 'grounded' ? 'grounded' : `multipole(order ${design.domain.boundary.order})`}; ${r.seconds.toFixed(1)} s`,
   );
   out.push('');
   out.push(

@@ -3,10 +3,10 @@
  * Each command lives in its own file and exports `run(argv): Promise<number>` (the exit code).
  */
 const commands: Record<string, { file: string; summary: string }> = {
-  check: { file: './check', summary: 'far-field check of a design: boundary error bounds and a safe enclosure size' },
+  check: { file: './check', summary: 'far-field check of a design: boundary error bounds and a safe domain size' },
   mesh: { file: './mesh', summary: 'build a graded tetrahedral mesh and write it as .vtu, .vtk or binary' },
   coulomb: { file: './coulomb', summary: 'solve for on-site U and inter-site V with P1 or P2 elements' },
-  convergence: { file: './convergence', summary: 'convergence sweep over refinement levels or enclosure sizes' },
+  convergence: { file: './convergence', summary: 'convergence sweep over refinement levels or domain sizes' },
   submit: { file: './submit', summary: 'remote mode: store a design on a server, start a job, follow it, download the result' },
 };
 

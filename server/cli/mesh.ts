@@ -21,7 +21,7 @@ import { readDesign } from './design-file';
 import { parseCli } from './args';
 import { progressLines } from './progress';
 import { asRefusal, describeRefusal, refusalArea } from '../coreErrors';
-import { buildMeshArtifact, encodeMesh, sitesOutsideEnclosure, type MeshArtifact, type MeshFormat } from '../../geometry/pipeline/index';
+import { buildMeshArtifact, encodeMesh, sitesOutsideDomain, type MeshArtifact, type MeshFormat } from '../../geometry/pipeline/index';
 
 const USAGE = 'usage: npm run cli -- mesh <design.json> --out <file> [--order 1|2] [--format vtu|vtk|binary] [--solve] [--json] [--progress]';
 
@@ -77,12 +77,12 @@ export async function run(argv: string[]): Promise<number> {
   }
   const design = await readDesign(args.file, false);
   if (!design) return 1;
-  // A site outside the enclosure is allowed (a design may be mid-edit) but gets no grading, and
+  // A site outside the domain is allowed (a design may be mid-edit) but gets no grading, and
   // nothing computed on this mesh will include it: say so rather than mesh silently.
-  const outside = sitesOutsideEnclosure(design);
+  const outside = sitesOutsideDomain(design);
   if (outside.length) {
     const ids = outside.slice(0, 12).join(', ') + (outside.length > 12 ? ', …' : '');
-    console.error(`warning: ${outside.length} site(s) outside the enclosure (${ids}): the mesh is not graded around them; enlarge the box or move them`);
+    console.error(`warning: ${outside.length} site(s) outside the domain (${ids}): the mesh is not graded around them; enlarge the box or move them`);
   }
 
   const t0 = performance.now();

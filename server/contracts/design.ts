@@ -17,7 +17,7 @@
  *   Kohn & Luttinger 1955, from memory) and already far beyond any shallow impurity state (common
  *   practice). Sizes inside these bounds but implausible for a donor in silicon (below a hundredth
  *   of the lattice constant, above 100 nm) are warnings of the far-field check, not refusals.
- * Sites outside the enclosure are valid documents (a design may be mid-edit); the far-field
+ * Sites outside the domain are valid documents (a design may be mid-edit); the far-field
  * check reports them as an error-level warning.
  *
  * The JSON Schema in design.schema.json is generated from `designSchema` by
@@ -81,7 +81,7 @@ export const designSchema = z
       latticeConstantNm: z.number().positive().max(10),
     }),
     sites: z.array(siteSchema).max(MAX_SITES, { error: (iss) => tooManySites(Array.isArray(iss.input) ? iss.input.length : undefined) }),
-    enclosure: z.object({
+    domain: z.object({
       center: vec3Schema,
       halfExtentsNm: z.tuple([halfExtent, halfExtent, halfExtent]),
       boundary: boundarySchema,

@@ -68,7 +68,7 @@ export function demoDesign(): DesignDocument {
     name: DEMO_PROJECT_NAME,
     host: { material: 'Si', epsilonR: SI_EPSILON_R, latticeConstantNm: a },
     sites: steps.map((k, i) => ({ id: `P${i + 1}`, species: 'P', position: [k * a, k * a, 0], electrons: 1 })),
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [25, 25, 25], boundary: { kind: 'multipole', order: 2 } },
+    domain: { center: [0, 0, 0], halfExtentsNm: [25, 25, 25], boundary: { kind: 'multipole', order: 2 } },
     refinement: { order: 2, targetRelError: 0.01, maxElements: 500_000 },
   });
 }
@@ -84,7 +84,7 @@ function demoDocument(name: string, sites: DesignDocument['sites'], halfExtentNm
     name,
     host: { material: 'Si', epsilonR: SI_EPSILON_R, latticeConstantNm: SI_LATTICE_CONSTANT_NM },
     sites,
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [halfExtentNm, halfExtentNm, halfExtentNm], boundary: { kind: 'multipole', order: 2 } },
+    domain: { center: [0, 0, 0], halfExtentsNm: [halfExtentNm, halfExtentNm, halfExtentNm], boundary: { kind: 'multipole', order: 2 } },
     refinement: { order: 2, targetRelError: 0.01, maxElements: 500_000 },
   });
 }

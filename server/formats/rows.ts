@@ -5,7 +5,7 @@
  * reports what it cannot read (a missing column, text in a number) as `{ line, message }`.
  * `checkRows` then applies the checks that do not depend on the format: the site contract
  * (species, id length, coordinate range, electrons), duplicate ids, sites outside the design's
- * domain box (`enclosure`; on a face counts as outside, as in the far-field check) and two sites
+ * domain box (`domain`; on a face counts as outside, as in the far-field check) and two sites
  * at one lattice point (nearest diamond-lattice site, geometry/lattice `snapToLattice`).
  * The first of two clashing rows is kept; the later one is reported with the first one's line.
  *
@@ -44,7 +44,7 @@ export interface ParsedRows {
 
 /** The parts of the target design the checks need. */
 export interface ImportContext {
-  enclosure: DesignDocument['enclosure'];
+  domain: DesignDocument['domain'];
   latticeConstantNm: number;
 }
 
@@ -71,7 +71,7 @@ export function checkRows(parsed: ParsedRows, ctx: ImportContext): { sites: Site
   const sites: Site[] = [];
   const idLine = new Map<string, number>();
   const pointLine = new Map<string, { line: number; id: string }>();
-  const { center, halfExtentsNm: half } = ctx.enclosure;
+  const { center, halfExtentsNm: half } = ctx.domain;
   const a = ctx.latticeConstantNm;
   for (const row of parsed.rows) {
     const rowErrors: string[] = [];

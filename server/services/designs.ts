@@ -34,7 +34,7 @@ export function emptyDesign(name: string): DesignDocument {
     name: name.slice(0, 200) || 'Untitled design',
     host: { material: 'Si', epsilonR: SI_EPSILON_R, latticeConstantNm: SI_LATTICE_CONSTANT_NM },
     sites: [],
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [20, 20, 20], boundary: { kind: 'multipole', order: 2 } },
+    domain: { center: [0, 0, 0], halfExtentsNm: [20, 20, 20], boundary: { kind: 'multipole', order: 2 } },
     refinement: { order: 2, targetRelError: 0.01, maxElements: 500_000 },
   };
 }
@@ -195,7 +195,7 @@ export function designService(deps: ServiceDeps) {
     async importFile(projectId: number, designId: number, file: { bytes: Uint8Array; name: string }): Promise<{ sites: Site[]; errors: ImportIssue[] }> {
       const doc = storedDocument(await mustGet(projectId, designId));
       try {
-        const { sites, errors } = await figures.importSites(file.bytes, file.name, { enclosure: doc.enclosure, latticeConstantNm: doc.host.latticeConstantNm });
+        const { sites, errors } = await figures.importSites(file.bytes, file.name, { domain: doc.domain, latticeConstantNm: doc.host.latticeConstantNm });
         return { sites, errors };
       } catch (e) {
         if (e instanceof ImportRefused) throw new AppError('unprocessable', e.message);

@@ -104,7 +104,7 @@ export function jobService(deps: ServiceDeps, jd: JobDeps) {
         const which = estimate.maxElements <= estimate.hardCap ? `the design's refinement.maxElements of ${estimate.maxElements.toLocaleString('en-US')}` : `the server's cap of ${estimate.hardCap.toLocaleString('en-US')}`;
         throw new AppError(
           'unprocessable',
-          `The mesh of this design is estimated at ${estimate.aborted ? 'more than ' : 'about '}${n} tetrahedra, above ${which}. Loosen targetRelError, shrink the enclosure, or raise maxElements (up to the server's cap).`,
+          `The mesh of this design is estimated at ${estimate.aborted ? 'more than ' : 'about '}${n} tetrahedra, above ${which}. Loosen targetRelError, shrink the domain, or raise maxElements (up to the server's cap).`,
         );
       }
 

@@ -21,7 +21,7 @@ function doc(): DesignDocument {
       { id: 'p1', species: 'P', position: [0, 0, 0], electrons: 1 },
       { id: 'p2', species: 'As', position: [4 * A, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: 1.1 } },
     ],
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [20, 20, 20], boundary: { kind: 'grounded' } },
+    domain: { center: [0, 0, 0], halfExtentsNm: [20, 20, 20], boundary: { kind: 'grounded' } },
     refinement: { order: 2, targetRelError: 0.01, maxElements: 100000 },
   });
 }
@@ -47,7 +47,7 @@ describe('editor store history', () => {
     s().putSites(generateArray({ kind: 'square', nx: 3, ny: 3, spacingNm: 8 * A, latticeConstantNm: A }), 'replace');
     record();
     expect(s().document.sites).toHaveLength(9); // 3 × 3 grid: nine sites
-    s().setEnclosure({ center: [0, 0, 0], halfExtentsNm: [5, 6, 7], boundary: { kind: 'multipole', order: 2 } });
+    s().setDomain({ center: [0, 0, 0], halfExtentsNm: [5, 6, 7], boundary: { kind: 'multipole', order: 2 } });
     record();
     s().deleteSites(['s5']);
     record();

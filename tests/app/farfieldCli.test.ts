@@ -62,7 +62,7 @@ describe('live far-field check equals npm run cli -- check --json', () => {
       name: 'Invented 9×9 cluster array',
       host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: a },
       sites: generateArray({ kind: 'square', nx: 9, ny: 9, spacingNm: 4.4, clusterSize: 2, latticeConstantNm: a }),
-      enclosure: { center: [0, 0, 0], halfExtentsNm: [30, 30, 15], boundary: { kind: 'multipole', order: 2 } },
+      domain: { center: [0, 0, 0], halfExtentsNm: [30, 30, 15], boundary: { kind: 'multipole', order: 2 } },
       refinement: { order: 2, targetRelError: 1e-3, maxElements: 200_000 },
     };
     const core = createWorkerCore();
@@ -92,7 +92,7 @@ describe('live far-field check equals npm run cli -- check --json', () => {
     sites.push(added);
     sites.splice(12, 1);
     send((doc = { ...doc, sites }));
-    send((doc = { ...doc, enclosure: { ...doc.enclosure, halfExtentsNm: [22, 22, 8] } }));
+    send((doc = { ...doc, domain: { ...doc.domain, halfExtentsNm: [22, 22, 8] } }));
     if (!bounds) throw new Error('no report');
     const live = asPrinted(toCheckJson(withElements(bounds, doc)));
     const printed = cliCheck(doc, 'edited') as { warnings: { code: string }[]; pairs: unknown[] };

@@ -19,7 +19,7 @@ function doc(n = 4): DesignDocument {
     name: 'Invented chain',
     host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: a },
     sites: generateArray({ kind: 'chain', nx: n, spacingNm: 4.3, latticeConstantNm: a }),
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [20, 12, 12], boundary: { kind: 'multipole', order: 2 } },
+    domain: { center: [0, 0, 0], halfExtentsNm: [20, 12, 12], boundary: { kind: 'multipole', order: 2 } },
     refinement: { order: 2, targetRelError: 1e-3, maxElements: 100_000 },
   };
 }
@@ -68,10 +68,10 @@ describe('diffDesign', () => {
 
   it('the domain box, refinement, host and name are sent when they differ', () => {
     const d = doc();
-    const enclosure = { ...d.enclosure, halfExtentsNm: [18, 12, 12] as [number, number, number] };
-    expect(diffDesign(d, { ...d, enclosure })).toEqual({ kind: 'changes', changes: { enclosure } });
-    const boundary = { ...d, enclosure: { ...d.enclosure, boundary: { kind: 'multipole' as const, order: 4 } } };
-    expect(diffDesign(d, boundary)).toEqual({ kind: 'changes', changes: { enclosure: boundary.enclosure } });
+    const domain = { ...d.domain, halfExtentsNm: [18, 12, 12] as [number, number, number] };
+    expect(diffDesign(d, { ...d, domain })).toEqual({ kind: 'changes', changes: { domain } });
+    const boundary = { ...d, domain: { ...d.domain, boundary: { kind: 'multipole' as const, order: 4 } } };
+    expect(diffDesign(d, boundary)).toEqual({ kind: 'changes', changes: { domain: boundary.domain } });
     const refinement = { ...d.refinement, targetRelError: 1e-2 };
     expect(diffDesign(d, { ...d, refinement })).toEqual({ kind: 'changes', changes: { refinement } });
     const host = { ...d.host, epsilonR: 11.68 };
@@ -101,7 +101,7 @@ describe('diffDesign', () => {
       else if (sites.length > 1 && r < 0.75) sites.reverse();
       else if (sites.length && r < 0.85) sites[i] = { ...sites[i], electrons: (sites[i].electrons + 1) % 3 };
       const next: DesignDocument =
-        r >= 0.85 ? { ...d, enclosure: { ...d.enclosure, halfExtentsNm: [10 + rnd() * 20, 10 + rnd() * 10, 12] } } : { ...d, sites };
+        r >= 0.85 ? { ...d, domain: { ...d.domain, halfExtentsNm: [10 + rnd() * 20, 10 + rnd() * 10, 12] } } : { ...d, sites };
       const diff = diffDesign(d, next);
       if (diff.kind === 'reset') throw new Error('no reset expected for unique ids');
       const report = diff.kind === 'changes' ? session.applyChanges(diff.changes) : session.report();

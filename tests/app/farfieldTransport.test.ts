@@ -18,7 +18,7 @@ describe('far-field report transport', () => {
       name: 'transport',
       sites,
       // a box that leaves the outer column outside: null bounds
-      enclosure: { center: [0, 0, 0], halfExtentsNm: [5, 9, 6], boundary: { kind: 'grounded' } },
+      domain: { center: [0, 0, 0], halfExtentsNm: [5, 9, 6], boundary: { kind: 'grounded' } },
       refinement: { order: 2, targetRelError: 1e-3, maxElements: 1e6 },
     });
     const r = farFieldCheck(d);

@@ -85,7 +85,7 @@ const base: DesignDocument = {
     { id: 'b', species: 'P', position: [1, 0, 0], electrons: 1 },
     { id: 'c', species: 'As', position: [2, 0, 0], electrons: 1 },
   ],
-  enclosure: { center: [0, 0, 0], halfExtentsNm: [12, 12, 12], boundary: { kind: 'multipole', order: 2 } },
+  domain: { center: [0, 0, 0], halfExtentsNm: [12, 12, 12], boundary: { kind: 'multipole', order: 2 } },
   refinement: { order: 2, targetRelError: 0.01, maxElements: 100000 },
 };
 
@@ -102,7 +102,7 @@ describe('design changes between two revisions', () => {
         { id: 'c', species: 'Sb', position: [2, 0, 0], electrons: 0 },
         { id: 'd', species: 'P', position: [3, 0, 0], electrons: 1 },
       ],
-      enclosure: { center: [0, 0, 1], halfExtentsNm: [14, 12, 12], boundary: { kind: 'grounded' } },
+      domain: { center: [0, 0, 1], halfExtentsNm: [14, 12, 12], boundary: { kind: 'grounded' } },
       host: { ...base.host, epsilonR: 11.4 },
       refinement: { ...base.refinement, order: 1 },
     };

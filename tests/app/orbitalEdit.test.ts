@@ -47,7 +47,7 @@ describe('editOrbital', () => {
       format: 'tetrawell-design', version: 1, name: 'Orbital bench',
       host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: A },
       sites: [p1],
-      enclosure: { center: [0, 0, 0], halfExtentsNm: [20, 20, 20], boundary: { kind: 'grounded' } },
+      domain: { center: [0, 0, 0], halfExtentsNm: [20, 20, 20], boundary: { kind: 'grounded' } },
       refinement: { order: 2, targetRelError: 0.01, maxElements: 100000 },
     });
     const store = createEditorStore(doc);

@@ -12,12 +12,12 @@ import { SI_LATTICE_CONSTANT_NM } from '../../geometry/units';
 import { siliconDesign } from '../geometry/design-fixtures';
 import { parseDesign } from '../../server/contracts/design';
 
-function designOf(nx: number, ny: number, boundary: Design['enclosure']['boundary'], orbital?: Orbital): Design {
+function designOf(nx: number, ny: number, boundary: Design['domain']['boundary'], orbital?: Orbital): Design {
   const sites = generateArray({ kind: 'triangular', nx, ny, spacingNm: 4.5, latticeConstantNm: SI_LATTICE_CONSTANT_NM, orbital });
   return siliconDesign({
     name: 'bench',
     sites,
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [4.5 * nx, 4.5 * ny, 40], boundary },
+    domain: { center: [0, 0, 0], halfExtentsNm: [4.5 * nx, 4.5 * ny, 40], boundary },
     refinement: { order: 2, targetRelError: 1e-3, maxElements: 2_000_000 },
   });
 }
@@ -30,7 +30,7 @@ function time(label: string, d: Design, reps: number, options = {}): void {
   const cpu0 = process.cpuUsage();
   for (let i = 0; i < reps; i++) {
     // move the box a little each time, as a drag would
-    d.enclosure.halfExtentsNm[0] += 0.01;
+    d.domain.halfExtentsNm[0] += 0.01;
     const t = performance.now();
     farFieldCheck(d, options);
     ts.push(performance.now() - t);
@@ -65,7 +65,7 @@ function timeCheckCommand(label: string, design: Design): void {
   const c1 = cpu(), w1 = performance.now();
   const r = farFieldCheck(d);
   const c2 = cpu(), w2 = performance.now();
-  const e = estimateDesignElements({ ...d, enclosure: { ...d.enclosure, halfExtentsNm: r.recommendedHalfExtentsNm } }, { maxEstimateLeaves: CHECK_ESTIMATE_MAX_LEAVES });
+  const e = estimateDesignElements({ ...d, domain: { ...d.domain, halfExtentsNm: r.recommendedHalfExtentsNm } }, { maxEstimateLeaves: CHECK_ESTIMATE_MAX_LEAVES });
   const c3 = cpu(), w3 = performance.now();
   const ms = (x: number) => x.toFixed(0).padStart(5);
   console.log(
@@ -104,7 +104,7 @@ const moveOne: Edit = (d, step) => {
   return { upserted: [moved] };
 };
 const electronsOne: Edit = (d, step) => ({ upserted: [{ ...d.sites[Math.floor(d.sites.length / 3)], electrons: step % 2 ? 1 : 2 }] });
-const dragBox: Edit = (d, step) => ({ enclosure: { ...d.enclosure, halfExtentsNm: [d.enclosure.halfExtentsNm[0] + 0.01 * (step + 1), d.enclosure.halfExtentsNm[1], d.enclosure.halfExtentsNm[2]] } });
+const dragBox: Edit = (d, step) => ({ domain: { ...d.domain, halfExtentsNm: [d.domain.halfExtentsNm[0] + 0.01 * (step + 1), d.domain.halfExtentsNm[1], d.domain.halfExtentsNm[2]] } });
 
 function timeSession(label: string, d: Design, edit: Edit, reps: number): void {
   const t0 = performance.now();

@@ -31,7 +31,7 @@ function design(tol: number): Design {
     name: 'bench: one 1s donor',
     host: { material: 'Si', epsilonR: EPS, latticeConstantNm: 0.5431020511 },
     sites: [{ id: 'd1', species: 'P', position: [0.1, -0.2, 0.3], electrons: 1, orbital: { model: 'hydrogenic-1s', radiusNm: A } }],
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [HALF, HALF, HALF], boundary: { kind: 'multipole', order: 0 } },
+    domain: { center: [0, 0, 0], halfExtentsNm: [HALF, HALF, HALF], boundary: { kind: 'multipole', order: 0 } },
     refinement: { order: 2, targetRelError: tol, maxElements: 3_000_000 },
   };
 }

@@ -86,7 +86,7 @@ function bigDesignBody(name: string, version: number): string {
     name,
     host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: A },
     sites,
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [60, 60, 60], boundary: { kind: 'multipole', order: 2 } },
+    domain: { center: [0, 0, 0], halfExtentsNm: [60, 60, 60], boundary: { kind: 'multipole', order: 2 } },
     refinement: { order: 2, targetRelError: 0.01, maxElements: 500_000 },
   };
   return JSON.stringify({ document: design, version });

@@ -38,15 +38,15 @@ function plaquette(tol: number): Design {
       { id: 'c', species: 'P', position: [-p, p, 0], electrons: 1 },
       { id: 'd', species: 'P', position: [p, p, 0], electrons: 1 },
     ],
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [30, 30, 30], boundary: { kind: 'grounded' } },
+    domain: { center: [0, 0, 0], halfExtentsNm: [30, 30, 30], boundary: { kind: 'grounded' } },
     refinement: { order: 1, targetRelError: tol, maxElements: 10_000_000 },
   };
 }
 
 function estimateFor(d: Design): number {
   const { spec } = sizeFieldFromDesign(d);
-  const h = d.enclosure.halfExtentsNm;
-  const c = d.enclosure.center;
+  const h = d.domain.halfExtentsNm;
+  const c = d.domain.center;
   return estimateTetCount({
     field: new SizeField(spec),
     boxMin: [c[0] - h[0], c[1] - h[1], c[2] - h[2]],
@@ -103,11 +103,11 @@ export async function run(): Promise<void> {
   // Refinement alone, timed by process CPU time as well as wall time: on a shared machine the wall
   // clock also counts other processes' turns, CPU time counts only ours.
   {
-    const h = design.enclosure.halfExtentsNm;
+    const h = design.domain.halfExtentsNm;
     const field = new SizeField(sizeFieldFromDesign(design).spec);
     const runs: string[] = [];
     for (let i = 0; i < 3; i++) {
-      const m = kuhnBox({ center: design.enclosure.center, halfExtents: h, cells: chooseInitialCells(h, 2), capacity: { tets: 1.4 * r.estimate, vertices: (1.4 * r.estimate) / 4 } });
+      const m = kuhnBox({ center: design.domain.center, halfExtents: h, cells: chooseInitialCells(h, 2), capacity: { tets: 1.4 * r.estimate, vertices: (1.4 * r.estimate) / 4 } });
       const c0 = process.cpuUsage();
       const w0 = performance.now();
       refineToSize(m, field.tooLarge, { expectedNewVertices: r.estimate / 5 });

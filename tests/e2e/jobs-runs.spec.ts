@@ -21,7 +21,7 @@ test.afterAll(closeTestDb);
 // meshing and solving on a shared two-core machine, plus software WebGL
 test.describe.configure({ timeout: 480_000 });
 
-type Doc = Record<string, unknown> & { sites: { id: string; position: number[]; electrons: number }[]; enclosure: Record<string, unknown>; refinement: Record<string, unknown> };
+type Doc = Record<string, unknown> & { sites: { id: string; position: number[]; electrons: number }[]; domain: Record<string, unknown>; refinement: Record<string, unknown> };
 const PAIR = JSON.parse(readFileSync('tests/fixtures/designs/pair-coarse.json', 'utf8')) as Doc;
 
 async function newDesign(page: Page, projectId: number, name: string, doc: Doc): Promise<number> {
@@ -100,7 +100,7 @@ test('the refinement sweep draws error against unknowns on log-log axes with the
   const projectId = await start(page);
   const design = await newDesign(page, projectId, 'Pair for a refinement sweep', {
     ...PAIR,
-    enclosure: { ...PAIR.enclosure, halfExtentsNm: [8, 8, 8] },
+    domain: { ...PAIR.domain, halfExtentsNm: [8, 8, 8] },
     refinement: { order: 1, targetRelError: 0.5, maxElements: 400000 },
   });
   await openWorkspace(page, projectId, design);

@@ -31,7 +31,7 @@ type V3 = [number, number, number];
 interface Detail {
   id: number;
   version: number;
-  document: { sites: { id: string; species: string; position: number[]; electrons: number }[]; enclosure: { center: number[]; halfExtentsNm: number[] } } & Record<string, unknown>;
+  document: { sites: { id: string; species: string; position: number[]; electrons: number }[]; domain: { center: number[]; halfExtentsNm: number[] } } & Record<string, unknown>;
 }
 
 function isDiamondSite(i: number, j: number, k: number): boolean {
@@ -48,7 +48,7 @@ async function designWith(page: Page, projectId: number, name: string, sites: De
   const template = ((await first.json()) as { design: Detail }).design.document;
   const res = await apiWrite(page.request, 'POST', `/api/projects/${projectId}/designs`, {
     name,
-    document: { ...template, name, sites, enclosure: { ...template.enclosure, center: [0, 0, 0], halfExtentsNm } },
+    document: { ...template, name, sites, domain: { ...template.domain, center: [0, 0, 0], halfExtentsNm } },
   });
   expect(res.status(), await res.text()).toBe(201);
   return ((await res.json()) as { design: Detail }).design;

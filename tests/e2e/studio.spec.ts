@@ -23,7 +23,7 @@ interface Detail {
   id: number;
   name: string;
   version: number;
-  document: { sites: { id: string; species: string; position: number[]; electrons: number }[]; enclosure: { halfExtentsNm: number[] } } & Record<string, unknown>;
+  document: { sites: { id: string; species: string; position: number[]; electrons: number }[]; domain: { halfExtentsNm: number[] } } & Record<string, unknown>;
 }
 
 async function newDesign(page: Page, projectId: number, name: string, document?: unknown): Promise<Detail> {
@@ -285,7 +285,7 @@ test('10,000 sites of five species: draw calls within species + 10, frame time p
   const order = ['P', 'As', 'Sb', 'Bi', 'B'] as const;
   const sites = generateArray({ kind: 'square', nx: 100, ny: 100, spacingNm: 4, latticeConstantNm: A }).map((s, i) => ({ ...s, species: order[i % 5] }));
   expect(sites).toHaveLength(10_000);
-  const design = await newDesign(page, projectId, 'Ten thousand', { ...template, name: 'Ten thousand', sites, enclosure: { center: [0, 0, 0], halfExtentsNm: [260, 260, 60], boundary: { kind: 'grounded' } } });
+  const design = await newDesign(page, projectId, 'Ten thousand', { ...template, name: 'Ten thousand', sites, domain: { center: [0, 0, 0], halfExtentsNm: [260, 260, 60], boundary: { kind: 'grounded' } } });
   await openWorkspace(page, projectId, design.id, 120_000);
   await expect.poll(() => canvasInstances(page), { timeout: 60_000 }).toEqual({ P: 2000, As: 2000, Sb: 2000, Bi: 2000, B: 2000 });
   await expect(sitesTable(page)).toHaveAttribute('aria-rowcount', '10001');

@@ -26,7 +26,7 @@ import { MAX_SITES } from '@contracts/design';
 /** Si lattice constant a in nm, CODATA 2018. */
 const A = 0.5431020511;
 const Q = A / 4;
-const CTX: ImportContext = { enclosure: { center: [0, 0, 0], halfExtentsNm: [20, 20, 20], boundary: { kind: 'multipole', order: 2 } }, latticeConstantNm: A };
+const CTX: ImportContext = { domain: { center: [0, 0, 0], halfExtentsNm: [20, 20, 20], boundary: { kind: 'multipole', order: 2 } }, latticeConstantNm: A };
 const enc = (s: string) => new TextEncoder().encode(s);
 
 /** Diamond lattice in units of a/4: all even with sum ≡ 0 (mod 4), or all odd with sum ≡ 3 (mod 4) (Kittel ch. 1; from memory). */

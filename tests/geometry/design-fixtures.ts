@@ -6,17 +6,17 @@
 import type { Design, Host, Site, Vec3 } from '../../geometry/design/types';
 import { SI_EPSILON_R, SI_LATTICE_CONSTANT_NM } from '../../geometry/units';
 
-export type DesignParts = Pick<Design, 'name' | 'sites' | 'enclosure' | 'refinement'> & { host?: Partial<Host> };
+export type DesignParts = Pick<Design, 'name' | 'sites' | 'domain' | 'refinement'> & { host?: Partial<Host> };
 
 /** A design in silicon: εr and lattice constant from geometry/units unless `host` overrides them. */
-export function siliconDesign({ name, host, sites, enclosure, refinement }: DesignParts): Design {
+export function siliconDesign({ name, host, sites, domain, refinement }: DesignParts): Design {
   return {
     format: 'tetrawell-design',
     version: 1,
     name,
     host: { material: 'Si', epsilonR: host?.epsilonR ?? SI_EPSILON_R, latticeConstantNm: host?.latticeConstantNm ?? SI_LATTICE_CONSTANT_NM },
     sites,
-    enclosure,
+    domain,
     refinement,
   };
 }
@@ -33,7 +33,7 @@ export function boxDesign(
     // the rounded lattice constant these tests were written with (the mesher does not read it)
     host: { latticeConstantNm: 0.5431 },
     sites: sites.map((s, i) => ({ id: `s${i}`, species: 'P', position: [0, 0, 0], electrons: 1, ...s })),
-    enclosure: { center: [0, 0, 0], halfExtentsNm: half, boundary: { kind: 'grounded' } },
+    domain: { center: [0, 0, 0], halfExtentsNm: half, boundary: { kind: 'grounded' } },
     refinement: { order, targetRelError: tol, maxElements },
   });
 }

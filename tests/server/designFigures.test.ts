@@ -19,7 +19,7 @@ const canonical = (v: unknown) =>
 function square(n: number): DesignDocument {
   const sites = generateArray({ kind: 'square', nx: n, ny: n, spacingNm: 8 * A, latticeConstantNm: A });
   const half = (n * 8 * A) / 2 + 30;
-  return { ...emptyDesign(`Square ${n}×${n}`), sites, enclosure: { center: [0, 0, 0], halfExtentsNm: [half, half, 40], boundary: { kind: 'multipole', order: 2 } } };
+  return { ...emptyDesign(`Square ${n}×${n}`), sites, domain: { center: [0, 0, 0], halfExtentsNm: [half, half, 40], boundary: { kind: 'multipole', order: 2 } } };
 }
 
 const computer = figureComputer({ threshold: 1, thresholdBytes: 0 });
@@ -41,7 +41,7 @@ describe('design figures', () => {
 
   it('an import read in the worker equals the one read in place; a refusal comes back as ImportRefused', async () => {
     const doc = square(12);
-    const ctx = { enclosure: doc.enclosure, latticeConstantNm: A };
+    const ctx = { domain: doc.domain, latticeConstantNm: A };
     const bytes = new TextEncoder().encode(`${writeCsv(doc.sites)}bad,P,x,0,0,1\n`);
     const there = await computer.importSites(bytes, 'sq.csv', ctx);
     expect(there).toEqual(importSites(bytes, 'sq.csv', ctx));

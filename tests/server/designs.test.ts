@@ -253,7 +253,7 @@ describe('the largest designs', () => {
   /** a rectangular array of n × 250 P donors at 8a (lattice corners) in a box that holds it */
   function big(nx: number, name: string): DesignDocument {
     const sites = generateArray({ kind: 'rectangular', nx, ny: 250, spacingNm: 8 * A_SI, latticeConstantNm: A_SI });
-    return { ...emptyDesign(name), sites, enclosure: { center: [0, 0, 0], halfExtentsNm: [nx * 2.2 + 40, 250 * 2.2 + 40, 40], boundary: { kind: 'multipole', order: 2 } } };
+    return { ...emptyDesign(name), sites, domain: { center: [0, 0, 0], halfExtentsNm: [nx * 2.2 + 40, 250 * 2.2 + 40, 40], boundary: { kind: 'multipole', order: 2 } } };
   }
 
   it('a 100,000-site design (about 9 MB of JSON) saves, with its far-field bound from the worker thread', async () => {

@@ -106,7 +106,7 @@ describe('mesh jobs', () => {
     const rev = revisionResponseSchema.parse(r.body).revision;
     // the issue's list of `mesh --json` keys (server/cli/mesh.ts), timings and file name aside
     expect(Object.keys(rev.summary).sort()).toEqual(['levels', 'maxDihedralDeg', 'minDihedralDeg', 'p2Nodes', 'tets', 'vertices', 'volumeNm3'].sort());
-    expect(rev.summary.volumeNm3).toBeCloseTo(24 ** 3, 6); // the 24 nm cube of the fixture's enclosure
+    expect(rev.summary.volumeNm3).toBeCloseTo(24 ** 3, 6); // the 24 nm cube of the fixture's domain
     expect(rev.files.map((f) => f.name)).toEqual(['mesh.vtu', 'mesh.vtk', 'mesh.twmesh', 'results.json', 'results.csv']);
     expect(rev.software.version).toBe(JSON.parse(await readFile(path.join(ROOT, 'package.json'), 'utf8')).version);
     expect(rev.designSha256).toMatch(/^[0-9a-f]{64}$/);

@@ -31,7 +31,7 @@ const PAIR = JSON.parse(await readFile(path.join(ROOT, 'tests/fixtures/designs/p
 const SWEEP: DesignDocument = {
   ...PAIR,
   name: 'Coarse pair for a refinement sweep (invented)',
-  enclosure: { ...PAIR.enclosure, halfExtentsNm: [8, 8, 8] },
+  domain: { ...PAIR.domain, halfExtentsNm: [8, 8, 8] },
   refinement: { order: 1, targetRelError: 0.5, maxElements: 400_000 },
 };
 

@@ -41,7 +41,7 @@ function bigDesign(base: Record<string, unknown>, n: number, patch?: (site: Reco
     patch?.(site, i);
     sites.push(site);
   }
-  return { ...base, name: `Large array of ${n} sites (invented example)`, sites, enclosure: { center: [0, 0, 0], halfExtentsNm: [60, 60, 60], boundary: { kind: 'multipole', order: 2 } } };
+  return { ...base, name: `Large array of ${n} sites (invented example)`, sites, domain: { center: [0, 0, 0], halfExtentsNm: [60, 60, 60], boundary: { kind: 'multipole', order: 2 } } };
 }
 
 /** the project's first design (every new project starts with one) */

@@ -128,8 +128,8 @@ describe('demo seed', () => {
     expect(xs[1] - xs[0]).toBeCloseTo(8 * A_SI, 9);
     const versions = await knex('design_versions').where({ design_id: designs[1].id }).orderBy('version');
     expect(versions.map((v) => v.version)).toEqual([1, 2]);
-    expect(versions[0].document.enclosure.halfExtentsNm).toEqual([15, 15, 15]);
-    expect(versions[1].document.enclosure.halfExtentsNm).toEqual([30, 30, 30]);
+    expect(versions[0].document.domain.halfExtentsNm).toEqual([15, 15, 15]);
+    expect(versions[1].document.domain.halfExtentsNm).toEqual([30, 30, 30]);
   });
 
   it('lets the printed demo account sign in to the real server', async () => {

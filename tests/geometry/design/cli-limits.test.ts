@@ -84,7 +84,7 @@ describe('check stays instant on tiny orbitals (the element estimate is capped)'
 });
 
 describe('mesh, coulomb and convergence refuse a box whose initial grid is too large (half-extents 1e6 × 1e6 × 1e-6 nm)', () => {
-  const flat = write('flat.json', (d) => (d.enclosure.halfExtentsNm = [1e6, 1e6, 1e-6]));
+  const flat = write('flat.json', (d) => (d.domain.halfExtentsNm = [1e6, 1e6, 1e-6]));
   for (const args of [
     ['mesh', flat, '--out', join(dir, 'flat.vtu')],
     ['coulomb', flat],

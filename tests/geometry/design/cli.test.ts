@@ -32,14 +32,14 @@ describe('npm run cli -- check', () => {
     // The element count for the recommended box: the mesher's estimate, which must be within ±30 %
     // of the mesh actually built for that box (the accuracy the mesh issue asks of the estimate).
     const doc = JSON.parse(readFileSync(fixture, 'utf8'));
-    doc.enclosure.halfExtentsNm = j.recommendedHalfExtentsNm;
+    doc.domain.halfExtentsNm = j.recommendedHalfExtentsNm;
     const built = meshDesign(doc).mesh.tets.length / 4;
     expect(j.recommendedElements / built).toBeGreaterThan(0.7);
     expect(j.recommendedElements / built).toBeLessThan(1.3);
   });
   it('grounded: the bound for each site is e²/(4πε0 εr d) up to the exponential tail (Newton; CODATA e²/4πε0)', () => {
     const doc = JSON.parse(readFileSync(fixture, 'utf8'));
-    doc.enclosure.boundary = { kind: 'grounded' };
+    doc.domain.boundary = { kind: 'grounded' };
     const f = join(dir, 'grounded.json');
     writeFileSync(f, JSON.stringify(doc));
     const j = JSON.parse(cli(f, '--json').out);
@@ -66,22 +66,22 @@ describe('npm run cli -- check', () => {
     writeFileSync(f, JSON.stringify(doc));
     const r = cli(f, '--json');
     expect(r.code).toBe(3);
-    expect(JSON.parse(r.out).warnings.map((w: { code: string }) => w.code)).toContain('site-outside-enclosure');
+    expect(JSON.parse(r.out).warnings.map((w: { code: string }) => w.code)).toContain('site-outside-domain');
   });
   it('exits 3 when the worst bound misses the design\'s target, e.g. a 6 nm grounded box against a 0.1 % target', () => {
     // The grounded bound is e²/(4πε0 εr d) for a site d from the nearest wall (maximum principle; physics notes):
     // with d ≈ 3.8 nm it is about 0.03 eV, far above 0.1 % of U (order 0.01 eV): a script watching the status
     // must stop here. The report is still printed in full.
     const doc = JSON.parse(readFileSync(fixture, 'utf8'));
-    doc.enclosure.boundary = { kind: 'grounded' };
-    doc.enclosure.halfExtentsNm = [6, 6, 6];
+    doc.domain.boundary = { kind: 'grounded' };
+    doc.domain.halfExtentsNm = [6, 6, 6];
     doc.refinement.targetRelError = 1e-3;
     const f = join(dir, 'grounded-small.json');
     writeFileSync(f, JSON.stringify(doc));
     const r = cli(f, '--json');
     const j = JSON.parse(r.out);
     expect(j.worstRelBound).toBeGreaterThan(j.tolerance);
-    expect(j.warnings.map((w: { code: string }) => w.code)).not.toContain('site-outside-enclosure');
+    expect(j.warnings.map((w: { code: string }) => w.code)).not.toContain('site-outside-domain');
     expect(r.code).toBe(3);
     expect(cli(f).code).toBe(3);
   });

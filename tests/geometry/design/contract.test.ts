@@ -70,10 +70,10 @@ describe('malformed documents get plain-words issues with field paths', () => {
   it('negative radii and a zero-size box', () => {
     const d = example();
     d.sites[3].orbital = { model: 'hydrogenic-1s', radiusNm: -1 };
-    d.enclosure.halfExtentsNm = [0, 10, 10];
+    d.domain.halfExtentsNm = [0, 10, 10];
     const out = lines(d);
     expect(out).toContain('sites[3].orbital.radiusNm: must be at least 0.0001, not -1');
-    expect(out).toContain('enclosure.halfExtentsNm[0]: must be greater than 0, not 0');
+    expect(out).toContain('domain.halfExtentsNm[0]: must be greater than 0, not 0');
   });
   it('orbital sizes: the floor 1e-4 nm is below the smallest bound envelope of any atom, a0/92 (CODATA 2018 a0), the ceiling is 1 µm', () => {
     const a0Nm = 0.0529177210903; // CODATA 2018 Bohr radius
@@ -132,7 +132,7 @@ describe('malformed documents get plain-words issues with field paths', () => {
     expect(r.ok).toBe(true);
     if (!r.ok) return;
     const report = farFieldCheck(r.design);
-    const w = report.warnings.find((x) => x.code === 'site-outside-enclosure');
+    const w = report.warnings.find((x) => x.code === 'site-outside-domain');
     expect(w?.severity).toBe('error');
     expect(w?.siteIds).toEqual(['p1']);
   });

@@ -20,11 +20,11 @@ const H: Orbital = { model: 'hydrogenic-1s', radiusNm: 2.5 };
 const A: Orbital = { model: 'anisotropic-1s', radiusNm: 2.5, radiusZNm: 1.4 };
 const G: Orbital = { model: 'gaussian', sigmaNm: 1.5 };
 
-function design(sites: Design['sites'], half: Vec3, boundary: Design['enclosure']['boundary'], tol = 1e-3): Design {
+function design(sites: Design['sites'], half: Vec3, boundary: Design['domain']['boundary'], tol = 1e-3): Design {
   return siliconDesign({
     name: 'test',
     sites,
-    enclosure: { center: [0, 0, 0], halfExtentsNm: half, boundary },
+    domain: { center: [0, 0, 0], halfExtentsNm: half, boundary },
     refinement: { order: 2, targetRelError: tol, maxElements: 2_000_000 },
   });
 }
@@ -232,7 +232,7 @@ describe('far-field check', () => {
     ];
     const r = farFieldCheck(design(sites, [10, 10, 10], { kind: 'grounded' }));
     const byCode = new Map(r.warnings.map((w) => [w.code, w]));
-    expect(byCode.get('site-outside-enclosure')?.siteIds).toEqual(['out']);
+    expect(byCode.get('site-outside-domain')?.siteIds).toEqual(['out']);
     expect(byCode.get('density-cut')?.siteIds).toContain('edge');
     expect(byCode.get('sites-overlap')?.siteIds.sort()).toEqual(['in', 'near']);
     expect(byCode.get('sites-coincide')?.siteIds.sort()).toEqual(['edge', 'twin']);

@@ -59,12 +59,12 @@ function expectSame(session: FarFieldReport, full: FarFieldReport, step: string)
   expect(out, step).toEqual([]);
 }
 
-function startDesign(kind: 'square' | 'triangular' | 'chain', nx: number, ny: number, clusterSize: number, boundary: Design['enclosure']['boundary']): Design {
+function startDesign(kind: 'square' | 'triangular' | 'chain', nx: number, ny: number, clusterSize: number, boundary: Design['domain']['boundary']): Design {
   const sites = generateArray({ kind, nx, ny, spacingNm: 4.3, latticeConstantNm: A, clusterSize });
   return siliconDesign({
     name: 'invariant',
     sites,
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [4.3 * nx, 4.3 * Math.max(ny, 1), 12], boundary },
+    domain: { center: [0, 0, 0], halfExtentsNm: [4.3 * nx, 4.3 * Math.max(ny, 1), 12], boundary },
     refinement: { order: 2, targetRelError: 1e-3, maxElements: 2_000_000 },
   });
 }
@@ -120,14 +120,14 @@ function randomEdit(d: Design, rnd: () => number, serial: number): { next: Desig
     return { next: { ...d, sites }, changes: { order: sites.map((s) => s.id) }, label: `swap ${index} ${j}` };
   }
   if (r < 0.88) {
-    const h = d.enclosure.halfExtentsNm;
+    const h = d.domain.halfExtentsNm;
     const k = Math.floor(rnd() * 3);
     const half: Vec3 = [h[0], h[1], h[2]];
     half[k] = Math.max(0.5, half[k] * (0.7 + rnd() * 0.6));
-    const center: Vec3 = rnd() < 0.3 ? [rnd() - 0.5, rnd() - 0.5, 0] : d.enclosure.center;
-    const boundary = rnd() < 0.2 ? pick([{ kind: 'grounded' }, { kind: 'multipole', order: 0 }, { kind: 'multipole', order: 2 }, { kind: 'multipole', order: 4 }] as const) : d.enclosure.boundary;
-    const enclosure = { center, halfExtentsNm: half, boundary };
-    return { next: { ...d, enclosure }, changes: { enclosure }, label: `box ${half.map((x) => x.toFixed(2)).join('×')} ${boundary.kind}` };
+    const center: Vec3 = rnd() < 0.3 ? [rnd() - 0.5, rnd() - 0.5, 0] : d.domain.center;
+    const boundary = rnd() < 0.2 ? pick([{ kind: 'grounded' }, { kind: 'multipole', order: 0 }, { kind: 'multipole', order: 2 }, { kind: 'multipole', order: 4 }] as const) : d.domain.boundary;
+    const domain = { center, halfExtentsNm: half, boundary };
+    return { next: { ...d, domain }, changes: { domain }, label: `box ${half.map((x) => x.toFixed(2)).join('×')} ${boundary.kind}` };
   }
   if (r < 0.95) {
     const refinement = { ...d.refinement, targetRelError: pick([1e-2, 1e-3, 3e-4]), maxElements: pick([1e5, 2e6]) };
@@ -189,7 +189,7 @@ describe('far-field session (invariant: equal to the full check after every edit
     const session = createFarFieldSession(d);
     const before = session.report().sites[0].clearanceNm;
     d.sites[0].position[0] += 3;
-    d.enclosure.halfExtentsNm[0] = 1;
+    d.domain.halfExtentsNm[0] = 1;
     expect(session.applyChanges({}).sites[0].clearanceNm).toBe(before);
   });
 

@@ -8,7 +8,7 @@ export function oneSite(orbital: Orbital, opts: { half?: number; boundary?: Boun
     name: 'test donor',
     host: { epsilonR: opts.epsilonR },
     sites: [{ id: 'd1', species: 'P', position: opts.position ?? [0, 0, 0], electrons: 1, orbital }],
-    enclosure: { center: opts.center ?? [0, 0, 0], halfExtentsNm: [half, half, half], boundary: opts.boundary ?? { kind: 'multipole', order: 0 } },
+    domain: { center: opts.center ?? [0, 0, 0], halfExtentsNm: [half, half, half], boundary: opts.boundary ?? { kind: 'multipole', order: 0 } },
     refinement: { order: opts.order ?? 2, targetRelError: opts.tol ?? 1e-3, maxElements: opts.maxElements ?? 2_000_000 },
   });
 }

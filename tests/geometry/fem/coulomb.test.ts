@@ -214,7 +214,7 @@ describe('solveCoulomb', () => {
     const shifted: Design = {
       ...d,
       sites: d.sites.map((s) => ({ ...s, position: [s.position[0] + t, s.position[1] + t, s.position[2]] })),
-      enclosure: { ...d.enclosure, center: [t, t, 0] },
+      domain: { ...d.domain, center: [t, t, 0] },
     };
     const a = solveCoulomb(d, { levels: 2 });
     const b = solveCoulomb(shifted, { levels: 2 });

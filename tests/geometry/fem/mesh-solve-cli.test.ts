@@ -25,7 +25,7 @@ const design = {
   name: 'Potential export check (invented: one Gaussian site)',
   host: { material: 'Si', epsilonR: EPS, latticeConstantNm: 0.5431020511 },
   sites: [{ id: 'g', species: 'P', position: [0, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: SIGMA } }],
-  enclosure: { center: [0, 0, 0], halfExtentsNm: [15, 15, 15], boundary: { kind: 'multipole', order: 0 } },
+  domain: { center: [0, 0, 0], halfExtentsNm: [15, 15, 15], boundary: { kind: 'multipole', order: 0 } },
   refinement: { order: 2, targetRelError: 0.003, maxElements: 400_000 },
 };
 

@@ -139,7 +139,7 @@ describe('uniform and local refinement with closure', () => {
       const tm = toTetMesh(m);
       const r = checkMesh(tm, { box });
       expect(r.problems).toEqual([]);
-      expect(r.boundaryFacesOffEnclosure).toBe(0);
+      expect(r.boundaryFacesOffDomain).toBe(0);
       expect(r.overSharedFaces).toBe(0);
       expect(r.interiorFaces + r.boundaryFaces).toBe(r.faces);
       expect(2 * r.interiorFaces + r.boundaryFaces).toBe(4 * r.tets);
@@ -179,7 +179,7 @@ describe('uniform and local refinement with closure', () => {
         name: 'adaptive continuation (invented)',
         host: { latticeConstantNm: 0.5431 },
         sites: [{ id: 'd', species: 'P', position: [0.7, -0.3, 0.2], electrons: 1 }],
-        enclosure: { center: [0, 0, 0], halfExtentsNm: [12, 12, 12], boundary: { kind: 'grounded' } },
+        domain: { center: [0, 0, 0], halfExtentsNm: [12, 12, 12], boundary: { kind: 'grounded' } },
         refinement: { order: 1, targetRelError: 0.05, maxElements: 500_000 },
       }),
       { keepBisectionMesh: true },

@@ -60,7 +60,7 @@ describe('checkMesh', () => {
     expect(r.orientationMismatches).toBeGreaterThan(0);
   });
 
-  it('flags a hole: faces off the enclosure and a volume deficit', () => {
+  it('flags a hole: faces off the domain and a volume deficit', () => {
     const mesh = kuhnGrid(3, 3, 3);
     // drop one tet of the central cube (cube index 13)
     const drop = 6 * 13;
@@ -70,7 +70,7 @@ describe('checkMesh', () => {
     const holed = makeMesh(Array.from(mesh.coords), Array.from(tets));
     const r = checkMesh(holed, { box: { min: [0, 0, 0], max: [3, 3, 3] } });
     expect(r.ok).toBe(false);
-    expect(r.boundaryFacesOffEnclosure).toBe(4);
+    expect(r.boundaryFacesOffDomain).toBe(4);
     expect(r.volume).toBeCloseTo(27 - 1 / 6, 12);
   });
 
@@ -86,7 +86,7 @@ describe('checkMesh', () => {
     const r = checkMesh(makeMesh(coords, tets), { box: { min: [0, 0, 0], max: [2, 2, 2] } });
     expect(r.ok).toBe(false);
     expect(r.volumeRelError).toBeLessThan(1e-12); // volume alone does not see it …
-    expect(r.problems.join(' ')).toMatch(/not on the enclosure|Euler/); // … conformity does
+    expect(r.problems.join(' ')).toMatch(/not on the domain|Euler/); // … conformity does
   });
 
   it('reports a vertex index out of range instead of throwing', () => {

@@ -19,7 +19,7 @@ const design = siliconDesign({
     { id: 'left', species: 'P', position: [-3, 0.2, 0], electrons: 1 },
     { id: 'right', species: 'Bi', position: [3.5, -0.1, 0.4], electrons: 1 },
   ],
-  enclosure: { center: [0, 0, 0], halfExtentsNm: [20, 16, 16], boundary: { kind: 'grounded' } },
+  domain: { center: [0, 0, 0], halfExtentsNm: [20, 16, 16], boundary: { kind: 'grounded' } },
   refinement: { order: 1, targetRelError: 0.02, maxElements: 500_000 },
 });
 
@@ -67,14 +67,14 @@ describe('npm run cli -- mesh', () => {
     expect(j.p2Nodes).toBeGreaterThan(j.vertices);
   });
 
-  it('a site outside the enclosure: the mesh is written, with a warning that names the site', async () => {
+  it('a site outside the domain: the mesh is written, with a warning that names the site', async () => {
     const outsideFile = join(dir, 'outside.json');
     writeFileSync(outsideFile, JSON.stringify({ ...design, sites: [design.sites[0], { ...design.sites[1], position: [25, 0, 0] }] }));
     const r = await capture([outsideFile, '--out', join(dir, 'outside.vtu')]);
     expect(r.code).toBe(0);
-    expect(r.err).toMatch(/1 site\(s\) outside the enclosure \(right\)/);
+    expect(r.err).toMatch(/1 site\(s\) outside the domain \(right\)/);
     const inside = await capture([file, '--out', join(dir, 'inside.vtu')]);
-    expect(inside.err).not.toMatch(/outside the enclosure/);
+    expect(inside.err).not.toMatch(/outside the domain/);
   });
 
   it('bad input: plain words, no stack trace, non-zero exit', async () => {
@@ -83,7 +83,7 @@ describe('npm run cli -- mesh', () => {
     expect(missing.err).toMatch(/no such file/);
 
     const invalid = join(dir, 'invalid.json');
-    writeFileSync(invalid, JSON.stringify({ ...design, enclosure: { ...design.enclosure, halfExtentsNm: [20, 0, 16] } }));
+    writeFileSync(invalid, JSON.stringify({ ...design, domain: { ...design.domain, halfExtentsNm: [20, 0, 16] } }));
     const inv = await capture([invalid, '--out', join(dir, 'x.vtu')]);
     expect(inv.code).toBe(1);
     expect(inv.err).toMatch(/not a valid design document/);

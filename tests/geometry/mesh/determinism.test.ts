@@ -17,7 +17,7 @@ const DESIGN: Design = siliconDesign({
     { id: 'b', species: 'As', position: [1.1, -0.6, 0.3], electrons: 1 },
     { id: 'c', species: 'Sb', position: [4.3, 2.2, -0.8], electrons: 0, orbital: { model: 'gaussian', sigmaNm: 1.1 } },
   ],
-  enclosure: { center: [0.5, 0, 0], halfExtentsNm: [22, 18, 18], boundary: { kind: 'grounded' } },
+  domain: { center: [0.5, 0, 0], halfExtentsNm: [22, 18, 18], boundary: { kind: 'grounded' } },
   refinement: { order: 2, targetRelError: 1e-4, maxElements: 2_000_000 },
 });
 

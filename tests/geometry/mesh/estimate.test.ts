@@ -99,7 +99,7 @@ describe('estimate against real meshes', () => {
       expect(ratio).toBeLessThan(1.3);
       expect(r.stats.tets).toBe(r.mesh.tets.length / 4);
       // the quick lower bound used for early refusals is a bound indeed, and not a trivial one
-      const h = d.enclosure.halfExtentsNm;
+      const h = d.domain.halfExtentsNm;
       const lower = coreLowerBound(sizeFieldFromDesign(d).spec, h.map((x) => -x), h, chooseInitialCells(h, 2));
       expect(lower).toBeLessThanOrEqual(r.stats.tets);
       expect(lower).toBeGreaterThan(0);
@@ -200,7 +200,7 @@ describe('refusals', () => {
     expect(t.estimate).toBeGreaterThan(2_000_000);
   });
 
-  it('refuses a degenerate enclosure (zero, negative, NaN extent) with a clear error', () => {
+  it('refuses a degenerate domain (zero, negative, NaN extent) with a clear error', () => {
     for (const half of [[0, 10, 10], [10, -1, 10], [10, 10, Number.NaN]] as [number, number, number][]) {
       let err: unknown;
       try {
@@ -210,7 +210,7 @@ describe('refusals', () => {
       }
       expect(err).toBeInstanceOf(MeshError);
       expect((err as MeshError).code).toBe('degenerate-box');
-      expect((err as MeshError).message).toMatch(/enclosure is degenerate/);
+      expect((err as MeshError).message).toMatch(/domain is degenerate/);
     }
   });
 });

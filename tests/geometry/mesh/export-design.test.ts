@@ -28,7 +28,7 @@ const design: Design = siliconDesign({
     { id: 'D2', species: 'P', position: [2.2, 0, 0], electrons: 1 },
     { id: 'D3', species: 'As', position: [0, 3.5, 0.5], electrons: 1 },
   ],
-  enclosure: { center: [0, 1, 0], halfExtentsNm: [12, 12, 10], boundary: { kind: 'grounded' } },
+  domain: { center: [0, 1, 0], halfExtentsNm: [12, 12, 10], boundary: { kind: 'grounded' } },
   refinement: { order: 2, targetRelError: 0.01, maxElements: 400000 },
 });
 const box = { min: [-12, -11, -10] as [number, number, number], max: [12, 13, 10] as [number, number, number] };

@@ -63,7 +63,7 @@ describe('kuhnBox', () => {
     expect(r.euler).toBe(1);
     expect(r.volumeRelError).toBeLessThanOrEqual(1e-12);
     expect(r.nonPositiveTets).toBe(0);
-    expect(r.boundaryFacesOffEnclosure).toBe(0);
+    expect(r.boundaryFacesOffDomain).toBe(0);
     // every boundary face of the box: 2 triangles per cell face on the surface
     expect(r.boundaryFaces).toBe(2 * 2 * (3 * 2 + 2 * 4 + 3 * 4));
   });

@@ -2,7 +2,7 @@
  * geometry/pipeline: plain functions that return data. The mesh artifact's summary is the quality
  * report's figures, its bytes are deterministic, and the solve reports progress as data
  * ({ phase, level, site, fraction }: fractions never go back, levels and sites are the design's).
- * Checks: the enclosure volume is exact (a box's volume, elementary geometry); the rest are
+ * Checks: the domain volume is exact (a box's volume, elementary geometry); the rest are
  * invariants (common practice).
  */
 import { describe, expect, it } from 'vitest';
@@ -16,7 +16,7 @@ const design = siliconDesign({
     { id: 'east', species: 'P', position: [2, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: 1 } },
     { id: 'far', species: 'P', position: [30, 0, 0], electrons: 1 },
   ],
-  enclosure: { center: [0, 0, 0], halfExtentsNm: [12, 12, 12], boundary: { kind: 'multipole', order: 2 } },
+  domain: { center: [0, 0, 0], halfExtentsNm: [12, 12, 12], boundary: { kind: 'multipole', order: 2 } },
   refinement: { order: 1, targetRelError: 0.1, maxElements: 200_000 },
 });
 

@@ -24,7 +24,7 @@ function gaussianDesign(sigma: number): Design {
     name: 'worker test',
     host: { material: 'Si', epsilonR: 11.7, latticeConstantNm: 0.5431020511 },
     sites: [{ id: 'g', species: 'P', position: [0, 0, 0], electrons: 1, orbital: { model: 'gaussian', sigmaNm: sigma } }],
-    enclosure: { center: [0, 0, 0], halfExtentsNm: [20 * sigma, 20 * sigma, 20 * sigma], boundary: { kind: 'multipole', order: 0 } },
+    domain: { center: [0, 0, 0], halfExtentsNm: [20 * sigma, 20 * sigma, 20 * sigma], boundary: { kind: 'multipole', order: 0 } },
     refinement: { order: 2, targetRelError: 1e-2, maxElements: 200_000 },
   };
 }

@@ -273,7 +273,7 @@ export function RunsSection({ projectId, designId, canRun, unsaved, document }: 
         </div>
       )}
       <p aria-label="Element estimate" className="num text-fine text-wafer-700">
-        Element estimate for the design’s current box ({document.enclosure.halfExtentsNm.map((h) => +h.toFixed(3)).join(' × ')} nm half-extents) with P{order} elements: {estimate}. The server estimates the saved version again before it queues a run.
+        Element estimate for the design’s current box ({document.domain.halfExtentsNm.map((h) => +h.toFixed(3)).join(' × ')} nm half-extents) with P{order} elements: {estimate}. The server estimates the saved version again before it queues a run.
       </p>
       {canRun ? (
         <div className="space-y-1">

@@ -1,6 +1,6 @@
 /**
  * What changed between the design versions two revisions were computed from: sites added, removed, moved (by id),
- * changed otherwise (species, electrons, orbital, cluster), the box (enclosure), the host and the refinement settings.
+ * changed otherwise (species, electrons, orbital, cluster), the box (domain), the host and the refinement settings.
  * Pure, so tests run it in Node.
  */
 import type { DesignDocument } from '@contracts/design';
@@ -22,7 +22,7 @@ export interface DesignChanges {
 
 const nm = (v: readonly number[]) => `${v.map((x) => +x.toFixed(4)).join(' × ')} nm`;
 const at = (v: readonly number[]) => `(${v.map((x) => +x.toFixed(4)).join(', ')}) nm`;
-const boundary = (b: DesignDocument['enclosure']['boundary']) => (b.kind === 'grounded' ? 'grounded walls' : `multipole walls of order ${b.order}`);
+const boundary = (b: DesignDocument['domain']['boundary']) => (b.kind === 'grounded' ? 'grounded walls' : `multipole walls of order ${b.order}`);
 
 export function diffDesigns(a: DesignDocument, b: DesignDocument): DesignChanges {
   const before = new Map(a.sites.map((s) => [s.id, s]));
@@ -44,7 +44,7 @@ export function diffDesigns(a: DesignDocument, b: DesignDocument): DesignChanges
     if ((s.cluster ?? '') !== (t.cluster ?? '')) what.push(`cluster ${s.cluster ?? 'none'} → ${t.cluster ?? 'none'}`);
     if (what.length) out.changed.push({ id: s.id, what });
   }
-  const ea = a.enclosure, eb = b.enclosure;
+  const ea = a.domain, eb = b.domain;
   if (ea.halfExtentsNm.some((h, k) => h !== eb.halfExtentsNm[k])) out.box.push(`half-extents ${nm(ea.halfExtentsNm)} → ${nm(eb.halfExtentsNm)}`);
   if (ea.center.some((c, k) => c !== eb.center[k])) out.box.push(`centre ${at(ea.center)} → ${at(eb.center)}`);
   if (boundary(ea.boundary) !== boundary(eb.boundary)) out.box.push(`${boundary(ea.boundary)} → ${boundary(eb.boundary)}`);

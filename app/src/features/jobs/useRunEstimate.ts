@@ -1,5 +1,5 @@
 /**
- * The element estimate of the document as it stands (its current enclosure) for the element order picked for the
+ * The element estimate of the document as it stands (its current domain) for the element order picked for the
  * run, worked out in a worker after edits pause; a stale run is terminated.
  */
 import { useEffect, useState } from 'react';

@@ -10,7 +10,7 @@ import { designSchema } from '@contracts/design';
 import { Button } from '../../components/Button';
 import { useEditor, useEditorStore } from './editorContext';
 
-const enclosureSchema = designSchema.shape.enclosure;
+const domainSchema = designSchema.shape.domain;
 const refinementSchema = designSchema.shape.refinement;
 
 type Values = Record<'cx' | 'cy' | 'cz' | 'hx' | 'hy' | 'hz' | 'kind' | 'mpOrder' | 'order' | 'target' | 'budget', string>;
@@ -25,10 +25,10 @@ const FIELD_OF_PATH: Record<string, keyof Values> = {
   'boundary.order': 'mpOrder', order: 'order', targetRelError: 'target', maxElements: 'budget',
 };
 
-/** Parse the form; returns the enclosure and refinement or a message per field. */
-export function parseDomainForm(v: Values): { ok: true; enclosure: z.infer<typeof enclosureSchema>; refinement: z.infer<typeof refinementSchema> } | { ok: false; errors: Partial<Record<keyof Values, string>> } {
+/** Parse the form; returns the domain and refinement or a message per field. */
+export function parseDomainForm(v: Values): { ok: true; domain: z.infer<typeof domainSchema>; refinement: z.infer<typeof refinementSchema> } | { ok: false; errors: Partial<Record<keyof Values, string>> } {
   const errors: Partial<Record<keyof Values, string>> = {};
-  const enc = enclosureSchema.safeParse({
+  const enc = domainSchema.safeParse({
     center: [toNumber(v.cx), toNumber(v.cy), toNumber(v.cz)],
     halfExtentsNm: [toNumber(v.hx), toNumber(v.hy), toNumber(v.hz)],
     boundary: v.kind === 'grounded' ? { kind: 'grounded' } : { kind: 'multipole', order: toNumber(v.mpOrder) },
@@ -45,7 +45,7 @@ export function parseDomainForm(v: Values): { ok: true; enclosure: z.infer<typeo
     errors[f] ??= say[f];
   }
   if (!enc.success || !ref.success) return { ok: false, errors };
-  return { ok: true, enclosure: enc.data, refinement: ref.data };
+  return { ok: true, domain: enc.data, refinement: ref.data };
 }
 
 function Num({ name, label, unit, values, errors, set, readOnly }: { name: keyof Values; label: string; unit: string; values: Values; errors: Partial<Record<keyof Values, string>>; set: (k: keyof Values, v: string) => void; readOnly: boolean }) {
@@ -76,16 +76,16 @@ function Num({ name, label, unit, values, errors, set, readOnly }: { name: keyof
 }
 
 export function DomainBoxForm({ readOnly }: { readOnly: boolean }) {
-  const enclosure = useEditor((s) => s.document.enclosure);
+  const domain = useEditor((s) => s.document.domain);
   const refinement = useEditor((s) => s.document.refinement);
   // remount with fresh values whenever the document's box or settings change (undo, drag, apply)
-  return <DomainBoxFormBody key={JSON.stringify([enclosure, refinement])} readOnly={readOnly} />;
+  return <DomainBoxFormBody key={JSON.stringify([domain, refinement])} readOnly={readOnly} />;
 }
 
 function DomainBoxFormBody({ readOnly }: { readOnly: boolean }) {
   const store = useEditorStore();
   const [values, setValues] = useState<Values>(() => {
-    const { enclosure: e, refinement: r } = store.getState().document;
+    const { domain: e, refinement: r } = store.getState().document;
     return {
       cx: String(e.center[0]), cy: String(e.center[1]), cz: String(e.center[2]),
       hx: String(e.halfExtentsNm[0]), hy: String(e.halfExtentsNm[1]), hz: String(e.halfExtentsNm[2]),
@@ -104,8 +104,8 @@ function DomainBoxFormBody({ readOnly }: { readOnly: boolean }) {
     const st = store.getState();
     const doc = st.document;
     // one edit for both parts, so a single undo restores the box and the settings together
-    if (JSON.stringify(parsed.enclosure) !== JSON.stringify(doc.enclosure) || JSON.stringify(parsed.refinement) !== JSON.stringify(doc.refinement))
-      store.setState({ document: { ...doc, enclosure: parsed.enclosure, refinement: parsed.refinement } });
+    if (JSON.stringify(parsed.domain) !== JSON.stringify(doc.domain) || JSON.stringify(parsed.refinement) !== JSON.stringify(doc.refinement))
+      store.setState({ document: { ...doc, domain: parsed.domain, refinement: parsed.refinement } });
   };
   const common = { values, errors, set, readOnly };
   return (

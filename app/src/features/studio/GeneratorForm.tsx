@@ -30,7 +30,7 @@ export function GeneratorForm() {
     setErrors({});
     const doc = store.getState().document;
     try {
-      const sites = runGenerator(parsed.data, doc.host.latticeConstantNm, doc.enclosure.center);
+      const sites = runGenerator(parsed.data, doc.host.latticeConstantNm, doc.domain.center);
       store.getState().putSites(sites, parsed.data.mode);
       setMessage(`${parsed.data.mode === 'replace' ? 'Placed' : 'Added'} ${sites.length} sites.`);
     } catch (err) {

@@ -171,7 +171,7 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, canRun, aut
   const [tool, setTool] = useState<Tool>('select');
   const [species, setSpecies] = useState<Species>('P');
   const a = doc.host.latticeConstantNm;
-  const [layerK, setLayerK] = useState(() => Math.round((doc.enclosure.center[2] * 4) / a));
+  const [layerK, setLayerK] = useState(() => Math.round((doc.domain.center[2] * 4) / a));
   const [help, setHelp] = useState(false);
   const [busy, setBusy] = useState(false);
   const viewRef = useRef<ViewApi | null>(null);
@@ -426,7 +426,7 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, canRun, aut
                   else store.getState().placeSite(sp, pos);
                 }}
                 onPreview={setPreview}
-                onCommitEnclosure={(h) => store.getState().setEnclosure({ ...store.getState().document.enclosure, halfExtentsNm: h })}
+                onCommitDomain={(h) => store.getState().setDomain({ ...store.getState().document.domain, halfExtentsNm: h })}
                 onCommitMove={(pos) => store.getState().moveSites(pos)}
               />
             </Suspense>
@@ -451,7 +451,7 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, canRun, aut
             elementsPending={farField.elementsPending}
             document={shown}
             readOnly={readOnly}
-            onApplyRecommended={(h) => store.getState().setEnclosure({ ...store.getState().document.enclosure, halfExtentsNm: h })}
+            onApplyRecommended={(h) => store.getState().setDomain({ ...store.getState().document.domain, halfExtentsNm: h })}
           />
           <div className="border-t border-wafer-100 pt-2">
             <DomainBoxForm readOnly={readOnly} />

@@ -12,7 +12,7 @@ import { temporal, type TemporalState } from 'zundo';
 import type { DesignDocument } from '@contracts/design';
 
 export type Site = DesignDocument['sites'][number];
-export type Enclosure = DesignDocument['enclosure'];
+export type Domain = DesignDocument['domain'];
 export type Refinement = DesignDocument['refinement'];
 export type Vec3 = [number, number, number];
 
@@ -36,7 +36,7 @@ export interface EditorState {
   deleteSites: (ids: readonly string[]) => void;
   /** Change one site's fields (id, species, electrons, position, orbital). */
   updateSite: (id: string, patch: Partial<Site>) => void;
-  setEnclosure: (enclosure: Enclosure) => void;
+  setDomain: (domain: Domain) => void;
   setRefinement: (refinement: Refinement) => void;
   rename: (name: string) => void;
   /** Select ids: `replace` the selection, `toggle` each id in or out, or `add` them. */
@@ -113,7 +113,7 @@ export function createEditorStore(initial: DesignDocument): EditorStore {
             }));
             if (patch.id && patch.id !== id) set({ selection: get().selection.map((s) => (s === id ? patch.id! : s)) });
           },
-          setEnclosure: (enclosure) => edit((doc) => ({ ...doc, enclosure })),
+          setDomain: (domain) => edit((doc) => ({ ...doc, domain })),
           setRefinement: (refinement) => edit((doc) => ({ ...doc, refinement })),
           rename: (name) => edit((doc) => ({ ...doc, name })),
           select: (ids, how = 'replace') => {

@@ -78,7 +78,7 @@ export interface DesignCanvasProps {
   onPlace: (species: Species, position: Vec3) => void;
   /** a drag in progress (box face or moved sites): the document as it would be; null when it ends */
   onPreview: (doc: DesignDocument | null) => void;
-  onCommitEnclosure: (halfExtentsNm: Vec3) => void;
+  onCommitDomain: (halfExtentsNm: Vec3) => void;
   onCommitMove: (positions: Record<string, Vec3>) => void;
 }
 
@@ -162,9 +162,9 @@ export function warnedFaces(doc: DesignDocument, report: FarFieldReport | null):
   const faces = new Set<number>();
   if (!report) return faces;
   const byId = new Map(doc.sites.map((s) => [s.id, s]));
-  const { center, halfExtentsNm: h } = doc.enclosure;
+  const { center, halfExtentsNm: h } = doc.domain;
   for (const w of report.warnings) {
-    if (w.code !== 'boundary-too-close' && w.code !== 'density-cut' && w.code !== 'site-outside-enclosure') continue;
+    if (w.code !== 'boundary-too-close' && w.code !== 'density-cut' && w.code !== 'site-outside-domain') continue;
     for (const id of w.siteIds) {
       const s = byId.get(id);
       if (!s) continue;
@@ -183,7 +183,7 @@ export function warnedFaces(doc: DesignDocument, report: FarFieldReport | null):
 }
 
 function DomainBox({ doc, report, readOnly, onPreview, onCommit }: { doc: DesignDocument; report: FarFieldReport | null; readOnly: boolean; onPreview: (doc: DesignDocument | null) => void; onCommit: (h: Vec3) => void }) {
-  const { center, halfExtentsNm: h } = doc.enclosure;
+  const { center, halfExtentsNm: h } = doc.domain;
   const handles = useRef<THREE.InstancedMesh>(null);
   const { camera, gl } = useThree();
   const getThree = useThree((st) => st.get);
@@ -255,7 +255,7 @@ function DomainBox({ doc, report, readOnly, onPreview, onCommit }: { doc: Design
       if (half === null) return;
       latest = [...h];
       latest[face.axis] = half;
-      onPreview({ ...doc, enclosure: { ...doc.enclosure, halfExtentsNm: latest } });
+      onPreview({ ...doc, domain: { ...doc.domain, halfExtentsNm: latest } });
     };
     const up = () => {
       window.removeEventListener('pointermove', move);
@@ -355,12 +355,12 @@ function PlacementGuide({ doc, layerK, species, onPlace }: { doc: DesignDocument
     return g;
   }, [pointer, layerK, a]);
   useEffect(() => () => dots.dispose(), [dots]);
-  const span = 4 * Math.max(...doc.enclosure.halfExtentsNm, 20);
+  const span = 4 * Math.max(...doc.domain.halfExtentsNm, 20);
   const ghost = snapped ? siteToNm(snapped, a) : null;
   return (
     <>
       <mesh
-        position={[doc.enclosure.center[0], doc.enclosure.center[1], z]}
+        position={[doc.domain.center[0], doc.domain.center[1], z]}
         name="placement-layer"
         onPointerMove={(e) => setPointer([e.point.x, e.point.y])}
         onPointerOut={() => setPointer(null)}
@@ -456,7 +456,7 @@ function Rig({ doc, onViewApi, onScale, onAxes }: { doc: DesignDocument; onViewA
     const bounds = () => {
       const d = docRef.current;
       const box = new THREE.Box3();
-      const { center: c, halfExtentsNm: h } = d.enclosure;
+      const { center: c, halfExtentsNm: h } = d.domain;
       box.expandByPoint(new THREE.Vector3(c[0] - h[0], c[1] - h[1], c[2] - h[2]));
       box.expandByPoint(new THREE.Vector3(c[0] + h[0], c[1] + h[1], c[2] + h[2]));
       for (const s of d.sites) box.expandByPoint(new THREE.Vector3(...s.position));
@@ -634,8 +634,8 @@ export default function DesignCanvas(props: DesignCanvasProps) {
   };
 
   const legend = SPECIES_ORDER.filter((sp) => bySpecies.has(sp));
-  const initialDist = Math.max(...doc.enclosure.halfExtentsNm) * 3.2 + 5;
-  const c = doc.enclosure.center;
+  const initialDist = Math.max(...doc.domain.halfExtentsNm) * 3.2 + 5;
+  const c = doc.domain.center;
 
   return (
     <div ref={wrapper} role="region" aria-label="Design canvas" className="relative h-full min-h-[320px] overflow-hidden rounded-md border border-wafer-200 lg:min-h-0" style={{ background: CANVAS_THEME.ground }} onPointerDown={onPointerDown}>
@@ -667,7 +667,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
         ))}
         <WarnedSites positions={warnedPositions} radius={1.1 * unit} />
         <Bonds doc={doc} />
-        <DomainBox doc={doc} report={report} readOnly={readOnly} onPreview={props.onPreview} onCommit={props.onCommitEnclosure} />
+        <DomainBox doc={doc} report={report} readOnly={readOnly} onPreview={props.onPreview} onCommit={props.onCommitDomain} />
         {!readOnly && tool === 'place' && <PlacementGuide doc={doc} layerK={props.layerK} species={props.placeSpecies} onPlace={props.onPlace} />}
         {!readOnly && tool === 'move' && <MoveHandle doc={doc} selection={selection} onPreview={props.onPreview} onCommit={props.onCommitMove} />}
       </Canvas>

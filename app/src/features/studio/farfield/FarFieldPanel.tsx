@@ -30,7 +30,7 @@ const SEVERITY_STYLE: Record<FarFieldWarning['severity'], string> = {
   info: 'border-wafer-200 bg-wafer-50 text-wafer-700',
 };
 
-function boundaryWords(b: DesignDocument['enclosure']['boundary']): string {
+function boundaryWords(b: DesignDocument['domain']['boundary']): string {
   return b.kind === 'grounded' ? 'grounded walls' : `a multipole boundary to order ${b.order}`;
 }
 
@@ -144,7 +144,7 @@ function Body({ report, document, readOnly, onApplyRecommended, elementsPending 
   const target = report.tolerance;
   const u = worstU(report);
   const v = worstV(report);
-  const { halfExtentsNm: half, boundary } = document.enclosure;
+  const { halfExtentsNm: half, boundary } = document.domain;
   const rec = report.recommendedHalfExtentsNm;
   const recOk = rec.every(Number.isFinite);
   const same = recOk && rec.every((x, k) => Math.abs(x - half[k]) <= 1e-9 * Math.max(1, x));

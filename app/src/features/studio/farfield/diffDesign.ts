@@ -38,7 +38,7 @@ export function sameSite(a: Site, b: Site): boolean {
 }
 
 const sameHost = (a: Design['host'], b: Design['host']) => a === b || (a.material === b.material && a.epsilonR === b.epsilonR && a.latticeConstantNm === b.latticeConstantNm);
-const sameEnclosure = (a: Design['enclosure'], b: Design['enclosure']) =>
+const sameDomain = (a: Design['domain'], b: Design['domain']) =>
   a === b ||
   (sameVec(a.center, b.center) &&
     sameVec(a.halfExtentsNm, b.halfExtentsNm) &&
@@ -86,8 +86,8 @@ export function diffDesign(prev: DesignDocument | null, next: DesignDocument): D
     changes.host = next.host;
     any = true;
   }
-  if (!sameEnclosure(prev.enclosure, next.enclosure)) {
-    changes.enclosure = next.enclosure;
+  if (!sameDomain(prev.domain, next.domain)) {
+    changes.domain = next.domain;
     any = true;
   }
   if (!sameRefinement(prev.refinement, next.refinement)) {
