@@ -115,7 +115,8 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   };
   const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() }, { queue, settings: jobSettings });
 
-  const designBodies = createDesignBodyReader();
+  // large design bodies are validated and written in a worker thread with a database connection of its own
+  const designBodies = createDesignBodyReader({ databaseUrl: opts.databaseUrl });
   const app = createApp({
     services,
     sessionStore,

@@ -30,6 +30,20 @@ export function projectAccess(res: Response): ProjectAccess {
   return access;
 }
 
+/** what `checkCapabilityInService` left for the service to check */
+export interface DeferredAccess {
+  projectId: number;
+  userId: number;
+  capability: Capability;
+}
+
+/** The access check `checkCapabilityInService` left to the service for this request. */
+export function deferredAccess(res: Response): DeferredAccess {
+  const access = res.locals.deferredAccess as DeferredAccess | undefined;
+  if (!access) throw new Error('route reads deferred access without checkCapabilityInService in front of it');
+  return access;
+}
+
 export function accessControl(services: Services) {
   const requireUser: RequestHandler = (req, _res, next) => {
     currentUser(req);
@@ -52,6 +66,21 @@ export function accessControl(services: Services) {
     };
   }
 
+  /**
+   * For the busiest reads (jobs and revisions lists), whose service reads the caller's role in the same SQL
+   * statement as the rows and applies the role table itself (services/projects.ts `requireRole`: the same 404 and
+   * 403 as requireCapability). Checks here what needs no database: signed in (401) and a well-formed project id
+   * (422). The route reads the capability back with `deferredAccess(res)` and hands it to the service.
+   */
+  function checkCapabilityInService(capability: Capability): RequestHandler {
+    return (req, res, next) => {
+      const user = currentUser(req);
+      const { projectId } = parseOr422(projectParamsSchema, { projectId: req.params.projectId }, 'address');
+      res.locals.deferredAccess = { projectId, userId: user.id, capability } satisfies DeferredAccess;
+      next();
+    };
+  }
+
   function requireSiteCapability(capability: SiteCapability): RequestHandler {
     return (req, _res, next) => {
       const user = currentUser(req);
@@ -60,6 +89,6 @@ export function accessControl(services: Services) {
     };
   }
 
-  return { requireUser, requireCapability, requireSiteCapability };
+  return { requireUser, requireCapability, checkCapabilityInService, requireSiteCapability };
 }
 export type AccessControl = ReturnType<typeof accessControl>;

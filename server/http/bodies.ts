@@ -33,6 +33,22 @@ function isJson(req: Request): boolean {
   return /^application\/json\s*(;|$)/i.test(String(req.headers['content-type'] ?? ''));
 }
 
+declare module 'express-serve-static-core' {
+  interface Request {
+    /**
+     * A large design body left unread for the off-thread reader, which streams it into its worker thread piece by
+     * piece (server/http/designBody.ts): `limit` is the largest body it may take.
+     */
+    designBodyStream?: { limit: number };
+  }
+}
+
+/** a body sent as it is (no Content-Encoding, or identity): the only kind streamed to the worker unread */
+function isIdentity(req: Request): boolean {
+  const enc = String(req.headers['content-encoding'] ?? 'identity').trim().toLowerCase();
+  return enc === 'identity' || enc === '';
+}
+
 export function jsonBodies(opts: { designLimit: number; offThreadBytes: number }): RequestHandler[] {
   const otherLimit = Math.min(opts.designLimit, OTHER_BODY_LIMIT_BYTES);
   const large = (req: Request) => {
@@ -41,8 +57,25 @@ export function jsonBodies(opts: { designLimit: number; offThreadBytes: number }
     // a chunked body has no length: treat it as large (its size is only known once read)
     return !Number.isFinite(len) || len > opts.offThreadBytes;
   };
-  const raw = express.raw({ type: (req) => large(req as Request), limit: opts.designLimit });
+  // A large body sent as it is stays unread here: joining 17 MB into one Buffer on the request thread (raw-body's
+  // Buffer.concat: a fresh allocation, page faults and a copy) held the event loop for up to 200 ms on a loaded
+  // machine. One declared above the limit is refused at once, as raw-body does (413 before reading).
+  const streamed: RequestHandler = (req, _res, next) => {
+    if (!large(req) || !isIdentity(req)) return next();
+    const len = Number(req.headers['content-length']);
+    if (Number.isFinite(len) && len > opts.designLimit) {
+      return next(Object.assign(new Error('request entity too large'), { status: 413, type: 'entity.too.large' }));
+    }
+    req.designBodyStream = { limit: opts.designLimit };
+    next();
+  };
+  // an encoded (gzip, deflate) large body: read whole and inflated by body-parser, then handed over as one Buffer
+  const raw = express.raw({ type: (req) => large(req as Request) && !(req as Request).designBodyStream, limit: opts.designLimit });
   const designJson = express.json({ limit: opts.designLimit });
   const otherJson = express.json({ limit: otherLimit });
-  return [raw, (req, res, next) => (isDesignBodyRoute(req) ? designJson : otherJson)(req, res, next)];
+  return [
+    streamed,
+    raw,
+    (req, res, next) => (req.designBodyStream ? next() : (isDesignBodyRoute(req) ? designJson : otherJson)(req, res, next)),
+  ];
 }

@@ -7,9 +7,20 @@
  * copied in one block, unlike an object graph, whose structured-clone deserialisation costs as much as
  * JSON.parse) with the fields the repository writes.
  *
- * Nothing here touches the database.
+ * With `store` in the task (and the database URL in the pool's workerData), the worker also writes the validated
+ * document, over a database connection of its own, with the same functions the designs service uses
+ * (server/services/designWrites.ts: one transaction with its audit entries, the optimistic-concurrency check, nothing
+ * written on error). Sending a 17 MB parameter to PostgreSQL is socket writes, buffer copies and garbage of the
+ * document's size: here they cost this thread's time, not the request thread's, which only gets the saved
+ * metadata and the document's bytes back (transferred, not copied) for the answer.
  */
+import { workerData, type MessagePort } from 'node:worker_threads';
+import Piscina from 'piscina';
+import type { Knex } from 'knex';
 import { designCreateBodySchema, designUpdateBodySchema } from '../contracts/api';
+import { createKnex } from '../db/config';
+import { AppError, type CurrentVersion } from '../services/errors';
+import { insertDesign, savedMeta, writeVersion, type DesignMeta } from '../services/designWrites';
 import type { DesignDocument } from '../contracts/design';
 import type { DesignWrite } from '../repositories/designs';
 import { issuesToDetails, type FieldIssue } from '../services/errors';
@@ -23,9 +34,26 @@ lowerThreadPriority();
 /** `create`: POST …/designs ({ name, document? } or { name, copyOf }); `update`: PUT …/designs/:designId. */
 export type DesignBodyKind = 'create' | 'update';
 
-export interface DesignBodyTask {
-  bytes: Uint8Array;
+export type DesignBodyTask = (
+  | { bytes: Uint8Array }
+  /** the body arrives piece by piece on this port (null ends it, `{ abort }` stops); `length` from Content-Length */
+  | { stream: MessagePort; length: number | null }
+) & {
   kind: DesignBodyKind;
+  /** write the document here (the caller has checked the role): create in `projectId`, or save `designId` */
+  store?: { projectId: number; designId: number | null; userId: number };
+};
+
+/** the pool's workerData: where the worker writes when a task says `store` */
+export interface DesignBodyWorkerData {
+  databaseUrl?: string;
+}
+
+/** a failure of the write that is not one of our AppErrors (e.g. the database is away): enough to tell 503 from 500 */
+export interface StoreFailure {
+  message: string;
+  name: string;
+  code?: string;
 }
 
 export type DesignBodyResult =
@@ -33,7 +61,10 @@ export type DesignBodyResult =
   | { ok: true; write: PreparedInWorker; version: number | null }
   /** a body without a document ({ name, copyOf } or { name }): small, handed back for the ordinary path */
   | { ok: true; body: unknown }
-  | { ok: false; code: 'bad_request' | 'validation_failed'; message: string; details?: FieldIssue[] };
+  /** `store` done: what was written, and the stored JSON text's UTF-8 bytes for the answer */
+  | { ok: true; stored: DesignMeta; documentJson: Uint8Array }
+  | { ok: false; code: AppError['code']; message: string; details?: FieldIssue[]; current?: CurrentVersion }
+  | { ok: false; failure: StoreFailure };
 
 const BAD_JSON = 'The request body is not valid JSON (or holds a NUL character, which the server does not store).';
 
@@ -88,6 +119,72 @@ export function parseDesignBody(bytes: Uint8Array, kind: DesignBodyKind): Design
   return prepared({ ...r.data.document, name: r.data.name }, null);
 }
 
-export default function run(task: DesignBodyTask): DesignBodyResult {
-  return parseDesignBody(task.bytes, task.kind);
+let db: Knex | null = null;
+/** one connection is enough: the pool runs one task per thread at a time */
+function database(): Knex {
+  const url = (workerData as DesignBodyWorkerData | undefined)?.databaseUrl;
+  if (!url) throw new Error('the design body worker has no database URL (createDesignBodyReader({ databaseUrl }))');
+  return (db ??= createKnex(url, { poolMax: 1 }));
+}
+
+async function store(r: Extract<DesignBodyResult, { write: PreparedInWorker }>, to: NonNullable<DesignBodyTask['store']>): Promise<DesignBodyResult> {
+  const bytes = r.write.documentJsonb;
+  // pg sends a Buffer parameter as it is (binary format: jsonb_recv's version byte, then the text)
+  const w: DesignWrite = { ...r.write, documentJsonb: Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength) };
+  try {
+    const knex = database();
+    let designId = to.designId;
+    if (designId === null) designId = await insertDesign(knex, to.projectId, w, to.userId, undefined);
+    else await writeVersion(knex, to.projectId, designId, w, r.version ?? 0, to.userId);
+    return { ok: true, stored: await savedMeta(knex, to.projectId, designId), documentJson: bytes.subarray(1) };
+  } catch (e) {
+    if (e instanceof AppError) return { ok: false, code: e.code, message: e.message, details: e.details, current: e.current };
+    const err = e as { message?: unknown; name?: unknown; code?: unknown };
+    return { ok: false, failure: { message: String(err?.message ?? e), name: String(err?.name ?? 'Error'), ...(typeof err?.code === 'string' ? { code: err.code } : {}) } };
+  }
+}
+
+/** the streamed body in one buffer, sized from Content-Length when there is one (grown by doubling otherwise) */
+function receive(port: MessagePort, length: number | null): Promise<Uint8Array> {
+  return new Promise((resolve, reject) => {
+    let buf = new Uint8Array(length ?? 1024 * 1024);
+    let n = 0;
+    port.on('message', (m: Uint8Array | null | { abort: string }) => {
+      if (m === null) {
+        port.close();
+        resolve(buf.subarray(0, n));
+      } else if (m instanceof Uint8Array) {
+        if (n + m.byteLength > buf.byteLength) {
+          const bigger = new Uint8Array(Math.max(2 * buf.byteLength, n + m.byteLength));
+          bigger.set(buf.subarray(0, n));
+          buf = bigger;
+        }
+        buf.set(m, n);
+        n += m.byteLength;
+      } else {
+        port.close();
+        reject(new Error(`the request body was not received: ${m.abort}`));
+      }
+    });
+  });
+}
+
+export default async function run(task: DesignBodyTask): Promise<DesignBodyResult | ReturnType<typeof Piscina.move>> {
+  const bytes = 'stream' in task ? await receive(task.stream, task.length) : task.bytes;
+  const r = parseDesignBody(bytes, task.kind);
+  if (!task.store || !r.ok || !('write' in r)) return r;
+  const out = await store(r, task.store);
+  if (!out.ok || !('stored' in out)) return out;
+  // the document's bytes go back transferred (no copy on either side): piscina moves a Transferable result
+  const buffer = out.documentJson.buffer as ArrayBuffer;
+  const movable = {
+    get [Piscina.transferableSymbol]() {
+      return [buffer];
+    },
+    get [Piscina.valueSymbol]() {
+      return out;
+    },
+  };
+  // piscina's own Transferable interface (its typings name the two symbols by their private declarations)
+  return Piscina.move(movable as unknown as Parameters<typeof Piscina.move>[0]);
 }

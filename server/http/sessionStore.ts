@@ -54,7 +54,8 @@ export function createSessionStore(
 
   class PgStoreWithUsers extends PgStore {
     override get(sid: string, fn: (err: unknown, sess?: session.SessionData | null) => void): void {
-      pool.query<SessionUserRow>(GET_WITH_USER, [sid, Math.ceil(Date.now() / 1000)]).then(
+      // a named prepared statement: each pooled connection parses and plans it once, not on every request
+      pool.query<SessionUserRow>({ name: 'tetrawell-session-with-user', text: GET_WITH_USER, values: [sid, Math.ceil(Date.now() / 1000)] }).then(
         (res) => {
           const row = res.rows[0];
           // express-session reads null as "no such session"

@@ -11,10 +11,10 @@ import { migrateDesign } from '@contracts/design';
 import { releaseSpmvMemory } from '../../geometry/fem/index';
 import { JobRefusal, runPipeline } from './pipeline';
 import { packFile, type PackedFile } from './storage';
-import { lowerThreadPriority } from '../workers/lowPriority';
+import { JOB_NICE, lowerThreadPriority } from '../workers/lowPriority';
 
-// requests and the database come first on a busy machine (server/workers/lowPriority.ts)
-lowerThreadPriority();
+// requests and the database come first on a busy machine: the lowest priority (server/workers/lowPriority.ts)
+lowerThreadPriority(JOB_NICE);
 
 export interface TaskInput {
   kind: JobKind;

@@ -5,6 +5,7 @@
  * only whole. There is no update path (a trigger refuses UPDATE as well).
  */
 import type { JobKind, JobOptions, Revision } from '@contracts/api';
+import type { ProjectRole } from '@contracts/roles';
 import { type Db, iso } from './db';
 
 export type RevisionFileName = Revision['files'][number]['name'];
@@ -154,13 +155,52 @@ export function revisionsRepo(db: Db) {
       if (!row) return null;
       return toRevision(row, (await filesOf([row.id])).get(row.id) ?? []);
     },
-    /** newest first */
-    async list(projectId: number, opts: { designId?: number; limit: number }): Promise<RevisionRecord[]> {
-      const q = select(false).where('r.project_id', projectId).orderBy('r.id', 'desc').limit(opts.limit);
-      if (opts.designId !== undefined) q.where('r.design_id', opts.designId);
-      const rows = (await q) as RevisionRow[];
-      const files = await filesOf(rows.map((r) => r.id));
-      return rows.map((r) => toRevision(r, files.get(r.id) ?? []));
+    /**
+     * The caller's role in the project and its newest revisions (of one design, when `designId` is given) with
+     * their file lists, in one statement: one database round trip where a role query, the rows and their files
+     * took three. No membership: role null and no revisions. A named prepared statement (parsed and planned
+     * once per connection); `$3` null means every design.
+     */
+    async listForMember(projectId: number, userId: number, opts: { designId?: number; limit: number }): Promise<{ role: ProjectRole | null; revisions: RevisionRecord[] }> {
+      const res = (await db
+        .raw(
+          `SELECT m.role AS member_role, r.*
+           FROM memberships m
+           LEFT JOIN LATERAL (
+             SELECT r.id, r.project_id, r.job_id, r.design_id, d.name AS design_name, r.design_version, r.design_sha256, r.kind,
+                    r.options, r.software_version, r.software_commit, r.timings, r.stored_bytes, r.created_at,
+                    u.display_name AS created_by_name,
+                    (SELECT coalesce(json_agg(json_build_object('name', f.name, 'content_type', f.content_type, 'bytes', f.bytes, 'chunks', f.chunks)), '[]')
+                     FROM revision_files f WHERE f.revision_id = r.id) AS files
+             FROM revisions r
+             JOIN designs d ON d.id = r.design_id
+             LEFT JOIN users u ON u.id = r.created_by
+             WHERE r.project_id = m.project_id AND (?::int IS NULL OR r.design_id = ?::int)
+             ORDER BY r.id DESC
+             LIMIT ?
+           ) r ON true
+           WHERE m.project_id = ? AND m.user_id = ?
+           ORDER BY r.id DESC`,
+          [opts.designId ?? null, opts.designId ?? null, opts.limit, projectId, userId],
+        )
+        .options({ name: 'tetrawell-revisions-list-for-member' })) as {
+        rows: (RevisionRow & { member_role: ProjectRole; id: number | null; files: Omit<FileRow, 'revision_id' | 'stored_bytes'>[] })[];
+      };
+      const rows = res.rows;
+      if (!rows.length) return { role: null, revisions: [] };
+      return {
+        role: rows[0]!.member_role,
+        revisions: rows
+          .filter((r) => r.id !== null)
+          .map((r) =>
+            toRevision(
+              r,
+              r.files
+                .map((f) => ({ name: f.name, contentType: f.content_type, bytes: Number(f.bytes), chunks: f.chunks }))
+                .sort((a, b) => ORDER.indexOf(a.name) - ORDER.indexOf(b.name)),
+            ),
+          ),
+      };
     },
     /** the newest revision of this project computed from the same document, kind and options */
     async findReusable(projectId: number, designSha256: string, kind: JobKind, optionsKey: string): Promise<{ id: number } | null> {

@@ -93,7 +93,11 @@ export const designRoutes: RouteModule = (router, { services, access, designBodi
 
   router.post(base, access.requireCapability('design.edit'), async (req, res) => {
     const { projectId } = projectAccess(res);
-    const read = await designBodies.read(req, 'create');
+    const read = await designBodies.read(req, 'create', { projectId, designId: null, userId: currentUser(req).id });
+    if (read.stored) {
+      sendDesignText(res, 201, read.stored, read.documentJson);
+      return;
+    }
     if (read.prepared) {
       sendDesignText(res, 201, await services.designs.createPrepared(projectId, read.prepared, currentUser(req).id), documentText(read.prepared));
       return;
@@ -113,7 +117,11 @@ export const designRoutes: RouteModule = (router, { services, access, designBodi
   router.put(`${base}/:designId`, access.requireCapability('design.edit'), async (req, res) => {
     const { designId } = parseOr422(designParamsSchema, req.params, 'address');
     const { projectId } = projectAccess(res);
-    const read = await designBodies.read(req, 'update');
+    const read = await designBodies.read(req, 'update', { projectId, designId, userId: currentUser(req).id });
+    if (read.stored) {
+      sendDesignText(res, 200, read.stored, read.documentJson);
+      return;
+    }
     if (read.prepared) {
       const meta = await services.designs.updatePrepared(projectId, designId, read.prepared, read.version ?? 0, currentUser(req).id);
       sendDesignText(res, 200, meta, documentText(read.prepared));

@@ -17,7 +17,7 @@
 import type { Response } from 'express';
 import { designParamsSchema, jobCreateBodySchema, jobParamsSchema, revisionFileParamsSchema, revisionListQuerySchema, revisionParamsSchema, type Job } from '@contracts/api';
 import { parseOr422 } from '../services/errors';
-import { currentUser, projectAccess } from '../http/access';
+import { currentUser, deferredAccess } from '../http/access';
 import type { RouteModule } from './context';
 
 /** how often the event stream looks at the job row (ms) */
@@ -42,8 +42,10 @@ export const jobRoutes: RouteModule = (router, { services, access, logger }) => 
     res.status(reused ? 200 : 202).json({ job });
   });
 
-  router.get('/projects/:projectId/jobs', access.requireCapability('project.read'), async (_req, res) => {
-    res.json({ jobs: await services.jobs.list(projectAccess(res).projectId) });
+  // the two lists the studio polls: the role is read in the list's own statement, and the service checks it
+  router.get('/projects/:projectId/jobs', access.checkCapabilityInService('project.read'), async (_req, res) => {
+    const { projectId, userId, capability } = deferredAccess(res);
+    res.json({ jobs: await services.jobs.list(projectId, userId, capability) });
   });
 
   router.get('/projects/:projectId/jobs/:jobId', access.requireCapability('project.read'), async (req, res) => {
@@ -95,9 +97,13 @@ export const jobRoutes: RouteModule = (router, { services, access, logger }) => 
     res.json({ job: await services.jobs.cancel(projectId, jobId, currentUser(req).id) });
   });
 
-  router.get('/projects/:projectId/revisions', access.requireCapability('project.read'), async (req, res) => {
+  router.get('/projects/:projectId/revisions', access.checkCapabilityInService('project.read'), async (req, res) => {
+    const { projectId, userId, capability } = deferredAccess(res);
+    const query = revisionListQuerySchema.safeParse(req.query);
+    // a bad query: the role answers first (404 / 403 before 422), as on every other project route
+    if (!query.success) await services.projects.authorize(projectId, userId, capability);
     const { designId } = parseOr422(revisionListQuerySchema, req.query, 'query');
-    res.json({ revisions: await services.jobs.listRevisions(projectAccess(res).projectId, designId) });
+    res.json({ revisions: await services.jobs.listRevisions(projectId, userId, capability, designId) });
   });
 
   router.get('/projects/:projectId/revisions/:revisionId', access.requireCapability('project.read'), async (req, res) => {

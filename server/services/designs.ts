@@ -14,8 +14,9 @@ type DesignExportFormat = (typeof designExportFormats)[number];
 import { designsRepo, type DesignRecord, type DesignVersionRecord, type DesignWrite } from '../repositories/designs';
 import { projectsRepo } from '../repositories/projects';
 import type { Db } from '../repositories/db';
-import { AppError, notFound, staleWrite } from './errors';
+import { AppError, notFound } from './errors';
 import { recordAudit } from './audit';
+import * as writes from './designWrites';
 import type { ServiceDeps } from './context';
 import { computeFigures, figureComputer } from '../workers/designFigures';
 import { ImportRefused, writeCsv, writePlacement, writeXyz, type ImportIssue, type Site } from '../formats';
@@ -74,7 +75,8 @@ export function storedDocument(rec: { document: unknown }): DesignDocument {
 }
 
 /** A design's answer without its document (a large document is sent as the JSON text it was stored from). */
-export type DesignMeta = Omit<DesignDetail, 'document'>;
+export type { DesignMeta } from './designWrites';
+import type { DesignMeta } from './designWrites';
 
 const toDetail = (rec: DesignRecord, document: DesignDocument): DesignDetail => ({
   id: rec.id,
@@ -108,47 +110,10 @@ export function designService(deps: ServiceDeps) {
     return rec;
   }
 
-  /** the metadata of a design just written (everything of DesignDetail but the document) */
-  async function savedMeta(projectId: number, designId: number): Promise<DesignMeta> {
-    const cur = await designsRepo(db).current(projectId, designId);
-    if (!cur) throw notFound('The design');
-    return { id: designId, name: cur.name, version: cur.version, updatedAt: cur.updatedAt, updatedBy: cur.updatedBy };
-  }
-
-  async function insertDesign(projectId: number, w: DesignWrite, userId: number, copyOf: number | undefined): Promise<number> {
-    return db.transaction(async (trx) => {
-      const newId = await designsRepo(trx).insert(projectId, w, userId);
-      await projectsRepo(trx).touch(projectId);
-      await recordAudit(trx, {
-        projectId,
-        actorId: userId,
-        action: 'design.create',
-        detail: { designId: newId, name: w.name, sites: w.siteCount, ...(copyOf !== undefined ? { copyOf } : {}) },
-      });
-      return newId;
-    });
-  }
-
-  /** the next version of a design, or 409 with who saved the current one */
-  async function writeVersion(projectId: number, designId: number, w: DesignWrite, expected: number, userId: number): Promise<void> {
-    await db.transaction(async (trx) => {
-      const repo = designsRepo(trx);
-      const before = await repo.current(projectId, designId);
-      if (!before) throw notFound('The design');
-      const version = await repo.update(projectId, designId, w, expected, userId);
-      if (version === null) {
-        const { name: _name, ...now } = before;
-        // `before` was read in this transaction; re-read in case the version moved after it
-        const latest = (await repo.current(projectId, designId)) ?? now;
-        throw staleWrite('The design', { version: latest.version, updatedAt: latest.updatedAt, updatedBy: latest.updatedBy });
-      }
-      await projectsRepo(trx).touch(projectId);
-      await recordAudit(trx, { projectId, actorId: userId, action: 'design.update', detail: { designId, version, sites: w.siteCount, name: w.name } });
-      if (before.name !== w.name) {
-        await recordAudit(trx, { projectId, actorId: userId, action: 'design.rename', detail: { designId, version, from: before.name, to: w.name } });
-      }
-    });
-  }
+  const savedMeta = (projectId: number, designId: number) => writes.savedMeta(db, projectId, designId);
+  const insertDesign = (projectId: number, w: DesignWrite, userId: number, copyOf: number | undefined) => writes.insertDesign(db, projectId, w, userId, copyOf);
+  const writeVersion = (projectId: number, designId: number, w: DesignWrite, expected: number, userId: number) =>
+    writes.writeVersion(db, projectId, designId, w, expected, userId);
 
   const service = {
     /** create the starting design inside the project-creation transaction */

@@ -11,12 +11,14 @@
 import { randomUUID } from 'node:crypto';
 import type { Job, JobCreateBody, JobKind } from '@contracts/api';
 import type { Revision } from '@contracts/api';
+import type { Capability } from '@contracts/roles';
 import { MeshError, estimateDesignElements } from '../../geometry/mesh/index';
 import type { Design } from '../../geometry/design/types';
 import { designsRepo } from '../repositories/designs';
 import { jobsRepo, publicJob, type JobRecord } from '../repositories/jobs';
 import { revisionsRepo, type RevisionFileName, type RevisionRecord, type StoredFile } from '../repositories/revisions';
 import { recordAudit } from './audit';
+import { requireRole } from './projects';
 import type { ServiceDeps } from './context';
 import { AppError, conflict, notFound } from './errors';
 import { storedDocument, fileBaseName } from './designs';
@@ -142,8 +144,11 @@ export function jobService(deps: ServiceDeps, jd: JobDeps) {
       return { job: publicJob((await jobsRepo(db).get(projectId, jobId))!), reused: false };
     },
 
-    async list(projectId: number): Promise<Job[]> {
-      return (await jobsRepo(db).list(projectId, LIST_LIMIT)).map(publicJob);
+    /** the project's newest jobs, for a caller whose role has `capability` (404 / 403 otherwise; one round trip) */
+    async list(projectId: number, userId: number, capability: Capability): Promise<Job[]> {
+      const { role, jobs } = await jobsRepo(db).listForMember(projectId, userId, LIST_LIMIT);
+      requireRole(role, capability);
+      return jobs.map(publicJob);
     },
 
     async get(projectId: number, jobId: number): Promise<Job> {
@@ -167,8 +172,11 @@ export function jobService(deps: ServiceDeps, jd: JobDeps) {
       return publicJob(await mustGetJob(projectId, jobId));
     },
 
-    async listRevisions(projectId: number, designId?: number): Promise<Omit<Revision, 'summary'>[]> {
-      return (await revisionsRepo(db).list(projectId, { designId, limit: LIST_LIMIT })).map((r) => {
+    /** the project's newest revisions (of one design), for a caller whose role has `capability` (404 / 403 otherwise; one round trip) */
+    async listRevisions(projectId: number, userId: number, capability: Capability, designId?: number): Promise<Omit<Revision, 'summary'>[]> {
+      const { role, revisions } = await revisionsRepo(db).listForMember(projectId, userId, { designId, limit: LIST_LIMIT });
+      requireRole(role, capability);
+      return revisions.map((r) => {
         const { summary: _s, ...rest } = toRevision(r);
         return rest;
       });

@@ -24,6 +24,17 @@ export function toPublicProject(p: ProjectWithRole): Project {
   };
 }
 
+/**
+ * The role table applied to a role read from the database: 404 when there is none (not a member, so the project
+ * does not exist for the caller), 403 when the role lacks `capability`. The one place both `authorize` and the
+ * reads that fetch the role together with their rows (jobs and revisions lists) decide access.
+ */
+export function requireRole(role: ProjectRole | null, capability: Capability): ProjectRole {
+  if (!role) throw notFound('The project');
+  if (!can(role, capability)) throw forbidden();
+  return role;
+}
+
 export function projectService(deps: ServiceDeps, designs: DesignService) {
   const { db } = deps;
   const service = {
@@ -36,9 +47,7 @@ export function projectService(deps: ServiceDeps, designs: DesignService) {
 
     /** throws 404 (not a member) or 403 (role lacks the capability); returns the role */
     async authorize(projectId: number, userId: number, capability: Capability): Promise<ProjectRole> {
-      const role = await service.roleOf(projectId, userId);
-      if (!can(role, capability)) throw forbidden();
-      return role;
+      return requireRole(await membershipsRepo(db).roleOf(projectId, userId), capability);
     },
 
     async list(userId: number): Promise<Project[]> {

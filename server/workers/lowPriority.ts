@@ -14,6 +14,14 @@ import { setPriority } from 'node:os';
 
 /** nice 10: common practice for batch work beside interactive work (nice(1) adds 10 by default) */
 export const WORKER_NICE = 10;
+/**
+ * nice 19, the lowest priority (setpriority(2): -20 … 19), for job threads: a mesh or a solve runs for seconds
+ * to minutes and nobody waits on it request by request, while the request thread must answer within 100 ms
+ * (issue 10, "Faults and load"). Under CFS a nice-19 thread weighs 15 against 1024 for nice 0, 110 for nice 10
+ * (kernel/sched/core.c, sched_prio_to_weight), so beside a busy request thread it gets about 1.5 % of a shared
+ * core instead of about 10 %; on an idle core it still runs at full speed.
+ */
+export const JOB_NICE = 19;
 
 export function lowerThreadPriority(nice = WORKER_NICE): boolean {
   try {

@@ -26,18 +26,13 @@ import { startJobWorker } from '../../server/jobs/worker';
 import { startCluster, type Cluster } from '../../server/ops/postgres.mjs';
 import { prepareDatabase } from '../../server/ops/setup.mjs';
 import { freePort } from '../../server/ops/sys.mjs';
-import { benchServerProcess } from './server-process';
+import { benchServerProcess, cpuMs, eventLoopDelay, loadAverage, transactions } from './server-process';
 
 const PAIR = JSON.parse(readFileSync(fileURLToPath(new URL('../fixtures/designs/pair-coarse.json', import.meta.url)), 'utf8')) as { name: string };
 const lots = { windowMs: 60_000, limit: 1_000_000 };
 
 const PLAQUETTE = JSON.parse(readFileSync(fileURLToPath(new URL('../fixtures/designs/plaquette.json', import.meta.url)), 'utf8')) as { name: string };
 
-/** the CPU seconds (user + system) a process has used so far, from /proc (Linux) */
-function processCpuSeconds(pid: number): number {
-  const f = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1]!.split(' ');
-  return (Number(f[11]) + Number(f[12])) / 100;
-}
 
 function percentile(sorted: number[], p: number): number {
   if (!sorted.length) return NaN;
@@ -63,7 +58,11 @@ export async function run(): Promise<void> {
   const password = 'bench-password-123';
   await knex('users').insert({ email, password_hash: bcrypt.hashSync(password, 4), display_name: 'Bench', email_verified_at: knex.fn.now() });
   // part 1 runs against a server process with one job worker; part 2 against a server in this process without one
-  const app = await benchServerProcess(databaseUrl, { env: { TETRAWELL_BENCH_JOBS: JSON.stringify({ workers: 1, settings: jobSettings, pollIntervalMs: 100 }) } });
+  // TETRAWELL_BENCH_NODE_ARGS (e.g. `--cpu-prof --cpu-prof-dir=.data/prof`) goes to the server's node, as in the load bench
+  const app = await benchServerProcess(databaseUrl, {
+    nodeArgs: (process.env.TETRAWELL_BENCH_NODE_ARGS ?? '').split(' ').filter(Boolean),
+    env: { TETRAWELL_BENCH_JOBS: JSON.stringify({ workers: 1, settings: jobSettings, pollIntervalMs: 100 }) },
+  });
   let base = app.url;
 
   let cookie = '';
@@ -121,12 +120,19 @@ export async function run(): Promise<void> {
     headers: { cookie },
     requests: [{ path: `/api/projects/${projectId}/jobs` }, { path: `/api/projects/${projectId}/revisions` }],
   };
-  const serverCpu0 = processCpuSeconds(app.child.pid!);
+  const tx0 = await transactions(knex);
+  const serverCpu0 = cpuMs(app.child.pid!);
+  const mainCpu0 = cpuMs(app.child.pid!, 'main');
+  await eventLoopDelay(app.child);
   const result = await new Promise<autocannon.Result>((resolve, reject) => {
     const inst = autocannon(opts, (err, res) => (err ? reject(err) : resolve(res)));
     inst.on('response', (_client: unknown, _status: number, _bytes: number, responseTime: number) => times.push(responseTime));
   });
-  const serverCpu = processCpuSeconds(app.child.pid!) - serverCpu0;
+  const serverCpu = (cpuMs(app.child.pid!) - serverCpu0) / 1000;
+  const mainCpu = (cpuMs(app.child.pid!, 'main') - mainCpu0) / 1000;
+  const eld = await eventLoopDelay(app.child);
+  // the mesh jobs' own statements (progress rows, revisions) and pg-boss's polling count too
+  const tx = (await transactions(knex)) - tx0 - 1;
   times.sort((a, b) => a - b);
   const after = ((await call('GET', `/api/projects/${projectId}/jobs`)).body as { jobs: { id: number; state: string }[] }).jobs.filter((j) => busy.includes(j.id));
   const finished = after.filter((j) => j.state === 'succeeded').length;
@@ -136,14 +142,23 @@ export async function run(): Promise<void> {
       `p50 ${percentile(times, 50).toFixed(1)} ms, p95 ${percentile(times, 95).toFixed(1)} ms, p99 ${percentile(times, 99).toFixed(1)} ms, ` +
       `errors ${result.errors}, timeouts ${result.timeouts}, non-2xx ${result.non2xx} (target p95 < 100 ms, no errors)`,
   );
+  const perRequest = (seconds: number) => ((seconds * 1e6) / Math.max(1, result.requests.total)).toFixed(0);
   console.log(
-    `  server process CPU ${serverCpu.toFixed(1)} s (all its threads, the mesh jobs' included) = ` +
-      `${((serverCpu * 1e6) / Math.max(1, result.requests.total)).toFixed(0)} µs per request; load average ${os.loadavg().map((x) => x.toFixed(2)).join(' / ')}`,
+    `  server process CPU ${serverCpu.toFixed(1)} s (all its threads, the mesh jobs' included) = ${perRequest(serverCpu)} µs per request; ` +
+      `main thread ${mainCpu.toFixed(1)} s = ${perRequest(mainCpu)} µs per request; event-loop delay p50 ${eld.p50.toFixed(1)} ms, ` +
+      `p99 ${eld.p99.toFixed(1)} ms, max ${eld.max.toFixed(1)} ms; ${(tx / Math.max(1, result.requests.total)).toFixed(2)} database ` +
+      `transactions per request (the jobs' included); load average ${loadAverage()}`,
   );
   for (const id of busy) await call('POST', `/api/projects/${projectId}/jobs/${id}/cancel`);
   await waitAll(busy);
   app.child.kill('SIGTERM');
   await new Promise((r) => app.child.once('exit', r));
+  // TETRAWELL_BENCH_JOBS_PARTS=reads runs part 1 only
+  if (!(process.env.TETRAWELL_BENCH_JOBS_PARTS ?? 'reads,workers').split(',').includes('workers')) {
+    await knex.destroy();
+    await cluster?.stop();
+    return;
+  }
 
   const server = await start({
     port: 0,

@@ -6,6 +6,9 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import path from 'node:path';
+import { readFileSync } from 'node:fs';
+import os from 'node:os';
+import type { Knex } from 'knex';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
 const root = path.resolve(here, '..', '..');
@@ -24,5 +27,48 @@ export function benchServerProcess(databaseUrl: string, opts: { nodeArgs?: strin
       if (m) resolve({ child, url: m[1] });
     });
     child.once('exit', (code) => reject(new Error(`the bench server exited with ${code}`)));
+  });
+}
+
+/**
+ * CPU time (user + system, ms) a process has used so far, from /proc/<pid>/stat fields 14 and 15 (proc(5)), in
+ * clock ticks of 1/100 s on Linux (USER_HZ). The figure the lead compares between runs on a loaded machine:
+ * wall-clock latencies move with other people's load, CPU per request much less.
+ */
+export function cpuMs(pid: number, thread?: 'main'): number {
+  // /proc/<pid>/task/<pid>/stat is the main thread alone (its thread id is the process id): the event loop's share
+  const stat = readFileSync(thread === 'main' ? `/proc/${pid}/task/${pid}/stat` : `/proc/${pid}/stat`, 'utf8');
+  // the command name (field 2) may hold spaces: count fields after its closing parenthesis
+  const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+  return (Number(f[11]) + Number(f[12])) * 10;
+}
+
+/**
+ * Transactions PostgreSQL has finished in the bench database: every statement outside an explicit transaction is
+ * one, so the difference over a run divided by the requests is the database round trips per request. The
+ * statistics collector flushes at most once a second (PGSTAT_MIN_INTERVAL), hence the wait.
+ */
+export async function transactions(knex: Knex): Promise<number> {
+  await new Promise((res) => setTimeout(res, 1_500));
+  const r = await knex.raw<{ rows: { n: string }[] }>(`SELECT xact_commit + xact_rollback AS n FROM pg_stat_database WHERE datname = current_database()`);
+  return Number(r.rows[0]!.n);
+}
+
+export const loadAverage = (): string => os.loadavg().map((x) => x.toFixed(2)).join(' / ');
+
+/** Ask the bench server for its event-loop delay since the last ask (load-server.ts answers `ELD {…}` on stdout). */
+export function eventLoopDelay(child: ChildProcess): Promise<{ p50: number; p99: number; max: number }> {
+  return new Promise((resolve) => {
+    let out = '';
+    const onData = (d: Buffer) => {
+      out += d.toString();
+      const m = /ELD (\{[^\n]*\})/.exec(out);
+      if (m) {
+        child.stdout!.off('data', onData);
+        resolve(JSON.parse(m[1]) as { p50: number; p99: number; max: number });
+      }
+    };
+    child.stdout!.on('data', onData);
+    child.stdin!.write('eld\n');
   });
 }

@@ -5,10 +5,13 @@
  */
 import { Worker } from 'node:worker_threads';
 import { getPriority } from 'node:os';
+import { readdirSync, readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
-import { WORKER_NICE } from '../../server/workers/lowPriority';
+import { JOB_NICE, WORKER_NICE } from '../../server/workers/lowPriority';
+import { jobThreads } from '../../server/jobs/threads';
 
+const PAIR = fileURLToPath(new URL('../fixtures/designs/pair-coarse.json', import.meta.url));
 const MODULE = fileURLToPath(new URL('../../server/workers/lowPriority.ts', import.meta.url));
 
 describe('lowerThreadPriority', () => {
@@ -34,6 +37,27 @@ describe('lowerThreadPriority', () => {
     expect(got.tid).not.toBe(process.pid);
     // raised to WORKER_NICE, or kept when it already was lower (a process started under nice)
     expect(got.nice).toBe(Math.max(before, WORKER_NICE));
+    expect(getPriority(process.pid)).toBe(before);
+  });
+
+  it.runIf(process.platform === 'linux')('a job thread runs at the lowest priority, nice 19, and the request thread keeps its own', async () => {
+    const before = getPriority(process.pid);
+    const threads = jobThreads(1);
+    const seen: number[] = [];
+    try {
+      // a small mesh job (the coarse two-donor fixture); the thread lowers itself when it loads, and lives on
+      // after the task (piscina's idle timeout), so every thread's nice value is read back here afterwards
+      const out = await threads.run({ kind: 'mesh', documentJson: readFileSync(PAIR, 'utf8'), options: { order: 1 } }, {});
+      expect(out.ok).toBe(true);
+      for (const tid of readdirSync(`/proc/${process.pid}/task`).map(Number)) {
+        if (tid !== process.pid) seen.push(getPriority(tid));
+      }
+    } finally {
+      await threads.close();
+    }
+    // setpriority(2): 19 is the lowest priority there is
+    expect(JOB_NICE).toBe(19);
+    expect(seen).toContain(Math.max(before, JOB_NICE));
     expect(getPriority(process.pid)).toBe(before);
   });
 });
