@@ -22,6 +22,9 @@ const AREA: Record<CoreErrorCode, RefusalArea> = {
   'sites-coincide': 'solve',
   'not-converged': 'solve',
   'solver-failed': 'solve',
+  'mesh-not-conforming': 'solve',
+  'split-unavailable': 'solve',
+  'no-layered-far-field': 'solve',
   'bad-hierarchy': 'solve',
   aborted: 'cancelled',
 };

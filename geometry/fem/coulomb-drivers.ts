@@ -13,7 +13,7 @@ import type { TetMesh } from '../mesh/types';
 import { residualIndicator, runAdaptive, DEFAULT_THETA } from './adaptive';
 import { CoulombError, type CoulombOptions, type PairEnergy, type SiteEnergy } from './coulomb-types';
 import { solveLevel, epsArray, type LevelSolution } from './coulomb-level';
-import { gradedFamily, irreducibleRelError, type Plan } from './coulomb-plan';
+import { gradedFamily, irreducibleRelError, splitFamily, type Plan } from './coulomb-plan';
 import { budgetsFrom, type History } from './coulomb-budget';
 
 export interface DriverOutcome {
@@ -48,7 +48,7 @@ export function runGraded(design: Design, pl: Plan, order: 1 | 2, opts: CoulombO
   const notes: string[] = [];
   const levels = Math.max(2, Math.floor(opts.levels ?? 3));
   report({ phase: 'mesh', fraction: 0 });
-  const meshes = gradedFamily(design, order, levels, opts.mesh ?? {});
+  const meshes = pl.method === 'split' ? splitFamily(design, pl.sites, order, levels, opts.mesh ?? {}) : gradedFamily(design, order, levels, opts.mesh ?? {});
   // weights of the levels in the progress bar: proportional to their sizes
   const w = meshes.map((m) => m.tets.length);
   const wSum = w.reduce((a, b) => a + b, 0);
@@ -58,7 +58,7 @@ export function runGraded(design: Design, pl: Plan, order: 1 | 2, opts: CoulombO
     throwIfAborted(opts.signal);
     const sol = solveLevel(design, meshes[l], order, pl.sites, pl.pairIdx, opts, (phase, site, f) =>
       report({ phase, level: l + 1, site, fraction: (done + w[l] * f) / wSum }),
-    );
+    pl.method);
     record(h, sol, meshes[l]);
     finest = sol;
     done += w[l];

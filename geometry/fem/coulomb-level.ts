@@ -15,7 +15,9 @@ import { multigridPreconditioner } from './multigrid';
 import { pcg, jacobi, type Preconditioner } from './pcg';
 import type { Csr } from './csr';
 import { densityLoad } from './load';
-import { boundaryValues } from './boundary';
+import { boundaryValues, layeredBoundaryValues } from './boundary';
+import { deviceMesh, deviceStack, electrodeDofs, epsByRegion, epsilonAt, hasDevice } from './device';
+import { freeSelfEnergy, pairClosedForm, reactionRhs, singularPotential } from './split';
 import { CoulombError, type CoulombOptions, type LevelReport } from './coulomb-types';
 
 export interface ActiveSite {
@@ -46,25 +48,42 @@ export interface LevelSolution {
 /** The discrete charge must match the charge inside the box to this (absolute; issue 5). */
 export const CHARGE_TOLERANCE = 1e-6;
 
+/** εr by region id of the design (device.ts: layers, electrode elements; the host's εr without layers). */
 export function epsArray(design: Design): Float64Array {
-  // homogeneous host now: every region id gets the host's εr (layers would fill this per region)
-  return new Float64Array(256).fill(design.host.epsilonR);
+  return epsByRegion(design);
 }
+
+/** How a level computes each site: the full solve, or closed form + smooth remainder (split.ts). */
+export type SolveMethod = 'full' | 'split';
 
 /**
  * Solve every active site's potential on one mesh and form the energies (in nm⁻¹; multiply by
- * COULOMB_EV_NM for eV).
+ * COULOMB_EV_NM for eV). With layers or electrodes the mesh must conform (device.ts; refused
+ * otherwise), εr is per region, electrode dofs are Dirichlet 0 and a multipole box takes the
+ * layered far field (boundary.ts layeredBoundaryValues). With method 'split' `phis` hold the
+ * remainders φ_r and `self`/`pair` the closed forms plus the remainders (split.ts).
  */
 export function solveLevel(
   design: Design,
-  mesh: TetMesh,
+  meshIn: TetMesh,
   order: 1 | 2,
   sites: ActiveSite[],
   pairIdx: Int32Array,
   opts: CoulombOptions,
   report: LevelReport,
+  method: SolveMethod = 'full',
 ): LevelSolution {
-  const space = buildSpace(mesh, order);
+  const device = hasDevice(design);
+  const mesh = device ? deviceMesh(design, meshIn) : meshIn;
+  const space0 = buildSpace(mesh, order);
+  // Dirichlet dofs: the walls, and with electrodes every dof in or on one
+  const elec = device ? electrodeDofs(design, space0.dofCoords) : null;
+  let space = space0;
+  if (elec) {
+    const mask = Uint8Array.from(space0.boundaryDof);
+    for (let k = 0; k < mask.length; k++) if (elec[k]) mask[k] = 1;
+    space = { ...space0, boundaryDof: mask };
+  }
   const eps = epsArray(design);
   const K = assembleStiffness(space, eps);
   const n = space.nDofs;
@@ -72,6 +91,10 @@ export function solveLevel(
   const loads: Float64Array[] = [];
   const charges: number[] = [];
   const notes: string[] = [];
+  const closedSelf = new Float64Array(sites.length);
+  const epsSite = sites.map((st) => epsilonAt(design, st.position[2]));
+  const layeredWalls = device && design.domain.boundary.kind === 'multipole';
+  const stack = layeredWalls ? deviceStack(design) : null;
   let A: Csr | null = null;
   let M: Preconditioner | null = null;
   let iterations = 0;
@@ -87,9 +110,33 @@ export function solveLevel(
         `Site ${site.id}: the discrete charge ${L.charge.toFixed(9)} differs from the charge inside the box ${inside.toFixed(9)} by ${Math.abs(L.charge - inside).toExponential(2)} (more than ${CHARGE_TOLERANCE}): the density is under-resolved by the quadrature, so U and V carry an extra error of about that relative size.`,
       );
     }
-    const b = new Float64Array(n);
-    for (let k = 0; k < n; k++) b[k] = 4 * Math.PI * L.load[k];
-    const g = boundaryValues(design.domain.boundary, site.orbital, site.position, design.host.epsilonR, space.dofCoords, space.boundaryDof);
+    // wall values of the whole potential: the homogeneous multipole, or the layered far field
+    let g: Float64Array;
+    if (stack) {
+      const walls = Uint8Array.from(space0.boundaryDof);
+      if (elec) for (let k = 0; k < walls.length; k++) if (elec[k]) walls[k] = 0;
+      const lb = layeredBoundaryValues(stack, site.position, space.dofCoords, walls);
+      if (lb.g === null) {
+        throw new CoulombError('no-layered-far-field', `the layered host has no far-field series for site ${site.id} (${lb.code}): use a grounded box`, { siteId: site.id, code: lb.code });
+      }
+      g = lb.g;
+    } else {
+      g = boundaryValues(design.domain.boundary, site.orbital, site.position, design.host.epsilonR, space.dofCoords, space0.boundaryDof);
+    }
+    let b: Float64Array;
+    if (method === 'split') {
+      // remainder: wall values g − φ_s, electrode values −φ_s (elec dofs have g = 0), rhs where ε ≠ ε_i
+      const mask = space.boundaryDof;
+      for (let k = 0; k < n; k++) {
+        if (!mask[k]) continue;
+        g[k] -= singularPotential(site.orbital, site.position, epsSite[s], space.dofCoords[3 * k], space.dofCoords[3 * k + 1], space.dofCoords[3 * k + 2]);
+      }
+      b = device ? reactionRhs(space, mesh, eps, epsSite[s], site.orbital, site.position) : new Float64Array(n);
+      closedSelf[s] = freeSelfEnergy(site.orbital) / epsSite[s];
+    } else {
+      b = new Float64Array(n);
+      for (let k = 0; k < n; k++) b[k] = 4 * Math.PI * L.load[k];
+    }
     // the lifted matrix is the same for every site: lift it once, then only the right-hand side
     let rhs: Float64Array;
     if (!A) {
@@ -121,12 +168,19 @@ export function solveLevel(
     charges.push(L.charge);
   }
   const self = new Float64Array(ns);
-  for (let s = 0; s < ns; s++) self[s] = dotv(loads[s], phis[s]);
+  for (let s = 0; s < ns; s++) self[s] = closedSelf[s] + dotv(loads[s], phis[s]);
   const np = pairIdx.length / 2;
   const pair = new Float64Array(np);
   for (let p = 0; p < np; p++) {
     const i = pairIdx[2 * p], j = pairIdx[2 * p + 1];
-    pair[p] = 0.5 * (dotv(loads[j], phis[i]) + dotv(loads[i], phis[j]));
+    let closed = 0;
+    if (method === 'split') {
+      const a = sites[i].position, c = sites[j].position;
+      const P = pairClosedForm(sites[i].orbital, sites[j].orbital, Math.hypot(a[0] - c[0], a[1] - c[1], a[2] - c[2]));
+      if (P === null) throw new CoulombError('split-unavailable', `no closed-form interaction for the pair ${sites[i].id}–${sites[j].id}`, { a: sites[i].id, b: sites[j].id });
+      closed = 0.5 * (P / epsSite[i] + P / epsSite[j]);
+    }
+    pair[p] = closed + 0.5 * (dotv(loads[j], phis[i]) + dotv(loads[i], phis[j]));
   }
   return { space, phis, loads, charges, self, pair, iterations, A: A ?? K, notes };
 }

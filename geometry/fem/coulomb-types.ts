@@ -8,7 +8,7 @@ import type { DensityLoadOptions } from './load';
 import type { MeshDesignOptions } from '../mesh/index';
 
 /** A refusal of the Coulomb layer: a CoreError (geometry/errors.ts) with a stable code and details. */
-export class CoulombError extends CoreError<'no-electrons' | 'no-sites' | 'unknown-site' | 'site-outside' | 'sites-coincide' | 'not-converged' | 'solver-failed'> {
+export class CoulombError extends CoreError<'no-electrons' | 'no-sites' | 'unknown-site' | 'site-outside' | 'sites-coincide' | 'not-converged' | 'solver-failed' | 'mesh-not-conforming' | 'split-unavailable' | 'no-layered-far-field'> {
   constructor(code: CoulombError['code'], message: string, details: CoreErrorDetails = {}) {
     super(code, message, details);
     this.name = 'CoulombError';
@@ -41,6 +41,13 @@ export interface CoulombOptions {
   levels?: number;
   /** extra options for the a priori mesh (e.g. h0Factor) */
   mesh?: MeshDesignOptions;
+  /**
+   * 'split' (closed form in the site's layer + a smooth remainder on coarse meshes, split.ts),
+   * 'full' (the whole potential on graded meshes), or 'auto' (default): split when every site has
+   * a closed-form potential and every pair a closed-form interaction and the mode is graded, else
+   * full. Asking for 'split' where it is unavailable is refused ('split-unavailable').
+   */
+  method?: 'auto' | 'split' | 'full';
   /** PCG relative residual (default 1e-10) */
   solverTol?: number;
   preconditioner?: 'multigrid' | 'jacobi';
@@ -69,6 +76,8 @@ export interface ErrorBudget {
 
 export interface SiteEnergy {
   id: string;
+  /** how this number was computed (split.ts / the full solve) */
+  method: 'split' | 'full';
   uEv: number;
   uErrorEv: number;
   budget: ErrorBudget;
@@ -78,6 +87,7 @@ export interface SiteEnergy {
 
 export interface PairEnergy {
   a: string;
+  method: 'split' | 'full';
   b: string;
   distanceNm: number;
   vEv: number;
@@ -108,6 +118,8 @@ export interface CoulombResult {
   estimatedRelError: number;
   targetRelError: number;
   mode: 'graded' | 'adaptive';
+  /** the method of every number of this result (split.ts, or the full solve) */
+  method: 'split' | 'full';
   levels: LevelSummary[];
   notes: string[];
   assumptions: string[];
@@ -115,7 +127,8 @@ export interface CoulombResult {
 
 /** What the readable outputs say about the model (the far-field check's list plus ours). */
 export const COULOMB_ASSUMPTIONS = [
-  'Homogeneous host with the design\'s relative permittivity; no interfaces, gates or screening.',
+  'The host is the design\'s: one relative permittivity, or the planar stack of its layers (one εr per layer, sharp interfaces); electrodes are perfect conductors (a heavily doped lead is modelled as a metal) at 0 V for U and V; no screening by free carriers.',
+  'Method "split": the closed-form potential of the density in an infinite host of its own layer plus a finite-element remainder (interfaces, electrodes, box walls); method "full": the whole potential by finite elements. Each number says which.',
   'Each site is a fixed, unit-normalised model density (hydrogenic, anisotropic single-valley or Gaussian envelope); U and V are the classical Coulomb integrals of these densities, without exchange or correlation.',
   'Error bars combine discretisation (Richardson on nested meshes), the boundary bound (maximum principle) and the density cut by the box; they are estimates, not guarantees.',
   'Every site carries a like unit charge: for a boron acceptor (a hole) the sign of V with a donor electron is reversed, and its envelope is the donor one, a placeholder.',

@@ -78,6 +78,7 @@ export function solveCoulomb(design: Design, opts: CoulombOptions = {}): Coulomb
     estimatedRelError: out.rel,
     targetRelError: tol,
     mode,
+    method: pl.method,
     levels: h.levels,
     notes,
     assumptions: COULOMB_ASSUMPTIONS,

@@ -27,6 +27,8 @@ export function coulombJson(r: CoulombResult) {
     seconds: r.seconds,
     meetsTarget: r.meetsTarget,
     estimatedRelError: r.estimatedRelError,
+    /** 'split' (closed form + finite-element remainder) or 'full' (issue 11) */
+    method: r.method,
     notes: r.notes,
   };
 }

@@ -28,9 +28,10 @@ function twoGaussians(R: number, sigma: number, half: number, tol: number): Desi
 }
 
 describe('solveCoulomb', () => {
-  it('Gaussian self-energy e²/(4πε0 εr)/(σ√π) and pair energy e²/(4πε0 εr)·erf(R/2σ)/R within the error bars (standard Gaussian results)', () => {
+  it.each(['full', 'split'] as const)('%s: Gaussian self-energy e²/(4πε0 εr)/(σ√π) and pair energy e²/(4πε0 εr)·erf(R/2σ)/R within the error bars (standard Gaussian results)', (method) => {
     const sigma = 1, R = 3;
-    const r = solveCoulomb(twoGaussians(R, sigma, 16, 1e-3));
+    const r = solveCoulomb(twoGaussians(R, sigma, 16, 1e-3), { method });
+    expect(r.method).toBe(method);
     const uExact = K / (sigma * Math.sqrt(Math.PI));
     const vExact = (K * erf(R / (2 * sigma))) / R;
     expect(r.sites.map((s) => s.id)).toEqual(['a', 'b']); // the ionised site has no density
@@ -74,7 +75,7 @@ describe('solveCoulomb', () => {
     const d = oneSite({ model: 'hydrogenic-1s', radiusNm: 0.01 }, { half: 40, tol: 1e-4, maxElements: 3000 });
     let err: unknown = null;
     try {
-      solveCoulomb(d);
+      solveCoulomb(d, { method: 'full' });
     } catch (e) {
       err = e;
     }
@@ -152,8 +153,8 @@ describe('solveCoulomb', () => {
 
   it('P1 and P2 on the same meshes agree to their error estimates', () => {
     const d = oneSite({ model: 'hydrogenic-1s', radiusNm: 2.5 }, { half: 30, tol: 3e-3, order: 2 });
-    const r2 = solveCoulomb(d, { order: 2 });
-    const r1 = solveCoulomb(d, { order: 1, mesh: { order: 2 } });
+    const r2 = solveCoulomb(d, { order: 2, method: 'full' });
+    const r1 = solveCoulomb(d, { order: 1, mesh: { order: 2 }, method: 'full' });
     expect(r1.elements).toBe(r2.elements);
     const a = r1.sites[0], b = r2.sites[0];
     expect(Math.abs(a.uEv - b.uEv)).toBeLessThanOrEqual(a.uErrorEv + b.uErrorEv);
@@ -169,8 +170,8 @@ describe('solveCoulomb', () => {
       sites: d.sites.map((s) => ({ ...s, position: [s.position[0] + t, s.position[1] + t, s.position[2]] })),
       domain: { ...d.domain, center: [t, t, 0] },
     };
-    const a = solveCoulomb(d, { levels: 2 });
-    const b = solveCoulomb(shifted, { levels: 2 });
+    const a = solveCoulomb(d, { levels: 2, method: 'full' });
+    const b = solveCoulomb(shifted, { levels: 2, method: 'full' });
     expect(b.elements).toBe(a.elements);
     expect(Math.abs(a.sites[0].uEv - b.sites[0].uEv) / a.sites[0].uEv).toBeLessThan(1e-8);
   });
