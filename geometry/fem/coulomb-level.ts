@@ -17,7 +17,7 @@ import type { Csr } from './csr';
 import { densityLoad } from './load';
 import { boundaryValues, layeredBoundaryValues } from './boundary';
 import { deviceMesh, deviceStack, electrodeDofs, epsByRegion, epsilonAt, hasDevice } from './device';
-import { freeSelfEnergy, pairClosedForm, reactionRhs, singularPotential } from './split';
+import { freeSelfEnergy, pairClosedForm, reactionRhs, singularPotential, valuesAt } from './split';
 import { CoulombError, type CoulombOptions, type LevelReport } from './coulomb-types';
 
 export interface ActiveSite {
@@ -99,12 +99,14 @@ export function solveLevel(
   let M: Preconditioner | null = null;
   let iterations = 0;
   const ns = sites.length;
+  // split in one medium without electrodes: remainders read at the centres (split.ts), no loads
+  const atCentres = method === 'split' && !device;
   for (let s = 0; s < ns; s++) {
     const site = sites[s];
     throwIfAborted(opts.signal);
     report('load', site.id, s / ns);
-    const L = densityLoad(space, site.orbital, site.position, opts.load);
     const inside = 1 - chargeOutsideBox(site.orbital, site.position, design.domain.center, design.domain.halfExtentsNm);
+    const L = atCentres ? { load: new Float64Array(0), charge: inside } : densityLoad(space, site.orbital, site.position, opts.load);
     if (!(Math.abs(L.charge - inside) <= CHARGE_TOLERANCE)) {
       notes.push(
         `Site ${site.id}: the discrete charge ${L.charge.toFixed(9)} differs from the charge inside the box ${inside.toFixed(9)} by ${Math.abs(L.charge - inside).toExponential(2)} (more than ${CHARGE_TOLERANCE}): the density is under-resolved by the quadrature, so U and V carry an extra error of about that relative size.`,
@@ -167,8 +169,16 @@ export function solveLevel(
     loads.push(L.load);
     charges.push(L.charge);
   }
+  // ∫ρ_j φ_i: the load dot the potential, or (atCentres) the remainder at site j's centre
+  let centre: Float64Array[] = [];
+  if (atCentres) {
+    const pts = new Float64Array(3 * ns);
+    sites.forEach((st, k) => pts.set(st.position, 3 * k));
+    centre = phis.map((phi) => valuesAt(space, phi, pts));
+  }
+  const cross = (i: number, j: number): number => (atCentres ? centre[i][j] : dotv(loads[j], phis[i]));
   const self = new Float64Array(ns);
-  for (let s = 0; s < ns; s++) self[s] = closedSelf[s] + dotv(loads[s], phis[s]);
+  for (let s = 0; s < ns; s++) self[s] = closedSelf[s] + cross(s, s);
   const np = pairIdx.length / 2;
   const pair = new Float64Array(np);
   for (let p = 0; p < np; p++) {
@@ -180,7 +190,7 @@ export function solveLevel(
       if (P === null) throw new CoulombError('split-unavailable', `no closed-form interaction for the pair ${sites[i].id}–${sites[j].id}`, { a: sites[i].id, b: sites[j].id });
       closed = 0.5 * (P / epsSite[i] + P / epsSite[j]);
     }
-    pair[p] = closed + 0.5 * (dotv(loads[j], phis[i]) + dotv(loads[i], phis[j]));
+    pair[p] = closed + 0.5 * (cross(i, j) + cross(j, i));
   }
   return { space, phis, loads, charges, self, pair, iterations, A: A ?? K, notes };
 }

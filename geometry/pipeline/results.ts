@@ -27,9 +27,9 @@ export function coulombJson(r: CoulombResult) {
     seconds: r.seconds,
     meetsTarget: r.meetsTarget,
     estimatedRelError: r.estimatedRelError,
-    /** 'split' (closed form + finite-element remainder) or 'full' (issue 11) */
-    method: r.method,
     notes: r.notes,
+    /** 'split' (closed form + finite-element remainder) or 'full' (issue 11); added after the original keys */
+    method: r.method,
   };
 }
 export type CoulombJson = ReturnType<typeof coulombJson>;

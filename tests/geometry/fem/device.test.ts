@@ -168,3 +168,27 @@ describe('refusals and the device mesh', () => {
     for (let i = 0; i < hom.length; i++) expect(lay.g![i]).toBeCloseTo(hom[i], 13);
   });
 });
+
+describe('homogeneous host, grounded box: the split reads the remainder at the centres (mean-value property)', () => {
+  it('split and full agree on U within their error bars, the split converges within its own bars, and the walls matter', () => {
+    const d = device({ boundary: { kind: 'grounded' }, half: 8, sites: [[-1.5, 0.5, 0.2], [1.5, 0.5, 0.2]] });
+    const split = solveCoulomb(d, { method: 'split' });
+    const full = solveCoulomb(d, { method: 'full' });
+    expect(split.method).toBe('split');
+    const free = COULOMB_EV_NM / SI / (SIGMA * Math.sqrt(Math.PI)); // standard Gaussian self-energy
+    expect(free - split.sites[0].uEv).toBeGreaterThan(10 * (split.sites[0].uErrorEv - split.sites[0].budget.boundaryEv));
+    for (let k = 0; k < 2; k++) {
+      // the boundary bound is the same term in both (the grounded walls are exact here): compare the rest
+      const bs = split.sites[k].uErrorEv - split.sites[k].budget.boundaryEv;
+      const bf = full.sites[k].uErrorEv - full.sites[k].budget.boundaryEv;
+      expect(Math.abs(split.sites[k].uEv - full.sites[k].uEv)).toBeLessThanOrEqual(bs + bf);
+    }
+    // V: the split against a finer split (twice finer core, four levels) within the split's bar.
+    // Not against the full solve: on this case the full graded solve's V is 2.2e-6 eV off the
+    // converged split while its discretisation bar is 1.6e-6 eV (measured 2026-12-02; a shortfall
+    // of the full solver's bar for V in a grounded box, reported, not hidden here).
+    const finer = solveCoulomb(d, { method: 'split', levels: 4, mesh: { h0Factor: 0.5 } });
+    expect(Math.abs(split.pairs[0].vEv - finer.pairs[0].vEv)).toBeLessThanOrEqual(split.pairs[0].vErrorEv - split.pairs[0].budget.boundaryEv);
+    expect(Math.abs(split.sites[0].uEv - finer.sites[0].uEv)).toBeLessThanOrEqual(split.sites[0].uErrorEv - split.sites[0].budget.boundaryEv);
+  });
+});
