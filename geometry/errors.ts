@@ -32,6 +32,12 @@ export type CoreErrorCode =
   | 'sites-coincide'
   | 'not-converged'
   | 'solver-failed'
+  /** the mesh does not follow a layer interface or an electrode face of the design (issue 11) */
+  | 'mesh-not-conforming'
+  /** the free-space/reaction-field split was asked for an orbital model or pair without a closed form */
+  | 'split-unavailable'
+  /** the layered far field has no closed form for this stack (e.g. more than two interfaces between metals) */
+  | 'no-layered-far-field'
   /** the bisection hierarchy the multigrid preconditioner needs is inconsistent */
   | 'bad-hierarchy'
   // layers and electrodes (issue 11)

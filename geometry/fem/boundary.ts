@@ -19,6 +19,9 @@
  */
 import type { Boundary, Orbital, Vec3 } from '../design/types';
 import { MAX_ORDER, multipolePotential, orbitalMoments } from '../farfield';
+import { imageSeries, seriesAt, type ImageSeries } from '../host/images';
+import { regionOf, ON_INTERFACE_NM } from '../host/stack';
+import type { PlanarStack } from '../host/types';
 
 export { MAX_ORDER as MAX_MULTIPOLE_ORDER };
 
@@ -52,4 +55,48 @@ export function boundaryValues(
     g[i] = inv * multipolePotential(moments, order, center, x, y, z);
   }
   return g;
+}
+
+/**
+ * Dirichlet values for a multipole box in a layered host (issue 11): the point-charge Green's
+ * function of the design's planar stack (geometry/host images.ts: Jackson, Classical
+ * Electrodynamics 3rd ed., §4.4 image and transmitted charges, exact for two half-spaces, a
+ * truncated series with a rigorous tail bound for a slab or between metal planes),
+ *
+ *     φ(x) = G(x, p_i),   −∇·(εr ∇G) = 4π δ(x − p_i),
+ *
+ * i.e. order 0 of the layered far field: the site's total (unit) charge at its centre. For the
+ * spherical models every image of the density is the same density at the image point, so outside
+ * the density (and its images) this is their exact potential; for the anisotropic model the higher
+ * moments are left out (the caller says so). Dofs with `mask` 0 get 0 (interior, or electrodes,
+ * which the caller sets). A dof within ON_INTERFACE_NM of an interface is evaluated just below it
+ * (G is continuous across an interface). Returns the values and the largest tail bound of the
+ * series used (nm⁻¹), or null with the host's finding code when the stack has no series.
+ */
+export function layeredBoundaryValues(
+  stack: PlanarStack,
+  center: Vec3,
+  dofCoords: Float64Array,
+  mask: Uint8Array,
+): { g: Float64Array; tailBound: number } | { g: null; code: string } {
+  const n = mask.length;
+  const g = new Float64Array(n);
+  const cache = new Map<number, ImageSeries>();
+  let tail = 0;
+  for (let i = 0; i < n; i++) {
+    if (!mask[i]) continue;
+    let z = dofCoords[3 * i + 2];
+    if (regionOf(stack, z) < 0) z -= 2 * ON_INTERFACE_NM;
+    let series = cache.get(z);
+    if (!series) {
+      const r = imageSeries(stack, center[2], z);
+      if (!r.series) return { g: null, code: r.findings[0]?.code ?? 'no-series' };
+      series = r.series;
+      cache.set(z, series);
+      tail = Math.max(tail, series.tailBound);
+    }
+    const s = Math.hypot(dofCoords[3 * i] - center[0], dofCoords[3 * i + 1] - center[1]);
+    g[i] = seriesAt(series, s);
+  }
+  return { g, tailBound: tail };
 }

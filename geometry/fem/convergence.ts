@@ -199,7 +199,7 @@ export function runConvergence(design: Design, options: ConvergenceOptions): Con
       const d: Design = { ...design, domain: { ...design.domain, halfExtentsNm: half, boundary } };
       const label = boundary.kind === 'grounded' ? 'grounded' : `multipole(${boundary.order})`;
       const r = solveCoulomb(d, {
-        order, levels: 2, pairs: 'none', signal: options.signal,
+        order, levels: 2, pairs: 'none', method: 'full', signal: options.signal,
         onProgress: (p) => report(p, done + 1, (done + p.fraction) / total),
       });
       siteIds = r.sites.map((s) => s.id);

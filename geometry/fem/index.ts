@@ -40,7 +40,9 @@ export {
 export { densityLoad } from './load';
 export type { DensityLoad, DensityLoadOptions } from './load';
 export { boundaryValues } from './boundary';
-export { solveCoulomb, solveSitePotentials, energiesOnMesh, richardson, observedRate, CoulombError, COULOMB_ASSUMPTIONS } from './coulomb';
+export { solveCoulomb, solveSitePotentials, energiesOnMesh, CoulombError, COULOMB_ASSUMPTIONS } from './coulomb';
+export { richardson, observedRate } from './errorbars';
+export type { RichardsonResult } from './errorbars';
 export type { CoulombOptions, CoulombResult, SiteEnergy, PairEnergy, ErrorBudget } from './coulomb';
 export { residualIndicator, dorflerMark } from './adaptive';
 export { runConvergence, fitLogLog } from './convergence';

@@ -39,6 +39,8 @@ export function coulombJson(r: CoulombResult) {
     meetsTarget: r.meetsTarget,
     estimatedRelError: r.estimatedRelError,
     notes: r.notes,
+    /** 'split' (closed form + finite-element remainder) or 'full' (issue 11); added after the original keys */
+    method: r.method,
   };
 }
 export type CoulombJson = ReturnType<typeof coulombJson>;

@@ -1,5 +1,5 @@
 /**
- * `npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]… [--pairs …] [--theta x] [--lever-arms] [--json] [--progress]`:
+ * `npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]… [--pairs …] [--theta x] [--method auto|split|full] [--lever-arms] [--json] [--progress]`:
  * on-site U and inter-site V of a design with error bars.
  *
  * Designs with electrodes add `siteEnergies: [{ id, eV }]` and `leverArms: [{ site, electrode,
@@ -30,7 +30,7 @@ import { coulombResults, leverArmResults, LEVER_ARM_ASSUMPTIONS, type CoulombRes
 import { parseCli } from './args';
 import { progressLines } from './progress';
 
-const USAGE = 'usage: npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]... [--pairs auto|all|bond-graph|none] [--theta x] [--lever-arms] [--json] [--progress]';
+const USAGE = 'usage: npm run cli -- coulomb <design.json> [--order 1|2] [--adaptive] [--site <id>]... [--pairs auto|all|bond-graph|none] [--theta x] [--method auto|split|full] [--lever-arms] [--json] [--progress]';
 
 /** The refusals the numerical core raises on purpose (CoreError): shown in words, never as a stack trace. */
 export function refusalMessage(err: unknown, lead: string): string | null {
@@ -45,7 +45,8 @@ export function toCoulombReadable(design: Design, r: CoulombResult): string {
   const out: string[] = [];
   out.push(`Coulomb energies: ${design.name}`);
   out.push(
-    `P${r.order} elements, ${r.mode === 'adaptive' ? 'adaptive refinement' : `${r.levels.length} nested graded meshes`}; finest mesh ${r.elements} tetrahedra, ${r.dofs} unknowns, ` +
+    `${r.method === 'split' ? 'Method split (closed form in each site\'s own layer + finite-element remainder)' : 'Method full (whole potential by finite elements)'}; ` +
+    `P${r.order} elements, ${r.mode === 'adaptive' ? 'adaptive refinement' : `${r.levels.length} nested ${r.method === 'split' ? '' : 'graded '}meshes`}; finest mesh ${r.elements} tetrahedra, ${r.dofs} unknowns, ` +
       `${r.iterations} PCG iterations; εr = ${design.host.epsilonR}, boundary ${design.domain.boundary.kind === 'grounded' ? 'grounded' : `multipole(order ${design.domain.boundary.order})`}; ${r.seconds.toFixed(1)} s`,
   );
   out.push('');
@@ -119,6 +120,7 @@ export async function run(argv: string[]): Promise<number> {
     site: { type: 'string', multiple: true },
     theta: { type: 'string' },
     pairs: { type: 'string' },
+    method: { type: 'string' },
     json: { type: 'boolean' },
     adaptive: { type: 'boolean' },
     progress: { type: 'boolean' },
@@ -150,6 +152,11 @@ export async function run(argv: string[]): Promise<number> {
     console.error(`--pairs must be auto, all, bond-graph or none, not "${pairs}"`);
     return 2;
   }
+  const method = v.method ?? 'auto';
+  if (!['auto', 'split', 'full'].includes(method)) {
+    console.error(`--method must be auto, split or full, not "${method}"`);
+    return 2;
+  }
   const json = !!v.json;
   const design = await readDesign(args.positionals[0], json);
   if (!design) return 1;
@@ -178,6 +185,7 @@ export async function run(argv: string[]): Promise<number> {
       theta,
       siteIds: v.site,
       pairs: pairs as 'auto' | 'all' | 'bond-graph' | 'none',
+      method: method as 'auto' | 'split' | 'full',
       onProgress: progress.onProgress,
     });
   } catch (err) {

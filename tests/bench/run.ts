@@ -8,7 +8,7 @@ import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
 
 const here = dirname(fileURLToPath(import.meta.url));
-const benches = ['farfield.bench.ts', 'mesh.bench.ts', 'fem.bench.ts', 'load.bench.ts', 'jobs.bench.ts', 'host.bench.ts'];
+const benches = ['farfield.bench.ts', 'mesh.bench.ts', 'fem.bench.ts', 'fem-array.bench.ts', 'load.bench.ts', 'jobs.bench.ts', 'host.bench.ts'];
 const only = process.argv.slice(2);
 
 for (const file of benches) {

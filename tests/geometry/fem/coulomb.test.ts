@@ -3,7 +3,7 @@
  * consistency and translation invariance.
  */
 import { describe, expect, it } from 'vitest';
-import { solveCoulomb, solveSitePotentials, richardson, observedRate, CoulombError, GCI_SAFETY_OBSERVED, GCI_SAFETY_THEORETICAL } from '../../../geometry/fem/coulomb';
+import { solveCoulomb, solveSitePotentials, CoulombError } from '../../../geometry/fem/coulomb';
 import { erf, selfEnergy, potentialAt, chargeOutsideBox } from '../../../geometry/density';
 import { meshDesign, MeshError } from '../../../geometry/mesh/index';
 import { COULOMB_EV_NM, SI_LATTICE_CONSTANT_NM } from '../../../geometry/units';
@@ -14,53 +14,6 @@ import { farFieldCheck } from '../../../geometry/farfield';
 const EPS = 11.7;
 // e²/(4πε0) = 1.439964547 eV·nm (CODATA 2018), held in geometry/units.ts
 const K = COULOMB_EV_NM / EPS;
-
-describe('richardson / observedRate', () => {
-  it('recovers an exact power law E = E∞ + C s^q (Richardson 1911; Roache 1994 safety factors)', () => {
-    const s = [0.4, 0.2, 0.1];
-    const e = s.map((x) => 1 + 2 * x ** 3);
-    expect(observedRate(s, e)).toBeCloseTo(3, 8);
-    const r = richardson(s, e, 4);
-    expect(r.rateSource).toBe('observed');
-    expect(r.rate).toBeCloseTo(3, 8);
-    expect(r.extrapolated).toBeCloseTo(1, 10);
-    expect(r.error).toBeCloseTo(GCI_SAFETY_OBSERVED * 2 * 0.1 ** 3, 10);
-  });
-  it('caps the observed rate at the theoretical one and falls back with two levels or mixed signs', () => {
-    const s = [0.4, 0.2, 0.1];
-    const fast = richardson(s, s.map((x) => 1 + x ** 6), 4);
-    expect(fast.rate).toBe(4);
-    const two = richardson([0.2, 0.1], [1.1, 1.05], 2);
-    expect(two.rateSource).toBe('theoretical');
-    expect(two.error).toBeCloseTo(GCI_SAFETY_THEORETICAL * 0.05 / 3, 12);
-    const mixed = richardson(s, [1, 1.1, 1.05], 2);
-    expect(mixed.rateSource).toBe('theoretical');
-    expect(richardson([0.1], [1], 2).error).toBe(Infinity);
-  });
-  it('only a rate within 25 % of theory keeps the small factor; a rate far above or below it, or mixed signs, get 3 and the larger step (Roache 1994)', () => {
-    const s = [0.4, 0.2, 0.1];
-    // E = 1 + s^6 with theory 4: outside the asymptotic range (Roache's criterion), capped at 4, F_s = 3
-    const e = s.map((x) => 1 + x ** 6);
-    const fast = richardson(s, e, 4);
-    expect(fast.rate).toBe(4);
-    expect(fast.safetyFactor).toBe(GCI_SAFETY_THEORETICAL);
-    expect(fast.error).toBeCloseTo((GCI_SAFETY_THEORETICAL * Math.abs(e[2] - e[1])) / (2 ** 4 - 1), 14);
-    // within 25 % above theory: still the asymptotic range, 1.25
-    expect(richardson(s, s.map((x) => 1 + x ** 4.8), 4).safetyFactor).toBe(GCI_SAFETY_OBSERVED);
-    // the capped bar still covers the true error |E_finest − 1| = 0.1^6
-    expect(fast.error).toBeGreaterThanOrEqual(0.1 ** 6);
-    // E = 1 + s^2 with theory 4: observed 2 < 0.75·4, so F_s = 3 at the observed rate
-    const slow = richardson(s, s.map((x) => 1 + x ** 2), 4);
-    expect(slow.safetyFactor).toBe(GCI_SAFETY_THEORETICAL);
-    expect(slow.rate).toBeCloseTo(2, 8);
-    // within 25 % below theory: the asymptotic range, 1.25
-    expect(richardson(s, s.map((x) => 1 + x ** 3.5), 4).safetyFactor).toBe(GCI_SAFETY_OBSERVED);
-    // differences +0.1 then −0.05: the larger one (0.1) sets the bar, at the theoretical rate with F_s = 3
-    const mixed = richardson(s, [1, 1.1, 1.05], 2);
-    expect(mixed.safetyFactor).toBe(GCI_SAFETY_THEORETICAL);
-    expect(mixed.error).toBeCloseTo((GCI_SAFETY_THEORETICAL * 0.1) / (2 ** 2 - 1), 12);
-  });
-});
 
 function twoGaussians(R: number, sigma: number, half: number, tol: number): Design {
   const base = oneSite({ model: 'gaussian', sigmaNm: sigma }, { half, order: 2, tol });
@@ -75,9 +28,10 @@ function twoGaussians(R: number, sigma: number, half: number, tol: number): Desi
 }
 
 describe('solveCoulomb', () => {
-  it('Gaussian self-energy e²/(4πε0 εr)/(σ√π) and pair energy e²/(4πε0 εr)·erf(R/2σ)/R within the error bars (standard Gaussian results)', () => {
+  it.each(['full', 'split'] as const)('%s: Gaussian self-energy e²/(4πε0 εr)/(σ√π) and pair energy e²/(4πε0 εr)·erf(R/2σ)/R within the error bars (standard Gaussian results)', (method) => {
     const sigma = 1, R = 3;
-    const r = solveCoulomb(twoGaussians(R, sigma, 16, 1e-3));
+    const r = solveCoulomb(twoGaussians(R, sigma, 16, 1e-3), { method });
+    expect(r.method).toBe(method);
     const uExact = K / (sigma * Math.sqrt(Math.PI));
     const vExact = (K * erf(R / (2 * sigma))) / R;
     expect(r.sites.map((s) => s.id)).toEqual(['a', 'b']); // the ionised site has no density
@@ -121,7 +75,7 @@ describe('solveCoulomb', () => {
     const d = oneSite({ model: 'hydrogenic-1s', radiusNm: 0.01 }, { half: 40, tol: 1e-4, maxElements: 3000 });
     let err: unknown = null;
     try {
-      solveCoulomb(d);
+      solveCoulomb(d, { method: 'full' });
     } catch (e) {
       err = e;
     }
@@ -166,11 +120,11 @@ describe('solveCoulomb', () => {
     const d = oneSite(orbital, { half: 30, order: 1, tol: 5e-2 });
     // the charge inside the box: 1 minus the analytic tail outside it (geometry/density)
     const inside = 1 - chargeOutsideBox(orbital, [0, 0, 0], [0, 0, 0], [30, 30, 30]);
-    const good = solveCoulomb(d, { levels: 2 });
+    const good = solveCoulomb(d, { levels: 2, method: 'full' });
     expect(Math.abs(good.sites[0].charge - inside)).toBeLessThan(1e-6);
     expect(good.notes.join(' ')).not.toMatch(/discrete charge/);
     // a crude one-point-like rule without subdivision: the cusp is missed
-    const crude = solveCoulomb(d, { levels: 2, load: { degree: 1, pieceTolerance: Infinity } });
+    const crude = solveCoulomb(d, { levels: 2, load: { degree: 1, pieceTolerance: Infinity }, method: 'full' });
     expect(Math.abs(crude.sites[0].charge - inside)).toBeGreaterThan(1e-6);
     expect(crude.notes.join(' ')).toMatch(/Site d1: the discrete charge .* differs from the charge inside the box/);
   });
@@ -199,8 +153,8 @@ describe('solveCoulomb', () => {
 
   it('P1 and P2 on the same meshes agree to their error estimates', () => {
     const d = oneSite({ model: 'hydrogenic-1s', radiusNm: 2.5 }, { half: 30, tol: 3e-3, order: 2 });
-    const r2 = solveCoulomb(d, { order: 2 });
-    const r1 = solveCoulomb(d, { order: 1, mesh: { order: 2 } });
+    const r2 = solveCoulomb(d, { order: 2, method: 'full' });
+    const r1 = solveCoulomb(d, { order: 1, mesh: { order: 2 }, method: 'full' });
     expect(r1.elements).toBe(r2.elements);
     const a = r1.sites[0], b = r2.sites[0];
     expect(Math.abs(a.uEv - b.uEv)).toBeLessThanOrEqual(a.uErrorEv + b.uErrorEv);
@@ -216,8 +170,8 @@ describe('solveCoulomb', () => {
       sites: d.sites.map((s) => ({ ...s, position: [s.position[0] + t, s.position[1] + t, s.position[2]] })),
       domain: { ...d.domain, center: [t, t, 0] },
     };
-    const a = solveCoulomb(d, { levels: 2 });
-    const b = solveCoulomb(shifted, { levels: 2 });
+    const a = solveCoulomb(d, { levels: 2, method: 'full' });
+    const b = solveCoulomb(shifted, { levels: 2, method: 'full' });
     expect(b.elements).toBe(a.elements);
     expect(Math.abs(a.sites[0].uEv - b.sites[0].uEv) / a.sites[0].uEv).toBeLessThan(1e-8);
   });

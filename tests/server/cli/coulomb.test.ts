@@ -43,7 +43,8 @@ describe('coulomb command', () => {
     expect(code).toBe(0);
     const j = JSON.parse(io.out.join('\n'));
     expect(Object.keys(j).slice(0, 7).sort()).toEqual(['dofs', 'elements', 'iterations', 'order', 'pairs', 'seconds', 'sites']);
-    expect(Object.keys(j)).toEqual(['order', 'elements', 'dofs', 'iterations', 'sites', 'pairs', 'seconds', 'meetsTarget', 'estimatedRelError', 'notes']);
+    expect(Object.keys(j)).toEqual(['order', 'elements', 'dofs', 'iterations', 'sites', 'pairs', 'seconds', 'meetsTarget', 'estimatedRelError', 'notes', 'method']);
+    expect(['split', 'full']).toContain(j.method);
     expect(j.meetsTarget).toBe(true);
     expect(j.estimatedRelError).toBeLessThanOrEqual(twoSites.refinement.targetRelError);
     expect(Array.isArray(j.notes)).toBe(true);
