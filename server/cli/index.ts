@@ -2,12 +2,15 @@
  * `npm run cli -- <command> ...`: the command-line entry.
  * Each command lives in its own file and exports `run(argv): Promise<number>` (the exit code).
  */
-const commands: Record<string, { file: string; summary: string }> = {
-  check: { file: './check', summary: 'far-field check of a design: boundary error bounds and a safe domain size' },
-  mesh: { file: './mesh', summary: 'build a graded tetrahedral mesh and write it as .vtu, .vtk or binary' },
-  coulomb: { file: './coulomb', summary: 'solve for on-site U and inter-site V with P1 or P2 elements' },
-  convergence: { file: './convergence', summary: 'convergence sweep over refinement levels or domain sizes' },
-  submit: { file: './submit', summary: 'remote mode: store a design on a server, start a job, follow it, download the result' },
+type Command = { run: (argv: string[]) => Promise<number> };
+// Literal dynamic imports: each command loads only its own modules (`check` neither the mesher nor the
+// finite elements), and the bundle (server/ops/cli-bundle.mjs) puts each command in a chunk of its own.
+const commands: Record<string, { load: () => Promise<Command>; summary: string }> = {
+  check: { load: () => import('./check'), summary: 'far-field check of a design: boundary error bounds and a safe domain size' },
+  mesh: { load: () => import('./mesh'), summary: 'build a graded tetrahedral mesh and write it as .vtu, .vtk or binary' },
+  coulomb: { load: () => import('./coulomb'), summary: 'solve for on-site U and inter-site V with P1 or P2 elements' },
+  convergence: { load: () => import('./convergence'), summary: 'convergence sweep over refinement levels or domain sizes' },
+  submit: { load: () => import('./submit'), summary: 'remote mode: store a design on a server, start a job, follow it, download the result' },
 };
 
 function usage(): string {
@@ -27,7 +30,7 @@ async function main(argv: string[]): Promise<number> {
     console.error(`unknown command "${name}"\n\n${usage()}`);
     return 2;
   }
-  const mod = (await import(command.file)) as { run: (argv: string[]) => Promise<number> };
+  const mod = await command.load();
   return mod.run(rest);
 }
 

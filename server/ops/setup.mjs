@@ -2,6 +2,7 @@
 
 import fs from 'node:fs';
 import path from 'node:path';
+import { ensureCliBundle } from './cli-bundle.mjs';
 import { depsDecision, sha256, sourcesFingerprint } from './lib.mjs';
 import { DATA, OpsError, ROOT, ensureDir, run, say, tsxArgs, which } from './sys.mjs';
 
@@ -101,6 +102,16 @@ export async function buildClient({ force = false } = {}) {
   ensureDir(DATA);
   fs.writeFileSync(BUILD_STAMP, `${fp}\n`);
   return { built: true };
+}
+
+/** Builds the command line's bundle (dist/cli, see cli-bundle.mjs) unless one for the current sources exists. */
+export async function buildCli() {
+  try {
+    const { built } = await ensureCliBundle(ROOT);
+    say(built ? 'built the command line (esbuild → dist/cli)' : 'command line unchanged since the last build (dist/cli)');
+  } catch (e) {
+    throw new OpsError(e.message);
+  }
 }
 
 /**

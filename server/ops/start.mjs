@@ -5,7 +5,7 @@
 //   2. PostgreSQL: found or installed (Debian), private cluster in .data/pg, 127.0.0.1:54329
 //      (skipped entirely when DATABASE_URL is set: that database is used as it is)
 //   3. database `tetrawell` created if missing, migrated, demo seeded when empty
-//   4. client built (dist/app) when its sources changed
+//   4. client built (dist/app) and the command line bundled (dist/cli) when their sources changed
 //   5. server/main.ts run with DATABASE_URL, PORT, PUBLIC_URL, TETRAWELL_FAKE_SMTP_PORT; URL and demo sign-in printed
 //   Ctrl-C stops the server (and with it the fake SMTP server), then the database.
 //
@@ -17,7 +17,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { demoLogins, portFromEnv } from './lib.mjs';
 import { startCluster } from './postgres.mjs';
-import { buildClient, ensureDeps, prepareDatabase } from './setup.mjs';
+import { buildCli, buildClient, ensureDeps, prepareDatabase } from './setup.mjs';
 import { DATA, OpsError, ROOT, acquireLock, bold, dim, ensureDir, portInUse, say, signalChildren, childrenExited, stopOrphanServer, tsxArgs, warn } from './sys.mjs';
 
 const HELP = `npm start: run Tetrawell locally.
@@ -152,6 +152,7 @@ async function main() {
   }
 
   await buildClient();
+  await buildCli();
   if (exiting || interrupted) return; // interrupted during set-up: shutdown() is already under way
 
   const env = {
