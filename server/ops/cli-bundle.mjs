@@ -120,6 +120,9 @@ export async function buildCliBundle(root, fingerprint = cliFingerprint(root)) {
       metafile: true,
       logLevel: 'silent',
       legalComments: 'none',
+      // less text for V8 to parse at each start; names stay as written
+      minifyWhitespace: true,
+      minifySyntax: true,
     });
     const outside = Object.keys(result.metafile.inputs)
       .map((p) => p.split(path.sep).join('/'))
@@ -128,7 +131,16 @@ export async function buildCliBundle(root, fingerprint = cliFingerprint(root)) {
       throw new Error(
         `the command line imports ${outside.join(', ')}, outside the folders its freshness check reads; add them to CLI_SOURCE_ROOTS in server/ops/cli-bundle.mjs`,
       );
-    fs.writeFileSync(path.join(tmp, 'inputs.json'), `${JSON.stringify(Object.keys(result.metafile.inputs).sort(), null, 1)}\n`);
+    // what each chunk holds and loads, for people and for tests (tests/ops/cliBundle.test.ts)
+    const chunks = {};
+    for (const [file, o] of Object.entries(result.metafile.outputs)) {
+      chunks[path.basename(file)] = {
+        inputs: Object.keys(o.inputs).map((p) => p.split(path.sep).join('/')).sort(),
+        imports: o.imports.filter((i) => !i.external).map((i) => path.basename(i.path)),
+        entry: o.entryPoint ?? null,
+      };
+    }
+    fs.writeFileSync(path.join(tmp, 'chunks.json'), `${JSON.stringify(chunks, null, 1)}\n`);
     const dir = cliBundleDir(root, fingerprint);
     try {
       fs.renameSync(tmp, dir);
