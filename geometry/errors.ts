@@ -43,8 +43,6 @@ export type CoreErrorCode =
   // layers and electrodes (issue 11)
   /** an electrode has no volume inside the domain, or no node of the mesh on it */
   | 'electrode-outside'
-  /** U and V of a design with layers or electrodes: the Coulomb solve does not handle them yet */
-  | 'device-not-supported'
   /** the work was cancelled through its signal */
   | 'aborted';
 

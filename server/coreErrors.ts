@@ -27,7 +27,6 @@ const AREA: Record<CoreErrorCode, RefusalArea> = {
   'no-layered-far-field': 'solve',
   'bad-hierarchy': 'solve',
   'electrode-outside': 'solve',
-  'device-not-supported': 'solve',
   aborted: 'cancelled',
 };
 

@@ -16,7 +16,6 @@ export { buildMeshArtifact, encodeMesh, sitesOutsideDomain } from './mesh';
 export type { MeshArtifact, MeshArtifactOptions, MeshFormat, MeshSummary } from './mesh';
 export {
   coulombResults, convergenceResults, coulombJson, convergenceJson, leverArmResults, leverArmsJson, leverJson, leverTable, coulombJsonWithLever,
-  refuseDeviceCoulomb, COULOMB_SOLVES_DEVICES,
 } from './results';
 export type { CoulombResults, ConvergenceResults, CoulombJson, ConvergenceJson, ResultTable, LeverArmResults, LeverArmsJson } from './results';
 export { LEVER_ARM_ASSUMPTIONS } from '../fem/lever';

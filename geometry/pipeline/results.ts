@@ -10,16 +10,6 @@ import type { Design } from '../design/types';
 import { solveCoulomb, type CoulombOptions, type CoulombResult } from '../fem/coulomb';
 import { runConvergence, type ConvergenceOptions, type ConvergenceResult, type RefinementRow, type BoxRow } from '../fem/convergence';
 import { solveLeverArms, type LeverArmOptions, type LeverArmResult } from '../fem/lever';
-import { hasDevice } from '../mesh/device';
-import { CoreError } from '../errors';
-
-/**
- * Whether solveCoulomb computes U and V with layers and electrodes. Until it does (issue 11, the
- * Coulomb restructure), coulombResults refuses such designs with CoreError 'device-not-supported'
- * rather than print homogeneous-host numbers; lever arms (leverArmResults) and meshes work. The
- * lead flips this when the layered solve lands; coulombResults then adds the lever arms.
- */
-export const COULOMB_SOLVES_DEVICES = false;
 
 /** A table of results: column names and rows of numbers or strings (an empty string for no value). */
 export interface ResultTable {
@@ -135,21 +125,8 @@ export interface CoulombResults {
   lever: LeverArmResult | null;
 }
 
-/** Refuse U and V of a design with layers or electrodes while the Coulomb solve ignores them. */
-export function refuseDeviceCoulomb(design: Design): void {
-  if (COULOMB_SOLVES_DEVICES || !hasDevice(design)) return;
-  const what = [(design.host.layers?.length ?? 0) > 0 ? 'layers' : '', (design.electrodes?.length ?? 0) > 0 ? 'electrodes' : ''].filter(Boolean).join(' and ');
-  throw new CoreError(
-    'device-not-supported',
-    `the design has ${what}, and U and V are not computed for layered hosts or electrodes yet (they would be the homogeneous host's numbers)` +
-      ((design.electrodes?.length ?? 0) > 0 ? '; the gate lever arms and site energies are: run coulomb with --lever-arms' : ''),
-    { layers: design.host.layers?.length ?? 0, electrodes: design.electrodes?.length ?? 0 },
-  );
-}
-
 /** U and V with error bars (geometry/fem solveCoulomb) and their two outward shapes. */
 export function coulombResults(design: Design, options: CoulombOptions = {}): CoulombResults {
-  refuseDeviceCoulomb(design);
   const result = solveCoulomb(design, options);
   const lever = (design.electrodes?.length ?? 0) > 0 ? solveLeverArms(design, { order: options.order, signal: options.signal, mesh: options.mesh }) : null;
   const table = coulombTable(result);
@@ -178,7 +155,6 @@ export interface ConvergenceResults {
 
 /** A refinement or box sweep (geometry/fem runConvergence) and its two outward shapes. */
 export function convergenceResults(design: Design, options: ConvergenceOptions): ConvergenceResults {
-  refuseDeviceCoulomb(design);
   const result = runConvergence(design, options);
   return { result, json: convergenceJson(result), table: convergenceTable(result) };
 }

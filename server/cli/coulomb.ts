@@ -4,8 +4,7 @@
  *
  * Designs with electrodes add `siteEnergies: [{ id, eV }]` and `leverArms: [{ site, electrode,
  * meVPerV, errorMeVPerV }]` after the keys below (absent without electrodes, so those designs print
- * what they always did). While U and V ignore layers and electrodes, such designs are refused
- * (code device-not-supported) and `--lever-arms` computes the lever arms and site energies alone:
+ * what they always did). `--lever-arms` computes the lever arms and site energies alone:
  *   { order, walls, siteEnergies, leverArms, siteEnergyErrors: [{ id, errorEv }], levels, seconds, notes }
  *
  * With --json prints exactly one JSON object, the issue's keys first and in order:

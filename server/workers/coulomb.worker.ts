@@ -13,7 +13,6 @@ import type { MessagePort } from 'node:worker_threads';
 import type { Design } from '../../geometry/design/types';
 import type { CoreProgress as Progress } from '../../geometry/pipeline/index';
 import { solveCoulomb, solveSitePotentials, runConvergence, releaseSpmvMemory, type CoulombOptions, type ConvergenceOptions } from '../../geometry/fem/index';
-import { refuseDeviceCoulomb } from '../../geometry/pipeline/index';
 import type { TetMesh } from '../../geometry/mesh/index';
 
 export const PROGRESS_INTERVAL_MS = 50;
@@ -46,8 +45,6 @@ export default function runJob(task: WorkerTask): unknown {
   const onProgress = throttled(task.port);
   const job = task.job;
   try {
-    // U and V ignore layers and electrodes for now: refuse such designs (geometry/pipeline)
-    refuseDeviceCoulomb(job.design);
     switch (job.kind) {
       case 'coulomb':
         return solveCoulomb(job.design, { ...job.options, onProgress });

@@ -1,4 +1,4 @@
-/** `coulomb --lever-arms` and the refusal of U and V for designs with layers or electrodes (invented designs). */
+/** `coulomb --lever-arms`, and U and V of a design with electrodes carrying its lever arms (invented designs). */
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -58,12 +58,15 @@ describe('coulomb --lever-arms', () => {
     expect(text).toMatch(/estimates, to be confirmed by the group's own validated methods/);
   });
 
-  it('without --lever-arms a design with electrodes is refused with exit 1 and a pointer to --lever-arms (no homogeneous U and V)', async () => {
+  it('without --lever-arms a design with electrodes prints U and V, then siteEnergies and leverArms (the agreed keys, last)', async () => {
     const io = capture();
     const code = await coulomb([designFile('plates3.json', plates), '--json']);
-    expect(code).toBe(1);
-    expect(io.out).toHaveLength(0);
-    expect(io.err.join('\n')).toMatch(/--lever-arms/);
+    expect([0, 3]).toContain(code);
+    const out = JSON.parse(io.out.join('\n')) as Record<string, unknown> & { leverArms: { site: string; electrode: string; meVPerV: number; errorMeVPerV: number }[]; siteEnergies: { id: string; eV: number }[] };
+    expect(Object.keys(out).slice(0, 6)).toEqual(['order', 'elements', 'dofs', 'iterations', 'sites', 'pairs']);
+    expect(Object.keys(out).slice(-2)).toEqual(['siteEnergies', 'leverArms']);
+    expect(Object.keys(out.leverArms[0])).toEqual(['site', 'electrode', 'meVPerV', 'errorMeVPerV']);
+    expect(Object.keys(out.siteEnergies[0])).toEqual(['id', 'eV']);
   });
 
   it('--lever-arms on a design without electrodes is a plain refusal', async () => {

@@ -9,7 +9,7 @@ import { solveLeverArms, leverArmsOnMesh, leverFamily } from '../../../geometry/
 import { richardson } from '../../../geometry/fem/coulomb';
 import { planeLeverArms } from '../../../geometry/host/index';
 import { CoreError } from '../../../geometry/errors';
-import { coulombResults, convergenceResults, coulombJson, coulombJsonWithLever, leverArmResults } from '../../../geometry/pipeline/index';
+import { coulombResults, coulombJson, coulombJsonWithLever, leverArmResults } from '../../../geometry/pipeline/index';
 
 const gauss = (id: string, species: Site['species'], position: [number, number, number], sigmaNm = 0.5): Site => ({
   id, species, position, electrons: 1, orbital: { model: 'gaussian', sigmaNm },
@@ -164,20 +164,21 @@ describe('lever arms of a finite gate', () => {
 });
 
 describe('pipeline', () => {
-  it('refuses U and V of a design with layers or electrodes (CoreError device-not-supported) instead of homogeneous numbers', () => {
-    const calls = [(d: Design) => coulombResults(d), (d: Design) => convergenceResults(d, { kind: 'refinement', order: 1 })];
-    for (const d of [gate('grounded'), { ...gate('grounded'), electrodes: undefined }]) {
-      for (const call of calls) {
-        let err: unknown = null;
-        try {
-          call(d);
-        } catch (e) {
-          err = e;
-        }
-        expect(err).toBeInstanceOf(CoreError);
-        expect((err as CoreError).code).toBe('device-not-supported');
-      }
-    }
+  it('U and V of a design with electrodes come with the lever arms and site energies after the agreed keys; a layered design without electrodes has neither', () => {
+    // Two plates with one dielectric: the lever arms are exact (Jackson §1.13), so the ones inside the
+    // coulomb output must be the closed form too.
+    const d = plates(1);
+    const out = coulombResults(d, { mesh: { h0Nm: 2 } });
+    const keys = Object.keys(out.json);
+    expect(keys.slice(-2)).toEqual(['siteEnergies', 'leverArms']);
+    const j = out.json as ReturnType<typeof coulombJsonWithLever> & { leverArms: { site: string; electrode: string; meVPerV: number }[] };
+    expect(j.sites.map((s) => s.id)).toEqual(['d1', 'a1']);
+    const top = j.leverArms.find((l) => l.site === 'd1' && l.electrode === 'top')!;
+    // electron at z = −2 between the back plate face (z = −8) and the top plate face (z = 8)
+    expect(top.meVPerV).toBeCloseTo((-1000 * (-2 - -8)) / (8 - -8), 1);
+    const layeredOnly = coulombResults({ ...plates(1), electrodes: undefined, host: { ...plates(1).host, layers: [{ name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 }, { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: null }] } }, { mesh: { h0Nm: 2 } });
+    expect(Object.keys(layeredOnly.json)).not.toContain('leverArms');
+    expect(layeredOnly.lever).toBeNull();
   });
 
   it('leverArmResults gives the agreed keys, and coulomb JSON without electrodes is coulombJson key for key', () => {
