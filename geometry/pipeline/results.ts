@@ -128,7 +128,7 @@ export interface CoulombResults {
 /** U and V with error bars (geometry/fem solveCoulomb) and their two outward shapes. */
 export function coulombResults(design: Design, options: CoulombOptions = {}): CoulombResults {
   const result = solveCoulomb(design, options);
-  const lever = (design.electrodes?.length ?? 0) > 0 ? solveLeverArms(design, { order: options.order, signal: options.signal, mesh: options.mesh }) : null;
+  const lever = (design.electrodes?.length ?? 0) > 0 ? solveLeverArms(design, { order: options.order, signal: options.signal, mesh: options.mesh, onProgress: options.onProgress }) : null;
   const table = coulombTable(result);
   if (lever) table.rows.push(...leverTable(lever).rows.map((r) => [r[0], r[1], r[2], '', r[3], r[4]]));
   return { result, hasNumbers: !(result.mode === 'adaptive' && !result.meetsTarget), json: coulombJsonWithLever(result, lever), table, lever };
