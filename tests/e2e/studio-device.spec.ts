@@ -13,14 +13,15 @@ import { apiWrite, closeTestDb, createProject, signUp, testDb, uniqueEmail } fro
 
 test.afterAll(closeTestDb);
 // software WebGL on a shared two-core machine
-test.describe.configure({ timeout: 180_000 });
+test.describe.configure({ timeout: 300_000 });
 
 const A = 0.5431020511; // Si lattice constant (nm), CODATA 2018
 
 async function openWorkspace(page: Page, projectId: number, designId: number) {
   await page.goto(`/projects/${projectId}/designs/${designId}`);
-  await expect(page.getByRole('region', { name: 'Design canvas' })).toBeVisible({ timeout: 30_000 });
-  await expect(page.locator('canvas')).toBeVisible({ timeout: 30_000 });
+  // generous: the machine is shared, and the first visit compiles the workspace chunk
+  await expect(page.getByRole('region', { name: 'Design canvas' })).toBeVisible({ timeout: 90_000 });
+  await expect(page.locator('canvas')).toBeVisible({ timeout: 60_000 });
 }
 
 async function canvasStats(page: Page) {
@@ -45,7 +46,6 @@ test('oxide preset and two gates: edited, undone, saved, reloaded, drawn; a view
       { id: 'p1', species: 'P', position: [0, 0, -8 * A * 2], electrons: 1 },
       { id: 'p2', species: 'P', position: [8 * A, 0, -8 * A * 2], electrons: 1 },
     ],
-    domain: { center: [2, 0, -5], halfExtentsNm: [22, 18, 16], boundary: { kind: 'grounded' } },
   };
   const res = await apiWrite(page.request, 'POST', `/api/projects/${projectId}/designs`, { name: 'Pair under a plunger', document });
   expect(res.status(), await res.text()).toBe(201);
@@ -108,7 +108,7 @@ test('oxide preset and two gates: edited, undone, saved, reloaded, drawn; a view
   await expect(page.getByRole('form', { name: 'Host stack' }).getByRole('list', { name: 'Layers, top first' }).getByRole('listitem')).toHaveCount(3);
   await expect.poll(async () => (await canvasStats(page)).electrodeBoxes, { timeout: 30_000 }).toBe(2);
   const stats = await canvasStats(page);
-  expect(stats.layerSlabs).toBe(3); // silicon, oxide and vacuum each reach into the box (z −21 to 11 nm)
+  expect(stats.layerSlabs).toBe(3); // silicon, oxide and vacuum each reach into the template's box (z −20 to 20 nm)
   expect(stats.drawCalls).toBeLessThanOrEqual(stats.speciesMeshes + 10);
   await expect(page.getByTestId('layer-label')).toHaveCount(3);
   await expect(page.getByTestId('electrode-label').filter({ hasText: 'plunger' })).toContainText('+0.35 V');
