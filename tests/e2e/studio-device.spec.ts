@@ -110,7 +110,9 @@ test('oxide preset and two gates: edited, undone, saved, reloaded, drawn; a view
   const stats = await canvasStats(page);
   expect(stats.layerSlabs).toBe(3); // silicon, oxide and vacuum each reach into the template's box (z −20 to 20 nm)
   expect(stats.drawCalls).toBeLessThanOrEqual(stats.speciesMeshes + 10);
-  await expect(page.getByTestId('layer-label')).toHaveCount(3);
+  // labels sit at the slab's front edge: the ones in view name the layer and its εr
+  await expect(page.getByTestId('layer-label').filter({ hasText: 'oxide' })).toContainText('εr 3.9');
+  await expect(page.getByTestId('layer-label').filter({ hasText: 'vacuum' })).toContainText('εr 1');
   await expect(page.getByTestId('electrode-label').filter({ hasText: 'plunger' })).toContainText('+0.35 V');
   await expect(page.getByTestId('electrode-label').filter({ hasText: 'back gate' })).toContainText('−0.2 V');
   await page.getByRole('button', { name: 'Along [100]' }).click();
