@@ -118,7 +118,7 @@ test('oxide preset and two gates: edited, undone, saved, reloaded, drawn; a view
   await page.getByRole('button', { name: 'Along [100]' }).click();
   await page.screenshot({ path: 'tests/artifacts/studio-device-side.png', fullPage: false });
   await page.getByRole('button', { name: 'Fit to view' }).click();
-  await page.getByRole('region', { name: 'Checks and settings' }).getByRole('form', { name: 'Host stack' }).scrollIntoViewIfNeeded();
+  await page.getByRole('form', { name: 'Host stack' }).scrollIntoViewIfNeeded();
   await page.screenshot({ path: 'tests/artifacts/studio-device.png', fullPage: false });
 
   // a viewer: the stack and the electrodes as text, no editing controls
