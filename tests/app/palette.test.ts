@@ -83,3 +83,23 @@ describe('labels over the canvas', () => {
     expect(over('#ffffff', 0, '#000000')).toBe('#000000');
   });
 });
+
+describe('device colours (host layers, electrodes)', () => {
+  // a slab is its tint at layerOpacity over the ground (what the canvas shows where nothing lies behind)
+  const slab = (css: string) => over(css, CANVAS_THEME.layerOpacity, CANVAS_THEME.ground);
+  it.each(Object.keys(vision))('neighbouring layers differ for %s colour vision (ΔE00 ≥ 10, common practice) and show on the ground', (who) => {
+    const f = vision[who];
+    const t = CANVAS_THEME.layerTints;
+    for (let k = 0; k < t.length; k++) {
+      expect(de(f(slab(t[k])), f(slab(t[(k + 1) % t.length]))), `${t[k]} next to ${t[(k + 1) % t.length]}`).toBeGreaterThanOrEqual(10);
+      expect(de(f(slab(t[k])), f(CANVAS_THEME.ground)), t[k]).toBeGreaterThanOrEqual(8);
+    }
+  });
+  it.each(Object.keys(vision))('electrodes stand apart from every species, the selection and the warnings for %s colour vision (ΔE00 ≥ 10; the box shape is the second cue)', (who) => {
+    const f = vision[who];
+    for (const [name, css] of [...drawn, ['warning', WARNING_CSS] as const, ['handle', CANVAS_THEME.handle] as const]) expect(de(f(CANVAS_THEME.electrode), f(css)), name).toBeGreaterThanOrEqual(10);
+  });
+  it('gives electrodes and the layer and electrode outlines 3:1 contrast against the ground (WCAG 2.1 SC 1.4.11)', () => {
+    for (const css of [CANVAS_THEME.electrode, CANVAS_THEME.electrodeEdge, CANVAS_THEME.layerEdge]) expect(wcagContrast(css, CANVAS_THEME.ground), css).toBeGreaterThanOrEqual(3);
+  });
+});

@@ -6,7 +6,7 @@
  * - nearest distances compared with a brute-force O(n²) search (plain Euclidean geometry).
  */
 import { describe, expect, it } from 'vitest';
-import { describeOrbital, flatPositions, latticePlacement, nearestDistances, siteRows } from '../../app/src/features/studio/siteColumns';
+import { describeOrbital, flatPositions, hashGrid, latticePlacement, nearestDistances, siteRows } from '../../app/src/features/studio/siteColumns';
 import { editSite } from '../../app/src/features/studio/SiteTable';
 import { mulberry32 } from '../../geometry/arrays';
 
@@ -45,6 +45,16 @@ describe('nearest-site distance', () => {
   });
   it('is Infinity for a lone site', () => {
     expect(nearestDistances(new Float64Array([1, 2, 3]))[0]).toBe(Infinity);
+  });
+  it('keeps the hash grid small for a flat layer off z = 0 (rounding does not make a third dimension)', () => {
+    // two donors 8a apart, 16a deep: lo is shifted by 1e-9 nm, so z spans 1e-9 nm plus rounding
+    const z = -16 * A;
+    const lo = [-1e-9, -1e-9, z - 1e-9], hi = [8 * A, 0, z];
+    const { dims } = hashGrid(lo, hi, 2);
+    // one occupied dimension of 2 sites: a cell of about the spacing, so a grid of a couple of cells (plain counting)
+    expect(dims[0]).toBeLessThanOrEqual(3);
+    expect(dims[1] * dims[2]).toBe(1);
+    expect(nearestDistances(new Float64Array([0, 0, z, 8 * A, 0, z]))[0]).toBeCloseTo(8 * A, 12);
   });
   it('equals a brute-force search for scattered, planar, collinear and clumped sites', () => {
     const rnd = mulberry32(7);

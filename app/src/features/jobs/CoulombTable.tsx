@@ -24,8 +24,8 @@ const pairColumns: ColumnDef<PairRow>[] = [
   { id: 'vErr', accessorFn: (r) => meV(r.vErrorEv), header: '± error (meV)', cell: (c) => num(c.getValue<number>(), 3) },
 ];
 
-function SortTable<T>({ label, data, columns }: { label: string; data: T[]; columns: ColumnDef<T>[] }) {
-  const [sorting, setSorting] = useState<SortingState>([]);
+export function SortTable<T>({ label, data, columns, initialSorting = [] }: { label: string; data: T[]; columns: ColumnDef<T>[]; initialSorting?: SortingState }) {
+  const [sorting, setSorting] = useState<SortingState>(initialSorting);
   // eslint-disable-next-line react-hooks/incompatible-library -- TanStack Table returns fresh functions by design
   const table = useReactTable({ data, columns, state: { sorting }, onSortingChange: setSorting, getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel() });
   return (
@@ -67,7 +67,13 @@ export const COULOMB_ASSUMPTIONS =
   'in a homogeneous host of the design’s relative permittivity (no interfaces, gates or screening), without exchange or correlation. ' +
   'Each ± is the solver’s own error estimate (discretisation and far boundary), not a guarantee.';
 
-export function CoulombResults({ summary }: { summary: CoulombSummary }) {
+/** The same for a design with host layers or electrodes (issue 11). */
+export const DEVICE_COULOMB_ASSUMPTIONS =
+  'U is the classical self-Coulomb integral of each site’s model density and V the Coulomb integral between two sites’ densities, ' +
+  'in the design’s planar stack of dielectric layers (flat, sharp interfaces, each layer’s own εr) with its electrodes as ideal metal at their set voltages; ' +
+  'no screening by carriers, no exchange or correlation. Each ± is the solver’s own error estimate (discretisation and far boundary), not a guarantee.';
+
+export function CoulombResults({ summary, device = false }: { summary: CoulombSummary; device?: boolean }) {
   const sites = useMemo(() => summary.sites, [summary]);
   const pairs = useMemo(() => summary.pairs, [summary]);
   return (
@@ -84,7 +90,7 @@ export function CoulombResults({ summary }: { summary: CoulombSummary }) {
           ))}
         </ul>
       )}
-      <EstimateNote assumptions={COULOMB_ASSUMPTIONS} />
+      <EstimateNote assumptions={device ? DEVICE_COULOMB_ASSUMPTIONS : COULOMB_ASSUMPTIONS} />
     </div>
   );
 }

@@ -17,6 +17,8 @@ import { useCancelJob } from './cancelJob';
 import { CompareRevisions } from './CompareRevisions';
 import { BondGraph } from './BondGraph';
 import { CoulombResults } from './CoulombTable';
+import { DeviceResults } from './DeviceResults';
+import { hasDeviceResults } from './deviceRows';
 import { useDesignVersion } from './getDesignVersion';
 import { useRevision } from './getRevision';
 import { useJobEvents } from './jobEvents';
@@ -132,7 +134,8 @@ function RevisionBody({ projectId, r }: { projectId: number; r: Revision }) {
     const withMesh = r.files.some((f) => f.name === 'mesh.twmesh');
     body = s.success ? (
       <div className="space-y-3">
-        <CoulombResults summary={s.data} />
+        <CoulombResults summary={s.data} device={Boolean(design.data?.document.host.layers || design.data?.document.electrodes)} />
+        {hasDeviceResults(s.data) && <DeviceResults summary={s.data} design={design.data?.document ?? null} />}
         {sites ? <BondGraph summary={s.data} sites={sites} /> : design.isError ? <p role="alert" className="text-note text-garnet-700">The design version could not be read for the bond graph: {design.error.message}</p> : <Loading label="Reading the sites…" />}
         {withMesh ? (
           <Suspense fallback={<Loading label="Loading the mesh viewer…" />}>

@@ -12,6 +12,10 @@ export const coulombSummarySchema = z.object({
   sites: z.array(z.object({ id: z.string(), uEv: z.number(), uErrorEv: z.number() })),
   pairs: z.array(z.object({ a: z.string(), b: z.string(), distanceNm: z.number(), vEv: z.number(), vErrorEv: z.number() })),
   notes: z.array(z.string()).optional(),
+  /** issue 11, present (possibly empty) when the design has electrodes: each site's energy at the design's voltages (eV) */
+  siteEnergies: z.array(z.object({ id: z.string(), eV: z.number() })).optional(),
+  /** issue 11: ∂E_site/∂V_electrode (meV/V) with its error bar, sites × electrodes */
+  leverArms: z.array(z.object({ site: z.string(), electrode: z.string(), meVPerV: z.number(), errorMeVPerV: z.number() })).optional(),
 });
 export type CoulombSummary = z.infer<typeof coulombSummarySchema>;
 

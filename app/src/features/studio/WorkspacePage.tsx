@@ -24,6 +24,8 @@ import { useProject } from '../projects/getProject';
 import type { Tool, ViewApi } from './canvas/DesignCanvas';
 import { createDesign } from './createDesign';
 import { DomainBoxForm } from './DomainBoxForm';
+import { ElectrodesForm } from './device/ElectrodesForm';
+import { LayerStackForm } from './device/LayerStackForm';
 import { EditorContext, useEditor, useHistoryDepth } from './editorContext';
 import { createEditorStore, type EditorStore, type Vec3 } from './editorStore';
 import { EXPORT_FORMATS, EXPORT_LABELS, exportHref } from './exportDesign';
@@ -455,6 +457,12 @@ function WorkspaceBody({ projectId, projectName, designId, readOnly, canRun, aut
           />
           <div className="border-t border-wafer-100 pt-2">
             <DomainBoxForm readOnly={readOnly} />
+          </div>
+          <div className="border-t border-wafer-100 pt-2">
+            <LayerStackForm readOnly={readOnly} />
+          </div>
+          <div className="border-t border-wafer-100 pt-2">
+            <ElectrodesForm readOnly={readOnly} />
           </div>
           <div className="border-t border-wafer-100 pt-2">
             <Assumptions />

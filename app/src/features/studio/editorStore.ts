@@ -10,11 +10,15 @@
 import { createStore, type StoreApi } from 'zustand/vanilla';
 import { temporal, type TemporalState } from 'zundo';
 import type { DesignDocument } from '@contracts/design';
+import { withElectrodes, withLayers } from './device/deviceEdit';
 
 export type Site = DesignDocument['sites'][number];
 export type Domain = DesignDocument['domain'];
 export type Refinement = DesignDocument['refinement'];
 export type Vec3 = [number, number, number];
+export type Layer = NonNullable<DesignDocument['host']['layers']>[number];
+export type Electrode = NonNullable<DesignDocument['electrodes']>[number];
+export type ElectrodeWalls = NonNullable<DesignDocument['domain']['electrodeWalls']>;
 
 export interface EditorState {
   document: DesignDocument;
@@ -38,6 +42,12 @@ export interface EditorState {
   updateSite: (id: string, patch: Partial<Site>) => void;
   setDomain: (domain: Domain) => void;
   setRefinement: (refinement: Refinement) => void;
+  /** The host's planar stack, bottom to top; an empty list removes `host.layers` (εr everywhere again). */
+  setLayers: (layers: readonly Layer[]) => void;
+  /** The metal boxes; an empty list removes `electrodes`. */
+  setElectrodes: (electrodes: readonly Electrode[]) => void;
+  /** What the domain walls are for the electrodes' problem. */
+  setElectrodeWalls: (walls: ElectrodeWalls) => void;
   rename: (name: string) => void;
   /** Select ids: `replace` the selection, `toggle` each id in or out, or `add` them. */
   select: (ids: readonly string[], how?: 'replace' | 'toggle' | 'add') => void;
@@ -115,6 +125,9 @@ export function createEditorStore(initial: DesignDocument): EditorStore {
           },
           setDomain: (domain) => edit((doc) => ({ ...doc, domain })),
           setRefinement: (refinement) => edit((doc) => ({ ...doc, refinement })),
+          setLayers: (layers) => edit((doc) => withLayers(doc, layers)),
+          setElectrodes: (electrodes) => edit((doc) => withElectrodes(doc, electrodes)),
+          setElectrodeWalls: (walls) => edit((doc) => ({ ...doc, domain: { ...doc.domain, electrodeWalls: walls } })),
           rename: (name) => edit((doc) => ({ ...doc, name })),
           select: (ids, how = 'replace') => {
             if (how === 'replace') return set({ selection: [...ids] });

@@ -53,4 +53,14 @@ export const CANVAS_THEME = {
   labelPanel: '#ffffff',
   /** how opaque the label panels are over the ground (contrast is checked against the mix) */
   labelPanelAlpha: 0.92,
+  /**
+   * Host layers: translucent slabs, tinted alternately warm and cool from the bottom up so that
+   * neighbours always differ (also for colour-vision deficiencies), outlined in `layerEdge`.
+   */
+  layerTints: ['#e0a030', '#3a7bd5'],
+  layerOpacity: 0.22,
+  layerEdge: '#5e5540',
+  /** metal electrodes: solid dark brass boxes (a box, not a sphere: the shape is the second cue), edges darker */
+  electrode: '#7c662e',
+  electrodeEdge: '#3b3016',
 } as const;

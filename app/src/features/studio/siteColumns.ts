@@ -24,6 +24,24 @@ export function latticePlacement(position: readonly [number, number, number], a:
 }
 
 /**
+ * Cell side h (nm) and cell counts of the nearest-site hash grid over the box lo..hi holding n
+ * sites: a cell holds about 2 sites, h from the occupied dimensions' volume (or area, or length).
+ * A dimension counts as occupied only when its extent exceeds FLAT_NM: the sites of a flat layer
+ * off z = 0 differ in z only by rounding (about 1e-15 relative), and counting that sliver made h
+ * tiny and the grid 1024 cells long, so the shell search ran for minutes (a planar array 8.7 nm
+ * deep froze the studio).
+ */
+const FLAT_NM = 1e-6; // far below the smallest lattice step a/4 ≈ 0.136 nm (common practice)
+export function hashGrid(lo: readonly number[], hi: readonly number[], n: number): { h: number; dims: number[] } {
+  const ext = [0, 1, 2].map((k) => hi[k] - lo[k]);
+  const used = ext.filter((e) => e > FLAT_NM);
+  const measure = used.reduce((p, e) => p * e, 1);
+  const h = used.length === 0 ? 1 : Math.max(Math.pow((2 * measure) / n, 1 / used.length), 1e-6);
+  const dims = ext.map((e) => Math.max(1, Math.min(1024, Math.floor(e / h) + 1)));
+  return { h, dims };
+}
+
+/**
  * Distance (nm) from each site to its nearest other site; Infinity for a lone site.
  * Grid hashing: cells of side h (the mean spacing estimate from the bounding box), searched in
  * growing shells until the best distance found is certainly the nearest (it is ≤ the shell's
@@ -41,12 +59,7 @@ export function nearestDistances(positions: Float64Array): Float64Array {
       hi[k] = Math.max(hi[k], positions[3 * i + k]);
     }
   lo = lo.map((v) => v - 1e-9);
-  const ext = [0, 1, 2].map((k) => hi[k] - lo[k]);
-  // a cell holds about 2 sites: h from the occupied dimensions' volume (or length, or area)
-  const used = ext.filter((e) => e > 1e-9);
-  const measure = used.reduce((p, e) => p * e, 1);
-  const h = used.length === 0 ? 1 : Math.max(Math.pow((2 * measure) / n, 1 / used.length), 1e-6);
-  const dims = ext.map((e) => Math.max(1, Math.min(1024, Math.floor(e / h) + 1)));
+  const { h, dims } = hashGrid(lo, hi, n);
   const cellOf = (v: number, k: number) => Math.min(dims[k] - 1, Math.floor((v - lo[k]) / h));
   const cells = new Map<number, number[]>();
   const key = (cx: number, cy: number, cz: number) => (cz * dims[1] + cy) * dims[0] + cx;

@@ -6,6 +6,7 @@
  *    their axis (the box stays centred; the far-field check follows the drag as a preview);
  *  - bond graph (geometry/arrays bondGraph) as line segments, length on hover;
  *  - far-field warnings: flagged sites ringed, flagged faces tinted;
+ *  - the device (DeviceShapes.tsx): host layers as translucent slabs, electrodes as boxes, labelled;
  *  - tools: select (click, shift-click, drag a box), place a donor on the active (001) layer
  *    (snap dots near the pointer), move the selection with a handle that snaps to lattice sites;
  *  - views along [001], [100], [110], fit-to-view, a scale bar in nm, the crystal axes in a corner;
@@ -29,6 +30,8 @@ import { CANVAS_THEME, SELECTED_CSS, SELECTED_SCALE, SPECIES_ORDER, SPECIES_STYL
 import { AxisTriad, type AxisDirections } from './AxisTriad';
 import type { Vec3 } from '../editorStore';
 import { layerPointsNear, snapInLayer } from './layerSnap';
+import { DeviceShapes } from './DeviceShapes';
+import { electrodeBoxes, layerSlabs } from './deviceGeometry';
 
 export type Tool = 'select' | 'place' | 'move';
 export type ViewAxis = '001' | '100' | '110';
@@ -44,6 +47,9 @@ export interface CanvasStats {
   instances: Partial<Record<Species, number>>;
   speciesMeshes: number;
   frames: number;
+  /** host layers drawn as slabs and electrodes drawn as boxes (inside the domain box) */
+  layerSlabs: number;
+  electrodeBoxes: number;
 }
 
 /** Test hook: a scene point (nm) → page coordinates (CSS px, as mouse events use) and camera distance (nm). */
@@ -450,7 +456,7 @@ function Rig({ doc, onViewApi, onScale, onAxes }: { doc: DesignDocument; onViewA
   useEffect(() => {
     docRef.current = doc;
   }, [doc]);
-  const stats = useRef<CanvasStats>({ drawCalls: 0, triangles: 0, frameMs: [], intervalMs: [], lastFrameAt: null, instances: {}, speciesMeshes: 0, frames: 0 });
+  const stats = useRef<CanvasStats>({ drawCalls: 0, triangles: 0, frameMs: [], intervalMs: [], lastFrameAt: null, instances: {}, speciesMeshes: 0, frames: 0, layerSlabs: 0, electrodeBoxes: 0 });
 
   useEffect(() => {
     const bounds = () => {
@@ -543,6 +549,10 @@ function Rig({ doc, onViewApi, onScale, onAxes }: { doc: DesignDocument; onViewA
     stats.current.speciesMeshes = Object.keys(counts).length;
     void gl;
   }, [doc.sites, gl]);
+  useEffect(() => {
+    stats.current.layerSlabs = layerSlabs(doc).length;
+    stats.current.electrodeBoxes = electrodeBoxes(doc).length;
+  }, [doc]);
   return null;
 }
 
@@ -667,6 +677,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
         ))}
         <WarnedSites positions={warnedPositions} radius={1.1 * unit} />
         <Bonds doc={doc} />
+        <DeviceShapes doc={doc} />
         <DomainBox doc={doc} report={report} readOnly={readOnly} onPreview={props.onPreview} onCommit={props.onCommitDomain} />
         {!readOnly && tool === 'place' && <PlacementGuide doc={doc} layerK={props.layerK} species={props.placeSpecies} onPlace={props.onPlace} />}
         {!readOnly && tool === 'move' && <MoveHandle doc={doc} selection={selection} onPreview={props.onPreview} onCommit={props.onCommitMove} />}
@@ -700,6 +711,18 @@ export default function DesignCanvas(props: DesignCanvasProps) {
           <li className="flex items-center gap-1.5">
             <span aria-hidden="true" className="inline-block h-3 w-3 rounded-full border-2" style={{ borderColor: WARNING_CSS }} />
             far-field warning
+          </li>
+        )}
+        {doc.host.layers && (
+          <li className="flex items-center gap-1.5">
+            <span aria-hidden="true" className="inline-block h-3 w-3 rounded-sm border" style={{ background: CANVAS_THEME.layerTints[0], opacity: 0.6, borderColor: CANVAS_THEME.layerEdge }} />
+            host layer (translucent slab)
+          </li>
+        )}
+        {doc.electrodes && (
+          <li className="flex items-center gap-1.5">
+            <span aria-hidden="true" className="inline-block h-3 w-3" style={{ background: CANVAS_THEME.electrode }} />
+            metal electrode (box)
           </li>
         )}
         <li style={{ color: CANVAS_THEME.labelMuted }}>sphere size tells species apart too</li>

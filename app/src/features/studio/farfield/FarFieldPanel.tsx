@@ -10,6 +10,7 @@ import type { FarFieldReport, FarFieldWarning, PairBound, SiteBound } from '../.
 import { Button } from '../../../components/Button';
 import { EstimateNote } from '../../../components/EstimateNote';
 import { FigureTable, type FigureColumn } from './FigureTable';
+import { findingText, imageEffectMeaning, imageEffectOf, signedPercent, siteName, type ImageEffectFigure } from './imageEffect';
 import { meV, nm, percent, sortPairs, sortSites, worstU, worstV, type Direction, type PairColumn, type SiteColumn } from './figures';
 
 export interface FarFieldPanelProps {
@@ -140,6 +141,48 @@ function Warnings({ warnings }: { warnings: FarFieldWarning[] }) {
   );
 }
 
+/** The image-charge effect of the stack and the metal planes (only when the report carries it). */
+export function ImageEffectSection({ effect, document, target }: { effect: ImageEffectFigure; document: DesignDocument; target: number }) {
+  const pair = effect.worstVPair;
+  return (
+    <section aria-label="Image-charge effect" className="rounded-md border border-wafer-200 px-3 py-2">
+      <h3 className="text-fine font-semibold text-wafer-600">Image-charge effect of the stack and metal planes</h3>
+      <dl className="num mt-1 grid gap-2 sm:grid-cols-2">
+        <div>
+          <dt className="text-fine text-wafer-600">Worst ΔU/U</dt>
+          <dd>
+            <span className="text-lead font-bold text-wafer-900">{signedPercent(effect.worstURel)}</span>
+            {effect.worstUSite !== null && <span className="text-fine text-wafer-600"> at site {siteName(effect.worstUSite, document)}</span>}
+          </dd>
+        </div>
+        <div>
+          <dt className="text-fine text-wafer-600">Worst ΔV/V</dt>
+          <dd>
+            <span className="text-lead font-bold text-wafer-900">{signedPercent(effect.worstVRel)}</span>
+            {pair && (
+              <span className="text-fine text-wafer-600">
+                {' '}
+                for pair {siteName(pair[0], document)}–{siteName(pair[1], document)}
+              </span>
+            )}
+          </dd>
+        </div>
+      </dl>
+      <p className="mt-1 text-fine text-wafer-700">{imageEffectMeaning(effect, target)}</p>
+      <p className="num text-fine text-wafer-600">
+        Against an infinite host of εr {document.host.epsilonR}; image series tail below {meV(effect.tailBoundEv)}; largest share of a density across an interface {percent(effect.maxLeak)}.
+      </p>
+      {effect.findings.length > 0 && (
+        <ul aria-label="Image-charge notes" className="mt-1 list-disc space-y-0.5 pl-4 text-fine text-wafer-700">
+          {effect.findings.map((f, k) => (
+            <li key={`${f.code}-${f.index ?? ''}-${k}`}>{findingText(f, document)}</li>
+          ))}
+        </ul>
+      )}
+    </section>
+  );
+}
+
 function Body({ report, document, readOnly, onApplyRecommended, elementsPending }: Omit<FarFieldPanelProps, 'computing' | 'error'> & { report: FarFieldReport }) {
   const target = report.tolerance;
   const u = worstU(report);
@@ -148,6 +191,8 @@ function Body({ report, document, readOnly, onApplyRecommended, elementsPending 
   const rec = report.recommendedHalfExtentsNm;
   const recOk = rec.every(Number.isFinite);
   const same = recOk && rec.every((x, k) => Math.abs(x - half[k]) <= 1e-9 * Math.max(1, x));
+  const imageEffect = imageEffectOf(report);
+  const device = Boolean(document.host.layers || document.electrodes);
   return (
     <div className="space-y-4">
       <div>
@@ -160,6 +205,8 @@ function Body({ report, document, readOnly, onApplyRecommended, elementsPending 
           each site&apos;s U and each pair&apos;s V in this model.
         </p>
       </div>
+
+      {imageEffect && <ImageEffectSection effect={imageEffect} document={document} target={target} />}
 
       <div className="rounded-md border border-wafer-200 px-3 py-2">
         <h3 className="text-fine font-semibold text-wafer-600">Smallest domain box meeting the target</h3>
@@ -192,7 +239,13 @@ function Body({ report, document, readOnly, onApplyRecommended, elementsPending 
           ))}
         </ul>
       </details>
-      <EstimateNote assumptions="Bounds cover only the domain box's boundary condition, for effective-mass envelopes in a homogeneous host." />
+      <EstimateNote
+        assumptions={
+          device
+            ? "Bounds cover only the domain box's boundary condition, for effective-mass envelopes; the image-charge figures treat the layers as flat, infinite in x and y, and only electrodes spanning the box's cross-section as metal planes."
+            : "Bounds cover only the domain box's boundary condition, for effective-mass envelopes in a homogeneous host."
+        }
+      />
     </div>
   );
 }

@@ -4,7 +4,8 @@
  * only when it differs from what removal and appending give), and the name, host, domain box
  * and refinement fields when they differ. Editors replace what they change and keep the rest by
  * reference, so most comparisons stop at `===`; the field comparison catches copies.
- * A first document, or one whose ids repeat, is sent whole (`reset`).
+ * A first document, one whose ids repeat, or one whose layers, electrodes or electrode walls
+ * changed is sent whole (`reset`).
  */
 import type { DesignDocument } from '@contracts/design';
 import type { FarFieldChanges } from '../../../../../geometry/farfield';
@@ -40,6 +41,15 @@ const sameDomain = (a: Design['domain'], b: Design['domain']) =>
 const sameRefinement = (a: Design['refinement'], b: Design['refinement']) =>
   a === b || (a.order === b.order && a.targetRelError === b.targetRelError && a.maxElements === b.maxElements);
 
+/**
+ * The device parts of issue 11 (host layers, electrodes, the electrodes' walls): rare edits that
+ * can change every figure, so a change sends the whole document (the session's change list has no
+ * field for them; without this the worker would keep checking the old stack).
+ */
+const sameJson = (a: unknown, b: unknown) => a === b || JSON.stringify(a) === JSON.stringify(b);
+const sameDevice = (a: DesignDocument, b: DesignDocument) =>
+  sameJson(a.host.layers, b.host.layers) && sameJson(a.electrodes, b.electrodes) && a.domain.electrodeWalls === b.domain.electrodeWalls;
+
 export function diffDesign(prev: DesignDocument | null, next: DesignDocument): DesignDiff {
   const ids = new Set<string>();
   for (const s of next.sites) {
@@ -48,6 +58,7 @@ export function diffDesign(prev: DesignDocument | null, next: DesignDocument): D
   }
   if (!prev) return { kind: 'reset', design: next };
   if (prev === next) return { kind: 'none' };
+  if (!sameDevice(prev, next)) return { kind: 'reset', design: next };
   const changes: FarFieldChanges = {};
   let any = false;
   if (prev.sites !== next.sites) {
