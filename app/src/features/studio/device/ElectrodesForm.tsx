@@ -11,7 +11,7 @@ import { Button } from '../../../components/Button';
 import { useEditor, useEditorStore } from '../editorContext';
 import type { Electrode, ElectrodeWalls } from '../editorStore';
 import { checkEdit, domainCorners, electrodeToText, gateBox, planeElectrode, spansCrossSection, textToElectrode, withElectrodes, type EditIssues, type ElectrodeText } from './deviceEdit';
-import { NumField } from './fields';
+import { EditIssueList, NumField } from './fields';
 
 export const WALLS_SAY: Record<ElectrodeWalls, { label: string; meaning: string }> = {
   grounded: {
@@ -155,19 +155,7 @@ function ElectrodesBody({ walls }: { walls: ElectrodeWalls }) {
           })}
         </ul>
       )}
-      {issues && issues.other.length > 0 && (
-        <ul role="alert" className="list-disc pl-4 text-fine text-garnet-700">
-          {issues.other.slice(0, 4).map((m) => (
-            <li key={m}>{m}</li>
-          ))}
-          {issues.other.length > 4 && <li>… and {issues.other.length - 4} more.</li>}
-        </ul>
-      )}
-      {issues && issues.other.length === 0 && Object.keys(issues.fields).length > 0 && (
-        <p role="alert" className="text-fine text-garnet-700">
-          The electrodes were not applied: see the marked fields.
-        </p>
-      )}
+      <EditIssueList issues={issues} refused="The electrodes were not applied" />
       <div className="flex flex-wrap gap-1.5">
         <Button type="button" variant="secondary" onClick={() => commit([...current(), planeElectrode(doc(), 'top', names())])}>
           Add top plane

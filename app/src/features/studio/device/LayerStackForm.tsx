@@ -11,7 +11,7 @@ import { Button } from '../../../components/Button';
 import { useEditor, useEditorStore } from '../editorContext';
 import type { Layer } from '../editorStore';
 import { addLayerOnTop, checkEdit, layerToText, moveLayerMaterial, oxidePreset, presetSurfaceNm, PRESET_OXIDE_NM, removeLayer, textToLayer, withLayers, type EditIssues, type LayerText } from './deviceEdit';
-import { NumField } from './fields';
+import { EditIssueList, NumField } from './fields';
 
 export function LayerStackForm({ readOnly }: { readOnly: boolean }) {
   const layers = useEditor((s) => s.document.host.layers);
@@ -145,19 +145,7 @@ function LayerStackBody() {
             })}
         </ol>
       )}
-      {issues && issues.other.length > 0 && (
-        <ul role="alert" className="list-disc pl-4 text-fine text-garnet-700">
-          {issues.other.slice(0, 4).map((m) => (
-            <li key={m}>{m}</li>
-          ))}
-          {issues.other.length > 4 && <li>… and {issues.other.length - 4} more.</li>}
-        </ul>
-      )}
-      {issues && issues.other.length === 0 && Object.keys(issues.fields).length > 0 && (
-        <p role="alert" className="text-fine text-garnet-700">
-          The stack was not applied: see the marked fields.
-        </p>
-      )}
+      <EditIssueList issues={issues} refused="The stack was not applied" />
       <div className="flex flex-wrap gap-1.5">
         <Button type="button" variant="secondary" onClick={() => commit(addLayerOnTop(current(), doc()))}>
           {n === 0 ? 'Add a layer' : 'Add layer on top'}
