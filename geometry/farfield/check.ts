@@ -31,7 +31,7 @@ import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
 import { chargeOutsideBox, orbitalKey, orbitalModel, pairEnergy, profileRadius, selfEnergy } from '../density';
 import { bondPairs, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
-import { snapToLattice, siteToNm } from '../lattice';
+import { latticeOffsetNm } from '../lattice';
 import { clearanceFor, neglectedEnvelope, type Envelope } from './envelope';
 import { combinedMoments, orbitalMoments } from './moments';
 import { closeSitePairs } from './close-pairs';
@@ -392,8 +392,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     if (s.electrons === 0) noElectrons.push(s.id);
     if (orbitalModel(orbitals[i]).singleValley) aniso.push(s.id);
     sizes.add(s.id, orbitals[i]);
-    const snapped = siteToNm(snapToLattice(s.position, a), a);
-    if (dist(snapped, s.position) > 1e-6) offLattice.push(s.id);
+    if (latticeOffsetNm(s.position, a) > 1e-6) offLattice.push(s.id);
   }
   for (const p of pairs) {
     if (p.vRelBound === null) continue;
