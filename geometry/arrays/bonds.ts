@@ -175,9 +175,14 @@ export function candidateKeys(centroids: Float64Array, m: number, scratch?: Bond
   // proven bound: a planar triangulation of m points has at most 3m − 6 edges, plus at most
   // m − 1 edges joining stacked duplicates
   const keysBuf = new Float64Array(Math.max(4 * m, 4));
+  // the lower node of each key, kept so that sorting needs no division
+  const lowBuf = new Uint32Array(keysBuf.length);
   let nk = 0;
   const add = (p: number, q: number) => {
-    if (p !== q) keysBuf[nk++] = p < q ? p * m + q : q * m + p;
+    if (p === q) return;
+    const lo = p < q ? p : q;
+    lowBuf[nk] = lo;
+    keysBuf[nk++] = lo * m + (p < q ? q : p);
   };
   const xy = new Float64Array(2 * m);
   for (let p = 0; p < m; p++) {
@@ -224,7 +229,7 @@ export function candidateKeys(centroids: Float64Array, m: number, scratch?: Bond
       }
     }
   }
-  return { keys: sortKeys(keysBuf, nk, m), delaunay, stacked };
+  return { keys: sortKeys(keysBuf, lowBuf, nk, m), delaunay, stacked };
 }
 
 /** The distance rule (rules 3, 4) over sorted candidate keys: the kept edges and their lengths. */
@@ -239,9 +244,18 @@ export function pruneKeys(keys: Float64Array, centroids: Float64Array, m: number
   };
   const nn = new Float64Array(m).fill(Infinity);
   const L = new Float64Array(nk);
+  // keys ascend, so their lower node p never decreases: found by stepping, not by dividing
+  // (p·m + q with q < m, all integers below 2⁵³: the same p as ⌊key / m⌋)
+  const P = new Uint32Array(nk);
+  const Q = new Uint32Array(nk);
+  let p = 0;
   for (let t = 0; t < nk; t++) {
     const key = keys[t];
-    const p = Math.floor(key / m), q = key - p * m;
+    if (key < p * m) p = Math.floor(key / m); // not ascending after all: divide
+    while (key >= (p + 1) * m) p++;
+    const q = key - p * m;
+    P[t] = p;
+    Q[t] = q;
     L[t] = len(p, q);
     if (L[t] < nn[p]) nn[p] = L[t];
     if (L[t] < nn[q]) nn[q] = L[t];
@@ -249,9 +263,7 @@ export function pruneKeys(keys: Float64Array, centroids: Float64Array, m: number
   let kept = 0;
   const keep = new Uint8Array(nk);
   for (let t = 0; t < nk; t++) {
-    const key = keys[t];
-    const p = Math.floor(key / m), q = key - p * m;
-    if (L[t] <= factor * Math.min(nn[p], nn[q]) * (1 + 1e-12)) {
+    if (L[t] <= factor * Math.min(nn[P[t]], nn[Q[t]]) * (1 + 1e-12)) {
       keep[t] = 1;
       kept++;
     }
@@ -261,10 +273,8 @@ export function pruneKeys(keys: Float64Array, centroids: Float64Array, m: number
   let e = 0;
   for (let t = 0; t < nk; t++) {
     if (!keep[t]) continue;
-    const key = keys[t];
-    const p = Math.floor(key / m);
-    edges[2 * e] = p;
-    edges[2 * e + 1] = key - p * m;
+    edges[2 * e] = P[t];
+    edges[2 * e + 1] = Q[t];
     lengths[e] = L[t];
     e++;
   }
@@ -308,13 +318,14 @@ function collinearOrder(xy: Float64Array): number[] | null {
  * gives a node 6 on average). The live far-field check rebuilds the bond graph on every moved
  * site, where a comparison sort of the keys cost more than the triangulation.
  */
-function sortKeys(buf: Float64Array, nk: number, m: number): Float64Array {
+function sortKeys(buf: Float64Array, low: Uint32Array, nk: number, m: number): Float64Array {
+  // low[t] = ⌊buf[t] / m⌋, recorded when the key was made
   const start = new Uint32Array(m + 1);
-  for (let t = 0; t < nk; t++) start[Math.floor(buf[t] / m) + 1]++;
+  for (let t = 0; t < nk; t++) start[low[t] + 1]++;
   for (let p = 0; p < m; p++) start[p + 1] += start[p];
   const fill = start.slice(0, m);
   const out = new Float64Array(nk);
-  for (let t = 0; t < nk; t++) out[fill[Math.floor(buf[t] / m)]++] = buf[t];
+  for (let t = 0; t < nk; t++) out[fill[low[t]]++] = buf[t];
   for (let p = 0; p < m; p++) {
     for (let u = start[p] + 1; u < start[p + 1]; u++) {
       const k = out[u];

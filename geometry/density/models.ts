@@ -171,7 +171,7 @@ const hydrogenic: OrbitalModel<'hydrogenic-1s'> = {
     return (1 - Math.exp(-2 * w) * (1 + (11 * w) / 8 + (3 * w * w) / 4 + (w * w * w) / 6)) / R;
   },
   axialMoment: (_o, l) => sphericalMoment(l),
-  outsideBox: (o, center, boxCenter, half, n) => expOutsideBox([o.radiusNm, o.radiusNm, o.radiusNm], center, boxCenter, half, n),
+  outsideBox: (o, center, boxCenter, half, n) => expOutsideBox(o.radiusNm, o.radiusNm, center, boxCenter, half, n),
   beyondPlaneZ: (o, d) => halfSpaceTail1s(d / o.radiusNm),
 };
 
@@ -205,7 +205,7 @@ const anisotropic: OrbitalModel<'anisotropic-1s'> = {
   selfEnergy: (o) => ((5 / 8) * stretchFactor(o.radiusNm / o.radiusZNm)) / o.radiusZNm,
   pairEnergy: () => null,
   axialMoment: (o, l) => anisotropicAxialMoment(o.radiusNm, o.radiusZNm, l),
-  outsideBox: (o, center, boxCenter, half, n) => expOutsideBox([o.radiusNm, o.radiusNm, o.radiusZNm], center, boxCenter, half, n),
+  outsideBox: (o, center, boxCenter, half, n) => expOutsideBox(o.radiusNm, o.radiusZNm, center, boxCenter, half, n),
   beyondPlaneZ: (o, d) => halfSpaceTail1s(d / o.radiusZNm),
 };
 

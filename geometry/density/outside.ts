@@ -120,9 +120,12 @@ export function faceRuleOutside(tail: ProfileTail, A: Vec3, center: Vec3, boxCen
 /** Relative accuracy at which the half-space sum is accepted in place of the face rule. */
 const HALF_SPACE_ACCEPT = 1e-2;
 
+/** scaled distances to the faces, lo in [0, 3), hi in [3, 6): reused, no arrays per call (the check calls this per site) */
+const faceScratch = new Float64Array(6);
+
 /**
- * Fraction of a 1s (e^{−2|u|}) envelope with stretch axes A outside the axis-aligned box
- * (boxCenter ± half). In the stretched frame the outside is the union of the six half-spaces
+ * Fraction of a 1s (e^{−2|u|}) envelope with stretch axes A = (across, across,
+ * along) outside the axis-aligned box (boxCenter ± half). In the stretched frame the outside is the union of the six half-spaces
  * beyond the faces, so by inclusion–exclusion
  *   Σ_k T(d_k) − C ≤ outside ≤ Σ_k T(d_k),   T = halfSpaceTail1s,
  * where C is at most Σ over perpendicular face pairs of Q(√(d_i² + d_j²))/4: two half-spaces
@@ -133,21 +136,29 @@ const HALF_SPACE_ACCEPT = 1e-2;
  * the face rule integrates it. A centre outside the box gives 1, a centre on a face 0.5 (the
  * check flags such sites separately).
  */
-export function expOutsideBox(A: Vec3, center: Vec3, boxCenter: Vec3, half: Vec3, n: number): number {
-  const lo = [0, 0, 0];
-  const hi = [0, 0, 0];
+export function expOutsideBox(across: number, along: number, center: Vec3, boxCenter: Vec3, half: Vec3, n: number): number {
+  // the stretch A = (across, across, along): radiusNm in x and y, radiusZNm (or radiusNm) along z
+  const d = faceScratch;
   for (let k = 0; k < 3; k++) {
-    lo[k] = (center[k] - (boxCenter[k] - half[k])) / A[k];
-    hi[k] = (boxCenter[k] + half[k] - center[k]) / A[k];
-    if (lo[k] < 0 || hi[k] < 0) return 1;
+    const Ak = k === 2 ? along : across;
+    d[k] = (center[k] - (boxCenter[k] - half[k])) / Ak;
+    d[3 + k] = (boxCenter[k] + half[k] - center[k]) / Ak;
+    if (d[k] < 0 || d[3 + k] < 0) return 1;
   }
-  for (let k = 0; k < 3; k++) if (lo[k] === 0 || hi[k] === 0) return 0.5;
+  for (let k = 0; k < 3; k++) if (d[k] === 0 || d[3 + k] === 0) return 0.5;
   let sum = 0;
-  for (let k = 0; k < 3; k++) sum += halfSpaceTail1s(lo[k]) + halfSpaceTail1s(hi[k]);
+  for (let k = 0; k < 3; k++) sum += halfSpaceTail1s(d[k]) + halfSpaceTail1s(d[3 + k]);
   let corr = 0;
+  // each pair of axes, the four corners (lo or hi on each), in the order lo·lo, lo·hi, hi·lo, hi·hi
   for (let p = 0; p < 3; p++)
     for (let q = p + 1; q < 3; q++)
-      for (const dp of [lo[p], hi[p]]) for (const dq of [lo[q], hi[q]]) corr += 0.25 * expTail(Math.sqrt(dp * dp + dq * dq));
+      for (let u = 0; u < 2; u++) {
+        const dp = d[3 * u + p];
+        for (let v = 0; v < 2; v++) {
+          const dq = d[3 * v + q];
+          corr += 0.25 * expTail(Math.sqrt(dp * dp + dq * dq));
+        }
+      }
   if (corr <= HALF_SPACE_ACCEPT * sum) return sum;
-  return Math.min(1, Math.max(0, faceRuleOutside(expTail, A, center, boxCenter, half, n)));
+  return Math.min(1, Math.max(0, faceRuleOutside(expTail, [across, across, along], center, boxCenter, half, n)));
 }

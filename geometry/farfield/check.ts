@@ -31,7 +31,7 @@ import { resolveOrbital } from '../design/presets';
 import { COULOMB_EV_NM } from '../units';
 import { chargeOutsideBox, orbitalKey, orbitalModel, pairEnergy, profileRadius, selfEnergy } from '../density';
 import { bondPairs, DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
-import { snapToLattice, siteToNm } from '../lattice';
+import { latticeOffsetNm } from '../lattice';
 import { clearanceFor, neglectedEnvelope, type Envelope } from './envelope';
 import { combinedMoments, orbitalMoments } from './moments';
 import { closeSitePairs } from './close-pairs';
@@ -158,6 +158,106 @@ export interface FarFieldOptions {
 export const ALL_PAIRS_LIMIT = 64;
 
 /**
+ * The check's results in flat columns (one entry per site, one per checked pair), with what the
+ * report says besides its rows. farFieldCheck builds its SiteBound and PairBound objects from
+ * these (siteBoundAt, pairBoundAt); a caller with 10⁵ sites that only prints or sums rows (the
+ * CLI) reads them one at a time instead of holding 4·10⁵ objects.
+ */
+export interface FarFieldColumns {
+  head: Omit<FarFieldReport, 'sites' | 'pairs'>;
+  /** eV per nm⁻¹: COULOMB_EV_NM / εr */
+  ev: number;
+  siteIds: readonly string[];
+  sites: {
+    count: number;
+    chargeOutside: Float64Array;
+    /** δ_i (nm⁻¹), the bound for a unit charge; Infinity when the site is not strictly inside */
+    delta: Float64Array;
+    /** the site's self energy (nm⁻¹; U in the stack with layers or electrodes) */
+    self: Float64Array;
+    clearanceNm: Float64Array;
+    requiredClearanceNm: Float64Array;
+    /** layered hosts and electrodes only (null otherwise): each site's bound kind and reason */
+    boundKind: readonly BoundKind[] | null;
+    boundReason: readonly BoundReason[] | null;
+  };
+  pairs: {
+    count: number;
+    /** site indices of each pair */
+    i: Int32Array;
+    j: Int32Array;
+    distanceNm: Float64Array;
+    /** V in nm⁻¹ (closed form, or 1/R; in the stack with layers or electrodes) */
+    v: Float64Array;
+    /** 1 when the free-space V has a closed form, 0 for the point-charge value */
+    closedForm: Uint8Array;
+    /** the pair's δ (min or max of the sites' δ); not finite: no bound */
+    delta: Float64Array;
+  };
+}
+
+/** Row i of the report's sites, as farFieldCheck gives it. */
+export function siteBoundAt(c: FarFieldColumns, i: number): SiteBound {
+  const s = c.sites;
+  const inside = s.clearanceNm[i] > 0;
+  const row: SiteBound = {
+    id: c.siteIds[i],
+    chargeOutside: s.chargeOutside[i],
+    uBoundEv: inside ? c.ev * s.delta[i] : null,
+    uRelBound: inside ? s.delta[i] / s.self[i] : null,
+    uEv: c.ev * s.self[i],
+    clearanceNm: s.clearanceNm[i],
+    requiredClearanceNm: s.requiredClearanceNm[i],
+  };
+  if (s.boundKind && s.boundReason) {
+    row.boundKind = s.boundKind[i];
+    row.boundReason = s.boundReason[i];
+  }
+  return row;
+}
+
+/** Row t of the report's pairs, as farFieldCheck gives it. */
+export function pairBoundAt(c: FarFieldColumns, t: number): PairBound {
+  const p = c.pairs;
+  const dl = p.delta[t];
+  const v = p.v[t];
+  const bounded = Number.isFinite(dl);
+  return {
+    a: c.siteIds[p.i[t]],
+    b: c.siteIds[p.j[t]],
+    distanceNm: p.distanceNm[t],
+    vEv: c.ev * v,
+    vModel: p.closedForm[t] ? 'closed-form' : 'point-charge',
+    vBoundEv: bounded ? c.ev * dl : null,
+    vRelBound: bounded ? dl / v : null,
+  };
+}
+
+/** The report with its rows as objects, from the columns (keys in the order farFieldCheck has always had). */
+export function reportFromColumns(c: FarFieldColumns): FarFieldReport {
+  const sites: SiteBound[] = new Array(c.sites.count);
+  for (let i = 0; i < sites.length; i++) sites[i] = siteBoundAt(c, i);
+  const pairs: PairBound[] = new Array(c.pairs.count);
+  for (let t = 0; t < pairs.length; t++) pairs[t] = pairBoundAt(c, t);
+  const { head } = c;
+  const report: FarFieldReport = {
+    boundary: head.boundary,
+    tolerance: head.tolerance,
+    sites,
+    pairs,
+    worstRelBound: head.worstRelBound,
+    recommendedHalfExtentsNm: head.recommendedHalfExtentsNm,
+    elementsEstimate: head.elementsEstimate,
+    elementsEstimateIsLowerBound: head.elementsEstimateIsLowerBound,
+    warnings: head.warnings,
+    assumptions: head.assumptions,
+  };
+  if (head.imageEffect) report.imageEffect = head.imageEffect;
+  if (head.moments) report.moments = head.moments;
+  return report;
+}
+
+/**
  * Plausible orbital sizes (radiusNm, radiusZNm, sigmaNm) for the envelope models, outside which
  * check warns (the schema refuses only what no atom can have, see server/contracts/design.ts).
  * Below a hundredth of the lattice constant (0.0054 nm in silicon) an envelope would sit inside
@@ -244,6 +344,11 @@ export function requiredClearance(o: Orbital, okey: string, env: Envelope, targe
 export type ClearanceCache = Map<string, { density: number; byTarget: Map<number, number> }>;
 
 export function farFieldCheck(design: Design, options: FarFieldOptions = {}): FarFieldReport {
+  return reportFromColumns(farFieldColumns(design, options));
+}
+
+/** The far-field check (see the header), its rows in columns. */
+export function farFieldColumns(design: Design, options: FarFieldOptions = {}): FarFieldColumns {
   const eps = design.host.epsilonR;
   const a = design.host.latticeConstantNm;
   const tol = design.refinement.targetRelError;
@@ -262,23 +367,36 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
   const clear = new Float64Array(n);
   const target = new Float64Array(n);
   const envByKey = new Map<string, Envelope>();
+  // sites without an orbital of their own share their species' preset object: key, envelope and
+  // self energy are then those of the site before (no key string built per site)
+  let lastOrbital: Orbital | null = null;
+  let lastKey = '';
+  let lastEnv: Envelope | null = null;
+  let lastSelf = 0;
   for (let i = 0; i < n; i++) {
     const s = sites[i];
     const o = resolveOrbital(s);
     orbitals[i] = o;
-    const key = orbitalKey(o);
-    orbitalKeys[i] = key;
-    let env = envByKey.get(key);
-    if (!env) {
-      env = neglectedEnvelope(o, boundary);
-      envByKey.set(key, env);
+    if (o !== lastOrbital) {
+      const key = orbitalKey(o);
+      let env = envByKey.get(key);
+      if (!env) {
+        env = neglectedEnvelope(o, boundary);
+        envByKey.set(key, env);
+      }
+      lastOrbital = o;
+      lastKey = key;
+      lastEnv = env;
+      lastSelf = selfEnergy(o);
     }
+    const env = lastEnv as Envelope;
+    orbitalKeys[i] = lastKey;
     envs[i] = env;
     let d = Infinity;
     for (let k = 0; k < 3; k++) d = Math.min(d, half[k] - Math.abs(s.position[k] - center[k]));
     clear[i] = d;
     delta[i] = d > 0 ? env(d) : Infinity;
-    self[i] = selfEnergy(o);
+    self[i] = lastSelf;
     target[i] = tol * self[i];
   }
 
@@ -323,10 +441,19 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     ({ I: pairI, J: pairJ } = bondPairs(pos, { groups: sites.map((s) => s.cluster), shellFactor: options.shellFactor ?? DEFAULT_SHELL_FACTOR }));
     warnings.push(pairsLimitedWarning(n));
   }
-  const pairs: PairBound[] = [];
+  // one row per checked pair in pre-sized columns (no object per pair: 3·10⁵ of them at 10⁵ sites)
+  const np = pairI.length;
+  const colI = new Int32Array(np);
+  const colJ = new Int32Array(np);
+  const colR = new Float64Array(np);
+  const colV = new Float64Array(np);
+  const colExact = new Uint8Array(np);
+  const colDelta = new Float64Array(np);
+  let m = 0;
   const coincide: string[] = [];
   const overlap: string[] = [];
-  for (let t = 0; t < pairI.length; t++) {
+  const grounded = boundary.kind === 'grounded';
+  for (let t = 0; t < np; t++) {
     const i = pairI[t], j = pairJ[t];
     const si = sites[i], sj = sites[j];
     const R = dist(si.position, sj.position);
@@ -341,16 +468,21 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
       collector.pair(t, i, img);
       if (img.vEv !== null) v = img.vEv / ev;
     }
-    const dl = boundary.kind === 'grounded' ? Math.min(delta[i], delta[j]) : Math.max(delta[i], delta[j]);
-    const bounded = Number.isFinite(dl);
-    pairs.push({ a: si.id, b: sj.id, distanceNm: R, vEv: ev * v, vModel: exact === null ? 'point-charge' : 'closed-form', vBoundEv: bounded ? ev * dl : null, vRelBound: bounded ? dl / v : null });
+    colI[m] = i;
+    colJ[m] = j;
+    colR[m] = R;
+    colV[m] = v;
+    colExact[m] = exact === null ? 0 : 1;
+    colDelta[m] = grounded ? Math.min(delta[i], delta[j]) : Math.max(delta[i], delta[j]);
+    m++;
     target[i] = Math.min(target[i], tol * v);
     target[j] = Math.min(target[j], tol * v);
   }
   closeSitePairs(sites, a, coincide, overlap);
 
   // ---- site results, recommended box
-  const out: SiteBound[] = [];
+  const chargeOut = new Float64Array(n);
+  const required = new Float64Array(n);
   const rec: Vec3 = n === 0 ? [half[0], half[1], half[2]] : [0, 0, 0];
   const outside: string[] = [];
   const cut: string[] = [];
@@ -370,16 +502,8 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     const req = requiredClearance(orbitals[i], orbitalKeys[i], envs[i], target[i], tol, reqCache);
     for (let k = 0; k < 3; k++) rec[k] = Math.max(rec[k], Math.abs(s.position[k] - center[k]) + req);
     const co = chargeOutsideBox(orbitals[i], s.position, center, half);
-    out.push({
-      id: s.id,
-      chargeOutside: co,
-      uBoundEv: inside ? ev * delta[i] : null,
-      uRelBound: inside ? delta[i] / self[i] : null,
-      uEv: ev * self[i],
-      clearanceNm: clear[i],
-      requiredClearanceNm: req,
-      ...(layered ? { boundKind: kinds[i], boundReason: reasons[i] } : {}),
-    });
+    chargeOut[i] = co;
+    required[i] = req;
     if (!inside) outside.push(s.id);
     else {
       worst = Math.max(worst, delta[i] / self[i]);
@@ -392,13 +516,14 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     if (s.electrons === 0) noElectrons.push(s.id);
     if (orbitalModel(orbitals[i]).singleValley) aniso.push(s.id);
     sizes.add(s.id, orbitals[i]);
-    const snapped = siteToNm(snapToLattice(s.position, a), a);
-    if (dist(snapped, s.position) > 1e-6) offLattice.push(s.id);
+    if (latticeOffsetNm(s.position, a) > 1e-6) offLattice.push(s.id);
   }
-  for (const p of pairs) {
-    if (p.vRelBound === null) continue;
-    worst = Math.max(worst, p.vRelBound);
-    if (p.vRelBound > tol) tooClose.push(p.a, p.b);
+  for (let t = 0; t < m; t++) {
+    const dl = colDelta[t];
+    if (!Number.isFinite(dl)) continue;
+    const rel = dl / colV[t];
+    worst = Math.max(worst, rel);
+    if (rel > tol) tooClose.push(sites[colI[t]].id, sites[colJ[t]].id);
   }
   warnings.push(
     ...findingsWarnings({
@@ -416,11 +541,9 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     const budget = elementBudgetWarning(elementsEstimate, design.refinement.maxElements, elementsEstimateIsLowerBound);
     if (budget) warnings.push(budget);
   }
-  const report: FarFieldReport = {
+  const head: FarFieldColumns['head'] = {
     boundary: describeBoundary(boundary),
     tolerance: tol,
-    sites: out,
-    pairs,
     worstRelBound: outside.length ? null : worst,
     recommendedHalfExtentsNm: rec,
     elementsEstimate,
@@ -428,7 +551,7 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
     warnings,
     assumptions: layered ? LAYERED_ASSUMPTIONS : MODEL_ASSUMPTIONS,
   };
-  if (collector) report.imageEffect = collector.report(sites.map((s) => s.id), (t) => [sites[pairI[t]].id, sites[pairJ[t]].id]);
+  if (collector) head.imageEffect = collector.report(sites.map((s) => s.id), (t) => [sites[pairI[t]].id, sites[pairJ[t]].id]);
   if (options.moments) {
     const c: Vec3 = options.momentsCenter ? [...options.momentsCenter] : [center[0], center[1], center[2]];
     const vals = combinedMoments(
@@ -436,12 +559,21 @@ export function farFieldCheck(design: Design, options: FarFieldOptions = {}): Fa
       c,
       4,
     );
-    report.moments = {
+    head.moments = {
       center: c,
       order: 4,
       values: Array.from(vals),
       sites: sites.map((s, i) => ({ id: s.id, values: Array.from(orbitalMoments(orbitals[i], s.position, c, 4)) })),
     };
   }
-  return report;
+  return {
+    head,
+    ev,
+    siteIds: sites.map((s) => s.id),
+    sites: {
+      count: n, chargeOutside: chargeOut, delta, self, clearanceNm: clear, requiredClearanceNm: required,
+      boundKind: layered ? kinds : null, boundReason: layered ? reasons : null,
+    },
+    pairs: { count: m, i: colI.subarray(0, m), j: colJ.subarray(0, m), distanceNm: colR.subarray(0, m), v: colV.subarray(0, m), closedForm: colExact.subarray(0, m), delta: colDelta.subarray(0, m) },
+  };
 }

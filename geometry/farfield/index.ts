@@ -3,8 +3,8 @@
  * the neglected-far-field envelope per orbital, and the maximum-principle bounds on U_i and
  * V_ij with a recommended domain.
  */
-export { farFieldCheck, ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, WARNING_CODES, ORBITAL_MIN_LATTICE_FRACTION, ORBITAL_MAX_PLAUSIBLE_NM } from './check';
-export type { FarFieldOptions, FarFieldReport, FarFieldWarning, PairBound, SiteBound, WarningCode } from './check';
+export { farFieldCheck, farFieldColumns, pairBoundAt, reportFromColumns, siteBoundAt, ALL_PAIRS_LIMIT, MODEL_ASSUMPTIONS, WARNING_CODES, ORBITAL_MIN_LATTICE_FRACTION, ORBITAL_MAX_PLAUSIBLE_NM } from './check';
+export type { FarFieldColumns, FarFieldOptions, FarFieldReport, FarFieldWarning, PairBound, SiteBound, WarningCode } from './check';
 export { clearanceFor, keptOrder, neglectedEnvelope } from './envelope';
 export type { Envelope } from './envelope';
 export { harmonicCount, irregularHarmonics, MAX_ORDER, multipolePotential, regularHarmonics } from './harmonics';

@@ -27,7 +27,7 @@ import { COULOMB_EV_NM } from '../units';
 import { chargeOutsideBox, orbitalKey, orbitalModel, pairEnergy, selfEnergy } from '../density';
 import { DEFAULT_SHELL_FACTOR } from '../arrays/bonds';
 import { LiveBondPairs } from '../arrays/live-bonds';
-import { snapToLattice, siteToNm } from '../lattice';
+import { latticeOffsetNm } from '../lattice';
 import { neglectedEnvelope, type Envelope } from './envelope';
 import { harmonicCount } from './harmonics';
 import { orbitalMoments } from './moments';
@@ -226,10 +226,9 @@ export function createFarFieldSession(initial: Design, options: FarFieldSessionO
     const site = copySite(s);
     const orbital = resolveOrbital(site);
     const a = host.latticeConstantNm;
-    const snapped = siteToNm(snapToLattice(site.position, a), a);
     return {
       site, orbital, okey: orbitalKey(orbital), self: selfEnergy(orbital),
-      offLattice: dist(snapped, site.position) > 1e-6,
+      offLattice: latticeOffsetNm(site.position, a) > 1e-6,
       env: null, boxStamp: -1, clear: 0, delta: 0, chargeOutside: 0,
       reqTarget: NaN, reqStamp: -1, req: 0, moments: null, bound: null, boundEv: NaN,
       layStamp: -1, layBound: null, imgStamp: -1, layImage: null, nearStamp: -1, near: null, pairImages: null,

@@ -61,38 +61,73 @@ function roundHalfDown(x: number): number {
   return Math.ceil(x - 0.5);
 }
 
-/** Nearest point of D3 (integer vectors with even coordinate sum) to (x, y, z). */
-function nearestD3(x: number, y: number, z: number): LatticeIndex {
-  const v = [x, y, z];
-  const f = v.map((t) => roundHalfDown(t) + 0); // + 0 turns −0 into 0
-  if ((((f[0] + f[1] + f[2]) % 2) + 2) % 2 === 0) return [f[0], f[1], f[2]];
+/**
+ * Nearest point of D3 (integer vectors with even coordinate sum) to (x, y, z), written to
+ * out[o], out[o + 1], out[o + 2] (no array made: the far-field check snaps every site).
+ */
+function nearestD3Into(x: number, y: number, z: number, out: Float64Array, o: number): void {
+  const f0 = roundHalfDown(x) + 0; // + 0 turns −0 into 0
+  const f1 = roundHalfDown(y) + 0;
+  const f2 = roundHalfDown(z) + 0;
+  out[o] = f0;
+  out[o + 1] = f1;
+  out[o + 2] = f2;
+  if ((((f0 + f1 + f2) % 2) + 2) % 2 === 0) return;
   // parity is odd: re-round the coordinate that was furthest from its integer the other way
+  // (the lowest axis among equal errors)
+  const e0 = Math.abs(x - f0), e1 = Math.abs(y - f1), e2 = Math.abs(z - f2);
   let worst = 0;
-  let worstErr = -1;
-  for (let k = 0; k < 3; k++) {
-    const err = Math.abs(v[k] - f[k]);
-    if (err > worstErr) {
-      worst = k;
-      worstErr = err;
-    }
+  let worstErr = e0;
+  if (e1 > worstErr) {
+    worst = 1;
+    worstErr = e1;
   }
-  f[worst] += v[worst] >= f[worst] ? 1 : -1;
-  return [f[0], f[1], f[2]];
+  if (e2 > worstErr) worst = 2;
+  const v = worst === 0 ? x : worst === 1 ? y : z;
+  out[o + worst] += v >= out[o + worst] ? 1 : -1;
 }
 
-/** The lattice site nearest to point p (nm), as integer indices in units of a/4. */
-export function snapToLattice(p: Vec3, a: number): LatticeIndex {
+const snapScratch = new Float64Array(6);
+
+/** snapToLattice into out[0..2] (out may be reused); returns out. */
+function snapInto(p: readonly number[], a: number, out: Float64Array): Float64Array {
   const s = 4 / a;
   const x = p[0] * s;
   const y = p[1] * s;
   const z = p[2] * s;
-  const da = nearestD3(x / 2, y / 2, z / 2);
-  const A: LatticeIndex = [2 * da[0], 2 * da[1], 2 * da[2]];
-  const db = nearestD3((x - 1) / 2, (y - 1) / 2, (z - 1) / 2);
-  const B: LatticeIndex = [2 * db[0] + 1, 2 * db[1] + 1, 2 * db[2] + 1];
-  const dA = (x - A[0]) ** 2 + (y - A[1]) ** 2 + (z - A[2]) ** 2;
-  const dB = (x - B[0]) ** 2 + (y - B[1]) ** 2 + (z - B[2]) ** 2;
-  return dB < dA ? B : A;
+  nearestD3Into(x / 2, y / 2, z / 2, out, 0);
+  const A0 = 2 * out[0], A1 = 2 * out[1], A2 = 2 * out[2];
+  nearestD3Into((x - 1) / 2, (y - 1) / 2, (z - 1) / 2, out, 3);
+  const B0 = 2 * out[3] + 1, B1 = 2 * out[4] + 1, B2 = 2 * out[5] + 1;
+  const dA = (x - A0) ** 2 + (y - A1) ** 2 + (z - A2) ** 2;
+  const dB = (x - B0) ** 2 + (y - B1) ** 2 + (z - B2) ** 2;
+  if (dB < dA) {
+    out[0] = B0;
+    out[1] = B1;
+    out[2] = B2;
+  } else {
+    out[0] = A0;
+    out[1] = A1;
+    out[2] = A2;
+  }
+  return out;
+}
+
+/** The lattice site nearest to point p (nm), as integer indices in units of a/4. */
+export function snapToLattice(p: Vec3, a: number): LatticeIndex {
+  const f = snapInto(p, a, snapScratch);
+  return [f[0], f[1], f[2]];
+}
+
+/**
+ * Distance (nm) from p to the nearest lattice site: the same number as
+ * |siteToNm(snapToLattice(p, a), a) − p|, without making arrays.
+ */
+export function latticeOffsetNm(p: readonly number[], a: number): number {
+  const f = snapInto(p, a, snapScratch);
+  const q = a / 4;
+  const dx = f[0] * q - p[0], dy = f[1] * q - p[1], dz = f[2] * q - p[2];
+  return Math.sqrt(dx * dx + dy * dy + dz * dz);
 }
 
 /** Hard cap on the number of sites a region query may return (memory guard). */

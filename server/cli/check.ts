@@ -24,11 +24,12 @@
  * holds an error-level warning (a site outside the domain box, sites at the same position). The
  * numbers are printed either way.
  */
-import { farFieldCheck, type FarFieldReport } from '../../geometry/farfield';
+import { farFieldColumns, pairBoundAt, siteBoundAt, type FarFieldColumns, type FarFieldReport, type PairBound, type SiteBound } from '../../geometry/farfield';
 import type { Design } from '../../geometry/design/types';
 import { checkElementEstimate } from '../../geometry/mesh/index';
 import { readDesign } from './design-file';
 import { parseCli } from './args';
+import { Rows, writePrettyJson } from './json-out';
 import { notesAndAssumptions, table } from './text';
 import { layeredSection } from './checkText';
 
@@ -37,19 +38,35 @@ const USAGE = 'usage: npm run cli -- check <design.json> [--json] [--moments]';
 
 const num = (x: number | null) => (x === null || !Number.isFinite(x) ? null : x);
 
+const siteJson = (s: SiteBound) => ({
+  id: s.id,
+  chargeOutside: s.chargeOutside,
+  uBoundEv: num(s.uBoundEv),
+  uRelBound: num(s.uRelBound),
+  // layers or electrodes only (issue 11): rigorous or estimated, and why
+  ...(s.boundKind ? { boundKind: s.boundKind, boundReason: s.boundReason } : {}),
+});
+const pairJson = (p: PairBound) => ({ a: p.a, b: p.b, vBoundEv: num(p.vBoundEv), vRelBound: num(p.vRelBound) });
+
 export function toCheckJson(r: FarFieldReport) {
+  return checkJson(r, r.sites.map(siteJson), r.pairs.map(pairJson));
+}
+
+/** The --json object with its site and pair rows made as they are written (same text as toCheckJson). */
+export function toCheckJsonRows(c: FarFieldColumns) {
+  return checkJson(
+    c.head,
+    new Rows(c.sites.count, (i) => siteJson(siteBoundAt(c, i))),
+    new Rows(c.pairs.count, (t) => pairJson(pairBoundAt(c, t))),
+  );
+}
+
+function checkJson<S, P>(r: Omit<FarFieldReport, 'sites' | 'pairs'>, sites: S, pairs: P) {
   return {
     boundary: r.boundary,
     tolerance: r.tolerance,
-    sites: r.sites.map((s) => ({
-      id: s.id,
-      chargeOutside: s.chargeOutside,
-      uBoundEv: num(s.uBoundEv),
-      uRelBound: num(s.uRelBound),
-      // layers or electrodes only (issue 11): rigorous or estimated, and why
-      ...(s.boundKind ? { boundKind: s.boundKind, boundReason: s.boundReason } : {}),
-    })),
-    pairs: r.pairs.map((p) => ({ a: p.a, b: p.b, vBoundEv: num(p.vBoundEv), vRelBound: num(p.vRelBound) })),
+    sites,
+    pairs,
     worstRelBound: num(r.worstRelBound),
     recommendedHalfExtentsNm: r.recommendedHalfExtentsNm.map(num),
     recommendedElements: r.elementsEstimate,
@@ -66,7 +83,11 @@ const pct = (x: number | null) => (x === null || !Number.isFinite(x) ? '—' : `
 const meV = (x: number | null) => (x === null || !Number.isFinite(x) ? '—' : (1000 * x).toPrecision(3));
 
 
-export function toReadable(design: Design, r: FarFieldReport): string {
+export function toReadable(design: Design, c: FarFieldColumns): string {
+  // the rows the tables show (the first 200 sites, 40 pairs) as objects; the rest stay in columns
+  const r = c.head;
+  const siteCount = c.sites.count, pairCount = c.pairs.count;
+  const shownSites = Array.from({ length: Math.min(200, siteCount) }, (_, i) => siteBoundAt(c, i));
   const out: string[] = [];
   const h = design.domain.halfExtentsNm;
   out.push(`Far-field check: ${design.name}`);
@@ -75,13 +96,13 @@ export function toReadable(design: Design, r: FarFieldReport): string {
   out.push(
     table([
       ['site', r.imageEffect ? 'U in stack (meV)' : 'U model (meV)', 'clearance (nm)', 'density outside', '|ΔU| bound (meV)', 'relative', ...(r.imageEffect ? ['bound'] : [])],
-      ...r.sites.slice(0, 200).map((s) => [s.id, meV(s.uEv), g(s.clearanceNm, 4), g(s.chargeOutside, 2), meV(s.uBoundEv), pct(s.uRelBound), ...(s.boundKind ? [s.boundKind] : [])]),
+      ...shownSites.map((s) => [s.id, meV(s.uEv), g(s.clearanceNm, 4), g(s.chargeOutside, 2), meV(s.uBoundEv), pct(s.uRelBound), ...(s.boundKind ? [s.boundKind] : [])]),
     ]),
   );
-  if (r.sites.length > 200) out.push(`… ${r.sites.length - 200} more sites (use --json for all)`);
-  if (r.pairs.length) {
+  if (siteCount > 200) out.push(`… ${siteCount - 200} more sites (use --json for all)`);
+  if (pairCount) {
     out.push('');
-    const shown = r.pairs.slice(0, 40);
+    const shown = Array.from({ length: Math.min(40, pairCount) }, (_, t) => pairBoundAt(c, t));
     out.push(
       table([
         ['pair', 'R (nm)', r.imageEffect ? 'V in stack (meV)' : 'V model (meV)', '|ΔV| bound (meV)', 'relative'],
@@ -90,7 +111,7 @@ export function toReadable(design: Design, r: FarFieldReport): string {
     );
     if (shown.some((p) => p.vModel === 'point-charge'))
       out.push('* point-charge value e²/(4πε R): no closed form for this pair of orbitals (closed forms: two Gaussians, two equal 1s)');
-    if (r.pairs.length > shown.length) out.push(`… ${r.pairs.length - shown.length} more pairs (use --json for all)`);
+    if (pairCount > shown.length) out.push(`… ${pairCount - shown.length} more pairs (use --json for all)`);
   }
   out.push('');
   out.push(`worst relative bound: ${pct(r.worstRelBound)} (target ${pct(r.tolerance)})`);
@@ -108,7 +129,7 @@ export function toReadable(design: Design, r: FarFieldReport): string {
     out.push(`multipole moments about (${r.moments.center.join(', ')}) nm, in e·nm^l (real solid harmonics, Racah normalisation; |Q_l| = norm over m):`);
     out.push(table([['', ...names, '|Q_2|', '|Q_3|', '|Q_4|'], ...r.moments.sites.slice(0, 40).map((m) => row(m.id, m.values)), row('array', r.moments.values)]));
   }
-  out.push(...layeredSection(design, r));
+  out.push(...layeredSection(design, r, c.sites.boundReason ?? []));
   if (r.warnings.length) {
     out.push('');
     out.push('warnings:');
@@ -137,13 +158,15 @@ export async function run(argv: string[]): Promise<number> {
   // maxElements and the server cap): past it the mesher refuses anyway, so "more than N" is the
   // useful answer, and it keeps check instant for tiny orbitals and flat boxes.
   const moments = !!args.values.moments;
-  const report = farFieldCheck(design, {
+  const report = farFieldColumns(design, {
     moments,
     estimateElements: (halfExtentsNm) => checkElementEstimate(design, halfExtentsNm),
   });
-  const body = json ? JSON.stringify(moments ? { ...toCheckJson(report), moments: report.moments } : toCheckJson(report), null, 2) : toReadable(design, report);
-  console.log(body);
-  return unfit(report) ? 3 : 0;
+  // --json of 10⁵ sites is ~20 MB of text: written in pieces as the rows are made (json-out.ts),
+  // the same characters as console.log(JSON.stringify(…, null, 2))
+  if (json) writePrettyJson(moments ? { ...toCheckJsonRows(report), moments: report.head.moments } : toCheckJsonRows(report), (piece) => console.log(piece));
+  else console.log(toReadable(design, report));
+  return unfit(report.head) ? 3 : 0;
 }
 
 /**
@@ -151,7 +174,7 @@ export async function run(argv: string[]): Promise<number> {
  * position), or a worst bound that misses the design's own target, so that a script watching the
  * exit status stops instead of meshing a box that cuts the far field.
  */
-export function unfit(report: FarFieldReport): boolean {
+export function unfit(report: Pick<FarFieldReport, 'warnings' | 'worstRelBound' | 'tolerance'>): boolean {
   if (report.warnings.some((w) => w.severity === 'error')) return true;
   return report.worstRelBound !== null && report.worstRelBound > report.tolerance;
 }

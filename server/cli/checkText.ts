@@ -88,8 +88,11 @@ export function findingSeverity(f: ImageFinding): 'warning' | 'info' {
   return f.code === 'electrode-outside-domain' || f.code === 'electrode-clipped' || f.code === 'electrode-straddles' || f.code === 'site-near-electrode' || f.code === 'density-leaks' || f.code === 'too-many-interfaces' ? 'warning' : 'info';
 }
 
-/** The stack and electrodes as check reads them, then the image-charge effect and the kind of the bounds. */
-export function layeredSection(design: Design, r: FarFieldReport): string[] {
+/**
+ * The stack and electrodes as check reads them, then the image-charge effect and the kind of the
+ * bounds (`reasons`: each site's boundReason, in site order; the report's columns hold them).
+ */
+export function layeredSection(design: Design, r: Pick<FarFieldReport, 'imageEffect'>, reasons: readonly (BoundReason | undefined)[]): string[] {
   const out: string[] = [];
   const layers = design.host.layers ?? [];
   const electrodes = design.electrodes ?? [];
@@ -112,7 +115,7 @@ export function layeredSection(design: Design, r: FarFieldReport): string[] {
   if (electrodes.length && e.findings.some((f) => f.code === 'electrode-not-plane'))
     out.push('  Electrodes that are not planes (gates and leads of finite size) are left out of this closed form; only a finite-element solve includes them.');
   const counts = new Map<string, number>();
-  for (const s of r.sites) if (s.boundKind && s.boundReason) counts.set(s.boundReason, (counts.get(s.boundReason) ?? 0) + 1);
+  for (const reason of reasons) if (reason) counts.set(reason, (counts.get(reason) ?? 0) + 1);
   if (counts.size) {
     out.push('');
     out.push('Boundary bounds in this stack:');

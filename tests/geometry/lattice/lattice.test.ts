@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import {
   isLatticeSite,
+  latticeOffsetNm,
   nearestNeighbourDistance,
   nearestSites,
   NEAREST_A,
@@ -83,6 +84,29 @@ describe('snap to the nearest site', () => {
         const r = siteToNm([around[3 * t], around[3 * t + 1], around[3 * t + 2]], a);
         expect(Math.hypot(r[0] - p[0], r[1] - p[1], r[2] - p[2])).toBeGreaterThanOrEqual(d - 1e-12);
       }
+    }
+  });
+  it('latticeOffsetNm is the distance to the nearest site (brute force over the neighbourhood, 2000 seeded points) and the same double as |snapped − p|', () => {
+    const rnd = mulberry32(20261202);
+    for (let n = 0; n < 2000; n++) {
+      // on-lattice points with a little noise as well as arbitrary ones, and coordinates up to 10⁴ nm
+      const scale = n % 3 === 0 ? 1e4 : 6;
+      const p: Vec3 = [(rnd() - 0.5) * scale, (rnd() - 0.5) * scale, (rnd() - 0.5) * scale];
+      if (n % 2) {
+        const q = siteToNm(snapToLattice(p, a), a);
+        for (let k = 0; k < 3; k++) p[k] = q[k] + (rnd() - 0.5) * 1e-6;
+      }
+      const d = latticeOffsetNm(p, a);
+      const q = siteToNm(snapToLattice(p, a), a);
+      const dx = q[0] - p[0], dy = q[1] - p[1], dz = q[2] - p[2];
+      expect(d).toBe(Math.sqrt(dx * dx + dy * dy + dz * dz));
+      const around = sitesInSphere(p, a, a);
+      let nearest = Infinity;
+      for (let t = 0; t < around.length / 3; t++) {
+        const r = siteToNm([around[3 * t], around[3 * t + 1], around[3 * t + 2]], a);
+        nearest = Math.min(nearest, Math.hypot(r[0] - p[0], r[1] - p[1], r[2] - p[2]));
+      }
+      expect(Math.abs(d - nearest)).toBeLessThanOrEqual(1e-12 * Math.max(1, scale));
     }
   });
   it('a site snaps to itself exactly, and snapping is deterministic on exact ties', () => {
