@@ -13,7 +13,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { solveCoulomb, CoulombError } from '../../../geometry/fem/coulomb';
-import { deviceMesh, ELECTRODE_REGION } from '../../../geometry/fem/device';
+import { deviceMesh } from '../../../geometry/fem/device';
+import { ELECTRODE_REGION } from '../../../geometry/mesh/device';
 import { layeredBoundaryValues, boundaryValues } from '../../../geometry/fem/boundary';
 import { buildSpace } from '../../../geometry/fem/space';
 import { layeredEnergy, planarStack } from '../../../geometry/host';
