@@ -12,7 +12,8 @@ import { meshDesign, MeshError } from '../mesh/index';
 import type { TetMesh } from '../mesh/types';
 import { residualIndicator, runAdaptive, DEFAULT_THETA } from './adaptive';
 import { CoulombError, type CoulombOptions, type PairEnergy, type SiteEnergy } from './coulomb-types';
-import { solveLevel, epsArray, type LevelSolution } from './coulomb-level';
+import { solveLevel, type LevelSolution } from './coulomb-level';
+import { epsByRegion } from './device';
 import { gradedFamily, irreducibleRelError, splitFamily, type Plan } from './coulomb-plan';
 import { budgetsFrom, type History } from './coulomb-budget';
 
@@ -103,7 +104,7 @@ export function runAdaptiveDriver(design: Design, pl: Plan, order: 1 | 2, opts: 
       if (!(err instanceof MeshError && err.code === 'too-many-elements') || t >= 0.5) throw err;
     }
   }
-  const eps = epsArray(design);
+  const eps = epsByRegion(design);
   let firstRel = Infinity;
   let base = 0;
   let finest: LevelSolution | null = null;

@@ -16,7 +16,9 @@ import { pcg, jacobi, type Preconditioner } from './pcg';
 import type { Csr } from './csr';
 import { densityLoad } from './load';
 import { boundaryValues, layeredBoundaryValues } from './boundary';
-import { deviceMesh, deviceStack, electrodeDofs, epsByRegion, epsilonAt, hasDevice } from './device';
+import { hasDevice, NO_ELECTRODE } from '../mesh/device';
+import { deviceMesh, deviceStack, epsByRegion, epsilonAt } from './device';
+import { electrodeDofs } from './electrodes';
 import { freeSelfEnergy, pairClosedForm, reactionRhs, singularPotential, valuesAt } from './split';
 import { CoulombError, type CoulombOptions, type LevelReport } from './coulomb-types';
 
@@ -48,11 +50,6 @@ export interface LevelSolution {
 /** The discrete charge must match the charge inside the box to this (absolute; issue 5). */
 export const CHARGE_TOLERANCE = 1e-6;
 
-/** εr by region id of the design (device.ts: layers, electrode elements; the host's εr without layers). */
-export function epsArray(design: Design): Float64Array {
-  return epsByRegion(design);
-}
-
 /** How a level computes each site: the full solve, or closed form + smooth remainder (split.ts). */
 export type SolveMethod = 'full' | 'split';
 
@@ -76,15 +73,15 @@ export function solveLevel(
   const device = hasDevice(design);
   const mesh = device ? deviceMesh(design, meshIn) : meshIn;
   const space0 = buildSpace(mesh, order);
-  // Dirichlet dofs: the walls, and with electrodes every dof in or on one
-  const elec = device ? electrodeDofs(design, space0.dofCoords) : null;
+  // Dirichlet dofs: the walls, and with electrodes every dof in or on one (at 0 V here)
+  const elec = device ? electrodeDofs(space0, design).electrodeOfDof : null;
   let space = space0;
   if (elec) {
     const mask = Uint8Array.from(space0.boundaryDof);
-    for (let k = 0; k < mask.length; k++) if (elec[k]) mask[k] = 1;
+    for (let k = 0; k < mask.length; k++) if (elec[k] !== NO_ELECTRODE) mask[k] = 1;
     space = { ...space0, boundaryDof: mask };
   }
-  const eps = epsArray(design);
+  const eps = epsByRegion(design);
   const K = assembleStiffness(space, eps);
   const n = space.nDofs;
   const phis: Float64Array[] = [];
@@ -116,7 +113,7 @@ export function solveLevel(
     let g: Float64Array;
     if (stack) {
       const walls = Uint8Array.from(space0.boundaryDof);
-      if (elec) for (let k = 0; k < walls.length; k++) if (elec[k]) walls[k] = 0;
+      if (elec) for (let k = 0; k < walls.length; k++) if (elec[k] !== NO_ELECTRODE) walls[k] = 0;
       const lb = layeredBoundaryValues(stack, site.position, space.dofCoords, walls);
       if (lb.g === null) {
         throw new CoulombError('no-layered-far-field', `the layered host has no far-field series for site ${site.id} (${lb.code}): use a grounded box`, { siteId: site.id, code: lb.code });

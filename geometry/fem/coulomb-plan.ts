@@ -11,7 +11,7 @@ import type { TetMesh } from '../mesh/types';
 import { CoulombError, type CoulombOptions } from './coulomb-types';
 import type { ActiveSite, SolveMethod } from './coulomb-level';
 import { hasClosedForm, pairClosedForm } from './split';
-import { electrodeBoxes, hasDevice } from './device';
+import { clippedElectrodes, hasDevice, interfacesInside } from '../mesh/device';
 import { autoCoreSize, CORE_SAFETY_FACTOR } from '../mesh/sizefield';
 
 export function activeSites(design: Design, siteIds?: string[]): ActiveSite[] {
@@ -172,20 +172,18 @@ export const SPLIT_ERROR_CONSTANT_P2 = 1e-4;
  */
 export function splitCoreSize(design: Design, sites: ActiveSite[], order: 1 | 2): number {
   const c = design.domain.center, h = design.domain.halfExtentsNm;
-  const layers = design.host.layers ?? [];
-  const boxes = electrodeBoxes(design);
+  // interfaces and electrodes outside the domain lie beyond its walls, which count already
+  const interfaces = interfacesInside(design);
+  const electrodes = clippedElectrodes(design);
   let d = Infinity;
   for (const s of sites) {
     const p = s.position;
     for (let a = 0; a < 3; a++) d = Math.min(d, h[a] - Math.abs(p[a] - c[a]));
-    for (let k = 0; k < layers.length - 1; k++) {
-      const z = layers[k].zMaxNm;
-      if (z !== null) d = Math.min(d, Math.abs(p[2] - z));
-    }
-    for (let e = 0; e < boxes.length / 6; e++) {
+    for (const z of interfaces) d = Math.min(d, Math.abs(p[2] - z));
+    for (const e of electrodes) {
       let q = 0;
       for (let a = 0; a < 3; a++) {
-        const lo = boxes[6 * e + a], hi = boxes[6 * e + 3 + a];
+        const lo = e.min[a], hi = e.max[a];
         const t = p[a] < lo ? lo - p[a] : p[a] > hi ? p[a] - hi : 0;
         q += t * t;
       }

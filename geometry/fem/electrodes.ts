@@ -1,34 +1,22 @@
 /**
- * Layers and electrodes in the finite-element problem: εr per region, and which degrees of
- * freedom are Dirichlet in the electrodes' (Laplace) problem and at what value.
+ * The electrodes in the finite-element problem: which degrees of freedom are Dirichlet and at what
+ * value. One function for both problems that fix them: the charge problem (coulomb-level.ts: every
+ * electrode at 0 V, walls per the box's boundary) and the electrodes' Laplace problem (lever.ts).
+ * εr per region and the conformity check are device.ts's.
  *
- *   region id (TetMesh.tetRegion)   εr
- *   k < 255                         host.layers[k].epsilonR   (host.epsilonR without layers)
- *   ELECTRODE_REGION = 255          1 (metal: any positive value serves, every dof of such a tet
- *                                   is Dirichlet, so it carries no energy)
- *
- * Dirichlet dofs of electrode g: the P1 vertices in or on its box (TetMesh.vertexElectrode) and,
- * for P2, the edge nodes whose two endpoints are in or on it (the box is convex, so the edge and
- * its midpoint lie in it; an edge with one endpoint outside crosses no face of a conforming mesh,
- * so its midpoint is outside). The domain walls are Dirichlet at 0 V ('grounded') or natural
- * (∂φ/∂n = 0, 'zero-normal-field') per design.domain.electrodeWalls; a wall node on an electrode
- * keeps the electrode's value.
+ * A dof belongs to electrode g when its node lies in or on g's clipped box (within LAYER_SNAP_NM;
+ * geometry/mesh/device.ts electrodeOfPoints, the mesher's own rule for its vertices): the P1
+ * vertices, and for P2 the edge midpoints. On a conforming mesh (device.ts deviceMesh) an edge
+ * midpoint lies in a box exactly when both endpoints do (the box is convex, and an edge with one
+ * endpoint outside crosses no face, so its midpoint is outside). The domain walls of the
+ * electrodes' problem are Dirichlet at 0 V ('grounded') or natural (∂φ/∂n = 0,
+ * 'zero-normal-field') per design.domain.electrodeWalls; a wall node on an electrode keeps the
+ * electrode's value.
  */
 import type { Design, ElectrodeWalls } from '../design/types';
-import { ELECTRODE_REGION, NO_ELECTRODE } from '../mesh/device';
+import { NO_ELECTRODE, clippedElectrodes, electrodeOfPoints } from '../mesh/device';
+import { LAYER_SNAP_NM } from './device';
 import type { FeSpace } from './space';
-
-/** εr of the metal region: any positive value (its dofs are all fixed). */
-export const METAL_EPSILON = 1;
-
-/** εr per region id (256 entries), from the design's layers (or host.epsilonR everywhere). */
-export function epsByRegion(design: Design): Float64Array {
-  const eps = new Float64Array(256).fill(design.host.epsilonR);
-  const layers = design.host.layers ?? [];
-  layers.forEach((l, k) => (eps[k] = l.epsilonR));
-  eps[ELECTRODE_REGION] = METAL_EPSILON;
-  return eps;
-}
 
 export interface ElectrodeDofs {
   /** electrode index of each dof in or on an electrode, NO_ELECTRODE elsewhere */
@@ -40,21 +28,11 @@ export interface ElectrodeDofs {
   perElectrode: number[];
 }
 
-/** The Dirichlet dofs of the electrodes' problem on a space whose mesh came from meshDesign. */
+/** The electrodes' dofs on a space over a conforming mesh (device.ts deviceMesh or meshDesign). */
 export function electrodeDofs(space: FeSpace, design: Design): ElectrodeDofs {
-  const ve = space.mesh.vertexElectrode;
-  const nV = space.nVertices;
   const n = space.nDofs;
   const walls: ElectrodeWalls = design.domain.electrodeWalls ?? 'grounded';
-  const electrodeOfDof = new Uint8Array(n).fill(NO_ELECTRODE);
-  if (ve) {
-    electrodeOfDof.set(ve.subarray(0, nV));
-    const edges = space.edges;
-    for (let e = 0; e < edges.length / 2; e++) {
-      const a = ve[edges[2 * e]];
-      if (a !== NO_ELECTRODE && a === ve[edges[2 * e + 1]]) electrodeOfDof[nV + e] = a;
-    }
-  }
+  const electrodeOfDof = electrodeOfPoints(clippedElectrodes(design), space.dofCoords, LAYER_SNAP_NM);
   const fixed = new Uint8Array(n);
   const perElectrode = new Array<number>(design.electrodes?.length ?? 0).fill(0);
   for (let i = 0; i < n; i++) {

@@ -49,7 +49,8 @@ export { runConvergence, fitLogLog } from './convergence';
 export type { ConvergenceOptions, ConvergenceResult, ConvergencePlot, RefinementRow, BoxRow } from './convergence';
 
 // Layers and electrodes (issue 11): εr per region, the electrodes' Dirichlet dofs, gate lever arms.
-export { epsByRegion, electrodeDofs, electrodeValues, METAL_EPSILON } from './electrodes';
+export { epsByRegion, METAL_EPSILON } from './device';
+export { electrodeDofs, electrodeValues } from './electrodes';
 export type { ElectrodeDofs } from './electrodes';
 export { solveLeverArms, leverArmsOnMesh, leverFamily, leverSites, LEVER_ARM_ASSUMPTIONS } from './lever';
 export type { LeverArm, LeverArmOptions, LeverArmResult, LeverSiteEnergy, LeverLevel, LeverOnMesh } from './lever';

@@ -6,7 +6,7 @@
  *     −∇·(εr ∇φ_g) = 0   in the domain outside the metal,
  *     φ_g = 1 V on electrode g, 0 V on the others, walls per design.domain.electrodeWalls
  *
- * (electrodes.ts: εr per region, Dirichlet dofs). A carrier of charge q bound at site i with the
+ * (device.ts: εr per region and the conformity check; electrodes.ts: Dirichlet dofs). A carrier of charge q bound at site i with the
  * unit density ρ_i changes its energy by q∫ρ_i φ_g per volt on g, so
  *
  *     ∂E_i/∂V_g = −e ∫ρ_i φ_g  = −1000 · ∫ρ_i φ_g  meV/V   for an electron (donors),
@@ -18,8 +18,8 @@
  *
  * One mesh: one stiffness matrix, one lifting, one multigrid preconditioner for all electrodes
  * (only the Dirichlet values change between them). Error bars: the lever arms on nested meshes
- * (leverFamily: a coarse graded base and its uniform refinements), extrapolated with the Coulomb
- * solver's own `richardson` (grid convergence index,
+ * (leverFamily: a coarse graded base and its uniform refinements), extrapolated with the error-bar
+ * rule of the Coulomb solver, errorbars.ts `richardson` (grid convergence index,
  * s = N^(−1/3), theoretical rate 2p: ∫ρφ is a smooth linear functional of φ, whose error is the
  * square of the energy-norm error, Aubin–Nitsche duality; e.g. Ciarlet 1978, §3.2).
  *
@@ -33,7 +33,7 @@ import type { CoreProgress } from '../progress';
 import { CoreError, throwIfAborted } from '../errors';
 import { meshDesign, refineUniform, toTetMesh, type MeshDesignOptions } from '../mesh/index';
 import { sizeFieldFromDesign, ELECTRODE_EDGE_DIVISOR } from '../mesh/sizefield';
-import { clippedElectrodes, tagDevice } from '../mesh/device';
+import { clippedElectrodes } from '../mesh/device';
 import type { TetMesh } from '../mesh/types';
 import { buildSpace, type FeSpace } from './space';
 import { assembleStiffness, applyDirichlet, applyDirichletRhs } from './assemble';
@@ -41,8 +41,9 @@ import { multigridPreconditioner } from './multigrid';
 import { pcg, jacobi, type Preconditioner } from './pcg';
 import type { Csr } from './csr';
 import { densityLoad } from './load';
-import { richardson } from './coulomb';
-import { electrodeDofs, electrodeValues, epsByRegion } from './electrodes';
+import { richardson } from './errorbars';
+import { deviceMesh, epsByRegion } from './device';
+import { electrodeDofs, electrodeValues } from './electrodes';
 
 /** The model behind every lever arm, in plain words for the CLI, the jobs and the studio. */
 export const LEVER_ARM_ASSUMPTIONS: readonly string[] = [
@@ -132,11 +133,12 @@ export interface LeverOnMesh {
   space: FeSpace;
 }
 
-export function leverArmsOnMesh(design: Design, mesh: TetMesh, order: 1 | 2, opts: LeverArmOptions = {}, level = 1, fraction: [number, number] = [0, 1]): LeverOnMesh {
+export function leverArmsOnMesh(design: Design, meshIn: TetMesh, order: 1 | 2, opts: LeverArmOptions = {}, level = 1, fraction: [number, number] = [0, 1]): LeverOnMesh {
   const electrodes = design.electrodes ?? [];
   const sites = leverSites(design);
   const m = electrodes.length;
-  const space = buildSpace(mesh, order);
+  // regions from the design, and the refusal of a mesh that does not follow the device
+  const space = buildSpace(deviceMesh(design, meshIn), order);
   const eps = epsByRegion(design);
   const K = assembleStiffness(space, eps);
   const dofs = electrodeDofs(space, design);
@@ -228,9 +230,7 @@ export function leverFamily(design: Design, order: 1 | 2, levels: number, meshOp
   const out: TetMesh[] = [];
   for (let l = 0; l < levels; l++) {
     if (l > 0) refineUniform(bm, 3, { maxTets });
-    const tm = toTetMesh(bm);
-    tm.vertexElectrode = tagDevice(design, tm.coords, tm.tets, tm.coords.length / 3, tm.tets.length / 4, tm.tetRegion);
-    out.push(tm);
+    out.push(toTetMesh(bm));
   }
   return out;
 }

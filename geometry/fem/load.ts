@@ -42,7 +42,7 @@
  * 4π times it (geometry/units.ts).
  */
 import type { Orbital, Vec3 } from '../design/types';
-import { densityAt } from '../density';
+import { densityAt, orbitalLengths, orbitalModel } from '../density';
 import { tetQuadrature, p2BasisBary, type TetRule } from './reference';
 import type { FeSpace } from './space';
 
@@ -75,29 +75,14 @@ export interface DensityLoad {
   pieces: number;
 }
 
-/** Decay length ℓ of the density (its value falls by e over ℓ) and whether it has a cusp. */
-function densityScale(orbital: Orbital): { ell: number; ellMax: number; cusp: boolean; peak: number } {
-  switch (orbital.model) {
-    case 'hydrogenic-1s': {
-      const a = orbital.radiusNm;
-      return { ell: a / 2, ellMax: a / 2, cusp: true, peak: 1 / (Math.PI * a * a * a) };
-    }
-    case 'anisotropic-1s': {
-      const a = orbital.radiusNm, b = orbital.radiusZNm;
-      return { ell: Math.min(a, b) / 2, ellMax: Math.max(a, b) / 2, cusp: true, peak: 1 / (Math.PI * a * a * b) };
-    }
-    case 'gaussian': {
-      const s = orbital.sigmaNm;
-      return { ell: s, ellMax: s, cusp: false, peak: 1 / (Math.pow(2 * Math.PI, 1.5) * s * s * s) };
-    }
-  }
-}
-
-/** Upper bound of the density at distance ≥ dist from its centre (nm⁻³). */
-function densityBound(orbital: Orbital, peak: number, ellMax: number, dist: number): number {
-  if (dist <= 0) return peak;
-  if (orbital.model === 'gaussian') return peak * Math.exp(-(dist * dist) / (2 * ellMax * ellMax));
-  return peak * Math.exp(-dist / ellMax);
+/**
+ * What the quadrature needs of the density, from the registry (geometry/density/models.ts): the
+ * shortest decay length ℓ (the e⁻² length rule halved: a/2 for exp(−2r/a), σ for a Gaussian),
+ * whether it has a cusp, and the model's bound of ρ beyond a distance.
+ */
+function densityScale(orbital: Orbital): { ell: number; cusp: boolean; beyond: (dist: number) => number } {
+  const model = orbitalModel(orbital);
+  return { ell: orbitalLengths(orbital).decayMin, cusp: model.cusp, beyond: (dist) => model.densityBeyond(orbital, dist) };
 }
 
 /**
@@ -113,7 +98,7 @@ export function densityLoad(space: FeSpace, orbital: Orbital, center: Vec3, opti
   // a local binding: module re-exports can compile to getters, too slow for the innermost loop
   const rho = densityAt;
   const cheap: TetRule = tetQuadrature(2);
-  const { ell, ellMax, cusp, peak } = densityScale(orbital);
+  const { ell, cusp, beyond } = densityScale(orbital);
   const pieceTol = options.pieceTolerance ?? PIECE_TOLERANCE;
   // Taylor order m of the remainder: the rule is exact for ρ's polynomial part up to degree − order
   const m = Math.max(1, base.degree - order + 1);
@@ -186,7 +171,7 @@ export function densityLoad(space: FeSpace, orbital: Orbital, center: Vec3, opti
   const classify = (vol: number, depth: number): number => {
     const dx = ballX - cx, dy = ballY - cy, dz = ballZ - cz;
     const d = Math.sqrt(dx * dx + dy * dy + dz * dz);
-    const bound = densityBound(orbital, peak, ellMax, d - ballR) * vol;
+    const bound = beyond(d - ballR) * vol;
     if (bound < NEGLIGIBLE) return 0;
     if (depth >= MAX_DEPTH) return 1;
     if (cusp && d <= ballR && ballR > cuspR) return 2;

@@ -40,7 +40,7 @@ import { erf, pairEnergy, potentialAt, radialPotential, selfEnergy } from '../de
 import type { TetMesh } from '../mesh/types';
 import { GEOM_SIZE, mapBary, p2BasisBary, p2GradientsBary, tetGeometry, tetQuadrature } from './reference';
 import type { FeSpace } from './space';
-import { ELECTRODE_REGION } from './device';
+import { ELECTRODE_REGION } from '../mesh/device';
 
 /** Exact degree of the rule for the right-hand side (∇φ_s smooth where it is integrated; common practice). */
 export const SPLIT_RHS_DEGREE = 6;

@@ -190,17 +190,33 @@ export function tagDevice(
     }
     tetRegion[t] = region;
   }
-  const vertexElectrode = new Uint8Array(nVertices).fill(NO_ELECTRODE);
-  for (let v = 0; v < nVertices; v++) {
-    const x = coords[3 * v], y = coords[3 * v + 1], z = coords[3 * v + 2];
+  return electrodeOfPoints(electrodes, coords.subarray(0, 3 * nVertices));
+}
+
+/**
+ * The electrode of each point (3 numbers a point): the index in design.electrodes of the first
+ * clipped electrode whose closed box, grown by `snapNm` on every side, holds it; NO_ELECTRODE
+ * elsewhere. The mesher's own vertices lie exactly on the faces (snapNm 0); the finite elements
+ * use a small snap for meshes made elsewhere (geometry/fem/device.ts LAYER_SNAP_NM).
+ */
+export function electrodeOfPoints(electrodes: readonly ClippedElectrode[], points: Float64Array, snapNm = 0): Uint8Array {
+  const n = points.length / 3;
+  const out = new Uint8Array(n).fill(NO_ELECTRODE);
+  if (electrodes.length === 0) return out;
+  for (let v = 0; v < n; v++) {
+    const x = points[3 * v], y = points[3 * v + 1], z = points[3 * v + 2];
     for (const e of electrodes) {
-      if (x >= e.min[0] && x <= e.max[0] && y >= e.min[1] && y <= e.max[1] && z >= e.min[2] && z <= e.max[2]) {
-        vertexElectrode[v] = e.index;
+      if (
+        x >= e.min[0] - snapNm && x <= e.max[0] + snapNm &&
+        y >= e.min[1] - snapNm && y <= e.max[1] + snapNm &&
+        z >= e.min[2] - snapNm && z <= e.max[2] + snapNm
+      ) {
+        out[v] = e.index;
         break;
       }
     }
   }
-  return vertexElectrode;
+  return out;
 }
 
 /**

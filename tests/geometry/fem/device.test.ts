@@ -13,7 +13,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { solveCoulomb, CoulombError } from '../../../geometry/fem/coulomb';
-import { deviceMesh, ELECTRODE_REGION } from '../../../geometry/fem/device';
+import { deviceMesh } from '../../../geometry/fem/device';
+import { ELECTRODE_REGION } from '../../../geometry/mesh/device';
 import { layeredBoundaryValues, boundaryValues } from '../../../geometry/fem/boundary';
 import { buildSpace } from '../../../geometry/fem/space';
 import { layeredEnergy, planarStack } from '../../../geometry/host';
@@ -122,14 +123,17 @@ describe('U and V under a grounded metal plane (image −q, Jackson §2.1)', () 
 });
 
 describe('refusals and the device mesh', () => {
-  it('an interface that no element face follows: refused with a plain code, no homogeneous answer', () => {
+  it('an interface that no element face follows: the conformity check refuses the mesh with a plain code (no homogeneous answer)', () => {
     const shifted: HostLayer[] = [
       { name: 'silicon', epsilonR: SI, zMinNm: null, zMaxNm: 0.3 },
       { name: 'oxide', epsilonR: OX, zMinNm: 0.3, zMaxNm: null },
     ];
+    // the mesher puts a grid plane at every interface (geometry/mesh/device.ts), so the mesh that
+    // misses one is a plain Kuhn box with planes at z = −6, −3, 0, 3, 6 handed to the check itself
+    const box = toTetMesh(kuhnBox({ center: [0, 0, 0], halfExtents: [6, 6, 6], cells: [4, 4, 4] }));
     let err: unknown = null;
     try {
-      solveCoulomb(device({ layers: shifted, half: 6, sites: [[0, 0, -3]] }));
+      deviceMesh(device({ layers: shifted, half: 6, sites: [[0, 0, -3]] }), box);
     } catch (e) {
       err = e;
     }
