@@ -71,7 +71,7 @@ export type Boundary = { kind: 'grounded' } | { kind: 'multipole'; order: number
 
 /**
  * What the domain's walls are for the electrodes' (Laplace) problem of the lever arms:
- *   'grounded'           every wall at 0 V (a far grounded domain of the device)
+ *   'grounded'           every wall at 0 V (a far grounded enclosure of the device)
  *   'zero-normal-field'  ∂φ/∂n = 0 on the walls (field lines leave no charge there; right for walls
  *                        that electrodes cross, wrong where real metal is near)
  */

@@ -299,14 +299,14 @@ type Migration = (doc: Record<string, unknown>) => Record<string, unknown>;
 
 /**
  * MIGRATIONS[v] turns a version-v document into version v+1, keeping every other field as it is.
- *   1 → 2: the box the solvers work in is called `domain` (the trade's word) instead of `domain`;
+ *   1 → 2: the box the solvers work in is called `domain` (the trade's word) instead of `enclosure`;
  *          same content (centre, half-extents, boundary). A version-1 document that already has a
- *          `domain` and no `domain` keeps it, so the validator then names what is wrong.
+ *          `domain` and no `enclosure` keeps it, so the validator then names what is wrong.
  */
 export const MIGRATIONS: Record<number, Migration> = {
   1: (doc) => {
-    const { domain, ...rest } = doc;
-    return { ...rest, version: 2, ...(domain !== undefined || !('domain' in rest) ? { domain: domain } : {}) };
+    const { enclosure, ...rest } = doc;
+    return { ...rest, version: 2, ...(enclosure !== undefined || !('domain' in rest) ? { domain: enclosure } : {}) };
   },
 };
 

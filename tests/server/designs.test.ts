@@ -250,10 +250,10 @@ describe('versions', () => {
 });
 
 describe('documents saved in format version 1', () => {
-  /** the same document as version 1 wrote it: `domain` where version 2 says `domain` */
+  /** the same document as version 1 wrote it: `enclosure` where version 2 says `domain` */
   const asVersion1 = (doc: DesignDocument) => {
     const { domain, ...rest } = doc;
-    return { ...rest, version: 1, domain: domain };
+    return { ...rest, version: 1, enclosure: domain };
   };
 
   it('a version-1 upload is read, migrated and stored as version 2', async () => {
@@ -263,7 +263,7 @@ describe('documents saved in format version 1', () => {
     const got = designResponseSchema.parse((await owner.client.get(`${base}/${first.id}`)).body).design;
     expect(got.document.version).toBe(2);
     expect(got.document.domain).toEqual(twoDonors('x').domain);
-    expect('domain' in (got.document as Record<string, unknown>)).toBe(false);
+    expect('enclosure' in (got.document as Record<string, unknown>)).toBe(false);
   });
 
   it('rows an older build stored in version 1 are served in version 2, the stored bytes untouched', async () => {
@@ -283,7 +283,7 @@ describe('documents saved in format version 1', () => {
     expect(v.version.document).toMatchObject({ version: 2, domain: twoDonors('x').domain });
     const stored = (await env.knex('design_versions').where({ design_id: first.id, version: 2 }).first()).document as Record<string, unknown>;
     expect(stored.version).toBe(1);
-    expect(stored.domain).toBeDefined();
+    expect(stored.enclosure).toBeDefined();
   });
 });
 

@@ -53,15 +53,15 @@ describe('design contract', () => {
 });
 
 describe('version 1 documents migrate to version 2 with nothing lost', () => {
-  it('domain becomes domain; every other field is kept as it was', () => {
+  it('enclosure becomes domain; every other field is kept as it was', () => {
     const v2 = example();
     const { domain, ...rest } = v2;
-    const v1 = { ...rest, version: 1, domain: structuredClone(domain), extra: { kept: true } };
+    const v1 = { ...rest, version: 1, enclosure: structuredClone(domain), extra: { kept: true } };
     const m = migrateDesign(v1);
     expect(m.ok).toBe(true);
     if (!m.ok) return;
     expect(m.doc).toEqual({ ...rest, version: 2, domain, extra: { kept: true } });
-    expect('domain' in m.doc).toBe(false);
+    expect('enclosure' in m.doc).toBe(false);
     // the migrated document is valid under the current schema (the unknown key aside)
     const { extra: _extra, ...clean } = m.doc;
     expect(parseDesign(clean).ok).toBe(true);
