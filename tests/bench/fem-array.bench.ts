@@ -5,9 +5,20 @@
  * remainder from the box walls) and, for comparison on a 4×4 corner, the full solve. Target: ≤ 30 s
  * on one core. Prints wall and CPU time and the load average (the machine is shared). Figures
  * only; nothing here asserts a timing.
+ *
+ * The device figure (issue 11: "the same array 20 nm under a 5 nm oxide with two gates: ≤ 60 s,
+ * with lever arms"): the same 10×10 array with its plane 20 nm below a Si/SiO₂ interface, 5 nm of
+ * oxide, vacuum above, two gates on the oxide each over half of the array; U, V of the bond-graph
+ * pairs, and the lever arms. Permittivities: Si 11.7, SiO₂ 3.9, vacuum 1 (Sze & Ng, Physics of
+ * Semiconductor Devices, 3rd ed., Appendix tables; from memory). Prints wall, CPU, tets/dofs per
+ * level and the estimated errors of each part.
+ * TETRAWELL_BENCH_ARRAY_PARTS = comma list of homogeneous, full, device (default all three);
+ * TETRAWELL_BENCH_DEVICE_TARGET = the device's target (default 1e-3, the homogeneous figure's);
+ * TETRAWELL_BENCH_DEVICE_N = the array's side (default 10; 2 for a quick look).
  */
 import { loadavg } from 'node:os';
 import { solveCoulomb } from '../../geometry/fem/coulomb';
+import { solveLeverArms } from '../../geometry/fem/lever';
 import type { Design } from '../../geometry/design/types';
 
 const PITCH = 4.3;
@@ -42,7 +53,72 @@ function one(n: number, method: 'auto' | 'full'): void {
   );
 }
 
+const DEPTH_NM = 20;
+const OXIDE_NM = 5;
+
+/** The n×n array DEPTH_NM under OXIDE_NM of oxide, two gates (left and right half of the array) on the oxide. */
+export function buriedArray(n: number, target: number): Design {
+  const base = squareArray(n);
+  const span = ((n - 1) * PITCH) / 2;
+  const margin = 20;
+  const half = span + margin;
+  // box from DEPTH + margin below the donors to margin above the gates' top
+  const zLo = -DEPTH_NM - margin;
+  const zHi = OXIDE_NM + 2 + margin;
+  return {
+    ...base,
+    name: `bench: ${n}×${n} donor array ${DEPTH_NM} nm under ${OXIDE_NM} nm oxide, two gates`,
+    host: {
+      material: 'Si',
+      epsilonR: 11.7,
+      latticeConstantNm: 0.5431020511,
+      // Sze & Ng, Physics of Semiconductor Devices, 3rd ed. (from memory): Si 11.7, SiO₂ 3.9
+      layers: [
+        { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
+        { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: OXIDE_NM },
+        { name: 'vacuum', epsilonR: 1, zMinNm: OXIDE_NM, zMaxNm: null },
+      ],
+    },
+    sites: base.sites.map((s) => ({ ...s, position: [s.position[0], s.position[1], -DEPTH_NM] })),
+    domain: { center: [0, 0, (zLo + zHi) / 2], halfExtentsNm: [half, half, (zHi - zLo) / 2], boundary: { kind: 'multipole', order: 2 } },
+    electrodes: [
+      { name: 'left gate', minNm: [-span - 2, -span - 2, OXIDE_NM], maxNm: [-1, span + 2, OXIDE_NM + 2], voltageV: 0.3 },
+      { name: 'right gate', minNm: [1, -span - 2, OXIDE_NM], maxNm: [span + 2, span + 2, OXIDE_NM + 2], voltageV: 0.1 },
+    ],
+    refinement: { ...base.refinement, targetRelError: target },
+  };
+}
+
+function device(n: number, target: number): void {
+  const d = buriedArray(n, target);
+  const la = loadavg()[0];
+  const c0 = process.cpuUsage();
+  const t0 = performance.now();
+  const r = solveCoulomb(d, { pairs: 'bond-graph' });
+  const c1 = process.cpuUsage(c0);
+  const t1 = performance.now();
+  const lv = solveLeverArms(d);
+  const c2 = process.cpuUsage(c0);
+  const t2 = performance.now();
+  const cpu = (c: NodeJS.CpuUsage) => (c.user + c.system) / 1e6;
+  const worstLever = lv.leverArms.reduce((w, a) => Math.max(w, a.errorMeVPerV), 0);
+  const worstRelLever = lv.leverArms.reduce((w, a) => Math.max(w, a.errorMeVPerV / Math.abs(a.meVPerV)), 0);
+  console.log(
+    `${n}×${n} under oxide, ${r.method}: sites ${r.sites.length}, bond pairs ${r.pairs.length}, U/V unknowns ${r.levels.map((l) => l.dofs).join('/')}; ` +
+      `estimated ${r.estimatedRelError.toExponential(2)} (meets ${target}: ${r.meetsTarget}); wall ${((t1 - t0) / 1000).toFixed(1)} s, CPU ${cpu(c1).toFixed(1)} s`,
+  );
+  console.log(
+    `  lever arms: ${lv.leverArms.length} (sites × 2 gates), P${lv.order}, tets ${lv.levels.map((l) => l.elements).join('/')}, dofs ${lv.levels.map((l) => l.dofs).join('/')}; ` +
+      `worst error bar ${worstLever.toPrecision(2)} meV/V (relative ${worstRelLever.toExponential(2)}); wall ${((t2 - t1) / 1000).toFixed(1)} s, CPU ${(cpu(c2) - cpu(c1)).toFixed(1)} s`,
+  );
+  console.log(
+    `  device total: wall ${((t2 - t0) / 1000).toFixed(1)} s, CPU ${cpu(c2).toFixed(1)} s; load average ${la.toFixed(1)} at the start, ${loadavg()[0].toFixed(1)} at the end (target ≤ 60 s on one core for 10×10)`,
+  );
+}
+
 export async function run(): Promise<void> {
-  one(10, 'auto');
-  one(4, 'full');
+  const parts = (process.env.TETRAWELL_BENCH_ARRAY_PARTS ?? 'homogeneous,full,device').split(',').map((p) => p.trim());
+  if (parts.includes('homogeneous')) one(10, 'auto');
+  if (parts.includes('full')) one(4, 'full');
+  if (parts.includes('device')) device(Number(process.env.TETRAWELL_BENCH_DEVICE_N ?? 10), Number(process.env.TETRAWELL_BENCH_DEVICE_TARGET ?? 1e-3));
 }
