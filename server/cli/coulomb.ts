@@ -106,8 +106,9 @@ export function leverReadable(design: Design, r: LeverArmResult): string[] {
   return out;
 }
 
-export function toLeverReadable(design: Design, r: LeverArmResult, seconds: number): string {
-  const out: string[] = [`Gate lever arms: ${design.name} (${seconds.toFixed(1)} s)`, ''];
+/** `seconds` is left out when the lever arms ran inside a U and V solve (whose own time the table gives). */
+export function toLeverReadable(design: Design, r: LeverArmResult, seconds?: number): string {
+  const out: string[] = [`Gate lever arms: ${design.name}${seconds === undefined ? '' : ` (${seconds.toFixed(1)} s)`}`, ''];
   out.push(...leverReadable(design, r));
   out.push(...notesAndAssumptions(r.notes, LEVER_ARM_ASSUMPTIONS));
   return out.join('\n');
@@ -198,7 +199,7 @@ export async function run(argv: string[]): Promise<number> {
     console.error(`no result: ${result.notes[0] ?? 'the adaptive refinement did not reach the target'}`);
     return 3;
   }
-  console.log(json ? JSON.stringify(out.json, null, 2) : toCoulombReadable(design, result) + (out.lever ? `\n\n${toLeverReadable(design, out.lever, 0)}` : ''));
+  console.log(json ? JSON.stringify(out.json, null, 2) : toCoulombReadable(design, result) + (out.lever ? `\n\n${toLeverReadable(design, out.lever)}` : ''));
   if (!result.meetsTarget) {
     console.error(
       `warning: the estimated relative error ${result.estimatedRelError.toExponential(2)} does not meet targetRelError ${result.targetRelError}; the numbers above do not have the accuracy asked for (exit code 3)`,
