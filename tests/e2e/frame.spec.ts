@@ -76,7 +76,7 @@ test('titles, a 120-character name, the length counter and the activity sentence
   // The old name was shortened in the sentence; expanding the entry shows it whole.
   await activity.getByText('Show in full').first().click();
   await expect(activity.getByText(longest, { exact: true }).first()).toBeVisible();
-  await expect(page.getByText('domain', { exact: false })).toHaveCount(0);
+  await expect(page.getByText('enclosure', { exact: false })).toHaveCount(0);
   await page.screenshot({ path: 'tests/artifacts/frame-project.png', fullPage: true });
 
   // Back on the list, the long name (now renamed) and others stay inside the window.
