@@ -38,8 +38,8 @@ export const apiNotFound: RequestHandler = (req, res) => {
  * `unavailable` and recovers by itself when PostgreSQL is back (pools make new connections).
  * SQLSTATE classes from the PostgreSQL manual, appendix A "PostgreSQL Error Codes": 08 connection exception,
  * 57P01 admin_shutdown (pg_ctl -m fast), 57P02 crash_shutdown, 57P03 cannot_connect_now (starting or stopping),
- * 53300 too_many_connections. The rest are Node socket errors, knex's pool timeout and node-postgres's own
- * words for a connection that ended under it.
+ * 53300 too_many_connections. The rest are Node socket errors (a stopped server's Unix-domain socket is
+ * ENOENT on connect), knex's pool timeout and node-postgres's own words for a connection that ended under it.
  */
 const UNAVAILABLE_SOCKET_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'EPIPE', 'ETIMEDOUT', 'EHOSTUNREACH', 'ENETUNREACH', 'EAI_AGAIN', 'ENOTFOUND']);
 const UNAVAILABLE_SQLSTATES = new Set(['57P01', '57P02', '57P03', '53300']);
@@ -49,6 +49,9 @@ export function isDatabaseUnavailable(err: unknown, depth = 0): boolean {
   if (err == null || typeof err !== 'object' || depth > 4) return false;
   const e = err as { code?: unknown; name?: unknown; message?: unknown; cause?: unknown; errors?: unknown };
   if (typeof e.code === 'string' && (UNAVAILABLE_SOCKET_CODES.has(e.code) || UNAVAILABLE_SQLSTATES.has(e.code) || /^08[0-9A-Z]{3}$/.test(e.code))) return true;
+  // a Unix-domain socket whose server has stopped: PostgreSQL removes the socket file, so connect() finds nothing
+  // there (ENOENT) where TCP would be refused; only a failed connect counts, not any missing file
+  if ((e.code === 'ENOENT' || e.code === 'ECONNREFUSED') && (err as { syscall?: unknown }).syscall === 'connect') return true;
   if (e.name === 'KnexTimeoutError') return true;
   if (typeof e.message === 'string' && UNAVAILABLE_WORDS.test(e.message)) return true;
   // Node wraps the attempts of a multi-address connect in an AggregateError; drivers wrap with `cause`

@@ -78,7 +78,10 @@ export function createSessionStore(
           }
           fn(null, sess);
         },
-        (err: unknown) => fn(err),
+        // express-session reads an error coded ENOENT as "no such session" (a file store's missing file) and would
+        // carry on signed out; a stopped PostgreSQL's Unix-domain socket fails with exactly that code, so hand it on
+        // wrapped (the error middleware still finds the cause and answers 503)
+        (err: unknown) => fn((err as { code?: unknown } | null)?.code === 'ENOENT' ? new Error(`the session could not be read: ${(err as Error).message}`, { cause: err }) : err),
       );
     }
   }

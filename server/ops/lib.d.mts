@@ -16,7 +16,7 @@ export function depsDecision(input: {
   lockMtimeMs: number | null;
 }): { install: boolean; reason: string };
 export function sourcesFingerprint(entries: { path: string; size: number; mtimeMs: number }[]): string;
-export function pgUrl(input: { user: string; password?: string | null; host?: string; port: number; database: string }): string;
+export function pgUrl(input: { user: string; password?: string | null; host?: string; port: number; database: string; socketDir?: string }): string;
 export function portFromEnv(value: string | undefined | null, fallback: number): number;
 export function shQuote(arg: string): string;
 export function pgConfQuote(value: string): string;

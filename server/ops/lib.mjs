@@ -81,11 +81,14 @@ export function sourcesFingerprint(entries) {
 }
 
 /** Builds a postgres:// URL; user, password and database are percent-encoded. */
-export function pgUrl({ user, password, host = '127.0.0.1', port, database }) {
+export function pgUrl({ user, password, host = '127.0.0.1', port, database, socketDir }) {
   const auth = password != null && password !== ''
     ? `${encodeURIComponent(user)}:${encodeURIComponent(password)}`
     : encodeURIComponent(user);
-  return `postgres://${auth}@${host}:${port}/${encodeURIComponent(database)}`;
+  // socketDir: connect through the cluster's Unix-domain socket in that folder (libpq and node-postgres read `host`
+  // from the query string); the address before it stays for tools that want TCP and for the logs
+  const query = socketDir ? `?host=${encodeURIComponent(socketDir)}` : '';
+  return `postgres://${auth}@${host}:${port}/${encodeURIComponent(database)}${query}`;
 }
 
 /** Parses a port from the environment; falls back on `fallback` and rejects anything outside 1..65535. */

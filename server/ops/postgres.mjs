@@ -233,7 +233,9 @@ export async function startCluster({ name, port, disposable = false }) {
   return {
     port,
     dataDir,
-    url: (database) => pgUrl({ user: SUPERUSER, password, port, database }),
+    // through the Unix-domain socket: on loopback it costs the server about a fifth less CPU per query than TCP
+    // (`npm run bench -- jobs`), and the cluster listens on it already
+    url: (database) => pgUrl({ user: SUPERUSER, password, port, database, socketDir: runDir }),
     async stop() {
       if (stopped) return;
       stopped = true;
@@ -246,7 +248,7 @@ export async function startCluster({ name, port, disposable = false }) {
 
 /** Connection URL of a cluster that another process (a running `npm start`) has already started. */
 export function existingClusterUrl({ name, port, database }) {
-  const { passwordFile } = clusterPaths(name);
+  const { passwordFile, runDir } = clusterPaths(name);
   const password = fs.readFileSync(passwordFile, 'utf8').trim();
-  return pgUrl({ user: SUPERUSER, password, port, database });
+  return pgUrl({ user: SUPERUSER, password, port, database, socketDir: runDir });
 }

@@ -106,6 +106,16 @@ describe('connection settings', () => {
     expect(pgUrl({ user: 'u', port: 1, database: 'd' })).toBe('postgres://u@127.0.0.1:1/d');
   });
 
+  it('names the cluster\'s socket folder so that the pg client connects through the Unix-domain socket', () => {
+    // pg's own parser again: a `host` in the query string that starts with "/" is a socket folder (libpq's rule)
+    const dir = '/srv/tetra well/.data/pg-run';
+    const c = new pg.Client({ connectionString: pgUrl({ user: 'u', password: 'p w', port: 54329, database: 'd b', socketDir: dir }) });
+    expect(c.host).toBe(dir);
+    expect(c.port).toBe(54329);
+    expect(c.database).toBe('d b');
+    expect(c.password).toBe('p w');
+  });
+
   it('reads ports from the environment and refuses nonsense', () => {
     expect(portFromEnv(undefined, 54329)).toBe(54329);
     expect(portFromEnv('', 54329)).toBe(54329);
