@@ -10,6 +10,8 @@
  *
  * A plain Error (or RangeError) from the core is a bug or a broken invariant, not a refusal.
  */
+import { cooperate } from './cooperate';
+
 export type CoreErrorCode =
   // the mesher (geometry/mesh)
   /** a domain extent is zero, negative or not a finite number */
@@ -78,5 +80,7 @@ export type AbortLike = { readonly aborted: boolean };
 
 /** Throws CoreAbortError when the signal has aborted. */
 export function throwIfAborted(signal: AbortLike | undefined | null): void {
+  // every abort check is also a point where a long computation may give way (cooperate.ts)
+  cooperate();
   if (signal?.aborted) throw new CoreAbortError();
 }

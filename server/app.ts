@@ -8,6 +8,7 @@
  *                                                                          └─ 404 JSON
  *            ─► static client (dist/app) ─► index.html for other GETs       ─► error handler
  */
+import { pressureMiddleware, type RequestPressure } from './workers/requestPressure';
 import { existsSync } from 'node:fs';
 import path from 'node:path';
 import express, { type Express, type RequestHandler, type Router } from 'express';
@@ -31,6 +32,8 @@ import './http/types';
 
 export interface AppDeps {
   services: Services;
+  /** counts the requests being served, for the job threads of this process (server/workers/requestPressure.ts) */
+  pressure?: RequestPressure;
   sessionStore: Store;
   /** the account the store read with this request's session, when it did (server/http/sessionStore.ts) */
   sessionUser?: (req: express.Request) => User | false | undefined;
@@ -109,6 +112,7 @@ export function createApp(deps: AppDeps): Express {
   const { services, logger } = deps;
   const app = express();
   app.disable('x-powered-by');
+  if (deps.pressure) app.use(pressureMiddleware(deps.pressure));
   // API answers are no-store (nothing may revalidate them), so Express's ETag, a SHA-1 over every JSON body on the
   // request thread, only cost time (tens of ms for a large design); express.static keeps its own validators
   app.set('etag', false);

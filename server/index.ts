@@ -23,6 +23,7 @@ import { consoleLogger, DEFAULT_BODY_LIMIT, DEFAULT_RATE_LIMITS, type ServerOpti
 import { queueName, sendOptions, startBoss } from './jobs/queue';
 import { DEFAULT_JOB_SETTINGS } from './jobs/settings';
 import { startJobWorker, type JobWorker } from './jobs/worker';
+import { createRequestPressure } from './workers/requestPressure';
 import type { JobQueue } from './services/jobs';
 
 export type { ServerOptions } from './config';
@@ -117,8 +118,11 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
 
   // large design bodies are validated and written in a worker thread with a database connection of its own
   const designBodies = createDesignBodyReader({ databaseUrl: opts.databaseUrl });
+  // the job threads of this process give way while requests are being served (server/workers/requestPressure.ts)
+  const pressure = createRequestPressure();
   const app = createApp({
     services,
+    pressure,
     sessionStore,
     sessionUser,
     sessionSecret,
@@ -161,6 +165,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
         pollIntervalMs: opts.jobs?.pollIntervalMs,
         mailer,
         publicUrl: () => config.publicUrl ?? '',
+        pressure: pressure.buffer,
       });
     } catch (e) {
       // the database is down: the server still answers; jobs wait in the queue for a worker (restart, or `npm run worker`)

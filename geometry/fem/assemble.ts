@@ -7,6 +7,7 @@
  * Each element's geometry (∇λ, volume) is computed once by tetGeometry and shared by all the
  * integrals of that element (assembleSystem does stiffness and load in one pass).
  */
+import { cooperate, COOPERATE_MASK } from '../cooperate';
 import type { FeSpace } from './space';
 import { type Csr, sparsityPattern, withValues } from './csr';
 import { NeumaierSum } from '../mesh/check';
@@ -168,6 +169,7 @@ export function assembleSystem(
   const x = new Float64Array(3 * rule.n);
   const tets = mesh.tets;
   for (let t = 0; t < nTets; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const a = tets[4 * t], bb = tets[4 * t + 1], c = tets[4 * t + 2], d = tets[4 * t + 3];
     tetGeometry(mesh.coords, a, bb, c, d, g);
     localStiffness(order, g, epsOf(epsByRegion, mesh.tetRegion[t]), K);
@@ -200,6 +202,7 @@ export function assembleLoad(space: FeSpace, f: PointFunction, degree?: number):
   const g = new Float64Array(GEOM_SIZE);
   const x = new Float64Array(3 * rule.n);
   for (let t = 0; t < nTets; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const a = mesh.tets[4 * t], bb = mesh.tets[4 * t + 1], c = mesh.tets[4 * t + 2], d = mesh.tets[4 * t + 3];
     tetGeometry(mesh.coords, a, bb, c, d, g);
     const jac = 6 * g[12];
@@ -227,6 +230,7 @@ export function assembleMass(space: FeSpace, weight?: PointFunction, degree?: nu
   const K = new Float64Array(nLoc * nLoc);
   const x = new Float64Array(3 * rule.n);
   for (let t = 0; t < nTets; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const a = mesh.tets[4 * t], bb = mesh.tets[4 * t + 1], c = mesh.tets[4 * t + 2], d = mesh.tets[4 * t + 3];
     tetGeometry(mesh.coords, a, bb, c, d, g);
     const jac = 6 * g[12];
@@ -253,6 +257,7 @@ export function integrate(space: FeSpace, f: PointFunction, degree: number): num
   const x = new Float64Array(3 * rule.n);
   const sum = new NeumaierSum(); // millions of small positive terms
   for (let t = 0; t < nTets; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const a = mesh.tets[4 * t], bb = mesh.tets[4 * t + 1], c = mesh.tets[4 * t + 2], d = mesh.tets[4 * t + 3];
     tetGeometry(mesh.coords, a, bb, c, d, g);
     let s = 0;
@@ -281,6 +286,7 @@ export function feIntegrate(
   const x = new Float64Array(3 * rule.n);
   const sum = new NeumaierSum();
   for (let t = 0; t < nTets; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const a = mesh.tets[4 * t], bb = mesh.tets[4 * t + 1], c = mesh.tets[4 * t + 2], d = mesh.tets[4 * t + 3];
     tetGeometry(mesh.coords, a, bb, c, d, g);
     let s = 0;

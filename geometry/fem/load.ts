@@ -41,6 +41,7 @@
  * Units: the load is ∫ρ v_j in the units of ρ (nm⁻³ × nm³ = 1); the Poisson right-hand side is
  * 4π times it (geometry/units.ts).
  */
+import { cooperate, COOPERATE_MASK } from '../cooperate';
 import type { Orbital, Vec3 } from '../design/types';
 import { densityAt, orbitalLengths, orbitalModel } from '../density';
 import { tetQuadrature, p2BasisBary, type TetRule } from './reference';
@@ -213,6 +214,8 @@ export function densityLoad(space: FeSpace, orbital: Orbital, center: Vec3, opti
   };
 
   for (let t = 0; t < nTets; t++) {
+
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const a = tets[4 * t], b = tets[4 * t + 1], c = tets[4 * t + 2], d = tets[4 * t + 3];
     for (let k = 0; k < 3; k++) {
       p[k] = coords[3 * a + k];

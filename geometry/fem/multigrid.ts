@@ -31,6 +31,7 @@
  *  - every bisection of one edge happens in one generation (compatible bisection).
  * The newest vertex is taken as the one with the largest (vertexLevel, index).
  */
+import { cooperate, COOPERATE_MASK } from '../cooperate';
 import type { TetMesh } from '../mesh/types';
 import { NO_PARENT } from '../mesh/types';
 import type { FeSpace } from './space';
@@ -148,6 +149,8 @@ function buildForest(mesh: TetMesh): Forest {
   };
 
   for (let t = 0; t < m; t++) {
+
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     for (let k = 0; k < 4; k++) nodeV[4 * t + k] = mesh.tets[4 * t + k];
     sort4(nodeV, 4 * t);
     nodeLevel[t] = mesh.tetLevel[t];

@@ -15,6 +15,7 @@
  *        \|/
  *        v1
  */
+import { cooperate, COOPERATE_MASK } from '../cooperate';
 import type { TetMesh } from '../mesh/types';
 import { TET_EDGES, TET_FACES } from './reference';
 import { buildEdges, buildFaces, NO_TET } from '../mesh/edges';
@@ -30,6 +31,7 @@ function boundaryFlags(mesh: TetMesh, nVertices: number, tetEdges: Uint32Array |
   const nTets = mesh.tets.length / 4;
   const flags = new Uint8Array(nDofs);
   for (let t = 0; t < nTets; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     for (let f = 0; f < 4; f++) {
       if (faceTets[2 * tetFaces[4 * t + f] + 1] !== NO_TET) continue;
       for (const lv of TET_FACES[f]) flags[mesh.tets[4 * t + lv]] = 1;

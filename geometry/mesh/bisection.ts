@@ -41,6 +41,7 @@
  * typed open-addressing hash with linear probing (no Map iteration), and child B of tet t is
  * appended at the end while child A keeps index t. The same input gives the same bytes.
  */
+import { cooperate, COOPERATE_MASK } from '../cooperate';
 import { NO_PARENT, type TetMesh } from './types';
 import { MeshError } from './errors';
 
@@ -548,7 +549,8 @@ function refineEngine(m: BisectionMesh, marks: Uint8Array | null, tooLarge: TooL
     tetTag[t] = kk;
     tetLevel[t] = level;
     nt++;
-    bisections++;
+    // a turn-taking point every few thousand bisections (a single coarse tet may take thousands)
+    if ((++bisections & COOPERATE_MASK) === 0) cooperate();
   };
 
   /** true when tet t has a hanging midpoint on an edge whose endpoints both have stamp > since */
@@ -582,12 +584,16 @@ function refineEngine(m: BisectionMesh, marks: Uint8Array | null, tooLarge: TooL
     if (marks) {
       // pass 1: each marked tet once; nothing verified yet, so the next pass checks all (clock 0)
       const n0 = nt;
-      for (let t = 0; t < n0; t++) if (marks[t]) bisect(t);
+      for (let t = 0; t < n0; t++) {
+        if ((t & COOPERATE_MASK) === 0) cooperate();
+        if (marks[t]) bisect(t);
+      }
     } else if (tooLarge) {
       // pass 1: to size, verifying each tet against splits so far
       let block = new Uint32Array(((m.tetTag.length - 1) >> BLOCK_SHIFT) + 1);
       for (let t = 0; t < nt; t++) {
         if ((t & BLOCK_MASK) === 0) block = stampBlock(block, t >> BLOCK_SHIFT, clock);
+        if ((t & COOPERATE_MASK) === 0) cooperate();
         while (tooLarge(coords, tets, t) || hanging(t, 0)) bisect(t);
       }
       noteWork(block);
@@ -602,6 +608,7 @@ function refineEngine(m: BisectionMesh, marks: Uint8Array | null, tooLarge: TooL
       let block = new Uint32Array(((Math.max(nt, 1) - 1) >> BLOCK_SHIFT) + 1);
       for (let t = 0; t < nt; t++) {
         if ((t & BLOCK_MASK) === 0) block = stampBlock(block, t >> BLOCK_SHIFT, clock);
+        if ((t & COOPERATE_MASK) === 0) cooperate();
         let since = t < prevEnd ? prevBlock[t >> BLOCK_SHIFT] : 0;
         while (hanging(t, since)) {
           bisect(t);

@@ -16,6 +16,7 @@
  * Memory: the candidate array holds 6m (edges) or 4m (faces) entries before de-duplication — the
  * proven bound, since every tet has exactly 6 edges and 4 faces.
  */
+import { cooperate, COOPERATE_MASK } from '../cooperate';
 import { TET_EDGES, TET_FACES } from '../fem/reference';
 
 /** Marks "no tetrahedron" in `faceTets` (a boundary face has only one). */
@@ -105,6 +106,7 @@ export function buildEdges(tets: Uint32Array, nVertices: number): EdgeTable {
   // 1. count candidates per smallest vertex
   const start = new Uint32Array(nVertices + 1);
   for (let t = 0; t < m; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const o = 4 * t;
     for (let e = 0; e < 6; e++) {
       const a = tets[o + E0[e]];
@@ -117,6 +119,7 @@ export function buildEdges(tets: Uint32Array, nVertices: number): EdgeTable {
   const fill = start.slice(0, nVertices);
   const other = new Uint32Array(6 * m);
   for (let t = 0; t < m; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const o = 4 * t;
     for (let e = 0; e < 6; e++) {
       const a = tets[o + E0[e]];
@@ -153,6 +156,7 @@ export function buildEdges(tets: Uint32Array, nVertices: number): EdgeTable {
   // 5. each tet's edges by lookup in the (short, sorted) row of the smaller vertex
   const tetEdges = new Uint32Array(6 * m);
   for (let t = 0; t < m; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const o = 4 * t;
     for (let e = 0; e < 6; e++) {
       const a = tets[o + E0[e]];
@@ -179,6 +183,7 @@ export function buildFaces(tets: Uint32Array, nVertices: number): FaceTable {
   const n = nVertices;
   const start = new Uint32Array(n + 1);
   for (let t = 0; t < m; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const o = 4 * t;
     for (let f = 0; f < 4; f++) {
       const a = tets[o + F0[f]];
@@ -192,6 +197,7 @@ export function buildFaces(tets: Uint32Array, nVertices: number): FaceTable {
   const fill = start.slice(0, n);
   const keys = new Float64Array(4 * m); // 4m candidates: the proven bound
   for (let t = 0; t < m; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const o = 4 * t;
     for (let f = 0; f < 4; f++) {
       let a = tets[o + F0[f]];
@@ -242,6 +248,7 @@ export function buildFaces(tets: Uint32Array, nVertices: number): FaceTable {
   // Visiting tets in increasing index puts the lower-indexed tet first in faceTets, and the
   // first visitor also fixes the stored orientation of the face (outward from that tet).
   for (let t = 0; t < m; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const o = 4 * t;
     for (let f = 0; f < 4; f++) {
       const p = tets[o + F0[f]];

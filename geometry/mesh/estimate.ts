@@ -28,6 +28,7 @@
  * when h varies by less than LEAF_H_VARIATION over it); tests validate it on an integrand with a
  * closed form and compare the estimate with real meshes.
  */
+import { cooperate, COOPERATE_MASK } from '../cooperate';
 import type { SizeField, SizeFieldSpec } from './sizefield';
 import { kuhnBox, refineUniform } from './bisection';
 
@@ -130,7 +131,9 @@ export function adaptiveCubature(f: (x: number, y: number, z: number) => number,
   }
   const l = [0, 0, 0];
   const u = [0, 0, 0];
+  let popped = 0;
   while (stack.length > 0) {
+    if ((++popped & COOPERATE_MASK) === 0) cooperate();
     const depth = stack.pop()!;
     u[2] = stack.pop()!; u[1] = stack.pop()!; u[0] = stack.pop()!;
     l[2] = stack.pop()!; l[1] = stack.pop()!; l[0] = stack.pop()!;

@@ -23,6 +23,7 @@
  * Kuhn/Maubach bisection meshes have only a few shapes (a bounded number of similarity classes),
  * so these numbers are also a cheap regression check on the mesher.
  */
+import { cooperate, COOPERATE_MASK } from '../cooperate';
 import type { TetMesh } from './types';
 import { TET_EDGES, TET_FACES } from '../fem/reference';
 import { buildEdges, buildFaces, type EdgeTable, type FaceTable } from './edges';
@@ -90,6 +91,7 @@ export function computeTetQuality(mesh: Pick<TetMesh, 'coords' | 'tets'>): TetQu
   const ef0 = Int8Array.from(EDGE_FACES.map((f) => f[0]));
   const ef1 = Int8Array.from(EDGE_FACES.map((f) => f[1]));
   for (let t = 0; t < m; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     gatherVertices(coords, tets, t, p);
     let sumL2 = 0;
     let maxL2 = 0;
@@ -158,6 +160,7 @@ export function computeMeanRatio(mesh: Pick<TetMesh, 'coords' | 'tets'>): Float6
   const e0 = Int8Array.from(TET_EDGES.map((e) => e[0]));
   const e1 = Int8Array.from(TET_EDGES.map((e) => e[1]));
   for (let t = 0; t < m; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     gatherVertices(coords, tets, t, p);
     let sumL2 = 0;
     for (let e = 0; e < 6; e++) {
@@ -292,6 +295,7 @@ export function qualityReport(mesh: TetMesh, sites: ReportSite[] = [], options: 
   const vol = new NeumaierSum();
   const dihedrals = new Float64Array(2 * m);
   for (let t = 0; t < m; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     if (q.minDihedralDeg[t] < minD) minD = q.minDihedralDeg[t];
     if (q.maxDihedralDeg[t] > maxD) maxD = q.maxDihedralDeg[t];
     if (q.longestEdge[t] < hMin) hMin = q.longestEdge[t];
@@ -302,6 +306,7 @@ export function qualityReport(mesh: TetMesh, sites: ReportSite[] = [], options: 
   }
   const levels: number[] = [];
   for (let t = 0; t < m; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     const l = mesh.tetLevel ? mesh.tetLevel[t] : 0;
     while (levels.length <= l) levels.push(0);
     levels[l]++;
@@ -348,6 +353,7 @@ function siteReports(mesh: TetMesh, sites: ReportSite[], h: Float64Array, option
   const nearestTet = new Int32Array(S).fill(-1);
   const nearestDist = new Float64Array(S).fill(Infinity);
   for (let t = 0; t < m; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     let cx = 0, cy = 0, cz = 0;
     for (let i = 0; i < 4; i++) {
       const v = 3 * tets[4 * t + i];
@@ -386,6 +392,7 @@ function siteReports(mesh: TetMesh, sites: ReportSite[], h: Float64Array, option
     let rMin = Infinity;
     let rMax = 0;
     for (let t = 0; t < m; t++) {
+      if ((t & COOPERATE_MASK) === 0) cooperate();
       const d = Math.hypot(cen[3 * t] - sx[k], cen[3 * t + 1] - sy[k], cen[3 * t + 2] - sz[k]);
       if (d <= nearR) {
         nearTets++;
@@ -406,6 +413,7 @@ function siteReports(mesh: TetMesh, sites: ReportSite[], h: Float64Array, option
       const mn = new Float64Array(nBins).fill(Infinity);
       const mx = new Float64Array(nBins).fill(-Infinity);
       for (let t = 0; t < m; t++) {
+        if ((t & COOPERATE_MASK) === 0) cooperate();
         if (owner[t] !== k) continue;
         const r = Math.max(dist[t], rMin);
         let b = Math.floor(((Math.log(r) - lo) / span) * nBins);

@@ -6,6 +6,7 @@
  * Pure functions (fflate only), used in the job worker thread (packing) and the HTTP process
  * (unpacking one piece).
  */
+import { cooperate } from '../../geometry/cooperate';
 import { zlibSync, unzlibSync } from 'fflate';
 
 /** 1 MiB of the original file per stored piece (common practice: large enough to compress well, small enough to stream). */
@@ -33,7 +34,11 @@ export function packFile(name: string, bytes: Uint8Array, chunkBytes = CHUNK_BYT
   const chunks: Uint8Array[] = [];
   // an empty file is one empty piece, so every stored file has at least one
   const n = Math.max(1, Math.ceil(bytes.length / chunkBytes));
-  for (let k = 0; k < n; k++) chunks.push(zlibSync(bytes.subarray(k * chunkBytes, Math.min(bytes.length, (k + 1) * chunkBytes)), { level: 6 }));
+  for (let k = 0; k < n; k++) {
+    // a job thread gives way between pieces while requests are being served (geometry/cooperate.ts)
+    cooperate();
+    chunks.push(zlibSync(bytes.subarray(k * chunkBytes, Math.min(bytes.length, (k + 1) * chunkBytes)), { level: 6 }));
+  }
   return { name, contentType: CONTENT_TYPES[name] ?? 'application/octet-stream', bytes: bytes.length, chunks };
 }
 

@@ -4,7 +4,7 @@
  * The thread lives on between jobs: after each one it hands back the WebAssembly memory a big
  * matrix grew (releaseSpmvMemory: above SPMV_KEEP_BYTES the kernel's arena is dropped).
  */
-import type { MessagePort } from 'node:worker_threads';
+import { workerData, type MessagePort } from 'node:worker_threads';
 import type { JobKind, JobOptions } from '@contracts/api';
 import type { Design } from '../../geometry/design/types';
 import { migrateDesign } from '@contracts/design';
@@ -12,9 +12,20 @@ import { releaseSpmvMemory } from '../../geometry/fem/index';
 import { JobRefusal, runPipeline } from './pipeline';
 import { packFile, type PackedFile } from './storage';
 import { JOB_NICE, lowerThreadPriority } from '../workers/lowPriority';
+import { pressureHook } from '../workers/requestPressure';
+import { setCooperationHook } from '../../geometry/cooperate';
 
-// requests and the database come first on a busy machine: the lowest priority (server/workers/lowPriority.ts)
+/** The pool's workerData (threads.ts). */
+export interface TaskWorkerData {
+  /** the request thread's gauge, when this worker runs inside the app process */
+  pressure: SharedArrayBuffer | null;
+}
+
+// requests and the database come first on a busy machine: the lowest priority (server/workers/lowPriority.ts),
+// and inside the app process the computation also gives way while requests are being served (requestPressure.ts)
 lowerThreadPriority(JOB_NICE);
+const pressure = (workerData as TaskWorkerData | null)?.pressure ?? null;
+if (pressure) setCooperationHook(pressureHook(pressure));
 
 export interface TaskInput {
   kind: JobKind;

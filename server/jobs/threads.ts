@@ -9,7 +9,7 @@ import { fileURLToPath } from 'node:url';
 import { MessageChannel } from 'node:worker_threads';
 import Piscina from 'piscina';
 import type { JobKind, JobOptions, JobProgress } from '@contracts/api';
-import type { TaskOutput } from './task.worker';
+import type { TaskOutput, TaskWorkerData } from './task.worker';
 
 function workerFile(): { filename: string; execArgv: string[] } {
   const ts = fileURLToPath(new URL('./task.worker.ts', import.meta.url));
@@ -24,8 +24,13 @@ export interface JobThreads {
   close(): Promise<void>;
 }
 
-export function jobThreads(threads: number): JobThreads {
-  const pool = new Piscina({ ...workerFile(), minThreads: 0, maxThreads: Math.max(1, threads), idleTimeout: 60_000 });
+/**
+ * `pressure`: the request thread's gauge when the worker runs inside the app process (server/workers/requestPressure.ts);
+ * the threads then compute in slices while requests are being served. A standalone worker passes none.
+ */
+export function jobThreads(threads: number, pressure?: SharedArrayBuffer): JobThreads {
+  const workerData: TaskWorkerData = { pressure: pressure ?? null };
+  const pool = new Piscina({ ...workerFile(), workerData, minThreads: 0, maxThreads: Math.max(1, threads), idleTimeout: 60_000 });
   return {
     async run(task, opts) {
       const { port1, port2 } = new MessageChannel();

@@ -53,6 +53,8 @@ export interface JobWorkerOptions {
   mailKey?: Buffer | null;
   /** base of the links in those e-mails */
   publicUrl?: () => string;
+  /** the request thread's gauge when this worker runs in the app process (server/workers/requestPressure.ts) */
+  pressure?: SharedArrayBuffer;
 }
 
 export interface JobWorker {
@@ -80,7 +82,7 @@ export async function startJobWorker(opts: JobWorkerOptions): Promise<JobWorker>
   const logger = opts.logger;
   const knex: Knex = createKnex(opts.databaseUrl, { poolMax: 2 + concurrency, logger });
   const boss: PgBoss = await startBoss(opts.databaseUrl, settings, logger);
-  const threads: JobThreads = jobThreads(concurrency);
+  const threads: JobThreads = jobThreads(concurrency, opts.pressure);
   const software = softwareVersion();
   // without a mailer of the app's (a standalone `npm run worker`), job e-mails go into the mail queue through
   // this worker's own pg-boss; the app process delivers them (server/mail/queue.ts)

@@ -15,6 +15,7 @@
  * The second choice after .vtu: larger and slower, but readable by eye and by old tools. Numbers
  * use the shortest form that reads back to the same double. Array names must not contain spaces.
  */
+import { cooperate, COOPERATE_MASK } from '../../cooperate';
 import type { TetMesh } from '../types';
 import { buildEdges } from '../edges';
 import { p2Connectivity, p2Coords, p2ExtendVertexField } from '../p2';
@@ -57,10 +58,14 @@ export function writeVtkLegacy(mesh: TetMesh, options: VtkLegacyOptions = {}): U
   const lines: string[] = [];
   lines.push('# vtk DataFile Version 3.0', title, 'ASCII', 'DATASET UNSTRUCTURED_GRID');
   lines.push(`POINTS ${nPoints} double`);
-  for (let i = 0; i < nPoints; i++) lines.push(`${points[3 * i]} ${points[3 * i + 1]} ${points[3 * i + 2]}`);
+  for (let i = 0; i < nPoints; i++) {
+    if ((i & COOPERATE_MASK) === 0) cooperate();
+    lines.push(`${points[3 * i]} ${points[3 * i + 1]} ${points[3 * i + 2]}`);
+  }
   lines.push(`CELLS ${m} ${m * (k + 1)}`);
   const row: number[] = new Array(k);
   for (let t = 0; t < m; t++) {
+    if ((t & COOPERATE_MASK) === 0) cooperate();
     for (let j = 0; j < k; j++) row[j] = conn[k * t + j];
     lines.push(`${k} ${row.join(' ')}`);
   }
@@ -72,6 +77,7 @@ export function writeVtkLegacy(mesh: TetMesh, options: VtkLegacyOptions = {}): U
     lines.push(`SCALARS ${checkName(name)} ${isIntegerArray(values) ? 'int' : 'double'} ${comps}`, 'LOOKUP_TABLE default');
     const r: number[] = new Array(comps);
     for (let i = 0; i < values.length; i += comps) {
+      if ((i & COOPERATE_MASK) === 0) cooperate();
       for (let c = 0; c < comps; c++) r[c] = values[i + c];
       lines.push(r.join(' '));
     }

@@ -27,6 +27,7 @@
  * Output is a Uint8Array; the same mesh and options give the same bytes (no timestamps, fixed
  * block size and compression level, deterministic zlib).
  */
+import { cooperate, COOPERATE_MASK } from '../../cooperate';
 import { zlibSync } from 'fflate';
 import type { TetMesh } from '../types';
 import { buildEdges, type EdgeTable } from '../edges';
@@ -124,6 +125,7 @@ function encodeBody(a: NumericArray, encoding: VtuEncoding, level: number, block
   let cTotal = 0;
   for (let b = 0; b < nBlocks; b++) {
     const chunk = raw.subarray(b * blockSize, Math.min(raw.length, (b + 1) * blockSize));
+    cooperate();
     blocks[b] = deflate(chunk, level);
     cTotal += blocks[b].length;
   }
@@ -145,6 +147,7 @@ function asciiBody(a: NumericArray, perLine: number): Uint8Array {
   const row: string[] = new Array(perLine);
   if (a.length % perLine !== 0) throw new Error(`array length ${a.length} is not a multiple of ${perLine}`);
   for (let i = 0, l = 0; i < a.length; i += perLine, l++) {
+    if ((l & COOPERATE_MASK) === 0) cooperate();
     for (let k = 0; k < perLine; k++) row[k] = String(a[i + k]);
     lines[l] = row.join(' ');
   }
