@@ -26,7 +26,7 @@ import type { DesignWrite } from '../repositories/designs';
 import { issuesToDetails, type FieldIssue } from '../services/errors';
 import { computeFigures } from '../workers/designFigures';
 import { findTextProblems, textProblemsAnswer } from './wellFormed';
-import { lowerThreadPriority } from '../workers/lowPriority';
+import { lowerThreadPriority, WORKER_NICE } from '../workers/lowPriority';
 
 // requests and the database come first on a busy machine (server/workers/lowPriority.ts)
 lowerThreadPriority();
@@ -124,7 +124,8 @@ let db: Knex | null = null;
 function database(): Knex {
   const url = (workerData as DesignBodyWorkerData | undefined)?.databaseUrl;
   if (!url) throw new Error('the design body worker has no database URL (createDesignBodyReader({ databaseUrl }))');
-  return (db ??= createKnex(url, { poolMax: 1 }));
+  // its PostgreSQL backend works at the thread's own low priority (lowPriority.ts): a 17 MB jsonb insert is batch work
+  return (db ??= createKnex(url, { poolMax: 1, backendNice: WORKER_NICE }));
 }
 
 async function store(r: Extract<DesignBodyResult, { write: PreparedInWorker }>, to: NonNullable<DesignBodyTask['store']>): Promise<DesignBodyResult> {

@@ -10,6 +10,7 @@ import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { JOB_NICE, WORKER_NICE } from '../../server/workers/lowPriority';
 import { jobThreads } from '../../server/jobs/threads';
+import { createKnex } from '../../server/db/config';
 
 const PAIR = fileURLToPath(new URL('../fixtures/designs/pair-coarse.json', import.meta.url));
 const MODULE = fileURLToPath(new URL('../../server/workers/lowPriority.ts', import.meta.url));
@@ -59,5 +60,20 @@ describe('lowerThreadPriority', () => {
     expect(JOB_NICE).toBe(19);
     expect(seen).toContain(Math.max(before, JOB_NICE));
     expect(getPriority(process.pid)).toBe(before);
+  });
+
+  it.runIf(process.platform === 'linux')('a pool with backendNice runs its PostgreSQL backends at that nice value (the design-body threads\' big writes)', async () => {
+    // the test cluster runs on this machine, as this user or (as root) as postgres: setpriority(2) may lower it
+    const knex = createKnex(process.env.DATABASE_URL!, { poolMax: 1, backendNice: WORKER_NICE });
+    const plain = createKnex(process.env.DATABASE_URL!, { poolMax: 1 });
+    try {
+      const pid = (await knex.raw<{ rows: { pid: number }[] }>('select pg_backend_pid() as pid')).rows[0]!.pid;
+      const other = (await plain.raw<{ rows: { pid: number }[] }>('select pg_backend_pid() as pid')).rows[0]!.pid;
+      expect(getPriority(pid)).toBe(WORKER_NICE);
+      // only that pool's backends: another connection keeps the server's own priority
+      expect(getPriority(other)).toBeLessThan(WORKER_NICE);
+    } finally {
+      await Promise.all([knex.destroy(), plain.destroy()]);
+    }
   });
 });
