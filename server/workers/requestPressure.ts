@@ -29,12 +29,14 @@ export const MAX_PAUSE_MS = 200;
 /** The server counts as busy this long after its last request began or ended (ms): requests come in bursts. */
 export const QUIET_MS = 20;
 
-// Int32 slots: 0 requests in flight, 1 the slot job threads sleep on (never notified: a timed wait).
-// Float64 slot (byte offset 8): Date.now() of the last request start or end.
+// Int32 slots: 0 requests in flight, 1 the slot job threads sleep on (never notified: a timed wait), 2 pauses taken
+// by job threads so far, 3 unused. Float64 slot (byte offset 16): Date.now() of the last request start or end.
 const IN_FLIGHT = 0;
 const SLEEP = 1;
-const LAST_MS_OFFSET = 8;
-const BYTES = 16;
+const PAUSES = 2;
+const INT_SLOTS = 4;
+const LAST_MS_OFFSET = 16;
+const BYTES = 24;
 
 export interface RequestPressure {
   /** shared with the job threads (piscina workerData) */
@@ -45,7 +47,7 @@ export interface RequestPressure {
 
 export function createRequestPressure(): RequestPressure {
   const buffer = new SharedArrayBuffer(BYTES);
-  const count = new Int32Array(buffer, 0, 2);
+  const count = new Int32Array(buffer, 0, INT_SLOTS);
   const last = new Float64Array(buffer, LAST_MS_OFFSET, 1);
   return {
     buffer,
@@ -70,9 +72,14 @@ export function pressureMiddleware(pressure: RequestPressure): RequestHandler {
   };
 }
 
+/** Pauses the job threads sharing this gauge have taken so far (for tests and benchmarks). */
+export function pausesTaken(buffer: SharedArrayBuffer): number {
+  return Atomics.load(new Int32Array(buffer, 0, INT_SLOTS), PAUSES);
+}
+
 /** Is the request thread serving (or did it just serve) requests? Readable from any thread. */
 export function isBusy(buffer: SharedArrayBuffer, now = Date.now()): boolean {
-  const count = new Int32Array(buffer, 0, 2);
+  const count = new Int32Array(buffer, 0, INT_SLOTS);
   const last = new Float64Array(buffer, LAST_MS_OFFSET, 1);
   return Atomics.load(count, IN_FLIGHT) > 0 || now - last[0] < QUIET_MS;
 }
@@ -82,14 +89,17 @@ export function isBusy(buffer: SharedArrayBuffer, now = Date.now()): boolean {
  * sleep PAUSE_RATIO × the time worked (at most MAX_PAUSE_MS). `sleep` is for tests; threads use Atomics.wait.
  */
 export function pressureHook(buffer: SharedArrayBuffer, sleep?: (ms: number) => void): () => void {
-  const slots = new Int32Array(buffer, 0, 2);
+  const slots = new Int32Array(buffer, 0, INT_SLOTS);
   const wait = sleep ?? ((ms: number) => void Atomics.wait(slots, SLEEP, 0, ms));
   let resumed = performance.now();
   return () => {
     const t = performance.now();
     const worked = t - resumed;
     if (worked < SLICE_MS) return;
-    if (isBusy(buffer)) wait(Math.min(MAX_PAUSE_MS, PAUSE_RATIO * worked));
+    if (isBusy(buffer)) {
+      Atomics.add(slots, PAUSES, 1);
+      wait(Math.min(MAX_PAUSE_MS, PAUSE_RATIO * worked));
+    }
     resumed = performance.now();
   };
 }

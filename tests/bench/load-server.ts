@@ -4,7 +4,7 @@
  * A process of its own so the benchmark's client work (building and sending 17 MB bodies, reading answers)
  * does not share the event loop it measures.
  */
-import { monitorEventLoopDelay } from 'node:perf_hooks';
+import { monitorEventLoopDelay, PerformanceObserver, constants as perf } from 'node:perf_hooks';
 import { start } from '../../server/index';
 import { silentLogger } from '../../server/config';
 
@@ -28,12 +28,25 @@ console.log(`LISTENING ${server.url}`);
 // `eld` on stdin: print the main thread's event-loop delay (ms) since the last `eld`, then start afresh
 const delay = monitorEventLoopDelay({ resolution: 5 });
 delay.enable();
+// the main thread's garbage-collection pauses since the last `eld`: the longest minor (scavenge) and major
+// (mark-compact) pause and their total (node:perf_hooks 'gc' entries, detail.kind)
+let gc = { minorMax: 0, majorMax: 0, totalMs: 0, count: 0 };
+new PerformanceObserver((list) => {
+  for (const e of list.getEntries()) {
+    const kind = (e as unknown as { detail?: { kind?: number } }).detail?.kind;
+    if (kind === perf.NODE_PERFORMANCE_GC_MAJOR) gc.majorMax = Math.max(gc.majorMax, e.duration);
+    else if (kind === perf.NODE_PERFORMANCE_GC_MINOR) gc.minorMax = Math.max(gc.minorMax, e.duration);
+    gc.totalMs += e.duration;
+    gc.count++;
+  }
+}).observe({ entryTypes: ['gc'] });
 process.stdin.setEncoding('utf8');
 process.stdin.on('data', (line: string) => {
   if (!line.includes('eld')) return;
   const ms = (ns: number) => ns / 1e6;
-  console.log(`ELD ${JSON.stringify({ p50: ms(delay.percentile(50)), p99: ms(delay.percentile(99)), max: ms(delay.max) })}`);
+  console.log(`ELD ${JSON.stringify({ p50: ms(delay.percentile(50)), p99: ms(delay.percentile(99)), max: ms(delay.max), gc })}`);
   delay.reset();
+  gc = { minorMax: 0, majorMax: 0, totalMs: 0, count: 0 };
 });
 process.on('SIGTERM', () => {
   void server.stop().then(() => process.exit(0));

@@ -217,6 +217,10 @@ export async function run(): Promise<void> {
         `${(mainCpu / statuses.length).toFixed(0)} ms per PUT; main-thread event-loop delay ` +
         `p50 ${eld.p50.toFixed(1)} ms, p99 ${eld.p99.toFixed(1)} ms, max ${eld.max.toFixed(1)} ms (load average ${loadAverage()})`,
     );
+    if (eld.gc)
+      console.log(
+        `  main-thread garbage collection: ${eld.gc.count} pauses, ${eld.gc.totalMs.toFixed(0)} ms in all; longest minor ${eld.gc.minorMax.toFixed(1)} ms, longest major ${eld.gc.majorMax.toFixed(1)} ms`,
+      );
     }
   } finally {
     await knex.destroy();

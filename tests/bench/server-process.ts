@@ -57,7 +57,15 @@ export async function transactions(knex: Knex): Promise<number> {
 export const loadAverage = (): string => os.loadavg().map((x) => x.toFixed(2)).join(' / ');
 
 /** Ask the bench server for its event-loop delay since the last ask (load-server.ts answers `ELD {…}` on stdout). */
-export function eventLoopDelay(child: ChildProcess): Promise<{ p50: number; p99: number; max: number }> {
+export interface ServerDelays {
+  p50: number;
+  p99: number;
+  max: number;
+  /** the main thread's garbage-collection pauses over the same span (ms) */
+  gc?: { minorMax: number; majorMax: number; totalMs: number; count: number };
+}
+
+export function eventLoopDelay(child: ChildProcess): Promise<ServerDelays> {
   return new Promise((resolve) => {
     let out = '';
     const onData = (d: Buffer) => {
@@ -65,7 +73,7 @@ export function eventLoopDelay(child: ChildProcess): Promise<{ p50: number; p99:
       const m = /ELD (\{[^\n]*\})/.exec(out);
       if (m) {
         child.stdout!.off('data', onData);
-        resolve(JSON.parse(m[1]) as { p50: number; p99: number; max: number });
+        resolve(JSON.parse(m[1]) as ServerDelays);
       }
     };
     child.stdout!.on('data', onData);
