@@ -70,7 +70,7 @@ function Headline({ label, what, figure, target }: { label: string; what: string
  * notebook's amber tint, the colour of model caveats, not of warnings), and the reason in words as
  * the title and, for screen readers, as text after the kind.
  */
-export function BoundMark({ kind, reason }: { kind: SiteBound['boundKind']; reason: SiteBound['boundReason'] }) {
+export function BoundMark({ kind, reason, spoken = true }: { kind: SiteBound['boundKind']; reason: SiteBound['boundReason']; /** false where the clause follows in plain text anyway */ spoken?: boolean }) {
   if (kind === undefined) return <span className="text-wafer-500">—</span>;
   const clause = reason ? BOUND_REASON_CLAUSE[reason] : '';
   const title = boundWords({ boundKind: kind, boundReason: reason });
@@ -85,7 +85,7 @@ export function BoundMark({ kind, reason }: { kind: SiteBound['boundKind']; reas
       }
     >
       {kind}
-      {clause && <span className="sr-only">: {clause}</span>}
+      {spoken && clause && <span className="sr-only">: {clause}</span>}
     </span>
   );
 }
@@ -190,7 +190,7 @@ export function BoundSummary({ groups }: { groups: readonly BoundGroup[] }) {
       {groups.map((g, k) => (
         <span key={`${g.kind}|${g.reason ?? ''}`} data-bound-group={g.kind}>
           {k > 0 && '; '}
-          <span className="num">{g.count}</span> {g.count === 1 ? 'site' : 'sites'} <BoundMark kind={g.kind} reason={g.reason ?? undefined} />
+          <span className="num">{g.count}</span> {g.count === 1 ? 'site' : 'sites'} <BoundMark kind={g.kind} reason={g.reason ?? undefined} spoken={false} />
           {g.clause && ` — ${g.clause}`}
         </span>
       ))}
