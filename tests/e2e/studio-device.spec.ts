@@ -219,8 +219,12 @@ test('a layered design: the far-field panel says which bounds are rigorous and w
   });
   expect(fits).toBe(true);
   await bound.getByRole('button').click(); // estimated first again for the picture
+  // the whole panel in one picture: a tall window, so the side column need not scroll
+  const size = page.viewportSize()!;
+  await page.setViewportSize({ width: size.width, height: 2400 });
   await panel.getByRole('heading', { name: 'Image-charge effect of the stack and metal planes' }).scrollIntoViewIfNeeded();
   await panel.screenshot({ path: 'tests/artifacts/studio-device-bounds.png' });
+  await page.setViewportSize(size);
   await page.getByRole('button', { name: 'Along [100]' }).click();
   await expect.poll(async () => (await canvasStats(page)).layerSlabs, { timeout: 30_000 }).toBe(3);
   await page.getByRole('region', { name: 'Design canvas' }).screenshot({ path: 'tests/artifacts/studio-device-tints.png' });

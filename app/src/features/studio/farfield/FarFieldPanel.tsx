@@ -81,7 +81,7 @@ export function BoundMark({ kind, reason, spoken = true }: { kind: SiteBound['bo
       className={
         kind === 'estimated'
           ? 'rounded-sm border border-dotted border-ember-600 bg-ember-50 px-1 text-ember-800'
-          : 'px-1 text-wafer-700'
+          : 'text-wafer-700'
       }
     >
       {kind}
@@ -117,10 +117,11 @@ function Figures({ report }: { report: FarFieldReport }) {
   const [view, setView] = useState<'sites' | 'pairs'>('sites');
   const [siteSort, setSiteSort] = useState<{ column: SiteColumn; direction: Direction }>({ column: 'uRelBound', direction: 'descending' });
   const [pairSort, setPairSort] = useState<{ column: PairColumn; direction: Direction }>({ column: 'vRelBound', direction: 'descending' });
-  // the Bound column only where the report gives kinds (a layered host or electrodes); a sort by
-  // it falls back to the relative bound when an edit takes the kinds away
+  // the Bound column only where the report gives kinds (a layered host or electrodes), beside the
+  // site's name so the narrow panel shows both without scrolling sideways; a sort by it falls back
+  // to the relative bound when an edit takes the kinds away
   const withKinds = hasBoundKinds(report);
-  const columns = useMemo(() => (withKinds ? [...siteColumns, boundColumn] : siteColumns), [withKinds]);
+  const columns = useMemo(() => (withKinds ? [siteColumns[0], boundColumn, ...siteColumns.slice(1)] : siteColumns), [withKinds]);
   const shownSort = useMemo(() => (!withKinds && siteSort.column === 'bound' ? { column: 'uRelBound' as const, direction: siteSort.direction } : siteSort), [withKinds, siteSort]);
   const sites = useMemo(() => sortSites(report.sites, shownSort.column, shownSort.direction), [report.sites, shownSort]);
   const pairs = useMemo(() => sortPairs(report.pairs, pairSort.column, pairSort.direction), [report.pairs, pairSort]);
