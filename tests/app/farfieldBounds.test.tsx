@@ -134,6 +134,8 @@ describe('Bound column and summary', () => {
     const layered = panel(report, doc);
     expect(layered).toMatch(/<th[^>]*><button[^>]*>Bound<span aria-hidden="true"><\/span><\/button><\/th>/);
     expect(layered).toContain('Boundary bounds in this stack: ');
+    // beside the headline figures: how many site bounds are estimates
+    expect(text(layered)).toContain('1 of 4 site bounds are estimated rather than rigorous');
     const plainDesign = rowUnderOxide(false);
     const plain = farFieldCheck(plainDesign);
     expect(hasBoundKinds(plain)).toBe(false);
@@ -141,5 +143,6 @@ describe('Bound column and summary', () => {
     expect(homogeneous).toContain('Clearance');
     expect(homogeneous).not.toMatch(/>Bound</);
     expect(homogeneous).not.toContain('Boundary bounds in this stack');
+    expect(homogeneous).not.toContain('estimated-bounds-note');
   });
 });

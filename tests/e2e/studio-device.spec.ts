@@ -196,6 +196,7 @@ test('a layered design: the far-field panel says which bounds are rigorous and w
   const summary = panel.getByLabel('Boundary bounds');
   await expect(summary).toContainText('Boundary bounds in this stack: 3 sites rigorous — the largest potential on the walls from the image series of the stack');
   await expect(summary).toContainText('1 site estimated — the image series of the stack, but part of the density lies across an interface');
+  await expect(panel.getByTestId('estimated-bounds-note')).toContainText('1 of 4 site bounds are estimated rather than rigorous');
   // the Bound column: sortable, estimated first when descending, the reason as the cell's title
   const table = panel.getByRole('table', { name: 'Far-field figures per site' });
   const bound = table.getByRole('columnheader', { name: /^Bound/ });

@@ -261,6 +261,7 @@ function Body({ report, document, readOnly, onApplyRecommended, elementsPending 
   const same = recOk && rec.every((x, k) => Math.abs(x - half[k]) <= 1e-9 * Math.max(1, x));
   const imageEffect = imageEffectOf(report);
   const bounds = useMemo(() => boundSummary(report.sites), [report.sites]);
+  const estimatedSites = bounds.reduce((n, g) => n + (g.kind === 'estimated' ? g.count : 0), 0);
   const device = Boolean(document.host.layers || document.electrodes);
   return (
     <div className="space-y-4">
@@ -273,6 +274,12 @@ function Body({ report, document, readOnly, onApplyRecommended, elementsPending 
           For the domain box of half-extents <span className="num">{half.map((x) => x.toPrecision(4)).join(' × ')} nm</span> with {boundaryWords(boundary)}; relative to
           each site&apos;s U and each pair&apos;s V in this model.
         </p>
+        {estimatedSites > 0 && (
+          <p className="mt-1 text-fine text-wafer-700" data-testid="estimated-bounds-note">
+            <span className="num">{estimatedSites}</span> of <span className="num">{report.sites.length}</span> site bounds are <BoundMark kind="estimated" reason={undefined} /> rather than
+            rigorous; the Bound column of the per-site figures says which and why.
+          </p>
+        )}
       </div>
 
       {imageEffect && <ImageEffectSection effect={imageEffect} document={document} target={target} bounds={bounds} />}
