@@ -6,21 +6,13 @@
 import type { Design } from '../../geometry/design/types';
 import type { FarFieldReport } from '../../geometry/farfield';
 import type { BoundReason, ImageFinding } from '../../geometry/farfield/layered';
+import { BOUND_REASON_WORDS } from '@contracts/farfieldWords';
 
 const pct = (x: number | null | undefined) => (x === null || x === undefined || !Number.isFinite(x) ? '—' : `${(100 * x).toPrecision(3)}%`);
 const nm = (x: number | undefined) => (x === undefined || !Number.isFinite(x) ? '?' : `${x.toPrecision(3)} nm`);
 
 /** Findings of one code listed in words before the rest are counted (common practice). */
 export const FINDINGS_PER_CODE = 8;
-
-/** What a bound's reason means, in one clause. */
-export const BOUND_REASON_WORDS: Record<BoundReason, string> = {
-  'image-series': 'rigorous: the largest potential on the walls from the image series of the stack (maximum principle)',
-  'density-leaks': 'estimated: the image series of the stack, but part of the density lies across an interface, where images are an approximation',
-  'electrode-not-plane': 'estimated: the multipole walls take their values from the stack without the finite electrodes, which change the far field',
-  'too-many-interfaces': 'estimated: no closed form for more than two interfaces between metals; the homogeneous bound with the smallest εr of the layers',
-  'layers-invalid': 'estimated: the layers do not form a valid stack; the homogeneous bound with the smallest εr of the layers',
-};
 
 function layerName(design: Design, k: number | undefined): string {
   const l = k === undefined ? undefined : design.host.layers?.[k];

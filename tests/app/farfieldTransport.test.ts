@@ -9,6 +9,7 @@ import { farFieldCheck } from '../../geometry/farfield';
 import { packReport, unpackReport } from '../../app/src/features/studio/farfield/transport';
 import { generateArray } from '../../geometry/arrays';
 import { siliconDesign } from '../geometry/design-fixtures';
+import type { Design } from '../../geometry/design/types';
 
 describe('far-field report transport', () => {
   it('round trip keeps every field, null and flag of a report with sites outside and point-charge pairs', () => {
@@ -28,5 +29,62 @@ describe('far-field report transport', () => {
     const back = unpackReport(structuredClone(packReport(r)));
     expect(back).toEqual(r);
     expect(Object.is(back.sites[5].clearanceNm, r.sites[5].clearanceNm)).toBe(true);
+  });
+
+  it('round trip keeps a layered host\'s bound kind and reason per site, and leaves them absent where the report has none', () => {
+    // An invented buried row under 5 nm of oxide (εr 11.7 silicon, 3.9 SiO₂, 1 vacuum: Sze & Ng,
+    // Physics of Semiconductor Devices, 3rd ed., Appendix; from memory), grounded walls. Three
+    // sites sit 22 nm deep in the silicon, where less than 0.1 % of a density crosses the
+    // interface (rigorous: the stack's image series, geometry/farfield/layered.ts); one sits
+    // 0.6 nm under it, with a share of its density across (estimated, 'density-leaks').
+    const A = 0.5431020511; // Si lattice constant (nm), CODATA 2018
+    const base = siliconDesign({
+      name: 'transport, layered',
+      sites: [
+        { id: 'w', species: 'P', position: [-8 * A, 0, -40 * A], electrons: 1 },
+        { id: 'c', species: 'P', position: [0, 0, -40 * A], electrons: 1 },
+        { id: 'e', species: 'P', position: [8 * A, 0, -40 * A], electrons: 1 },
+        { id: 'top', species: 'P', position: [0, 8 * A, -0.6], electrons: 1 },
+      ],
+      domain: { center: [0, 0, -5], halfExtentsNm: [30, 30, 30], boundary: { kind: 'grounded' } },
+      refinement: { order: 2, targetRelError: 1e-3, maxElements: 1e6 },
+    });
+    const d: Design = {
+      ...base,
+      host: {
+        ...base.host,
+        layers: [
+          { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
+          { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: 5 },
+          { name: 'vacuum', epsilonR: 1, zMinNm: 5, zMaxNm: null },
+        ],
+      },
+    };
+    const r = farFieldCheck(d);
+    expect(r.sites.map((s) => s.boundKind)).toEqual(['rigorous', 'rigorous', 'rigorous', 'estimated']);
+    expect(r.sites.map((s) => s.boundReason)).toEqual(['image-series', 'image-series', 'image-series', 'density-leaks']);
+    const back = unpackReport(structuredClone(packReport(r)));
+    expect(back).toEqual(r);
+    // toEqual passes over a key set to undefined; the keys themselves must match too
+    back.sites.forEach((s, i) => expect(Object.keys(s).sort()).toEqual(Object.keys(r.sites[i]).sort()));
+
+    // the same sites in a homogeneous host: no kinds, and none made up on the way back
+    const plain = farFieldCheck(base);
+    expect(plain.sites.every((s) => !('boundKind' in s) && !('boundReason' in s))).toBe(true);
+    const plainBack = unpackReport(structuredClone(packReport(plain)));
+    expect(plainBack).toEqual(plain);
+    expect(plainBack.sites.every((s) => !('boundKind' in s) && !('boundReason' in s))).toBe(true);
+  });
+
+  it('refuses a bound code it cannot carry rather than sending back another one', () => {
+    const d = siliconDesign({
+      name: 'transport, refused',
+      sites: [{ id: 'a', species: 'P', position: [0, 0, 0], electrons: 1 }],
+      domain: { center: [0, 0, 0], halfExtentsNm: [20, 20, 20], boundary: { kind: 'grounded' } },
+      refinement: { order: 2, targetRelError: 1e-3, maxElements: 1e6 },
+    });
+    const r = farFieldCheck(d);
+    const odd = { ...r, sites: [{ ...r.sites[0], boundKind: 'rigorous' as const, boundReason: 'no-such-reason' as never }] };
+    expect(() => packReport(odd)).toThrow(/unknown bound reason/);
   });
 });

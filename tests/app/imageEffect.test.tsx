@@ -65,6 +65,12 @@ describe('image-charge effect in the studio', () => {
     expect(findingText({ code: 'electrode-not-plane', index: 0 }, doc)).toMatch(/“side lead” does not span/);
     expect(findingText({ code: 'too-many-interfaces', value: 3 }, doc)).toMatch(/\(3\)/);
     expect(findingText({ code: 'some-new-code' }, doc)).toBe('some-new-code');
+    // the electrode checks of geometry/farfield/layered.ts, with their unit (nm, %) and names
+    expect(findingText({ code: 'site-near-electrode', index: 1, value: 5.703903183109506 }, doc)).toBe(
+      'Site q2 is 5.70 nm from an electrode: an ideal metal face and a fixed density are least reliable this close.',
+    );
+    expect(findingText({ code: 'electrode-clipped', index: 0, value: 0.5 }, doc)).toMatch(/“side lead” reaches outside the domain box and is clipped to it \(50\.0\u00a0% of its volume kept\)/);
+    expect(findingText({ code: 'electrode-outside-domain', index: 0 }, doc)).toMatch(/“side lead” lies wholly outside the domain box/);
   });
 
   it('renders the worst ΔU/U and ΔV/V with site and pair, the meaning and the notes', () => {

@@ -13,7 +13,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { differenceCiede2000, filterDeficiencyDeuter, filterDeficiencyProt, filterDeficiencyTrit, formatHex, parse, wcagContrast, type Color } from 'culori';
-import { CANVAS_THEME, SELECTED_CSS, SELECTED_SCALE, SPECIES_ORDER, SPECIES_STYLE, WARNING_CSS } from '../../app/src/features/studio/palette';
+import { CANVAS_THEME, SELECTED_CSS, SELECTED_SCALE, SPECIES_ORDER, SPECIES_STYLE, WARNING_CSS, layerTintOf } from '../../app/src/features/studio/palette';
+import { oxidePreset } from '../../app/src/features/studio/device/deviceEdit';
 
 const de = differenceCiede2000();
 const colour = (css: string): Color => parse(css)!;
@@ -89,11 +90,27 @@ describe('device colours (host layers, electrodes)', () => {
   const slab = (css: string) => over(css, CANVAS_THEME.layerOpacity, CANVAS_THEME.ground);
   it.each(Object.keys(vision))('neighbouring layers differ for %s colour vision (ΔE00 ≥ 10, common practice) and show on the ground', (who) => {
     const f = vision[who];
-    const t = CANVAS_THEME.layerTints;
-    for (let k = 0; k < t.length; k++) {
-      expect(de(f(slab(t[k])), f(slab(t[(k + 1) % t.length]))), `${t[k]} next to ${t[(k + 1) % t.length]}`).toBeGreaterThanOrEqual(10);
-      expect(de(f(slab(t[k])), f(CANVAS_THEME.ground)), t[k]).toBeGreaterThanOrEqual(8);
-    }
+    // neighbours in stacks of one to nine layers, tinted by place (layerTintOf)
+    for (let n = 1; n <= 9; n++)
+      for (let k = 0; k + 1 < n; k++) {
+        const a = layerTintOf(k), b = layerTintOf(k + 1);
+        expect(de(f(slab(a)), f(slab(b))), `layer ${k} (${a}) next to layer ${k + 1} (${b})`).toBeGreaterThanOrEqual(10);
+      }
+    for (const t of CANVAS_THEME.layerTints) expect(de(f(slab(t)), f(CANVAS_THEME.ground)), t).toBeGreaterThanOrEqual(8);
+  });
+  it.each(Object.keys(vision))('the silicon / oxide / vacuum stack has three tints that all differ for %s colour vision (ΔE00 ≥ 10)', (who) => {
+    const f = vision[who];
+    const tints = oxidePreset(0).map((_, k) => slab(layerTintOf(k)));
+    expect(tints).toHaveLength(3);
+    for (let i = 0; i < tints.length; i++)
+      for (let j = i + 1; j < tints.length; j++) expect(de(f(tints[i]), f(tints[j])), `layers ${i} and ${j}`).toBeGreaterThanOrEqual(10);
+  });
+  it('gives each layer of a four-layer stack its own tint: every two differ by ΔE00 ≥ 10 for typical vision, ≥ 6 with a colour-vision deficiency (the label beside each slab names it: the second cue; common practice)', () => {
+    const four = [0, 1, 2, 3].map(layerTintOf);
+    expect(new Set(four).size).toBe(4);
+    for (const who of Object.keys(vision))
+      for (let i = 0; i < 4; i++)
+        for (let j = i + 1; j < 4; j++) expect(de(vision[who](slab(four[i])), vision[who](slab(four[j]))), `${who}: layers ${i} and ${j}`).toBeGreaterThanOrEqual(who === 'typical' ? 10 : 6);
   });
   it.each(Object.keys(vision))('electrodes stand apart from every species, the selection and the warnings for %s colour vision (ΔE00 ≥ 10; the box shape is the second cue)', (who) => {
     const f = vision[who];

@@ -6,6 +6,10 @@
  * Physics of Semiconductor Devices, 3rd ed., Appendix; from memory), the slabs and boxes the canvas
  * reports are counted from what we added (three layers inside the box, two electrodes), and the
  * draw-call budget (species + 10) is issue 9's, read from three.js's renderer counters.
+ * The far-field panel of a layered design shows each site's kind of bound (issue 11) the way
+ * `npm run cli -- check` counts them: sites deep in the silicon get the stack's rigorous image-series
+ * bound, a site just under the oxide an estimate (part of its density crosses the interface;
+ * geometry/farfield/layered.ts, whose physics tests/geometry/farfield checks).
  * Screenshots: tests/artifacts/studio-device-*.png.
  */
 import { expect, test, type Page } from '@playwright/test';
@@ -92,8 +96,14 @@ test('oxide preset and two gates: edited, undone, saved, reloaded, drawn; a view
   await metal.getByLabel('Domain walls for the electrodes').selectOption('zero-normal-field');
   await expect(metal).toContainText('No field line crosses the domain walls');
 
-  await page.getByRole('button', { name: 'Save now' }).click();
-  await expect(page.getByRole('status', { name: 'Save state' })).toContainText('Saved as version', { timeout: 20_000 });
+  // autosave may have stored the edits already on a loaded machine (then "Save now" is disabled):
+  // save if there is something to save, until nothing is left and the badge says saved
+  const saveNow = page.getByRole('button', { name: 'Save now' });
+  await expect(async () => {
+    if (await saveNow.isEnabled()) await saveNow.click({ timeout: 2_000 });
+    await expect(saveNow).toBeDisabled({ timeout: 5_000 });
+    await expect(page.getByRole('status', { name: 'Save state' })).toContainText('Saved as version', { timeout: 5_000 });
+  }).toPass({ timeout: 60_000 });
   const stored = await page.request.get(`/api/projects/${projectId}/designs/${designId}`);
   const doc = ((await stored.json()) as { design: { document: { host: { layers: { name: string; epsilonR: number }[] }; electrodes: { name: string; voltageV: number }[]; domain: { electrodeWalls: string } } } }).design.document;
   expect(doc.host.layers.map((l) => l.epsilonR)).toEqual([11.7, 3.9, 1]);
@@ -144,4 +154,79 @@ test('oxide preset and two gates: edited, undone, saved, reloaded, drawn; a view
   await expect.poll(async () => (await canvasStats(viewer)).electrodeBoxes, { timeout: 30_000 }).toBe(2);
   await viewer.screenshot({ path: 'tests/artifacts/studio-device-viewer.png', fullPage: false });
   await ctx.close();
+});
+
+test('a layered design: the far-field panel says which bounds are rigorous and which estimated', async ({ page }) => {
+  await signUp(page, { email: uniqueEmail('odile'), name: 'Odile Varga' });
+  const projectId = await createProject(page, 'Row under an oxide');
+  const created = await apiWrite(page.request, 'POST', `/api/projects/${projectId}/designs`, { name: 'Template' });
+  expect(created.status()).toBe(201);
+  const template = ((await created.json()) as { design: { document: Record<string, unknown> & { domain: Record<string, unknown>; host: Record<string, unknown> } } }).design.document;
+  // an invented row of three donors 40a ≈ 21.7 nm deep and one a single lattice constant under the
+  // oxide, a plunger box on the oxide, grounded walls (which keep the stack's bound rigorous
+  // beside finite electrodes: domain monotonicity, geometry/farfield/layered.ts)
+  const document = {
+    ...template,
+    name: 'Row with a shallow neighbour',
+    host: {
+      ...template.host,
+      layers: [
+        { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
+        { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: 5 },
+        { name: 'vacuum', epsilonR: 1, zMinNm: 5, zMaxNm: null },
+      ],
+    },
+    sites: [
+      { id: 'r1', species: 'P', position: [-8 * A, 0, -40 * A], electrons: 1 },
+      { id: 'r2', species: 'P', position: [0, 0, -40 * A], electrons: 1 },
+      { id: 'r3', species: 'P', position: [8 * A, 0, -40 * A], electrons: 1 },
+      { id: 'shallow', species: 'P', position: [0, 8 * A, -A], electrons: 1 },
+    ],
+    electrodes: [{ name: 'plunger', minNm: [-6, -3, 5], maxNm: [6, 3, 7], voltageV: 0.3 }],
+    domain: { ...template.domain, center: [0, 0, -5], halfExtentsNm: [30, 30, 30], boundary: { kind: 'grounded' } },
+  };
+  const res = await apiWrite(page.request, 'POST', `/api/projects/${projectId}/designs`, { name: 'Row with a shallow neighbour', document });
+  expect(res.status(), await res.text()).toBe(201);
+  const designId = ((await res.json()) as { design: { id: number } }).design.id;
+  await openWorkspace(page, projectId, designId);
+
+  const panel = page.getByRole('region', { name: 'Far-field check' });
+  await expect(panel.getByText('up to date')).toBeVisible({ timeout: 60_000 });
+  // the summary, in check's words
+  const summary = panel.getByLabel('Boundary bounds');
+  await expect(summary).toContainText('Boundary bounds in this stack: 3 sites rigorous — the largest potential on the walls from the image series of the stack');
+  await expect(summary).toContainText('1 site estimated — the image series of the stack, but part of the density lies across an interface');
+  await expect(panel.getByTestId('estimated-bounds-note')).toContainText('1 of 4 site bounds are estimated rather than rigorous');
+  // the Bound column: sortable, estimated first when descending, the reason as the cell's title
+  const table = panel.getByRole('table', { name: 'Far-field figures per site' });
+  const bound = table.getByRole('columnheader', { name: /^Bound/ });
+  await expect(bound).toHaveAttribute('aria-sort', 'none');
+  await bound.getByRole('button').click();
+  await expect(bound).toHaveAttribute('aria-sort', 'descending');
+  const first = table.locator('tbody tr').first();
+  await expect(first.locator('td').first()).toHaveText('shallow');
+  const mark = first.locator('[data-bound]');
+  await expect(mark).toHaveAttribute('data-bound', 'estimated');
+  await expect(mark).toHaveAttribute('title', /^estimated: the image series of the stack, but part of the density lies across an interface/);
+  await bound.getByRole('button').click();
+  await expect(bound).toHaveAttribute('aria-sort', 'ascending');
+  await expect(table.locator('tbody tr').first().locator('[data-bound]')).toHaveAttribute('data-bound', 'rigorous');
+  await expect(table.locator('tbody tr').last().locator('td').first()).toHaveText('shallow');
+  // the estimate stays readable in the panel's width: nothing cut off to the right
+  const fits = await table.locator('[data-bound="estimated"]').first().evaluate((el) => {
+    const box = el.getBoundingClientRect();
+    const scroller = el.closest('div.overflow-auto')!.getBoundingClientRect();
+    return box.right <= scroller.right + 0.5;
+  });
+  expect(fits).toBe(true);
+  await bound.getByRole('button').click(); // estimated first again for the picture
+  // the whole panel in one picture: a tall window, so the side column need not scroll
+  const size = page.viewportSize()!;
+  await page.setViewportSize({ width: size.width, height: 2400 });
+  await panel.getByRole('heading', { name: 'Image-charge effect of the stack and metal planes' }).scrollIntoViewIfNeeded();
+  await panel.screenshot({ path: 'tests/artifacts/studio-device-bounds.png' });
+  await page.setViewportSize(size);
+  await page.getByRole('button', { name: 'Along [100]' }).click();
+  await expect.poll(async () => (await canvasStats(page)).layerSlabs, { timeout: 30_000 }).toBe(3);
+  await page.getByRole('region', { name: 'Design canvas' }).screenshot({ path: 'tests/artifacts/studio-device-tints.png' });
 });

@@ -54,13 +54,24 @@ export const CANVAS_THEME = {
   /** how opaque the label panels are over the ground (contrast is checked against the mix) */
   labelPanelAlpha: 0.92,
   /**
-   * Host layers: translucent slabs, tinted alternately warm and cool from the bottom up so that
-   * neighbours always differ (also for colour-vision deficiencies), outlined in `layerEdge`.
+   * Host layers: translucent slabs outlined in `layerEdge`, tinted by their place from the bottom
+   * up (layerTintOf): amber, plum, sky blue, olive grey, then round again. A stack of up to four
+   * layers (silicon, oxide, vacuum; or with a second dielectric) has a tint per layer, and
+   * neighbours always differ, also for colour-vision deficiencies; each slab's label repeats its
+   * tint beside its name, the second cue. Picked by search for the CIEDE2000 margins that
+   * tests/app/palette.test.ts checks at this opacity (the slabs' figure: opacity 0.25 leaves sites
+   * behind a slab clearly visible).
    */
-  layerTints: ['#e0a030', '#3a7bd5'],
-  layerOpacity: 0.22,
+  layerTints: ['#e0a030', '#390037', '#0a8dfc', '#454137'],
+  layerOpacity: 0.25,
   layerEdge: '#5e5540',
   /** metal electrodes: solid dark brass boxes (a box, not a sphere: the shape is the second cue), edges darker */
   electrode: '#7c662e',
   electrodeEdge: '#3b3016',
 } as const;
+
+/** The tint of the layer at `index` (0 = bottom) in a stack: its place, round the four tints. */
+export function layerTintOf(index: number): string {
+  const t = CANVAS_THEME.layerTints;
+  return t[((index % t.length) + t.length) % t.length];
+}

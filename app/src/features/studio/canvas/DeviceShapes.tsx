@@ -9,7 +9,7 @@ import { useEffect, useMemo } from 'react';
 import { Html } from '@react-three/drei';
 import * as THREE from 'three';
 import type { DesignDocument } from '@contracts/design';
-import { CANVAS_THEME } from '../palette';
+import { CANVAS_THEME, layerTintOf } from '../palette';
 import { boxEdges, boxTriangles, electrodeBoxes, layerSlabs, voltText } from './deviceGeometry';
 
 const noRaycast = () => null;
@@ -41,9 +41,9 @@ export function DeviceShapes({ doc }: { doc: DesignDocument }) {
   const slabs = useMemo(() => layerSlabs(doc), [doc]);
   const boxes = useMemo(() => electrodeBoxes(doc), [doc]);
   const slabBuf = useMemo(() => {
-    const tints = CANVAS_THEME.layerTints.map(rgbOf);
-    // tint by the layer's place in the stack, so neighbours differ even when one is clipped away
-    return boxTriangles(slabs, (k) => tints[slabs[k].index % tints.length]);
+    // tint by the layer's place in the stack (layerTintOf), so each layer of a typical stack has
+    // its own and neighbours differ even when one is clipped away; still one buffer, one draw call
+    return boxTriangles(slabs, (k) => rgbOf(layerTintOf(slabs[k].index)));
   }, [slabs]);
   const slabEdgeBuf = useMemo(() => boxEdges(slabs), [slabs]);
   const boxBuf = useMemo(() => boxTriangles(boxes, () => [1, 1, 1]), [boxes]);
@@ -66,7 +66,7 @@ export function DeviceShapes({ doc }: { doc: DesignDocument }) {
           {slabs.map((s) => (
             <Html key={`layer-${s.index}`} position={[s.hi[0], s.lo[1], (s.lo[2] + s.hi[2]) / 2]} zIndexRange={[5, 0]} pointerEvents="none">
               <div data-testid="layer-label" className="whitespace-nowrap rounded px-1.5 py-0.5 text-fine" style={labelStyle}>
-                <span aria-hidden="true" className="mr-1 inline-block h-2.5 w-2.5 rounded-sm align-middle" style={{ background: CANVAS_THEME.layerTints[s.index % CANVAS_THEME.layerTints.length] }} />
+                <span aria-hidden="true" className="mr-1 inline-block h-2.5 w-2.5 rounded-sm align-middle" style={{ background: layerTintOf(s.index) }} />
                 <span className="font-semibold">{s.name}</span> <span className="num">εr {s.epsilonR}</span>
               </div>
             </Html>

@@ -6,10 +6,12 @@
  */
 import { useId, useMemo, useState } from 'react';
 import type { DesignDocument } from '@contracts/design';
+import { BOUND_REASON_CLAUSE } from '@contracts/farfieldWords';
 import type { FarFieldReport, FarFieldWarning, PairBound, SiteBound } from '../../../../../geometry/farfield';
 import { Button } from '../../../components/Button';
 import { EstimateNote } from '../../../components/EstimateNote';
 import { FigureTable, type FigureColumn } from './FigureTable';
+import { boundSummary, boundWords, hasBoundKinds, type BoundGroup } from './boundWords';
 import { findingText, imageEffectMeaning, imageEffectOf, signedPercent, siteName, type ImageEffectFigure } from './imageEffect';
 import { meV, nm, percent, sortPairs, sortSites, worstU, worstV, type Direction, type PairColumn, type SiteColumn } from './figures';
 
@@ -63,6 +65,37 @@ function Headline({ label, what, figure, target }: { label: string; what: string
   );
 }
 
+/**
+ * The kind of a bound as a word; an estimate gets a calm marking (a dotted outline on the
+ * notebook's amber tint, the colour of model caveats, not of warnings), and the reason in words as
+ * the title and, for screen readers, as text after the kind.
+ */
+export function BoundMark({ kind, reason, spoken = true }: { kind: SiteBound['boundKind']; reason: SiteBound['boundReason']; /** false where the clause follows in plain text anyway */ spoken?: boolean }) {
+  if (kind === undefined) return <span className="text-wafer-500">—</span>;
+  const clause = reason ? BOUND_REASON_CLAUSE[reason] : '';
+  const title = boundWords({ boundKind: kind, boundReason: reason });
+  return (
+    <span
+      title={title}
+      data-bound={kind}
+      className={
+        kind === 'estimated'
+          ? 'rounded-sm border border-dotted border-ember-600 bg-ember-50 px-1 text-ember-800'
+          : 'text-wafer-700'
+      }
+    >
+      {kind}
+      {spoken && clause && <span className="sr-only">: {clause}</span>}
+    </span>
+  );
+}
+
+const boundColumn: FigureColumn<SiteBound, SiteColumn> = {
+  key: 'bound',
+  label: 'Bound',
+  cell: (s) => <BoundMark kind={s.boundKind} reason={s.boundReason} />,
+};
+
 const siteColumns: FigureColumn<SiteBound, SiteColumn>[] = [
   { key: 'id', label: 'Site', cell: (s) => s.id },
   { key: 'clearanceNm', label: 'Clearance', unit: 'nm', numeric: true, cell: (s) => nm(s.clearanceNm).replace(' nm', '') },
@@ -84,7 +117,13 @@ function Figures({ report }: { report: FarFieldReport }) {
   const [view, setView] = useState<'sites' | 'pairs'>('sites');
   const [siteSort, setSiteSort] = useState<{ column: SiteColumn; direction: Direction }>({ column: 'uRelBound', direction: 'descending' });
   const [pairSort, setPairSort] = useState<{ column: PairColumn; direction: Direction }>({ column: 'vRelBound', direction: 'descending' });
-  const sites = useMemo(() => sortSites(report.sites, siteSort.column, siteSort.direction), [report.sites, siteSort]);
+  // the Bound column only where the report gives kinds (a layered host or electrodes), beside the
+  // site's name so the narrow panel shows both without scrolling sideways; a sort by it falls back
+  // to the relative bound when an edit takes the kinds away
+  const withKinds = hasBoundKinds(report);
+  const columns = useMemo(() => (withKinds ? [siteColumns[0], boundColumn, ...siteColumns.slice(1)] : siteColumns), [withKinds]);
+  const shownSort = useMemo(() => (!withKinds && siteSort.column === 'bound' ? { column: 'uRelBound' as const, direction: siteSort.direction } : siteSort), [withKinds, siteSort]);
+  const sites = useMemo(() => sortSites(report.sites, shownSort.column, shownSort.direction), [report.sites, shownSort]);
   const pairs = useMemo(() => sortPairs(report.pairs, pairSort.column, pairSort.direction), [report.pairs, pairSort]);
   const flip = <K,>(cur: { column: K; direction: Direction }, column: K) =>
     ({ column, direction: cur.column === column && cur.direction === 'descending' ? 'ascending' : 'descending' }) as { column: K; direction: Direction };
@@ -105,7 +144,7 @@ function Figures({ report }: { report: FarFieldReport }) {
         {tab('pairs', `Per pair (${report.pairs.length})`)}
       </div>
       {view === 'sites' ? (
-        <FigureTable caption="Far-field figures per site" rows={sites} columns={siteColumns} rowKey={(s) => s.id} sort={siteSort} onSort={(c) => setSiteSort((cur) => flip(cur, c))} />
+        <FigureTable caption="Far-field figures per site" rows={sites} columns={columns} rowKey={(s) => s.id} sort={shownSort} onSort={(c) => setSiteSort((cur) => flip(cur, c))} />
       ) : report.pairs.length ? (
         <>
           <FigureTable caption="Far-field figures per pair" rows={pairs} columns={pairColumns} rowKey={(p) => `${p.a}\u0000${p.b}`} sort={pairSort} onSort={(c) => setPairSort((cur) => flip(cur, c))} />
@@ -141,8 +180,36 @@ function Warnings({ warnings }: { warnings: FarFieldWarning[] }) {
   );
 }
 
+/**
+ * How many sites have a rigorous far-field bound and how many an estimate, and why, in the words
+ * of `check` ("Boundary bounds in this stack: …"; its text is boundSummaryText's).
+ */
+export function BoundSummary({ groups }: { groups: readonly BoundGroup[] }) {
+  return (
+    <p aria-label="Boundary bounds" className="mt-1 text-fine text-wafer-700">
+      <span className="font-semibold">Boundary bounds in this stack: </span>
+      {groups.map((g, k) => (
+        <span key={`${g.kind}|${g.reason ?? ''}`} data-bound-group={g.kind}>
+          {k > 0 && '; '}
+          <span className="num">{g.count}</span> {g.count === 1 ? 'site' : 'sites'} <BoundMark kind={g.kind} reason={g.reason ?? undefined} spoken={false} />
+          {g.clause && ` — ${g.clause}`}
+        </span>
+      ))}
+      .
+    </p>
+  );
+}
+
 /** The image-charge effect of the stack and the metal planes (only when the report carries it). */
-export function ImageEffectSection({ effect, document, target }: { effect: ImageEffectFigure; document: DesignDocument; target: number }) {
+export function ImageEffectSection({
+  effect, document, target, bounds = [],
+}: {
+  effect: ImageEffectFigure;
+  document: DesignDocument;
+  target: number;
+  /** the sites' bound kinds counted by reason (boundSummary), shown as `check` prints them */
+  bounds?: readonly BoundGroup[];
+}) {
   const pair = effect.worstVPair;
   return (
     <section aria-label="Image-charge effect" className="rounded-md border border-wafer-200 px-3 py-2">
@@ -172,6 +239,7 @@ export function ImageEffectSection({ effect, document, target }: { effect: Image
       <p className="num text-fine text-wafer-600">
         Against an infinite host of εr {document.host.epsilonR}; image series tail below {meV(effect.tailBoundEv)}; largest share of a density across an interface {percent(effect.maxLeak)}.
       </p>
+      {bounds.length > 0 && <BoundSummary groups={bounds} />}
       {effect.findings.length > 0 && (
         <ul aria-label="Image-charge notes" className="mt-1 list-disc space-y-0.5 pl-4 text-fine text-wafer-700">
           {effect.findings.map((f, k) => (
@@ -192,6 +260,8 @@ function Body({ report, document, readOnly, onApplyRecommended, elementsPending 
   const recOk = rec.every(Number.isFinite);
   const same = recOk && rec.every((x, k) => Math.abs(x - half[k]) <= 1e-9 * Math.max(1, x));
   const imageEffect = imageEffectOf(report);
+  const bounds = useMemo(() => boundSummary(report.sites), [report.sites]);
+  const estimatedSites = bounds.reduce((n, g) => n + (g.kind === 'estimated' ? g.count : 0), 0);
   const device = Boolean(document.host.layers || document.electrodes);
   return (
     <div className="space-y-4">
@@ -204,9 +274,15 @@ function Body({ report, document, readOnly, onApplyRecommended, elementsPending 
           For the domain box of half-extents <span className="num">{half.map((x) => x.toPrecision(4)).join(' × ')} nm</span> with {boundaryWords(boundary)}; relative to
           each site&apos;s U and each pair&apos;s V in this model.
         </p>
+        {estimatedSites > 0 && (
+          <p className="mt-1 text-fine text-wafer-700" data-testid="estimated-bounds-note">
+            <span className="num">{estimatedSites}</span> of <span className="num">{report.sites.length}</span> site bounds are <BoundMark kind="estimated" reason={undefined} /> rather than
+            rigorous; the Bound column of the per-site figures says which and why.
+          </p>
+        )}
       </div>
 
-      {imageEffect && <ImageEffectSection effect={imageEffect} document={document} target={target} />}
+      {imageEffect && <ImageEffectSection effect={imageEffect} document={document} target={target} bounds={bounds} />}
 
       <div className="rounded-md border border-wafer-200 px-3 py-2">
         <h3 className="text-fine font-semibold text-wafer-600">Smallest domain box meeting the target</h3>

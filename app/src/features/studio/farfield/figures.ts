@@ -3,6 +3,7 @@
  * relative bound on U and on V, sortable rows, and number formats that carry their unit.
  */
 import type { FarFieldReport, PairBound, SiteBound } from '../../../../../geometry/farfield';
+import { boundRank } from './boundWords';
 
 /** Largest relative bound over the sites (U) or the pairs (V); null when some entry has no bound (outside the box). */
 export function worstU(r: FarFieldReport): { value: number | null; count: number } {
@@ -41,7 +42,7 @@ export function nm(x: number | null, digits = 4): string {
   return `${x.toPrecision(digits)} nm`;
 }
 
-export type SiteColumn = 'id' | 'clearanceNm' | 'requiredClearanceNm' | 'uBoundEv' | 'uRelBound' | 'chargeOutside';
+export type SiteColumn = 'id' | 'clearanceNm' | 'requiredClearanceNm' | 'uBoundEv' | 'uRelBound' | 'chargeOutside' | 'bound';
 export type PairColumn = 'pair' | 'distanceNm' | 'vEv' | 'vBoundEv' | 'vRelBound';
 export type Direction = 'ascending' | 'descending';
 
@@ -70,7 +71,9 @@ function orderBy<T>(rows: readonly T[], dir: Direction, num: ((r: T) => number |
   return idx.map((i) => rows[i]);
 }
 
+/** 'bound' orders by kind (rigorous, then estimated) and within a kind by reason (boundWords.ts boundRank). */
 export function sortSites(rows: readonly SiteBound[], col: SiteColumn, dir: Direction): SiteBound[] {
+  if (col === 'bound') return orderBy(rows, dir, boundRank, (s) => s.id);
   return orderBy(rows, dir, col === 'id' ? null : (s) => s[col], (s) => s.id);
 }
 

@@ -50,6 +50,12 @@ const electrodeName = (doc: DesignDocument, k: number | undefined) => (k !== und
 export function findingText(f: { code: string; index?: number; value?: number }, doc: DesignDocument): string {
   const v = f.value;
   switch (f.code) {
+    case 'electrode-outside-domain':
+      return `Electrode ${electrodeName(doc, f.index)} lies wholly outside the domain box: clipped to nothing, it takes no part in any figure.`;
+    case 'electrode-clipped':
+      return `Electrode ${electrodeName(doc, f.index)} reaches outside the domain box and is clipped to it${v !== undefined ? ` (${percent(v)} of its volume kept)` : ''}.`;
+    case 'site-near-electrode':
+      return `Site ${f.index !== undefined ? siteName(f.index, doc) : '?'} is ${v !== undefined ? `${v.toPrecision(3)} nm` : 'within a few orbital sizes'} from an electrode: an ideal metal face and a fixed density are least reliable this close.`;
     case 'electrode-not-plane':
       return `Electrode ${electrodeName(doc, f.index)} does not span the domain’s x–y cross-section: its images need the finite-element solve and are not in these figures.`;
     case 'electrode-straddles':

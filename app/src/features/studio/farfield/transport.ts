@@ -3,9 +3,11 @@
  * not copied), pairs as indices into the site ids. A 10,000-site report holds some 40,000 small
  * objects, and copying them one by one (structured clone) took longer than computing the update;
  * unpacking rebuilds the same objects on the page, bit for bit (null kept in a flag byte, never
- * coded as a number).
+ * coded as a number). A layered host's bound kind and reason (issue 11) ride in one code byte per
+ * site, and a site without them gets none back.
  */
 import type { FarFieldReport, PairBound, SiteBound } from '../../../../../geometry/farfield';
+import { BOUND_REASON_CODES, type BoundKindCode } from '@contracts/farfieldWords';
 
 export interface PackedReport {
   head: Omit<FarFieldReport, 'sites' | 'pairs'>;
@@ -14,12 +16,28 @@ export interface PackedReport {
   siteNum: Float64Array;
   /** per site: 1 = uBoundEv null, 2 = uRelBound null */
   siteNull: Uint8Array;
+  /**
+   * per site: bits 0–1 the bound kind (0 absent, 1 rigorous, 2 estimated), bits 2–4 the bound
+   * reason (0 absent, else 1 + its place in BOUND_REASON_CODES)
+   */
+  siteBound: Uint8Array;
   /** per pair: index of a, index of b in ids */
   pairIdx: Int32Array;
   /** per pair: distanceNm, vEv, vBoundEv, vRelBound */
   pairNum: Float64Array;
   /** per pair: 1 = point-charge V, 2 = vBoundEv null, 4 = vRelBound null */
   pairFlags: Uint8Array;
+}
+
+const KINDS: readonly BoundKindCode[] = ['rigorous', 'estimated'];
+
+function boundCode(s: SiteBound): number {
+  const kind = s.boundKind === undefined ? 0 : KINDS.indexOf(s.boundKind) + 1;
+  const reason = s.boundReason === undefined ? 0 : BOUND_REASON_CODES.indexOf(s.boundReason) + 1;
+  // a code the app does not know would come back as another one: refuse it (a stale app and core)
+  if (kind === 0 && s.boundKind !== undefined) throw new Error(`unknown bound kind ${String(s.boundKind)}`);
+  if (reason === 0 && s.boundReason !== undefined) throw new Error(`unknown bound reason ${String(s.boundReason)}`);
+  return kind | (reason << 2);
 }
 
 export function packReport(r: FarFieldReport): PackedReport {
@@ -29,6 +47,7 @@ export function packReport(r: FarFieldReport): PackedReport {
   const at = new Map<string, number>();
   const siteNum = new Float64Array(6 * n);
   const siteNull = new Uint8Array(n);
+  const siteBound = new Uint8Array(n);
   for (let i = 0; i < n; i++) {
     const s = sites[i];
     ids[i] = s.id;
@@ -40,6 +59,7 @@ export function packReport(r: FarFieldReport): PackedReport {
     siteNum[6 * i + 4] = s.clearanceNm;
     siteNum[6 * i + 5] = s.requiredClearanceNm;
     siteNull[i] = (s.uBoundEv === null ? 1 : 0) | (s.uRelBound === null ? 2 : 0);
+    siteBound[i] = boundCode(s);
   }
   const pairIdx = new Int32Array(2 * m);
   const pairNum = new Float64Array(4 * m);
@@ -54,12 +74,12 @@ export function packReport(r: FarFieldReport): PackedReport {
     pairNum[4 * t + 3] = p.vRelBound ?? 0;
     pairFlags[t] = (p.vModel === 'point-charge' ? 1 : 0) | (p.vBoundEv === null ? 2 : 0) | (p.vRelBound === null ? 4 : 0);
   }
-  return { head, ids, siteNum, siteNull, pairIdx, pairNum, pairFlags };
+  return { head, ids, siteNum, siteNull, siteBound, pairIdx, pairNum, pairFlags };
 }
 
 /** The buffers to move rather than copy (comlink's transfer()). */
 export function packedBuffers(p: PackedReport): ArrayBuffer[] {
-  return [p.siteNum.buffer, p.siteNull.buffer, p.pairIdx.buffer, p.pairNum.buffer, p.pairFlags.buffer] as ArrayBuffer[];
+  return [p.siteNum.buffer, p.siteNull.buffer, p.siteBound.buffer, p.pairIdx.buffer, p.pairNum.buffer, p.pairFlags.buffer] as ArrayBuffer[];
 }
 
 export function unpackReport(p: PackedReport): FarFieldReport {
@@ -76,6 +96,9 @@ export function unpackReport(p: PackedReport): FarFieldReport {
       clearanceNm: p.siteNum[6 * i + 4],
       requiredClearanceNm: p.siteNum[6 * i + 5],
     };
+    const b = p.siteBound[i];
+    if (b & 3) sites[i].boundKind = KINDS[(b & 3) - 1];
+    if (b >> 2) sites[i].boundReason = BOUND_REASON_CODES[(b >> 2) - 1];
   }
   const pairs = new Array<PairBound>(m);
   for (let t = 0; t < m; t++) {
