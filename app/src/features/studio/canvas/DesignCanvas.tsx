@@ -26,7 +26,7 @@ import type { FarFieldReport } from '../../../../../geometry/farfield';
 import { bondGraph } from '../../../../../geometry/arrays';
 import { siteToNm, snapToLattice } from '../../../../../geometry/lattice';
 import type { Species } from '../../../../../geometry/design/types';
-import { CANVAS_THEME, SELECTED_CSS, SELECTED_SCALE, SPECIES_ORDER, SPECIES_STYLE, WARNING_CSS } from '../palette';
+import { CANVAS_THEME, layerTintOf, SELECTED_CSS, SELECTED_SCALE, SPECIES_ORDER, SPECIES_STYLE, WARNING_CSS } from '../palette';
 import { AxisTriad, type AxisDirections } from './AxisTriad';
 import type { Vec3 } from '../editorStore';
 import { layerPointsNear, snapInLayer } from './layerSnap';
@@ -715,8 +715,12 @@ export default function DesignCanvas(props: DesignCanvasProps) {
         )}
         {doc.host.layers && (
           <li className="flex items-center gap-1.5">
-            <span aria-hidden="true" className="inline-block h-3 w-3 rounded-sm border" style={{ background: CANVAS_THEME.layerTints[0], opacity: 0.6, borderColor: CANVAS_THEME.layerEdge }} />
-            host layer (translucent slab)
+            <span aria-hidden="true" className="inline-flex gap-0.5">
+              {doc.host.layers.slice(0, 4).map((layer, k) => (
+                <span key={k} className="inline-block h-3 w-3 rounded-sm border" style={{ background: layerTintOf(k), opacity: 0.6, borderColor: CANVAS_THEME.layerEdge }} />
+              ))}
+            </span>
+            host layers (translucent slabs, one tint per layer, bottom to top)
           </li>
         )}
         {doc.electrodes && (
