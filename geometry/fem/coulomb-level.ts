@@ -19,7 +19,9 @@ import { boundaryValues, layeredBoundaryValues } from './boundary';
 import { hasDevice, NO_ELECTRODE } from '../mesh/device';
 import { deviceMesh, deviceStack, epsByRegion, epsilonAt } from './device';
 import { electrodeDofs } from './electrodes';
-import { freeSelfEnergy, pairClosedForm, reactionRhs, singularPotential, valuesAt } from './split';
+import { freeSelfEnergy, pairClosedForm, reactionRhs, singularPotential } from './split';
+import { locatePoints, valuesAtPoints } from './locate';
+import { meanValueSites } from './mean-value';
 import { CoulombError, type CoulombOptions, type LevelReport } from './coulomb-types';
 
 export interface ActiveSite {
@@ -41,6 +43,10 @@ export interface LevelSolution {
   /** ½(∫ρ_j φ_i + ∫ρ_i φ_j) for the requested pairs (nm⁻¹) */
   pair: Float64Array;
   iterations: number;
+  /** 1 where U_i used a centre value (mean-value.ts): its error converges at the point-value rate */
+  pointSelf: Uint8Array;
+  /** 1 where V of a pair used a centre value for either cross term */
+  pointPair: Uint8Array;
   /** the lifted stiffness matrix (for indicators and reuse) */
   A: Csr;
   /** warnings about this mesh's solution (e.g. a discrete charge off the charge in the box) */
@@ -96,14 +102,19 @@ export function solveLevel(
   let M: Preconditioner | null = null;
   let iterations = 0;
   const ns = sites.length;
-  // split in one medium without electrodes: remainders read at the centres (split.ts), no loads
-  const atCentres = method === 'split' && !device;
+  // The split's remainder φ_r,i is harmonic wherever ε = ε_i: site j reads it at its centre when
+  // its harmonic ball lies in a layer of that permittivity and holds all but a negligible tail of
+  // ρ_j (mean-value.ts); otherwise ∫ρ_j φ_r,i goes through ρ_j's density load.
+  const mv = method === 'split' ? meanValueSites(design, sites) : null;
+  const atCentre = (i: number, j: number): boolean => mv !== null && mv.ok[j] === 1 && epsSite[j] === epsSite[i];
+  const needsLoad = new Uint8Array(ns);
+  for (let j = 0; j < ns; j++) for (let i = 0; i < ns && !needsLoad[j]; i++) if (!atCentre(i, j)) needsLoad[j] = 1;
   for (let s = 0; s < ns; s++) {
     const site = sites[s];
     throwIfAborted(opts.signal);
     report('load', site.id, s / ns);
     const inside = 1 - chargeOutsideBox(site.orbital, site.position, design.domain.center, design.domain.halfExtentsNm);
-    const L = atCentres ? { load: new Float64Array(0), charge: inside } : densityLoad(space, site.orbital, site.position, opts.load);
+    const L = needsLoad[s] ? densityLoad(space, site.orbital, site.position, opts.load) : { load: new Float64Array(0), charge: inside };
     if (!(Math.abs(L.charge - inside) <= CHARGE_TOLERANCE)) {
       notes.push(
         `Site ${site.id}: the discrete charge ${L.charge.toFixed(9)} differs from the charge inside the box ${inside.toFixed(9)} by ${Math.abs(L.charge - inside).toExponential(2)} (more than ${CHARGE_TOLERANCE}): the density is under-resolved by the quadrature, so U and V carry an extra error of about that relative size.`,
@@ -166,20 +177,27 @@ export function solveLevel(
     loads.push(L.load);
     charges.push(L.charge);
   }
-  // ∫ρ_j φ_i: the load dot the potential, or (atCentres) the remainder at site j's centre
+  // ∫ρ_j φ_i: the load dot the potential, or the remainder at site j's centre (located once)
   let centre: Float64Array[] = [];
-  if (atCentres) {
+  if (mv && mv.ok.some((x) => x === 1)) {
     const pts = new Float64Array(3 * ns);
     sites.forEach((st, k) => pts.set(st.position, 3 * k));
-    centre = phis.map((phi) => valuesAt(space, phi, pts));
+    const located = locatePoints(space.mesh, pts);
+    centre = phis.map((phi) => valuesAtPoints(space, located, phi));
   }
-  const cross = (i: number, j: number): number => (atCentres ? centre[i][j] : dotv(loads[j], phis[i]));
+  const cross = (i: number, j: number): number => (atCentre(i, j) ? centre[i][j] : dotv(loads[j], phis[i]));
   const self = new Float64Array(ns);
-  for (let s = 0; s < ns; s++) self[s] = closedSelf[s] + cross(s, s);
+  const pointSelf = new Uint8Array(ns);
+  for (let s = 0; s < ns; s++) {
+    self[s] = closedSelf[s] + cross(s, s);
+    pointSelf[s] = atCentre(s, s) ? 1 : 0;
+  }
   const np = pairIdx.length / 2;
   const pair = new Float64Array(np);
+  const pointPair = new Uint8Array(np);
   for (let p = 0; p < np; p++) {
     const i = pairIdx[2 * p], j = pairIdx[2 * p + 1];
+    pointPair[p] = atCentre(i, j) || atCentre(j, i) ? 1 : 0;
     let closed = 0;
     if (method === 'split') {
       const a = sites[i].position, c = sites[j].position;
@@ -189,7 +207,7 @@ export function solveLevel(
     }
     pair[p] = closed + 0.5 * (cross(i, j) + cross(j, i));
   }
-  return { space, phis, loads, charges, self, pair, iterations, A: A ?? K, notes };
+  return { space, phis, loads, charges, self, pair, pointSelf, pointPair, iterations, A: A ?? K, notes };
 }
 
 export function dotv(a: Float64Array, b: Float64Array): number {
