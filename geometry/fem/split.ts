@@ -23,13 +23,12 @@
  * with P_ij the closed-form free-space interaction (geometry/density pairEnergy). Both closed forms
  * are over all space (the density outside the box included); the remainders over the mesh.
  *
- * In a homogeneous host without electrodes φ_r is harmonic in the whole box, and by the mean-value
- * property of harmonic functions (Gauss; e.g. Jackson §1.8 problem, or any text on potential
- * theory — from memory) a spherically symmetric unit density sees exactly its centre's value:
- * ∫ρ_j φ_r = φ_r(p_j) (up to the density outside the box, which the budget's density cut counts).
- * So there the remainders are read at the site centres (valuesAt) and no density load is needed;
- * with layers or electrodes (where φ_r is not harmonic across an interface or into metal) the
- * integrals use the density loads (load.ts).
+ * φ_r,i is harmonic wherever ε = ε_i (no charge of its own there), so by the mean-value property
+ * of harmonic functions a spherically symmetric unit density whose support lies (up to a negligible
+ * tail) in such a ball sees exactly its centre's value, ∫ρ_j φ_r,i = φ_r,i(p_j): the rule and its
+ * source are in mean-value.ts, and coulomb-level.ts reads those sites at their centres (located once
+ * per mesh, locate.ts) without a density load; elsewhere (a site near an interface, an electrode or
+ * a wall, or in a layer of another εr) the integrals use the density loads (load.ts).
  *
  * ∇φ_s = −Q(r) (x − p)/(ε_i r³) by Gauss's law, Q(r) the charge of the density within radius r:
  *   hydrogenic 1s: Q = 1 − e^{−t}(1 + t + t²/2),  t = 2r/a  (integral of the 1s density; textbook)
@@ -38,7 +37,7 @@
 import type { Orbital, Vec3 } from '../design/types';
 import { erf, pairEnergy, potentialAt, radialPotential, selfEnergy } from '../density';
 import type { TetMesh } from '../mesh/types';
-import { GEOM_SIZE, mapBary, p2BasisBary, p2GradientsBary, tetGeometry, tetQuadrature } from './reference';
+import { GEOM_SIZE, mapBary, p2GradientsBary, tetGeometry, tetQuadrature } from './reference';
 import type { FeSpace } from './space';
 import { ELECTRODE_REGION } from '../mesh/device';
 
@@ -127,57 +126,4 @@ export function reactionRhs(
     }
   }
   return b;
-}
-
-/**
- * Values of a finite-element function at points (3 per point), by locating each point's element
- * (a scan with a bounding-box test; the first element found wins, which is harmless because the
- * function is continuous). NaN for a point outside the mesh.
- */
-export function valuesAt(space: FeSpace, phi: Float64Array, points: Float64Array): Float64Array {
-  const { mesh, order, nTets, tetDofs } = space;
-  const nLoc = space.dofsPerTet;
-  const coords = mesh.coords, tets = mesh.tets;
-  const np = points.length / 3;
-  const out = new Float64Array(np).fill(Number.NaN);
-  const g = new Float64Array(GEOM_SIZE);
-  const l = new Float64Array(4);
-  const basis = new Float64Array(10);
-  const EPS_BARY = -1e-12;
-  let left = np;
-  for (let t = 0; t < nTets && left > 0; t++) {
-    const a = tets[4 * t], b = tets[4 * t + 1], c = tets[4 * t + 2], d = tets[4 * t + 3];
-    let lo0 = Infinity, lo1 = Infinity, lo2 = Infinity, hi0 = -Infinity, hi1 = -Infinity, hi2 = -Infinity;
-    for (const v of [a, b, c, d]) {
-      lo0 = Math.min(lo0, coords[3 * v]); hi0 = Math.max(hi0, coords[3 * v]);
-      lo1 = Math.min(lo1, coords[3 * v + 1]); hi1 = Math.max(hi1, coords[3 * v + 1]);
-      lo2 = Math.min(lo2, coords[3 * v + 2]); hi2 = Math.max(hi2, coords[3 * v + 2]);
-    }
-    let geom = false;
-    for (let p = 0; p < np; p++) {
-      if (!Number.isNaN(out[p])) continue;
-      const x = points[3 * p], y = points[3 * p + 1], z = points[3 * p + 2];
-      if (x < lo0 - 1e-9 || x > hi0 + 1e-9 || y < lo1 - 1e-9 || y > hi1 + 1e-9 || z < lo2 - 1e-9 || z > hi2 + 1e-9) continue;
-      if (!geom) {
-        tetGeometry(coords, a, b, c, d, g);
-        geom = true;
-      }
-      const dx = x - g[13], dy = y - g[14], dz = z - g[15];
-      l[1] = g[3] * dx + g[4] * dy + g[5] * dz;
-      l[2] = g[6] * dx + g[7] * dy + g[8] * dz;
-      l[3] = g[9] * dx + g[10] * dy + g[11] * dz;
-      l[0] = 1 - l[1] - l[2] - l[3];
-      if (l[0] < EPS_BARY || l[1] < EPS_BARY || l[2] < EPS_BARY || l[3] < EPS_BARY) continue;
-      let v = 0;
-      if (order === 1) {
-        for (let i = 0; i < 4; i++) v += l[i] * phi[tetDofs[4 * t + i]];
-      } else {
-        p2BasisBary(l, basis);
-        for (let i = 0; i < 10; i++) v += basis[i] * phi[tetDofs[nLoc * t + i]];
-      }
-      out[p] = v;
-      left--;
-    }
-  }
-  return out;
 }
