@@ -220,32 +220,44 @@ export function leverArmsOnMesh(design: Design, meshIn: TetMesh, order: 1 | 2, o
 }
 
 /**
+ * Electrode-edge size of the lever-arm meshes relative to the design's (measured, issue 11 "Speed"):
+ * the lever arms converge only at about h^1.4 (the field's edge singularity at the gates pollutes
+ * the whole solution; with a re-entrant edge's exponent 2/3 one expects h^{4/3}, from memory), so
+ * the edge size, not the bulk or the site cores, sets the error. On the bench's 2×2 array 20 nm
+ * under 5 nm of oxide and two gates (P2, 3 levels), halving the edge size and dropping the site
+ * cores gave a worst bar of 1.5 meV/V (15 %) for 9 s of CPU, against 4.6 meV/V (46 %) for 37 s
+ * with the design's edge size and cores; a quarter of it, 0.94 meV/V for 79 s.
+ */
+export const LEVER_EDGE_FACTOR = 0.5;
+
+/**
  * The nested meshes of the lever arms, coarsest first: a base mesh graded like the design's but
  * with every size of the field (site core h0, hmax, electrode-edge size) multiplied by
  * 2^(levels−1), then that base bisected uniformly 3, 6, … times (each round of three halves every
- * edge), so the finest level has the design's hmax and electrode-edge size (it used to have
- * half of them, about 8× the tets, for a bar hardly smaller). The site core gets the electrode-edge size unless h0Nm is
- * given: φ_g varies on the device's scale, and load.ts integrates a density accurately on
- * elements larger than the orbital. Uniform refinement of one base gives the clean
+ * edge), so the finest level has the design's hmax and LEVER_EDGE_FACTOR × its electrode-edge
+ * size. Sites get no core of their own (h0 = hmax) when every one reads φ_g at its centre
+ * (mean-value.ts: φ_g is smooth there on the device's scale), and the electrode-edge size
+ * otherwise, unless h0Nm is given (load.ts integrates a density accurately on elements larger
+ * than the orbital). Uniform refinement of one base gives the clean
  * ratio 2 in h that Richardson extrapolation assumes; independently graded meshes for coarser
  * sizes did not (their hmax-limited bulk hardly changed while the electrode region did, and the
  * differences grew instead of shrinking on a gate 6 nm above a donor).
  */
 export function leverFamily(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions = {}): TetMesh[] {
   const hmax = sizeFieldFromDesign(design, { order, ...meshOpts }).spec.hmaxNm;
-  // the finest level has the design's sizes (hmax, electrode-edge size): measured on the README's
-  // quad (2×2 donors under 5 nm oxide, two gates), a family one size coarser than the earlier one
-  // (finest at half the design's sizes) costs 1/5 of the CPU and its bar still covers the finer family's value
+  // the finest level has the design's hmax (measured on the README's quad: finer bulk cost 5× the CPU
+  // for a bar hardly smaller) and LEVER_EDGE_FACTOR × its electrode-edge size (the edges set the error)
   const F = Math.pow(2, levels - 1);
-  // φ_g varies on the device's scale, not the orbital's: the sites get the electrode-edge size
-  // (load.ts integrates a density exactly enough on elements larger than the orbital)
-  const h0 = meshOpts.h0Nm ?? hmax / ELECTRODE_EDGE_DIVISOR;
+  // φ_g varies on the device's scale, not the orbital's: no site cores where every site reads its
+  // centre, else the electrode-edge size (load.ts integrates a density on elements larger than the orbital)
+  const allCentres = meanValueSites(design, leverSites(design)).ok.every((x) => x === 1);
+  const h0 = meshOpts.h0Nm ?? (allCentres ? hmax : hmax / ELECTRODE_EDGE_DIVISOR);
   const base = meshDesign(design, {
     order,
     ...meshOpts,
     h0Nm: h0 * F,
     hmaxNm: hmax * F,
-    electrodeSizeFactor: (meshOpts.electrodeSizeFactor ?? 1) * F,
+    electrodeSizeFactor: (meshOpts.electrodeSizeFactor ?? LEVER_EDGE_FACTOR) * F,
     keepBisectionMesh: true,
   });
   const bm = base.bisectionMesh!;
