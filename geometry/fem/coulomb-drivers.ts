@@ -68,7 +68,7 @@ export function runGraded(design: Design, pl: Plan, order: 1 | 2, opts: CoulombO
     throwIfAborted(opts.signal);
     const sol = solveLevel(design, meshes[l], order, pl.sites, pl.pairIdx, opts, (phase, site, f) =>
       report({ phase, level: l + 1, site, fraction: (done + w[l] * f) / wSum }),
-    pl.method);
+    pl.method, finest);
     record(h, sol, meshes[l]);
     finest = sol;
     done += w[l];

@@ -19,7 +19,7 @@ import { boundaryValues, layeredBoundaryValues } from './boundary';
 import { hasDevice, NO_ELECTRODE } from '../mesh/device';
 import { deviceMesh, deviceStack, epsByRegion, epsilonAt } from './device';
 import { electrodeDofs } from './electrodes';
-import { freeSelfEnergy, pairClosedForm, reactionRhs, singularPotential } from './split';
+import { freeSelfEnergy, pairClosedForm, reactionRhsBatch, singularPotential } from './split';
 import { locatePoints, valuesAtPoints } from './locate';
 import { meanValueSites } from './mean-value';
 import { CoulombError, type CoulombOptions, type LevelReport } from './coulomb-types';
@@ -53,6 +53,9 @@ export interface LevelSolution {
   notes: string[];
 }
 
+/** Sites per pass of the batched reaction right-hand side (bounds its memory to this many vectors). */
+export const REACTION_BATCH = 16;
+
 /** The discrete charge must match the charge inside the box to this (absolute; issue 5). */
 export const CHARGE_TOLERANCE = 1e-6;
 
@@ -75,6 +78,7 @@ export function solveLevel(
   opts: CoulombOptions,
   report: LevelReport,
   method: SolveMethod = 'full',
+  previous: LevelSolution | null = null,
 ): LevelSolution {
   const device = hasDevice(design);
   const mesh = device ? deviceMesh(design, meshIn) : meshIn;
@@ -109,10 +113,22 @@ export function solveLevel(
   const atCentre = (i: number, j: number): boolean => mv !== null && mv.ok[j] === 1 && epsSite[j] === epsSite[i];
   const needsLoad = new Uint8Array(ns);
   for (let j = 0; j < ns; j++) for (let i = 0; i < ns && !needsLoad[j]; i++) if (!atCentre(i, j)) needsLoad[j] = 1;
+  // initial guesses: the previous (coarser) level's potential of the same site, interpolated at this
+  // mesh's dofs (locate.ts); the meshes of a family cover the same domain. Only the start of PCG
+  // changes: it stops at the same relative residual.
+  const guessAt = previous && previous.phis.length === ns ? locatePoints(previous.space.mesh, space.dofCoords) : null;
+  // the reaction right-hand sides of the split, a batch of sites per pass over the elements
+  let rhsBatch: Float64Array[] = [];
+  let batchStart = 0;
   for (let s = 0; s < ns; s++) {
     const site = sites[s];
     throwIfAborted(opts.signal);
     report('load', site.id, s / ns);
+    if (method === 'split' && device && s >= batchStart + rhsBatch.length) {
+      batchStart = s;
+      const end = Math.min(ns, s + REACTION_BATCH);
+      rhsBatch = reactionRhsBatch(space, mesh, eps, sites.slice(s, end).map((st, k) => ({ orbital: st.orbital, center: st.position, epsSite: epsSite[s + k] })));
+    }
     const inside = 1 - chargeOutsideBox(site.orbital, site.position, design.domain.center, design.domain.halfExtentsNm);
     const L = needsLoad[s] ? densityLoad(space, site.orbital, site.position, opts.load) : { load: new Float64Array(0), charge: inside };
     if (!(Math.abs(L.charge - inside) <= CHARGE_TOLERANCE)) {
@@ -141,7 +157,7 @@ export function solveLevel(
         if (!mask[k]) continue;
         g[k] -= singularPotential(site.orbital, site.position, epsSite[s], space.dofCoords[3 * k], space.dofCoords[3 * k + 1], space.dofCoords[3 * k + 2]);
       }
-      b = device ? reactionRhs(space, mesh, eps, epsSite[s], site.orbital, site.position) : new Float64Array(n);
+      b = device ? rhsBatch[s - batchStart] : new Float64Array(n);
       closedSelf[s] = freeSelfEnergy(site.orbital) / epsSite[s];
     } else {
       b = new Float64Array(n);
@@ -157,7 +173,12 @@ export function solveLevel(
     } else {
       rhs = applyDirichletRhs(K, b, space.boundaryDof, g);
     }
-    const res = pcg(A, rhs, null, {
+    let x0: Float64Array | null = null;
+    if (guessAt) {
+      x0 = valuesAtPoints(previous!.space, guessAt, previous!.phis[s]);
+      for (let k = 0; k < n; k++) if (space.boundaryDof[k] || !Number.isFinite(x0[k])) x0[k] = space.boundaryDof[k] ? g[k] : 0;
+    }
+    const res = pcg(A, rhs, x0, {
       preconditioner: M!,
       tol: opts.solverTol ?? 1e-10,
       maxIter: 5000,

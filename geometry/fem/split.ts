@@ -80,6 +80,14 @@ export function singularPotential(orbital: Orbital, center: Vec3, epsSite: numbe
   return potentialAt(orbital, center, x, y, z) / epsSite;
 }
 
+/** One site of a batch of reaction right-hand sides. */
+export interface ReactionSource {
+  orbital: Orbital;
+  center: Vec3;
+  /** ε_i, the permittivity of the site's own layer */
+  epsSite: number;
+}
+
 /**
  * b_k = −∫ (ε − ε_i) ∇φ_s·∇v_k over every element whose ε differs from ε_i (electrode elements
  * excluded: all their dofs are Dirichlet). `mesh` carries the device regions (device.ts).
@@ -92,20 +100,35 @@ export function reactionRhs(
   orbital: Orbital,
   center: Vec3,
 ): Float64Array {
+  return reactionRhsBatch(space, mesh, eps, [{ orbital, center, epsSite }])[0];
+}
+
+/**
+ * reactionRhs for many sites in one pass over the elements: the quadrature points and the basis
+ * gradients of an element are computed once and shared by every site (the same sums per site, in
+ * the same order, as one site alone).
+ */
+export function reactionRhsBatch(space: FeSpace, mesh: TetMesh, eps: ArrayLike<number>, sources: readonly ReactionSource[]): Float64Array[] {
   const { order, nTets, tetDofs } = space;
   const nLoc = space.dofsPerTet;
-  const b = new Float64Array(space.nDofs);
+  const ns = sources.length;
+  const out = sources.map(() => new Float64Array(space.nDofs));
   const rule = tetQuadrature(SPLIT_RHS_DEGREE);
   const g = new Float64Array(GEOM_SIZE);
   const x = new Float64Array(3);
   const grad = new Float64Array(30);
   const l = new Float64Array(4);
   const coords = mesh.coords, tets = mesh.tets;
+  const de = new Float64Array(ns);
   for (let t = 0; t < nTets; t++) {
     const r = mesh.tetRegion[t];
     if (r === ELECTRODE_REGION) continue;
-    const de = eps[r] - epsSite;
-    if (de === 0) continue;
+    let any = false;
+    for (let s = 0; s < ns; s++) {
+      de[s] = eps[r] - sources[s].epsSite;
+      if (de[s] !== 0) any = true;
+    }
+    if (!any) continue;
     const a = tets[4 * t], bb = tets[4 * t + 1], c = tets[4 * t + 2], d = tets[4 * t + 3];
     tetGeometry(coords, a, bb, c, d, g);
     const vol = g[12];
@@ -113,17 +136,23 @@ export function reactionRhs(
     for (let q = 0; q < rule.n; q++) {
       for (let k = 0; k < 4; k++) l[k] = rule.bary[4 * q + k];
       mapBary(coords, a, bb, c, d, l, x);
-      const dx = x[0] - center[0], dy = x[1] - center[1], dz = x[2] - center[2];
-      const rr = Math.sqrt(dx * dx + dy * dy + dz * dz);
-      if (rr === 0) continue;
-      // ∇φ_s = −Q(r)(x − p)/(ε_i r³)
-      const f = -enclosedCharge(orbital, rr) / (epsSite * rr * rr * rr);
-      const w = -de * rule.weights[q] * 6 * vol; // reference weights sum to 1/6
       if (order === 2) p2GradientsBary(l, g, grad);
-      for (let i = 0; i < nLoc; i++) {
-        b[tetDofs[nLoc * t + i]] += w * f * (dx * grad[3 * i] + dy * grad[3 * i + 1] + dz * grad[3 * i + 2]);
+      const wq = rule.weights[q] * 6 * vol; // reference weights sum to 1/6
+      for (let s = 0; s < ns; s++) {
+        if (de[s] === 0) continue;
+        const src = sources[s];
+        const dx = x[0] - src.center[0], dy = x[1] - src.center[1], dz = x[2] - src.center[2];
+        const rr = Math.sqrt(dx * dx + dy * dy + dz * dz);
+        if (rr === 0) continue;
+        // ∇φ_s = −Q(r)(x − p)/(ε_i r³)
+        const f = -enclosedCharge(src.orbital, rr) / (src.epsSite * rr * rr * rr);
+        const w = -de[s] * wq * f;
+        const b = out[s];
+        for (let i = 0; i < nLoc; i++) {
+          b[tetDofs[nLoc * t + i]] += w * (dx * grad[3 * i] + dy * grad[3 * i + 1] + dz * grad[3 * i + 2]);
+        }
       }
     }
   }
-  return b;
+  return out;
 }
