@@ -224,18 +224,19 @@ export function leverArmsOnMesh(design: Design, meshIn: TetMesh, order: 1 | 2, o
  * the lever arms converge only at about h^1.4 (the field's edge singularity at the gates pollutes
  * the whole solution; with a re-entrant edge's exponent 2/3 one expects h^{4/3}, from memory), so
  * the edge size, not the bulk or the site cores, sets the error. On the bench's 2×2 array 20 nm
- * under 5 nm of oxide and two gates (P2, 3 levels), halving the edge size and dropping the site
- * cores gave a worst bar of 1.5 meV/V (15 %) for 9 s of CPU, against 4.6 meV/V (46 %) for 37 s
- * with the design's edge size and cores; a quarter of it, 0.94 meV/V for 79 s.
+ * under 5 nm of oxide and two gates (P2, 3 levels; finest edge size hmax/2 = 2× the design's), dropping
+ * the site cores gave a worst bar of 1.5 meV/V (15 %) for 9 s of CPU, against 4.6 meV/V (46 %)
+ * for 37 s with the cores and an edge size of hmax (then the factor was applied twice, see
+ * leverFamily); with the design's own edge size (hmax/4), 0.94 meV/V for 79 s.
  */
-export const LEVER_EDGE_FACTOR = 0.5;
+export const LEVER_EDGE_FACTOR = 2;
 
 /**
  * The nested meshes of the lever arms, coarsest first: a base mesh graded like the design's but
  * with every size of the field (site core h0, hmax, electrode-edge size) multiplied by
  * 2^(levels−1), then that base bisected uniformly 3, 6, … times (each round of three halves every
  * edge), so the finest level has the design's hmax and LEVER_EDGE_FACTOR × its electrode-edge
- * size. Sites get no core of their own (h0 = hmax) when every one reads φ_g at its centre
+ * size, whatever the number of levels. Sites get no core of their own (h0 = hmax) when every one reads φ_g at its centre
  * (mean-value.ts: φ_g is smooth there on the device's scale), and the electrode-edge size
  * otherwise, unless h0Nm is given (load.ts integrates a density accurately on elements larger
  * than the orbital). Uniform refinement of one base gives the clean
@@ -257,7 +258,9 @@ export function leverFamily(design: Design, order: 1 | 2, levels: number, meshOp
     ...meshOpts,
     h0Nm: h0 * F,
     hmaxNm: hmax * F,
-    electrodeSizeFactor: (meshOpts.electrodeSizeFactor ?? LEVER_EDGE_FACTOR) * F,
+    // not × F: the edge size is a fraction of hmax, which is × F already (it used to be scaled twice,
+    // so that with three levels the edges got no size of their own below hmax)
+    electrodeSizeFactor: meshOpts.electrodeSizeFactor ?? LEVER_EDGE_FACTOR,
     keepBisectionMesh: true,
   });
   const bm = base.bisectionMesh!;
