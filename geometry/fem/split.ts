@@ -59,15 +59,24 @@ export function freeSelfEnergy(orbital: Orbital): number {
   return selfEnergy(orbital);
 }
 
+/** Beyond these (t = 2r/a for 1s, w = r/(σ√2) for a Gaussian) the enclosed charge is 1 to double precision. */
+const ENCLOSED_ONE_T = 50;
+const ENCLOSED_ONE_W = 7;
+
 /** Charge of the unit density within radius r of its centre (spherical models; NaN otherwise). */
 export function enclosedCharge(orbital: Orbital, r: number): number {
   switch (orbital.model) {
     case 'hydrogenic-1s': {
       const t = (2 * r) / orbital.radiusNm;
+      // beyond t = 50 the tail e^{−t}(1 + t + t²/2) < 1e-18 is below double precision: Q = 1 exactly
+      // in floating point, without the two exponentials (the reaction right-hand side's hot loop)
+      if (t > ENCLOSED_ONE_T) return 1;
       return -Math.expm1(-t) - Math.exp(-t) * (t + 0.5 * t * t);
     }
     case 'gaussian': {
       const w = r / (orbital.sigmaNm * Math.SQRT2);
+      // beyond w = 7, erfc(w) + (2/√π) w e^{−w²} < 1e-20: Q = 1 in double precision
+      if (w > ENCLOSED_ONE_W) return 1;
       return erf(w) - (2 / Math.sqrt(Math.PI)) * w * Math.exp(-w * w);
     }
     default:

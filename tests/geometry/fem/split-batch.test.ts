@@ -6,7 +6,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import type { Design } from '../../../geometry/design/types';
-import { reactionRhs, reactionRhsBatch } from '../../../geometry/fem/split';
+import { enclosedCharge, reactionRhs, reactionRhsBatch } from '../../../geometry/fem/split';
+import { erf } from '../../../geometry/density';
 import { deviceMesh, epsByRegion, epsilonAt } from '../../../geometry/fem/device';
 import { buildSpace } from '../../../geometry/fem/space';
 import { meshDesign } from '../../../geometry/mesh/index';
@@ -49,6 +50,20 @@ describe('reactionRhsBatch', () => {
         expect(diff).toBeLessThanOrEqual(1e-13 * scale);
         expect(Math.abs(sum)).toBeLessThanOrEqual(1e-10 * scale * Math.sqrt(one.length));
       });
+    }
+  });
+});
+
+describe('enclosedCharge', () => {
+  it('is 1 − the closed-form tail at every radius, the far shortcut included (1s: e^{−t}(1 + t + t²/2), t = 2r/a; Gaussian: erfc(w) + (2/√π) w e^{−w²}, w = r/(σ√2); textbook integrals)', () => {
+    const a = 1.3, s = 0.7;
+    for (const t of [0.5, 3, 20, 49.9, 50.1, 80]) {
+      const r = (t * a) / 2;
+      expect(Math.abs(enclosedCharge({ model: 'hydrogenic-1s', radiusNm: a }, r) - (1 - Math.exp(-t) * (1 + t + t * t / 2)))).toBeLessThan(1e-15);
+    }
+    for (const w of [0.3, 2, 5, 6.9, 7.1, 12]) {
+      const r = w * s * Math.SQRT2;
+      expect(Math.abs(enclosedCharge({ model: 'gaussian', sigmaNm: s }, r) - (erf(w) - (2 / Math.sqrt(Math.PI)) * w * Math.exp(-w * w)))).toBeLessThan(1e-15);
     }
   });
 });
