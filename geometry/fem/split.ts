@@ -113,52 +113,90 @@ export function reactionRhs(
 }
 
 /**
+ * An element at least 1/FAR_RULE_RATIO of its size from a site takes the 15-point rule of degree
+ * FAR_RHS_DEGREE for that site instead of SPLIT_RHS_DEGREE's 80 points: ∇φ_s is analytic there
+ * with derivatives of order m about m!/r^{m+2}, so a degree-5 rule errs by about (h/r)^6 ≲ 2e-4
+ * of the element's share (Taylor remainder; common practice), and in a device most elements of
+ * the other layers lie many sizes away from every site. Size = the bounding box's diagonal,
+ * distance = from the site to the bounding box (both conservative).
+ */
+export const FAR_RULE_RATIO = 4;
+export const FAR_RHS_DEGREE = 5;
+
+/**
  * reactionRhs for many sites in one pass over the elements: the quadrature points and the basis
- * gradients of an element are computed once and shared by every site (the same sums per site, in
- * the same order, as one site alone).
+ * gradients of an element are computed once per rule and shared by every site (the same sums per
+ * site, in the same order, as one site alone).
  */
 export function reactionRhsBatch(space: FeSpace, mesh: TetMesh, eps: ArrayLike<number>, sources: readonly ReactionSource[]): Float64Array[] {
   const { order, nTets, tetDofs } = space;
   const nLoc = space.dofsPerTet;
   const ns = sources.length;
   const out = sources.map(() => new Float64Array(space.nDofs));
-  const rule = tetQuadrature(SPLIT_RHS_DEGREE);
+  const rules = [tetQuadrature(FAR_RHS_DEGREE), tetQuadrature(SPLIT_RHS_DEGREE)];
   const g = new Float64Array(GEOM_SIZE);
   const x = new Float64Array(3);
   const grad = new Float64Array(30);
   const l = new Float64Array(4);
   const coords = mesh.coords, tets = mesh.tets;
   const de = new Float64Array(ns);
+  // which rule each site takes on the current element: 0 far, 1 near, −1 none (same ε)
+  const ruleOf = new Int8Array(ns);
+  const lo = new Float64Array(3), hi = new Float64Array(3);
   for (let t = 0; t < nTets; t++) {
     const r = mesh.tetRegion[t];
     if (r === ELECTRODE_REGION) continue;
+    const a = tets[4 * t], bb = tets[4 * t + 1], c = tets[4 * t + 2], d = tets[4 * t + 3];
+    let diag2 = 0;
+    for (let k = 0; k < 3; k++) {
+      const x0 = coords[3 * a + k], x1 = coords[3 * bb + k], x2 = coords[3 * c + k], x3 = coords[3 * d + k];
+      lo[k] = Math.min(x0, x1, x2, x3);
+      hi[k] = Math.max(x0, x1, x2, x3);
+      diag2 += (hi[k] - lo[k]) * (hi[k] - lo[k]);
+    }
     let any = false;
     for (let s = 0; s < ns; s++) {
       de[s] = eps[r] - sources[s].epsSite;
-      if (de[s] !== 0) any = true;
+      if (de[s] === 0) {
+        ruleOf[s] = -1;
+        continue;
+      }
+      any = true;
+      const p = sources[s].center;
+      let dist2 = 0;
+      for (let k = 0; k < 3; k++) {
+        const e = p[k] < lo[k] ? lo[k] - p[k] : p[k] > hi[k] ? p[k] - hi[k] : 0;
+        dist2 += e * e;
+      }
+      ruleOf[s] = dist2 >= FAR_RULE_RATIO * FAR_RULE_RATIO * diag2 ? 0 : 1;
     }
     if (!any) continue;
-    const a = tets[4 * t], bb = tets[4 * t + 1], c = tets[4 * t + 2], d = tets[4 * t + 3];
     tetGeometry(coords, a, bb, c, d, g);
     const vol = g[12];
     if (order === 1) for (let i = 0; i < 12; i++) grad[i] = g[i];
-    for (let q = 0; q < rule.n; q++) {
-      for (let k = 0; k < 4; k++) l[k] = rule.bary[4 * q + k];
-      mapBary(coords, a, bb, c, d, l, x);
-      if (order === 2) p2GradientsBary(l, g, grad);
-      const wq = rule.weights[q] * 6 * vol; // reference weights sum to 1/6
-      for (let s = 0; s < ns; s++) {
-        if (de[s] === 0) continue;
-        const src = sources[s];
-        const dx = x[0] - src.center[0], dy = x[1] - src.center[1], dz = x[2] - src.center[2];
-        const rr = Math.sqrt(dx * dx + dy * dy + dz * dz);
-        if (rr === 0) continue;
-        // ∇φ_s = −Q(r)(x − p)/(ε_i r³)
-        const f = -enclosedCharge(src.orbital, rr) / (src.epsSite * rr * rr * rr);
-        const w = -de[s] * wq * f;
-        const b = out[s];
-        for (let i = 0; i < nLoc; i++) {
-          b[tetDofs[nLoc * t + i]] += w * (dx * grad[3 * i] + dy * grad[3 * i + 1] + dz * grad[3 * i + 2]);
+    for (let ri = 0; ri < 2; ri++) {
+      let used = false;
+      for (let s = 0; s < ns && !used; s++) if (ruleOf[s] === ri) used = true;
+      if (!used) continue;
+      const rule = rules[ri];
+      for (let q = 0; q < rule.n; q++) {
+        for (let k = 0; k < 4; k++) l[k] = rule.bary[4 * q + k];
+        mapBary(coords, a, bb, c, d, l, x);
+        if (order === 2) p2GradientsBary(l, g, grad);
+        const wq = rule.weights[q] * 6 * vol; // reference weights sum to 1/6
+        for (let s = 0; s < ns; s++) {
+          if (ruleOf[s] !== ri) continue;
+          const src = sources[s];
+          const dx = x[0] - src.center[0], dy = x[1] - src.center[1], dz = x[2] - src.center[2];
+          const rr = Math.sqrt(dx * dx + dy * dy + dz * dz);
+          if (rr === 0) continue;
+          // ∇φ_s = −Q(r)(x − p)/(ε_i r³)
+          const f = -enclosedCharge(src.orbital, rr) / (src.epsSite * rr * rr * rr);
+          const w = -de[s] * wq * f;
+          const b = out[s];
+          for (let i = 0; i < nLoc; i++) {
+            b[tetDofs[nLoc * t + i]] += w * (dx * grad[3 * i] + dy * grad[3 * i + 1] + dz * grad[3 * i + 2]);
+          }
         }
       }
     }
