@@ -10,7 +10,7 @@ import { describe, expect, it } from 'vitest';
 import type { Design, HostLayer, Orbital, Site, Vec3 } from '../../../geometry/design/types';
 import { harmonicBallRadius, meanValueSites, pointValueRate, MEAN_VALUE_TAIL_FRACTION } from '../../../geometry/fem/mean-value';
 import { solveCoulomb } from '../../../geometry/fem/coulomb';
-import { solveLevel } from '../../../geometry/fem/coulomb-level';
+import { solveLevel, SPLIT_SOLVER_TOL } from '../../../geometry/fem/coulomb-level';
 import { activeSites, plan, splitFamily } from '../../../geometry/fem/coulomb-plan';
 import { densityLoad } from '../../../geometry/fem/load';
 import { leverArmsOnMesh, leverFamily, solveLeverArms } from '../../../geometry/fem/lever';
@@ -187,5 +187,16 @@ describe('lever arms: centre values and density loads', () => {
     for (let k = 0; k < L.length; k++) viaLoad += L[k] * on.potentials[0][k];
     expect(Math.abs(-1000 * viaLoad - r.leverArms[0].meVPerV)).toBeLessThanOrEqual(r.leverArms[0].errorMeVPerV);
     expect(r.leverArms[0].errorMeVPerV).toBeGreaterThanOrEqual(1000 * on.tail[0]);
+  });
+});
+
+describe('the split\'s solver tolerance', () => {
+  it('the default (SPLIT_SOLVER_TOL) moves U and V by less than 1e-4 of their bars against PCG to 1e-10 (the algebraic error stays far below the discretisation error)', () => {
+    const d = design([{ p: [-1.5, 0, -4], o: gauss(0.5) }, { p: [1.5, 0, -4], o: gauss(0.5) }], { layers: LAYERS });
+    expect(SPLIT_SOLVER_TOL).toBeGreaterThan(1e-10);
+    const a = solveCoulomb(d, { method: 'split' });
+    const b = solveCoulomb(d, { method: 'split', solverTol: 1e-10 });
+    expect(Math.abs(a.sites[0].uEv - b.sites[0].uEv)).toBeLessThanOrEqual(1e-4 * b.sites[0].uErrorEv);
+    expect(Math.abs(a.pairs[0].vEv - b.pairs[0].vEv)).toBeLessThanOrEqual(1e-4 * b.pairs[0].vErrorEv);
   });
 });
