@@ -6,6 +6,7 @@
  */
 import { COULOMB_EV_NM } from '../units';
 import { richardson } from './errorbars';
+import { pointValueRate } from './mean-value';
 import type { ErrorBudget, LevelSummary, PairEnergy, SiteEnergy } from './coulomb-types';
 import type { Plan } from './coulomb-plan';
 
@@ -21,15 +22,19 @@ export interface History {
   self: number[][]; // per level, per site (nm⁻¹)
   pair: number[][];
   levels: LevelSummary[];
+  /** 1 where a U (per site) or V (per pair) was read at a centre on some level (mean-value.ts) */
+  pointSelf: Uint8Array | null;
+  pointPair: Uint8Array | null;
 }
 
 export function budgetsFrom(h: History, pl: Plan, order: 1 | 2): { sites: SiteEnergy[]; pairs: PairEnergy[]; rel: number } {
   const ev = COULOMB_EV_NM;
-  const q = 2 * order;
+  // theoretical rate: 2p for the functional ∫ρφ, p + 1 for a number read at a centre (mean-value.ts)
+  const qOf = (point: Uint8Array | null, k: number): number => (point && point[k] ? pointValueRate(order) : 2 * order);
   let rel = 0;
   const sites: SiteEnergy[] = pl.sites.map((site, k) => {
     const series = h.self.map((l) => l[k] * ev);
-    const r = richardson(h.s, series, q);
+    const r = richardson(h.s, series, qOf(h.pointSelf, k));
     const u = series[series.length - 1];
     r.error = Math.max(r.error, ROUNDING_FLOOR * Math.abs(u));
     const cut = 2 * pl.siteCut[k] * Math.abs(u);
@@ -42,7 +47,7 @@ export function budgetsFrom(h: History, pl: Plan, order: 1 | 2): { sites: SiteEn
   });
   const pairs: PairEnergy[] = pl.pairInfo.map((p, k) => {
     const series = h.pair.map((l) => l[k] * ev);
-    const r = richardson(h.s, series, q);
+    const r = richardson(h.s, series, qOf(h.pointPair, k));
     const v = series[series.length - 1];
     r.error = Math.max(r.error, ROUNDING_FLOOR * Math.abs(v));
     const i = pl.pairIdx[2 * k], j = pl.pairIdx[2 * k + 1];

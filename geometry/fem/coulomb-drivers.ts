@@ -31,7 +31,7 @@ export interface DriverOutcome {
 type Report = (p: CoreProgress) => void;
 
 function newHistory(): History {
-  return { s: [], self: [], pair: [], levels: [] };
+  return { s: [], self: [], pair: [], levels: [], pointSelf: null, pointPair: null };
 }
 
 function record(h: History, sol: LevelSolution, mesh: TetMesh): void {
@@ -39,7 +39,16 @@ function record(h: History, sol: LevelSolution, mesh: TetMesh): void {
   h.s.push(s);
   h.self.push(Array.from(sol.self));
   h.pair.push(Array.from(sol.pair));
+  // a number read at a centre on any level converges at the point-value rate (mean-value.ts)
+  h.pointSelf = orFlags(h.pointSelf, sol.pointSelf);
+  h.pointPair = orFlags(h.pointPair, sol.pointPair);
   h.levels.push({ elements: mesh.tets.length / 4, dofs: sol.space.nDofs, iterations: sol.iterations, s, uEv: Array.from(sol.self, (x) => x * COULOMB_EV_NM) });
+}
+
+function orFlags(a: Uint8Array | null, b: Uint8Array): Uint8Array {
+  if (!a) return Uint8Array.from(b);
+  for (let k = 0; k < a.length; k++) a[k] |= b[k];
+  return a;
 }
 
 /** Graded mode: `levels` nested a priori meshes (coulomb-plan.ts gradedFamily), the finest reported. */
@@ -59,7 +68,7 @@ export function runGraded(design: Design, pl: Plan, order: 1 | 2, opts: CoulombO
     throwIfAborted(opts.signal);
     const sol = solveLevel(design, meshes[l], order, pl.sites, pl.pairIdx, opts, (phase, site, f) =>
       report({ phase, level: l + 1, site, fraction: (done + w[l] * f) / wSum }),
-    pl.method);
+    pl.method, finest);
     record(h, sol, meshes[l]);
     finest = sol;
     done += w[l];

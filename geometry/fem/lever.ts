@@ -12,16 +12,20 @@
  *     ∂E_i/∂V_g = −e ∫ρ_i φ_g  = −1000 · ∫ρ_i φ_g  meV/V   for an electron (donors),
  *               = +1000 · ∫ρ_i φ_g  meV/V                  for a hole (species B),
  *
- * negative for an electron under a positive gate. The integral is load·φ: ∫ρ_i φ_h = Σ_k f_i[k] φ_h[k]
- * with f_i = ∫ρ_i v_k from load.ts. Superposition gives the site energies at the design's voltages,
+ * negative for an electron under a positive gate. φ_g is harmonic inside each layer away from metal,
+ * so where site i's harmonic ball holds all but a negligible tail of ρ_i the integral is the centre
+ * value φ_g(p_i) (mean-value.ts: the mean-value property; the neglected part is at most the tail
+ * charge in V/V because 0 ≤ φ_g ≤ 1, and that bound is added to the bar); elsewhere it is load·φ,
+ * ∫ρ_i φ_g = Σ_k f_i[k] φ_g[k] with f_i = ∫ρ_i v_k from load.ts. Superposition gives the site energies at the design's voltages,
  * E_i = Σ_g (∂E_i/∂V_g) V_g (against every electrode at 0 V).
  *
  * One mesh: one stiffness matrix, one lifting, one multigrid preconditioner for all electrodes
  * (only the Dirichlet values change between them). Error bars: the lever arms on nested meshes
  * (leverFamily: a coarse graded base and its uniform refinements), extrapolated with the error-bar
  * rule of the Coulomb solver, errorbars.ts `richardson` (grid convergence index,
- * s = N^(−1/3), theoretical rate 2p: ∫ρφ is a smooth linear functional of φ, whose error is the
- * square of the energy-norm error, Aubin–Nitsche duality; e.g. Ciarlet 1978, §3.2).
+ * s = N^(−1/3), theoretical rate 2p for the load: ∫ρφ is a smooth linear functional of φ, whose error is the
+ * square of the energy-norm error, Aubin–Nitsche duality; e.g. Ciarlet 1978, §3.2; p + 1 for a
+ * centre value, mean-value.ts).
  *
  * Assumptions (stated with every result): ideal metal at a fixed voltage, planar layers infinite
  * in x and y within the domain, no free charge other than the site's (no screening by other
@@ -41,6 +45,8 @@ import { multigridPreconditioner } from './multigrid';
 import { pcg, jacobi, type Preconditioner } from './pcg';
 import type { Csr } from './csr';
 import { densityLoad } from './load';
+import { locatePoints, valuesAtPoints } from './locate';
+import { meanValueSites, pointValueRate } from './mean-value';
 import { richardson } from './errorbars';
 import { deviceMesh, epsByRegion } from './device';
 import { electrodeDofs, electrodeValues } from './electrodes';
@@ -128,6 +134,10 @@ export interface LeverOnMesh {
   meVPerV: Float64Array;
   dofs: number;
   iterations: number;
+  /** 1 where the site's lever arms are centre values φ_g(p_i) (mean-value.ts), per site */
+  pointValue: Uint8Array;
+  /** charge of the site's density beyond its harmonic ball (bounds the centre value's error in V/V) */
+  tail: Float64Array;
   /** the electrodes' potentials φ_g (V per V) on every dof, one per electrode */
   potentials: Float64Array[];
   space: FeSpace;
@@ -185,9 +195,19 @@ export function leverArmsOnMesh(design: Design, meshIn: TetMesh, order: 1 | 2, o
     potentials.push(res.x);
   }
   const meVPerV = new Float64Array(sites.length * m);
+  const mv = meanValueSites(design, sites);
+  // the centre values: every site located once, every potential read there
+  const pts = new Float64Array(3 * sites.length);
+  sites.forEach((st, k) => pts.set(st.position, 3 * k));
+  const located = mv.ok.some((x) => x === 1) ? locatePoints(space.mesh, pts) : null;
+  const centre = located ? potentials.map((phi) => valuesAtPoints(space, located, phi)) : [];
   sites.forEach((site, i) => {
     throwIfAborted(opts.signal);
     opts.onProgress?.({ phase: 'load', level, site: site.id, fraction: fraction[0] + (fraction[1] - fraction[0]) * ((m + i / sites.length) / (m + 1)) });
+    if (mv.ok[i]) {
+      for (let g = 0; g < m; g++) meVPerV[i * m + g] = site.sign * 1000 * centre[g][i];
+      return;
+    }
     const L = densityLoad(space, site.orbital, site.position).load;
     for (let g = 0; g < m; g++) {
       const phi = potentials[g];
@@ -196,36 +216,51 @@ export function leverArmsOnMesh(design: Design, meshIn: TetMesh, order: 1 | 2, o
       meVPerV[i * m + g] = site.sign * 1000 * s;
     }
   });
-  return { meVPerV, dofs: n, iterations, potentials, space };
+  return { meVPerV, dofs: n, iterations, pointValue: mv.ok, tail: mv.tail, potentials, space };
 }
+
+/**
+ * Electrode-edge size of the lever-arm meshes relative to the design's (measured, issue 11 "Speed"):
+ * the lever arms converge only at about h^1.4 (the field's edge singularity at the gates pollutes
+ * the whole solution; with a re-entrant edge's exponent 2/3 one expects h^{4/3}, from memory), so
+ * the edge size, not the bulk or the site cores, sets the error. On the bench's 2×2 array 20 nm
+ * under 5 nm of oxide and two gates (P2, 3 levels; finest edge size hmax/2 = 2× the design's), dropping
+ * the site cores gave a worst bar of 1.5 meV/V (15 %) for 9 s of CPU, against 4.6 meV/V (46 %)
+ * for 37 s with the cores and an edge size of hmax (then the factor was applied twice, see
+ * leverFamily); with the design's own edge size (hmax/4), 0.94 meV/V for 79 s.
+ */
+export const LEVER_EDGE_FACTOR = 2;
 
 /**
  * The nested meshes of the lever arms, coarsest first: a base mesh graded like the design's but
  * with every size of the field (site core h0, hmax, electrode-edge size) multiplied by
  * 2^(levels−1), then that base bisected uniformly 3, 6, … times (each round of three halves every
- * edge), so the finest level has the design's hmax and electrode-edge size (it used to have
- * half of them, about 8× the tets, for a bar hardly smaller). The site core gets the electrode-edge size unless h0Nm is
- * given: φ_g varies on the device's scale, and load.ts integrates a density accurately on
- * elements larger than the orbital. Uniform refinement of one base gives the clean
+ * edge), so the finest level has the design's hmax and LEVER_EDGE_FACTOR × its electrode-edge
+ * size, whatever the number of levels. Sites get no core of their own (h0 = hmax) when every one reads φ_g at its centre
+ * (mean-value.ts: φ_g is smooth there on the device's scale), and the electrode-edge size
+ * otherwise, unless h0Nm is given (load.ts integrates a density accurately on elements larger
+ * than the orbital). Uniform refinement of one base gives the clean
  * ratio 2 in h that Richardson extrapolation assumes; independently graded meshes for coarser
  * sizes did not (their hmax-limited bulk hardly changed while the electrode region did, and the
  * differences grew instead of shrinking on a gate 6 nm above a donor).
  */
 export function leverFamily(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions = {}): TetMesh[] {
   const hmax = sizeFieldFromDesign(design, { order, ...meshOpts }).spec.hmaxNm;
-  // the finest level has the design's sizes (hmax, electrode-edge size): measured on the README's
-  // quad (2×2 donors under 5 nm oxide, two gates), a family one size coarser than the earlier one
-  // (finest at half the design's sizes) costs 1/5 of the CPU and its bar still covers the finer family's value
+  // the finest level has the design's hmax (measured on the README's quad: finer bulk cost 5× the CPU
+  // for a bar hardly smaller) and LEVER_EDGE_FACTOR × its electrode-edge size (the edges set the error)
   const F = Math.pow(2, levels - 1);
-  // φ_g varies on the device's scale, not the orbital's: the sites get the electrode-edge size
-  // (load.ts integrates a density exactly enough on elements larger than the orbital)
-  const h0 = meshOpts.h0Nm ?? hmax / ELECTRODE_EDGE_DIVISOR;
+  // φ_g varies on the device's scale, not the orbital's: no site cores where every site reads its
+  // centre, else the electrode-edge size (load.ts integrates a density on elements larger than the orbital)
+  const allCentres = meanValueSites(design, leverSites(design)).ok.every((x) => x === 1);
+  const h0 = meshOpts.h0Nm ?? (allCentres ? hmax : hmax / ELECTRODE_EDGE_DIVISOR);
   const base = meshDesign(design, {
     order,
     ...meshOpts,
     h0Nm: h0 * F,
     hmaxNm: hmax * F,
-    electrodeSizeFactor: (meshOpts.electrodeSizeFactor ?? 1) * F,
+    // not × F: the edge size is a fraction of hmax, which is × F already (it used to be scaled twice,
+    // so that with three levels the edges got no size of their own below hmax)
+    electrodeSizeFactor: meshOpts.electrodeSizeFactor ?? LEVER_EDGE_FACTOR,
     keepBisectionMesh: true,
   });
   const bm = base.bisectionMesh!;
@@ -262,8 +297,12 @@ export function solveLeverArms(design: Design, opts: LeverArmOptions = {}): Leve
   let done = 0;
   const s: number[] = [];
   const values: Float64Array[] = [];
+  let point: Uint8Array = new Uint8Array(sites.length);
+  let tail: Float64Array = new Float64Array(sites.length);
   meshes.forEach((mesh, l) => {
     const r = leverArmsOnMesh(design, mesh, order, opts, l + 1, [done / wSum, (done + w[l]) / wSum]);
+    point = r.pointValue;
+    tail = r.tail;
     done += w[l];
     s.push(Math.pow(r.dofs, -1 / 3));
     values.push(r.meVPerV);
@@ -273,9 +312,11 @@ export function solveLeverArms(design: Design, opts: LeverArmOptions = {}): Leve
   const err = new Float64Array(last.length);
   for (let k = 0; k < last.length; k++) {
     const series = values.map((v) => v[k]);
-    const r = richardson(s, series, 2 * order);
-    // a lever arm the same on every mesh (a linear potential, reproduced exactly) has no bar to give
-    err[k] = Number.isFinite(r.error) ? r.error : Infinity;
+    const site = Math.floor(k / m);
+    const r = richardson(s, series, point[site] ? pointValueRate(order) : 2 * order);
+    // a lever arm the same on every mesh (a linear potential, reproduced exactly) has no bar to give;
+    // a centre value adds the mean-value bound 1000 · tail meV/V (0 ≤ φ_g ≤ 1, mean-value.ts)
+    err[k] = (Number.isFinite(r.error) ? r.error : Infinity) + (point[site] ? 1000 * tail[site] : 0);
   }
   sites.forEach((site, i) => {
     let e = 0;

@@ -23,13 +23,12 @@
  * with P_ij the closed-form free-space interaction (geometry/density pairEnergy). Both closed forms
  * are over all space (the density outside the box included); the remainders over the mesh.
  *
- * In a homogeneous host without electrodes φ_r is harmonic in the whole box, and by the mean-value
- * property of harmonic functions (Gauss; e.g. Jackson §1.8 problem, or any text on potential
- * theory — from memory) a spherically symmetric unit density sees exactly its centre's value:
- * ∫ρ_j φ_r = φ_r(p_j) (up to the density outside the box, which the budget's density cut counts).
- * So there the remainders are read at the site centres (valuesAt) and no density load is needed;
- * with layers or electrodes (where φ_r is not harmonic across an interface or into metal) the
- * integrals use the density loads (load.ts).
+ * φ_r,i is harmonic wherever ε = ε_i (no charge of its own there), so by the mean-value property
+ * of harmonic functions a spherically symmetric unit density whose support lies (up to a negligible
+ * tail) in such a ball sees exactly its centre's value, ∫ρ_j φ_r,i = φ_r,i(p_j): the rule and its
+ * source are in mean-value.ts, and coulomb-level.ts reads those sites at their centres (located once
+ * per mesh, locate.ts) without a density load; elsewhere (a site near an interface, an electrode or
+ * a wall, or in a layer of another εr) the integrals use the density loads (load.ts).
  *
  * ∇φ_s = −Q(r) (x − p)/(ε_i r³) by Gauss's law, Q(r) the charge of the density within radius r:
  *   hydrogenic 1s: Q = 1 − e^{−t}(1 + t + t²/2),  t = 2r/a  (integral of the 1s density; textbook)
@@ -38,7 +37,7 @@
 import type { Orbital, Vec3 } from '../design/types';
 import { erf, pairEnergy, potentialAt, radialPotential, selfEnergy } from '../density';
 import type { TetMesh } from '../mesh/types';
-import { GEOM_SIZE, mapBary, p2BasisBary, p2GradientsBary, tetGeometry, tetQuadrature } from './reference';
+import { GEOM_SIZE, mapBary, p2GradientsBary, tetGeometry, tetQuadrature } from './reference';
 import type { FeSpace } from './space';
 import { ELECTRODE_REGION } from '../mesh/device';
 
@@ -60,15 +59,24 @@ export function freeSelfEnergy(orbital: Orbital): number {
   return selfEnergy(orbital);
 }
 
+/** Beyond these (t = 2r/a for 1s, w = r/(σ√2) for a Gaussian) the enclosed charge is 1 to double precision. */
+const ENCLOSED_ONE_T = 50;
+const ENCLOSED_ONE_W = 7;
+
 /** Charge of the unit density within radius r of its centre (spherical models; NaN otherwise). */
 export function enclosedCharge(orbital: Orbital, r: number): number {
   switch (orbital.model) {
     case 'hydrogenic-1s': {
       const t = (2 * r) / orbital.radiusNm;
+      // beyond t = 50 the tail e^{−t}(1 + t + t²/2) < 1e-18 is below double precision: Q = 1 exactly
+      // in floating point, without the two exponentials (the reaction right-hand side's hot loop)
+      if (t > ENCLOSED_ONE_T) return 1;
       return -Math.expm1(-t) - Math.exp(-t) * (t + 0.5 * t * t);
     }
     case 'gaussian': {
       const w = r / (orbital.sigmaNm * Math.SQRT2);
+      // beyond w = 7, erfc(w) + (2/√π) w e^{−w²} < 1e-20: Q = 1 in double precision
+      if (w > ENCLOSED_ONE_W) return 1;
       return erf(w) - (2 / Math.sqrt(Math.PI)) * w * Math.exp(-w * w);
     }
     default:
@@ -79,6 +87,14 @@ export function enclosedCharge(orbital: Orbital, r: number): number {
 /** φ_s = V(x)/ε_i at a point (nm⁻¹). */
 export function singularPotential(orbital: Orbital, center: Vec3, epsSite: number, x: number, y: number, z: number): number {
   return potentialAt(orbital, center, x, y, z) / epsSite;
+}
+
+/** One site of a batch of reaction right-hand sides. */
+export interface ReactionSource {
+  orbital: Orbital;
+  center: Vec3;
+  /** ε_i, the permittivity of the site's own layer */
+  epsSite: number;
 }
 
 /**
@@ -93,90 +109,96 @@ export function reactionRhs(
   orbital: Orbital,
   center: Vec3,
 ): Float64Array {
+  return reactionRhsBatch(space, mesh, eps, [{ orbital, center, epsSite }])[0];
+}
+
+/**
+ * An element at least 1/FAR_RULE_RATIO of its size from a site takes the 15-point rule of degree
+ * FAR_RHS_DEGREE for that site instead of SPLIT_RHS_DEGREE's 80 points: ∇φ_s is analytic there
+ * with derivatives of order m about m!/r^{m+2}, so a degree-5 rule errs by about (h/r)^6 ≲ 2e-4
+ * of the element's share (Taylor remainder; common practice), and in a device most elements of
+ * the other layers lie many sizes away from every site. Size = the bounding box's diagonal,
+ * distance = from the site to the bounding box (both conservative).
+ */
+export const FAR_RULE_RATIO = 4;
+export const FAR_RHS_DEGREE = 5;
+
+/**
+ * reactionRhs for many sites in one pass over the elements: the quadrature points and the basis
+ * gradients of an element are computed once per rule and shared by every site (the same sums per
+ * site, in the same order, as one site alone).
+ */
+export function reactionRhsBatch(space: FeSpace, mesh: TetMesh, eps: ArrayLike<number>, sources: readonly ReactionSource[]): Float64Array[] {
   const { order, nTets, tetDofs } = space;
   const nLoc = space.dofsPerTet;
-  const b = new Float64Array(space.nDofs);
-  const rule = tetQuadrature(SPLIT_RHS_DEGREE);
+  const ns = sources.length;
+  const out = sources.map(() => new Float64Array(space.nDofs));
+  const rules = [tetQuadrature(FAR_RHS_DEGREE), tetQuadrature(SPLIT_RHS_DEGREE)];
   const g = new Float64Array(GEOM_SIZE);
   const x = new Float64Array(3);
   const grad = new Float64Array(30);
   const l = new Float64Array(4);
   const coords = mesh.coords, tets = mesh.tets;
+  const de = new Float64Array(ns);
+  // which rule each site takes on the current element: 0 far, 1 near, −1 none (same ε)
+  const ruleOf = new Int8Array(ns);
+  const lo = new Float64Array(3), hi = new Float64Array(3);
   for (let t = 0; t < nTets; t++) {
     const r = mesh.tetRegion[t];
     if (r === ELECTRODE_REGION) continue;
-    const de = eps[r] - epsSite;
-    if (de === 0) continue;
     const a = tets[4 * t], bb = tets[4 * t + 1], c = tets[4 * t + 2], d = tets[4 * t + 3];
+    let diag2 = 0;
+    for (let k = 0; k < 3; k++) {
+      const x0 = coords[3 * a + k], x1 = coords[3 * bb + k], x2 = coords[3 * c + k], x3 = coords[3 * d + k];
+      lo[k] = Math.min(x0, x1, x2, x3);
+      hi[k] = Math.max(x0, x1, x2, x3);
+      diag2 += (hi[k] - lo[k]) * (hi[k] - lo[k]);
+    }
+    let any = false;
+    for (let s = 0; s < ns; s++) {
+      de[s] = eps[r] - sources[s].epsSite;
+      if (de[s] === 0) {
+        ruleOf[s] = -1;
+        continue;
+      }
+      any = true;
+      const p = sources[s].center;
+      let dist2 = 0;
+      for (let k = 0; k < 3; k++) {
+        const e = p[k] < lo[k] ? lo[k] - p[k] : p[k] > hi[k] ? p[k] - hi[k] : 0;
+        dist2 += e * e;
+      }
+      ruleOf[s] = dist2 >= FAR_RULE_RATIO * FAR_RULE_RATIO * diag2 ? 0 : 1;
+    }
+    if (!any) continue;
     tetGeometry(coords, a, bb, c, d, g);
     const vol = g[12];
     if (order === 1) for (let i = 0; i < 12; i++) grad[i] = g[i];
-    for (let q = 0; q < rule.n; q++) {
-      for (let k = 0; k < 4; k++) l[k] = rule.bary[4 * q + k];
-      mapBary(coords, a, bb, c, d, l, x);
-      const dx = x[0] - center[0], dy = x[1] - center[1], dz = x[2] - center[2];
-      const rr = Math.sqrt(dx * dx + dy * dy + dz * dz);
-      if (rr === 0) continue;
-      // ∇φ_s = −Q(r)(x − p)/(ε_i r³)
-      const f = -enclosedCharge(orbital, rr) / (epsSite * rr * rr * rr);
-      const w = -de * rule.weights[q] * 6 * vol; // reference weights sum to 1/6
-      if (order === 2) p2GradientsBary(l, g, grad);
-      for (let i = 0; i < nLoc; i++) {
-        b[tetDofs[nLoc * t + i]] += w * f * (dx * grad[3 * i] + dy * grad[3 * i + 1] + dz * grad[3 * i + 2]);
+    for (let ri = 0; ri < 2; ri++) {
+      let used = false;
+      for (let s = 0; s < ns && !used; s++) if (ruleOf[s] === ri) used = true;
+      if (!used) continue;
+      const rule = rules[ri];
+      for (let q = 0; q < rule.n; q++) {
+        for (let k = 0; k < 4; k++) l[k] = rule.bary[4 * q + k];
+        mapBary(coords, a, bb, c, d, l, x);
+        if (order === 2) p2GradientsBary(l, g, grad);
+        const wq = rule.weights[q] * 6 * vol; // reference weights sum to 1/6
+        for (let s = 0; s < ns; s++) {
+          if (ruleOf[s] !== ri) continue;
+          const src = sources[s];
+          const dx = x[0] - src.center[0], dy = x[1] - src.center[1], dz = x[2] - src.center[2];
+          const rr = Math.sqrt(dx * dx + dy * dy + dz * dz);
+          if (rr === 0) continue;
+          // ∇φ_s = −Q(r)(x − p)/(ε_i r³)
+          const f = -enclosedCharge(src.orbital, rr) / (src.epsSite * rr * rr * rr);
+          const w = -de[s] * wq * f;
+          const b = out[s];
+          for (let i = 0; i < nLoc; i++) {
+            b[tetDofs[nLoc * t + i]] += w * (dx * grad[3 * i] + dy * grad[3 * i + 1] + dz * grad[3 * i + 2]);
+          }
+        }
       }
-    }
-  }
-  return b;
-}
-
-/**
- * Values of a finite-element function at points (3 per point), by locating each point's element
- * (a scan with a bounding-box test; the first element found wins, which is harmless because the
- * function is continuous). NaN for a point outside the mesh.
- */
-export function valuesAt(space: FeSpace, phi: Float64Array, points: Float64Array): Float64Array {
-  const { mesh, order, nTets, tetDofs } = space;
-  const nLoc = space.dofsPerTet;
-  const coords = mesh.coords, tets = mesh.tets;
-  const np = points.length / 3;
-  const out = new Float64Array(np).fill(Number.NaN);
-  const g = new Float64Array(GEOM_SIZE);
-  const l = new Float64Array(4);
-  const basis = new Float64Array(10);
-  const EPS_BARY = -1e-12;
-  let left = np;
-  for (let t = 0; t < nTets && left > 0; t++) {
-    const a = tets[4 * t], b = tets[4 * t + 1], c = tets[4 * t + 2], d = tets[4 * t + 3];
-    let lo0 = Infinity, lo1 = Infinity, lo2 = Infinity, hi0 = -Infinity, hi1 = -Infinity, hi2 = -Infinity;
-    for (const v of [a, b, c, d]) {
-      lo0 = Math.min(lo0, coords[3 * v]); hi0 = Math.max(hi0, coords[3 * v]);
-      lo1 = Math.min(lo1, coords[3 * v + 1]); hi1 = Math.max(hi1, coords[3 * v + 1]);
-      lo2 = Math.min(lo2, coords[3 * v + 2]); hi2 = Math.max(hi2, coords[3 * v + 2]);
-    }
-    let geom = false;
-    for (let p = 0; p < np; p++) {
-      if (!Number.isNaN(out[p])) continue;
-      const x = points[3 * p], y = points[3 * p + 1], z = points[3 * p + 2];
-      if (x < lo0 - 1e-9 || x > hi0 + 1e-9 || y < lo1 - 1e-9 || y > hi1 + 1e-9 || z < lo2 - 1e-9 || z > hi2 + 1e-9) continue;
-      if (!geom) {
-        tetGeometry(coords, a, b, c, d, g);
-        geom = true;
-      }
-      const dx = x - g[13], dy = y - g[14], dz = z - g[15];
-      l[1] = g[3] * dx + g[4] * dy + g[5] * dz;
-      l[2] = g[6] * dx + g[7] * dy + g[8] * dz;
-      l[3] = g[9] * dx + g[10] * dy + g[11] * dz;
-      l[0] = 1 - l[1] - l[2] - l[3];
-      if (l[0] < EPS_BARY || l[1] < EPS_BARY || l[2] < EPS_BARY || l[3] < EPS_BARY) continue;
-      let v = 0;
-      if (order === 1) {
-        for (let i = 0; i < 4; i++) v += l[i] * phi[tetDofs[4 * t + i]];
-      } else {
-        p2BasisBary(l, basis);
-        for (let i = 0; i < 10; i++) v += basis[i] * phi[tetDofs[nLoc * t + i]];
-      }
-      out[p] = v;
-      left--;
     }
   }
   return out;

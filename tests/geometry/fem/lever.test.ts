@@ -10,6 +10,7 @@ import { richardson } from '../../../geometry/fem/coulomb';
 import { planeLeverArms } from '../../../geometry/host/index';
 import { CoreError } from '../../../geometry/errors';
 import { coulombResults, coulombJson, coulombJsonWithLever, leverArmResults } from '../../../geometry/pipeline/index';
+import { buriedArray } from '../../bench/fem-array.bench';
 
 const gauss = (id: string, species: Site['species'], position: [number, number, number], sigmaNm = 0.5): Site => ({
   id, species, position, electrons: 1, orbital: { model: 'gaussian', sigmaNm },
@@ -192,5 +193,18 @@ describe('pipeline', () => {
     expect(JSON.stringify(coulombJsonWithLever(fake, null))).toBe(JSON.stringify(coulombJson(fake)));
     const withLever = coulombJsonWithLever(fake, out.result);
     expect(Object.keys(withLever).slice(-2)).toEqual(['siteEnergies', 'leverArms']);
+  });
+});
+
+describe('lever-arm mesh family', () => {
+  it('the finest level has the same electrode-edge size whatever the number of levels (the size factor is applied once): finest meshes of 2 and 3 levels within 1.5× in size', () => {
+    // the bench's 2×2 array 20 nm under 5 nm of oxide with two gates (tests/bench/fem-array.bench.ts);
+    // with the factor applied twice the 2-level finest mesh was 3× the 3-level one (common practice: a
+    // family's finest mesh is set by the design's sizes, not by how many coarser levels precede it)
+    const d = buriedArray(2, 1e-3);
+    const two = leverFamily(d, 2, 2);
+    const three = leverFamily(d, 2, 3);
+    const a = two[1].tets.length, b = three[2].tets.length;
+    expect(Math.max(a, b) / Math.min(a, b)).toBeLessThan(1.5);
   });
 });
