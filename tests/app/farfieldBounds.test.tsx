@@ -19,6 +19,7 @@ import { boundRank, boundSummary, boundSummaryText, boundWords, hasBoundKinds } 
 import { sortSites } from '../../app/src/features/studio/farfield/figures';
 import { BoundMark, BoundSummary, FarFieldPanel, ImageEffectSection } from '../../app/src/features/studio/farfield/FarFieldPanel';
 import { imageEffectOf } from '../../app/src/features/studio/farfield/imageEffect';
+import { siliconOxideVacuum } from '../fixtures/stacks';
 
 const A = 0.5431020511; // Si lattice constant (nm), CODATA 2018
 
@@ -39,11 +40,7 @@ function rowUnderOxide(layers = true): Design {
       latticeConstantNm: A,
       ...(layers
         ? {
-            layers: [
-              { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
-              { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: 5 },
-              { name: 'vacuum', epsilonR: 1, zMinNm: 5, zMaxNm: null },
-            ],
+            layers: siliconOxideVacuum(),
           }
         : {}),
     },

@@ -10,6 +10,7 @@ import { packReport, unpackReport } from '../../app/src/features/studio/farfield
 import { generateArray } from '../../geometry/arrays';
 import { siliconDesign } from '../geometry/design-fixtures';
 import type { Design } from '../../geometry/design/types';
+import { siliconOxideVacuum } from '../fixtures/stacks';
 
 describe('far-field report transport', () => {
   it('round trip keeps every field, null and flag of a report with sites outside and point-charge pairs', () => {
@@ -53,11 +54,7 @@ describe('far-field report transport', () => {
       ...base,
       host: {
         ...base.host,
-        layers: [
-          { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
-          { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: 5 },
-          { name: 'vacuum', epsilonR: 1, zMinNm: 5, zMaxNm: null },
-        ],
+        layers: siliconOxideVacuum(),
       },
     };
     const r = farFieldCheck(d);

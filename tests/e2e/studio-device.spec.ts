@@ -14,6 +14,7 @@
  */
 import { expect, test, type Page } from '@playwright/test';
 import { apiWrite, closeTestDb, createProject, signUp, testDb, uniqueEmail } from './helpers';
+import { siliconOxideVacuum } from '../fixtures/stacks';
 
 test.afterAll(closeTestDb);
 // software WebGL on a shared two-core machine
@@ -170,11 +171,7 @@ test('a layered design: the far-field panel says which bounds are rigorous and w
     name: 'Row with a shallow neighbour',
     host: {
       ...template.host,
-      layers: [
-        { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
-        { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: 5 },
-        { name: 'vacuum', epsilonR: 1, zMinNm: 5, zMaxNm: null },
-      ],
+      layers: siliconOxideVacuum(),
     },
     sites: [
       { id: 'r1', species: 'P', position: [-8 * A, 0, -40 * A], electrons: 1 },

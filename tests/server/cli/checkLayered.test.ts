@@ -11,6 +11,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { siliconOxideVacuum } from '../../fixtures/stacks';
 
 const root = fileURLToPath(new URL('../../..', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'tetrawell-check-layered-'));
@@ -32,11 +33,7 @@ function device(boundary: { kind: 'grounded' } | { kind: 'multipole'; order: num
       material: 'Si',
       epsilonR: 11.7,
       latticeConstantNm: 0.5431020511,
-      layers: [
-        { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
-        { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: 5 },
-        { name: 'vacuum', epsilonR: 1, zMinNm: 5, zMaxNm: null },
-      ],
+      layers: siliconOxideVacuum(),
     },
     sites: [
       { id: 'd1', species: 'P', position: [-2.172408204, 0, -10.317], electrons: 1, orbital: { model: 'gaussian', sigmaNm: 1 } },

@@ -13,6 +13,7 @@ import { farFieldCheck, farFieldColumns } from '../../../geometry/farfield';
 import { generateArray } from '../../../geometry/arrays';
 import { mulberry32 } from '../../../geometry/arrays/prng';
 import type { Design } from '../../../geometry/design/types';
+import { siliconOxideVacuum } from '../../fixtures/stacks';
 
 /** What console.log(piece) would put on stdout for each piece, joined. */
 function printed(value: unknown, pieceChars?: number): { text: string; pieces: number } {
@@ -84,11 +85,7 @@ describe('check --json rows from the far-field columns', () => {
     ...structuredClone(d),
     host: {
       ...d.host,
-      layers: [
-        { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
-        { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: 5 },
-        { name: 'vacuum', epsilonR: 1, zMinNm: 5, zMaxNm: null },
-      ],
+      layers: siliconOxideVacuum(),
     },
     sites: d.sites.map((s) => ({ ...s, position: [s.position[0], s.position[1], -10 * a] })),
     domain: { ...d.domain, center: [0, 0, -10] },
