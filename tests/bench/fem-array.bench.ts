@@ -20,6 +20,7 @@ import { loadavg } from 'node:os';
 import { solveCoulomb } from '../../geometry/fem/coulomb';
 import { solveLeverArms } from '../../geometry/fem/lever';
 import type { Design } from '../../geometry/design/types';
+import { siliconOxideVacuum } from '../fixtures/stacks';
 
 const PITCH = 4.3;
 
@@ -73,11 +74,7 @@ export function buriedArray(n: number, target: number): Design {
       epsilonR: 11.7,
       latticeConstantNm: 0.5431020511,
       // Sze & Ng, Physics of Semiconductor Devices, 3rd ed. (from memory): Si 11.7, SiO₂ 3.9
-      layers: [
-        { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
-        { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: OXIDE_NM },
-        { name: 'vacuum', epsilonR: 1, zMinNm: OXIDE_NM, zMaxNm: null },
-      ],
+      layers: siliconOxideVacuum(OXIDE_NM),
     },
     sites: base.sites.map((s) => ({ ...s, position: [s.position[0], s.position[1], -DEPTH_NM] })),
     domain: { center: [0, 0, (zLo + zHi) / 2], halfExtentsNm: [half, half, (zHi - zLo) / 2], boundary: { kind: 'multipole', order: 2 } },

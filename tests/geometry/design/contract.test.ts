@@ -15,6 +15,7 @@ import {
 import type { Design } from '../../../geometry/design/types';
 import { resolveOrbital, SPECIES_PRESETS } from '../../../geometry/design/presets';
 import { farFieldCheck } from '../../../geometry/farfield';
+import { siliconOxideVacuum } from '../../fixtures/stacks';
 
 const fixture = fileURLToPath(new URL('../../fixtures/designs/plaquette.json', import.meta.url));
 const schemaFile = fileURLToPath(new URL('../../../server/contracts/design.schema.json', import.meta.url));
@@ -173,11 +174,7 @@ describe('version 2: layers and electrodes', () => {
   // A buried donor pair under a 5 nm oxide with two gates: our own invented device.
   const device = () => {
     const d = example() as Record<string, unknown> & { host: Record<string, unknown>; sites: { position: number[] }[] };
-    d.host.layers = [
-      { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
-      { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: 5 },
-      { name: 'vacuum', epsilonR: 1, zMinNm: 5, zMaxNm: null },
-    ];
+    d.host.layers = siliconOxideVacuum();
     d.electrodes = [
       { name: 'left gate', minNm: [-20, -5, 5], maxNm: [-2, 5, 7], voltageV: 0.3 },
       { name: 'right gate', minNm: [2, -5, 5], maxNm: [20, 5, 7], voltageV: -0.1 },

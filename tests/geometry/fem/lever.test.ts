@@ -11,6 +11,7 @@ import { planeLeverArms } from '../../../geometry/host/index';
 import { CoreError } from '../../../geometry/errors';
 import { coulombResults, coulombJson, coulombJsonWithLever, leverArmResults } from '../../../geometry/pipeline/index';
 import { buriedArray } from '../../bench/fem-array.bench';
+import { siliconOxideVacuum } from '../../fixtures/stacks';
 
 const gauss = (id: string, species: Site['species'], position: [number, number, number], sigmaNm = 0.5): Site => ({
   id, species, position, electrons: 1, orbital: { model: 'gaussian', sigmaNm },
@@ -91,11 +92,7 @@ function gate(walls: 'grounded' | 'zero-normal-field'): Design {
       material: 'Si',
       epsilonR: 11.7,
       latticeConstantNm: 0.5431020511,
-      layers: [
-        { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
-        { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: 1 },
-        { name: 'vacuum', epsilonR: 1, zMinNm: 1, zMaxNm: null },
-      ],
+      layers: siliconOxideVacuum(1),
     },
     sites: [gauss('d1', 'P', [0.3, 0.2, -3], 0.6)],
     domain: { center: [0, 0, -1], halfExtentsNm: [6, 6, 5], boundary: { kind: 'grounded' }, electrodeWalls: walls },

@@ -2,14 +2,11 @@ import { describe, expect, it } from 'vitest';
 import { planarStack } from '../../../geometry/host';
 import { homogeneousStack, regionOf } from '../../../geometry/host/stack';
 import type { HostLayer } from '../../../geometry/host';
+import { siliconOxideVacuum } from '../../fixtures/stacks';
 
 // Issue 11's own example stack (field names are the contract): silicon below 0, SiO₂ 0–5 nm, vacuum above.
 // εr of SiO₂ 3.9 and of silicon 11.7: common practice, from memory.
-const SI_OX_VAC: HostLayer[] = [
-  { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
-  { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: 5 },
-  { name: 'vacuum', epsilonR: 1, zMinNm: 5, zMaxNm: null },
-];
+const SI_OX_VAC: HostLayer[] = siliconOxideVacuum();
 
 describe('planarStack', () => {
   it('turns ordered layers into flat interfaces and permittivities', () => {

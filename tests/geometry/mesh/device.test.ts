@@ -10,6 +10,7 @@ import { checkMesh } from '../../../geometry/mesh/check';
 import { encodeMeshBinary, decodeMeshBinary } from '../../../geometry/mesh/export/binary';
 import { electrodeEdgeSegments } from '../../../geometry/mesh/device';
 import { MeshError } from '../../../geometry/mesh/errors';
+import { siliconOxideVacuum } from '../../fixtures/stacks';
 
 /** Silicon below z = 0, a 2 nm oxide, vacuum above; a gate on the oxide and an in-plane lead. */
 export function gatedDesign(order: 1 | 2 = 1): Design {
@@ -21,11 +22,7 @@ export function gatedDesign(order: 1 | 2 = 1): Design {
       material: 'Si',
       epsilonR: 11.7,
       latticeConstantNm: 0.5431020511,
-      layers: [
-        { name: 'silicon', epsilonR: 11.7, zMinNm: null, zMaxNm: 0 },
-        { name: 'oxide', epsilonR: 3.9, zMinNm: 0, zMaxNm: 2 },
-        { name: 'vacuum', epsilonR: 1, zMinNm: 2, zMaxNm: null },
-      ],
+      layers: siliconOxideVacuum(2),
     },
     sites: [{ id: 'd1', species: 'P', position: [0.2, 0.1, -4], electrons: 1, orbital: { model: 'gaussian', sigmaNm: 0.8 } }],
     domain: { center: [0, 0, -2], halfExtentsNm: [12, 12, 10], boundary: { kind: 'grounded' } },

@@ -1,27 +1,12 @@
 /** The coulomb and convergence commands: exact JSON shapes, readable honesty, refusals and exit codes. */
-import { afterEach, describe, expect, it, vi } from 'vitest';
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { capture, designFiles, restoreConsoleAfterEach } from './cliHelpers';
 import { run as coulomb } from '../../../server/cli/coulomb';
 import { run as convergence } from '../../../server/cli/convergence';
 import { oneSite } from '../../geometry/fem/coulomb-fixtures';
 
-const dir = mkdtempSync(join(tmpdir(), 'tetrawell-coulomb-'));
-function designFile(name: string, doc: unknown): string {
-  const p = join(dir, name);
-  writeFileSync(p, JSON.stringify(doc));
-  return p;
-}
-
-function capture() {
-  const out: string[] = [];
-  const err: string[] = [];
-  vi.spyOn(console, 'log').mockImplementation((...a: unknown[]) => void out.push(a.join(' ')));
-  vi.spyOn(console, 'error').mockImplementation((...a: unknown[]) => void err.push(a.join(' ')));
-  return { out, err };
-}
-afterEach(() => vi.restoreAllMocks());
+const designFile = designFiles('coulomb');
+restoreConsoleAfterEach();
 
 const base = oneSite({ model: 'gaussian', sigmaNm: 1 }, { half: 10, order: 2, tol: 1e-2 });
 // target 5e-2: the command now exits 3 when the estimate misses the target, and on these small

@@ -1,24 +1,10 @@
 /** `coulomb --lever-arms`, and U and V of a design with electrodes carrying its lever arms (invented designs). */
-import { afterEach, describe, expect, it, vi } from 'vitest';
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { capture, designFiles, restoreConsoleAfterEach } from './cliHelpers';
 import { run as coulomb } from '../../../server/cli/coulomb';
 
-const dir = mkdtempSync(join(tmpdir(), 'tetrawell-lever-'));
-function designFile(name: string, doc: unknown): string {
-  const p = join(dir, name);
-  writeFileSync(p, JSON.stringify(doc));
-  return p;
-}
-function capture() {
-  const out: string[] = [];
-  const err: string[] = [];
-  vi.spyOn(console, 'log').mockImplementation((...a: unknown[]) => void out.push(a.join(' ')));
-  vi.spyOn(console, 'error').mockImplementation((...a: unknown[]) => void err.push(a.join(' ')));
-  return { out, err };
-}
-afterEach(() => vi.restoreAllMocks());
+const designFile = designFiles('lever');
+restoreConsoleAfterEach();
 
 const plates = {
   format: 'tetrawell-design',
