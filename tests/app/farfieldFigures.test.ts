@@ -27,6 +27,16 @@ describe('far-field panel figures', () => {
     expect(meV(Infinity)).toBe('—');
   });
 
+  it('writes tiny figures as a power of ten instead of a row of zeros (the image-series tail, a leaked charge)', () => {
+    // 1.07e-9 eV = 1.07e-6 meV: toPrecision(3) alone gives "0.00000107"
+    expect(meV(1.07e-9)).toBe('1.07 × 10⁻⁶ meV');
+    expect(percent(2.5e-8)).toBe('2.50 × 10⁻⁶\u00a0%');
+    // from 0.001 of the unit on, plain digits as before
+    expect(meV(1e-6)).toBe('0.00100 meV');
+    expect(meV(0)).toBe('0.00 meV');
+    expect(meV(-3.4e-10)).toBe('-3.40 × 10⁻⁷ meV');
+  });
+
   it('sorts by a column, unbounded entries first when descending, ties in report order', () => {
     const rows = [site('s10', 0.2), site('s2', null), site('s1', 0.2), site('s3', 0.05)];
     expect(sortSites(rows, 'uRelBound', 'descending').map((s) => s.id)).toEqual(['s2', 's10', 's1', 's3']);

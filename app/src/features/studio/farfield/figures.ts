@@ -24,17 +24,31 @@ export function worstV(r: FarFieldReport): { value: number | null; count: number
   return { value: r.pairs.length ? worst : null, count: r.pairs.length };
 }
 
+const SUPERSCRIPT = '⁰¹²³⁴⁵⁶⁷⁸⁹';
+
+/**
+ * Three significant digits; below 0.001 (in the unit shown) as a power of ten, "1.07 × 10⁻⁶", where toPrecision
+ * would write "0.00000107" and leave the reader counting zeros.
+ */
+export function sig3(v: number): string {
+  if (v === 0 || Math.abs(v) >= 1e-3) return v.toPrecision(3);
+  const [m, e] = v.toExponential(2).split('e');
+  const exp = Number(e);
+  const digits = String(Math.abs(exp)).split('').map((d) => SUPERSCRIPT[Number(d)]).join('');
+  return `${m} × 10${exp < 0 ? '⁻' : ''}${digits}`;
+}
+
 /** A fraction as a percentage with three significant digits: 0.00123 → "0.123 %". */
 export function percent(x: number | null): string {
   if (x === null || !Number.isFinite(x)) return '—';
   // a no-break space (U+00A0) keeps the unit on the line of its number when a panel wraps
-  return `${(100 * x).toPrecision(3)}\u00a0%`;
+  return `${sig3(100 * x)}\u00a0%`;
 }
 
 /** An energy in eV shown in meV, three significant digits. */
 export function meV(x: number | null): string {
   if (x === null || !Number.isFinite(x)) return '—';
-  return `${(1000 * x).toPrecision(3)} meV`;
+  return `${sig3(1000 * x)} meV`;
 }
 
 export function nm(x: number | null, digits = 4): string {
