@@ -226,7 +226,7 @@ test('a layered design: the far-field panel says which bounds are rigorous and w
   await page.getByRole('button', { name: 'Along [100]' }).click();
   await expect.poll(async () => (await canvasStats(page)).layerSlabs, { timeout: 30_000 }).toBe(3);
   // the legend shows the three layers' own tints, not one swatch for all
-  const legendLayers = page.getByRole('list', { name: 'Species legend' }).getByRole('listitem').filter({ hasText: 'one tint per layer' });
+  const legendLayers = page.getByRole('list', { name: 'Species legend' }).getByRole('listitem').filter({ hasText: 'one tint each' });
   await expect(legendLayers).toBeVisible();
   await expect(legendLayers.locator('span.rounded-sm')).toHaveCount(3);
   await page.getByRole('region', { name: 'Design canvas' }).screenshot({ path: 'tests/artifacts/studio-device-tints.png' });

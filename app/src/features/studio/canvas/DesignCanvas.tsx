@@ -720,7 +720,7 @@ export default function DesignCanvas(props: DesignCanvasProps) {
                 <span key={k} className="inline-block h-3 w-3 rounded-sm border" style={{ background: layerTintOf(k), opacity: 0.6, borderColor: CANVAS_THEME.layerEdge }} />
               ))}
             </span>
-            host layers (translucent slabs, one tint per layer, bottom to top)
+            layers, one tint each (bottom to top)
           </li>
         )}
         {doc.electrodes && (
