@@ -150,7 +150,7 @@ export function solveLevel(
     if (stack) {
       const walls = Uint8Array.from(space0.boundaryDof);
       if (elec) for (let k = 0; k < walls.length; k++) if (elec[k] !== NO_ELECTRODE) walls[k] = 0;
-      const lb = layeredBoundaryValues(stack, site.position, space.dofCoords, walls);
+      const lb = layeredBoundaryValues(stack, site.position, space.dofCoords, walls, { orbital: site.orbital, boundary: design.domain.boundary });
       if (lb.g === null) {
         throw new CoulombError('no-layered-far-field', `the layered host has no far-field series for site ${site.id} (${lb.code}): use a grounded box`, { siteId: site.id, code: lb.code });
       }

@@ -42,6 +42,16 @@
  *    |f″(h)| ≤ 2/|h|³ for every s, |S_n| ≤ 2(β² − α²)/(2(n − 1)t)³, and Σ_{n>N} ≤
  *    (1/ε_s) (z − a)(z₀ − a) / (2 t³ (N − 1)²)  (N ≥ 2). This is an O(1/N²) tail: plates cost more terms.
  * N is the smallest number of round trips whose bound meets the tolerance, up to a cap.
+ *
+ * Where each image sits, and whether it is mirrored (for multipole sources, geometry/fem/boundary.ts).
+ * Every height is a path length h = ±(z − ·) ± (z₀ − ·) + const, linear in both heights with slopes
+ * ∂h/∂z = ±1 and ∂h/∂z₀ = ±1. The image lies on the observation point's side given by the first
+ * slope: Z = z − (∂h/∂z)·h (below the observation point when h grows with z). Z depends on z₀ with
+ * slope σ = dZ/dz₀ = −(∂h/∂z)(∂h/∂z₀): σ = +1 for the direct term, transmissions and an even
+ * number of reflections, σ = −1 (a mirror image of the source, z₀ → const − z₀) for an odd number.
+ * A smooth density ρ in the source's region then has images ρ(X_k⁻¹(·)) with X_k(p) = (p_x, p_y,
+ * σ_k p_z + const): copies or mirror copies, each with the same factor c_k (the factors do not
+ * depend on the transverse wavenumber in electrostatics; Jackson §4.4).
  */
 import { reflection, transmission } from './interface';
 import { regionOf, screenedStack } from './stack';
@@ -60,6 +70,10 @@ export interface ImageSeries {
   /** vertical distance h_k (nm) of each image from the observation height */
   height: Float64Array;
   count: number;
+  /** height Z_k (nm) of each image (on the vertical through the source) */
+  imageZ: Float64Array;
+  /** 1 where the image is the source mirrored in z (odd number of reflections), 0 for a copy */
+  mirror: Uint8Array;
   /** index of the direct term 1/|r − r₀| when source and observation share a region, −1 otherwise */
   direct: number;
   /** rigorous bound on |G − Σ kept terms| (nm⁻¹), valid at every lateral distance */
@@ -79,17 +93,30 @@ export interface ImageOptions {
 interface Builder {
   coef: Float64Array;
   height: Float64Array;
+  imageZ: Float64Array;
+  mirror: Uint8Array;
   count: number;
 }
 
-function push(b: Builder, c: number, h: number): void {
+/**
+ * Appends the image c at height h, with dz = ∂h/∂z and dz0 = ∂h/∂z₀ (±1) in the working frame;
+ * `flip` is −1 when that frame is mirrored (z → −z), `z` the observation height in the caller's frame.
+ */
+function push(b: Builder, c: number, h: number, dz: number, dz0: number, z: number, flip: number): void {
   b.coef[b.count] = c;
   b.height[b.count] = h;
+  b.imageZ[b.count] = z - flip * dz * h;
+  b.mirror[b.count] = dz * dz0 > 0 ? 1 : 0;
   b.count++;
 }
 
 function builder(size: number): Builder {
-  return { coef: new Float64Array(size), height: new Float64Array(size), count: 0 };
+  return { coef: new Float64Array(size), height: new Float64Array(size), imageZ: new Float64Array(size), mirror: new Uint8Array(size), count: 0 };
+}
+
+/** ∂|u|/∂u, taken as +1 at u = 0 (the direct term at equal heights: either side gives Z = z₀). */
+function sgn(u: number): number {
+  return u < 0 ? -1 : 1;
 }
 
 /** Smallest N ≥ 1 with K |g|^N / (2Nt) ≤ tol, capped; K already holds Σ|c|/(1 − |g|) and the scale. */
@@ -136,13 +163,13 @@ export function imageSeries(
   let s = cut.source;
   const m = cut.stack.interfaces.length;
   if (o < 0 || o > m || cut.stack.epsilon[o] === Infinity) {
-    return { series: { ...base, coef: new Float64Array(0), height: new Float64Array(0), count: 0 }, findings: [] };
+    return { series: { ...base, ...builder(0) }, findings: [] };
   }
   if (m > 2) return { series: null, findings: [{ code: 'too-many-interfaces', value: m }] };
 
   if (m === 0) {
     const b = builder(1);
-    push(b, 1, Math.abs(z - z0));
+    push(b, 1, Math.abs(z - z0), sgn(z - z0), -sgn(z - z0), z, 1);
     return { series: { ...base, ...b, direct: 0 }, findings: [] };
   }
   if (m === 1) {
@@ -151,11 +178,11 @@ export function imageSeries(
     const eo = cut.stack.epsilon[1 - s];
     const b = builder(2);
     if (s === o) {
-      push(b, 1, Math.abs(z - z0));
-      push(b, reflection(es, eo), Math.abs(z - a) + Math.abs(z0 - a));
+      push(b, 1, Math.abs(z - z0), sgn(z - z0), -sgn(z - z0), z, 1);
+      push(b, reflection(es, eo), Math.abs(z - a) + Math.abs(z0 - a), sgn(z - a), sgn(z0 - a), z, 1);
       return { series: { ...base, ...b, direct: 0 }, findings: [] };
     }
-    push(b, transmission(es, eo), Math.abs(z - z0));
+    push(b, transmission(es, eo), Math.abs(z - z0), sgn(z - z0), -sgn(z - z0), z, 1);
     return { series: { ...base, ...b }, findings: [] };
   }
 
@@ -166,7 +193,9 @@ export function imageSeries(
   let eps = [cut.stack.epsilon[0], cut.stack.epsilon[1], cut.stack.epsilon[2]];
   let zs = z0;
   let zo = z;
+  let flip = 1;
   if (s === 2 || (s === 1 && o === 2)) {
+    flip = -1;
     [a, bz] = [-bz, -a];
     eps = [eps[2], eps[1], eps[0]];
     zs = -z0;
@@ -196,14 +225,14 @@ export function imageSeries(
       bound = geometricBound(K, g, t, N);
     }
     const b = builder(4 * N + 2);
-    push(b, 1, Math.abs(zo - zs));
+    push(b, 1, Math.abs(zo - zs), sgn(zo - zs), -sgn(zo - zs), z, flip);
     let gn = 1;
     for (let n = 0; n <= N; n++) {
-      push(b, r10 * gn, 2 * n * t + (zo - a) + (zs - a));
-      if (n < N) push(b, r12 * gn, 2 * n * t + (bz - zo) + (bz - zs));
+      push(b, r10 * gn, 2 * n * t + (zo - a) + (zs - a), 1, 1, z, flip);
+      if (n < N) push(b, r12 * gn, 2 * n * t + (bz - zo) + (bz - zs), -1, -1, z, flip);
       if (n >= 1) {
-        push(b, gn, 2 * n * t + (zo - zs));
-        push(b, gn, 2 * n * t + (zs - zo));
+        push(b, gn, 2 * n * t + (zo - zs), 1, -1, z, flip);
+        push(b, gn, 2 * n * t + (zs - zo), -1, 1, z, flip);
       }
       gn *= g;
     }
@@ -218,27 +247,34 @@ export function imageSeries(
   let h2: number;
   let direct = -1;
   let lead: [number, number] | null = null;
+  // slopes ∂h/∂z, ∂h/∂z₀ of each family (see the header): c1 is reflected only in case (0, 0)
+  let d1: [number, number];
+  const d2: [number, number] = [-1, -1]; // c2 is reflected once at b and seen from below
   if (s === 0 && o === 0) {
     const r01 = reflection(e0, e1);
     lead = [r01, a - zs + (a - zo)];
     c1 = transmission(e0, e1) * transmission(e1, e0) * r12;
     h1 = a - zs + (a - zo) + 2 * t;
+    d1 = [-1, -1];
     c2 = 0;
     h2 = 0;
   } else if (s === 0 && o === 1) {
     c1 = transmission(e0, e1);
     h1 = zo - zs;
+    d1 = [1, -1];
     c2 = transmission(e0, e1) * r12;
     h2 = a - zs + t + (bz - zo);
   } else if (s === 0 && o === 2) {
     c1 = transmission(e0, e1) * transmission(e1, e2);
     h1 = zo - zs;
+    d1 = [1, -1];
     c2 = 0;
     h2 = 0;
   } else {
     // s === 1, o === 0
     c1 = transmission(e1, e0);
     h1 = zs - zo;
+    d1 = [-1, 1];
     c2 = transmission(e1, e0) * r12;
     h2 = bz - zs + t + (a - zo);
   }
@@ -248,13 +284,13 @@ export function imageSeries(
   const b = builder(2 * N + 2);
   if (lead) {
     direct = 0;
-    push(b, 1, Math.abs(zo - zs));
-    push(b, lead[0], lead[1]);
+    push(b, 1, Math.abs(zo - zs), sgn(zo - zs), -sgn(zo - zs), z, flip);
+    push(b, lead[0], lead[1], -1, -1, z, flip);
   }
   let gn = 1;
   for (let n = 0; n < N; n++) {
-    if (c1 !== 0) push(b, c1 * gn, h1 + 2 * n * t);
-    if (c2 !== 0) push(b, c2 * gn, h2 + 2 * n * t);
+    if (c1 !== 0) push(b, c1 * gn, h1 + 2 * n * t, d1[0], d1[1], z, flip);
+    if (c2 !== 0) push(b, c2 * gn, h2 + 2 * n * t, d2[0], d2[1], z, flip);
     gn *= g;
   }
   if (bound > tol) findings.push({ code: 'series-capped', value: bound });
