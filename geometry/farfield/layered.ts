@@ -10,10 +10,13 @@
  *   grounded    e = φ on the walls, φ = Σ_k c_k ψ(|x − X_k|)/ε_s: the images of a spherical (or
  *               z-mirror-symmetric) density wholly inside its layer are copies of it at the image
  *               points X_k on the vertical through the site (Jackson 3rd ed. §4.4, planar images).
- *   multipole   the boundary values are the stack's own image series of the site's charge
- *               (order 0; plus the dipole, which vanishes for these densities about their
- *               centre), so e = Σ_k c_k (ψ_k − 1/|x − X_k|)/ε_s, each term at most the
- *               homogeneous neglected envelope (envelope.ts) at its distance.
+ *   multipole   the boundary values are the site's multipole expansion up to the box's order
+ *               carried through the stack's image series (geometry/fem/boundary.ts
+ *               layeredBoundaryValues: each image is the density copied or mirrored in z, with
+ *               its moments mirrored alike), so e = Σ_k c_k (ψ_k − M_k)/ε_s with M_k the
+ *               expansion of image k to that order, each term at most the homogeneous neglected
+ *               envelope (envelope.ts) of the same order at its distance (the envelope is a
+ *               maximum over directions of a z-symmetric density, so it holds for mirror images).
  * Per wall piece (a face cut at every interface, so one region of the stack holds it) each term
  * is bounded on its own: the image point lies outside the observation region, so its height above
  * the piece is monotone and the piece's two ends give the nearest and farthest heights; a positive
@@ -244,11 +247,15 @@ export interface SiteProfile {
   neglected: Envelope;
 }
 
-/** The profile of an orbital for a boundary (the multipole boundary values keep order 0 and 1 in a layered host). */
+/**
+ * The profile of an orbital for a boundary. The neglected envelope has the box's own order: the
+ * layered multipole walls keep every order up to boundary.order (geometry/fem/boundary.ts), so
+ * the check and the solver leave out the same part.
+ */
 export function siteProfile(o: Orbital, boundary: Boundary): SiteProfile {
   const grounded = neglectedEnvelope(o, { kind: 'grounded' });
   const spherical = o.model !== 'anisotropic-1s';
-  const order = boundary.kind === 'multipole' ? Math.min(boundary.order, 1) : 0;
+  const order = boundary.kind === 'multipole' ? boundary.order : 0;
   return {
     upper: spherical ? (d) => radialPotential(o, Math.max(d, 0)) as number : grounded,
     lower: spherical ? (d) => radialPotential(o, Math.max(d, 0)) as number : () => 0,
@@ -518,7 +525,7 @@ export const LAYERED_ASSUMPTIONS = [
   'Layers are planar and infinite in x and y; each has one relative permittivity.',
   'Electrodes are ideal metal at a fixed voltage; a heavily doped lead is modelled as such a metal box.',
   'The image-charge figures treat the layers and the electrodes spanning the domain\'s x–y cross-section (metal planes) in closed form; other electrodes are left out of them and need a finite-element solve.',
-  'Boundary bounds: grounded walls use the stack\'s image series (rigorous for densities inside their layer); multipole walls assume boundary values from the stack\'s own far field of each site\'s charge.',
+  'Boundary bounds: grounded walls use the stack\'s image series (rigorous for densities inside their layer); multipole walls assume boundary values from the stack\'s own far field of each site\'s multipole expansion up to the box\'s order.',
   'Bounds cover only the boundary condition (maximum principle, which holds for piecewise constant εr); discretisation error and density cut by the boundary are reported separately. The recommended box comes from the homogeneous-host envelope.',
   'Each site is a fixed, normalised model density (hydrogenic, anisotropic single-valley or Gaussian envelope); species defaults are model assumptions you can override.',
   'Every site carries a like unit charge: for a boron acceptor (a hole) the sign of V with a donor electron is reversed, and its envelope is the donor one, a placeholder.',
