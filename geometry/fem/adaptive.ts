@@ -12,7 +12,13 @@
  * the energy-norm error from above and below up to constants, and for our problems the energy
  * error is exactly what matters: with φ_h the Galerkin solution, U − U_h = ‖∇(φ − φ_h)‖²_ε / 4π
  * (grounded box), so marking the elements with the largest η_T is marking where U is lost.
- * Dirichlet faces carry no jump term. For P1, Δφ_h = 0 inside each element; for P2 it is a
+ * Dirichlet faces carry no jump term, and that includes the faces of an electrode (issue 11): an
+ * electrode's tetrahedra stay in the mesh (region ELECTRODE_REGION, every dof Dirichlet), so its
+ * faces are interior faces of the mesh, but the jump of ε∂_nφ there is the induced surface charge
+ * of the metal, not an error; it does not vanish under refinement, and counting it made Dörfler
+ * marking spend its marks on the metal surface right above a site while the error stayed in the
+ * dielectric (tests/geometry/fem/adaptive-device.test.ts). Electrode elements themselves carry no
+ * indicator (φ is fixed there). For P1, Δφ_h = 0 inside each element; for P2 it is a
  * constant per element (Δ[λ_i(2λ_i − 1)] = 4|∇λ_i|², Δ[4λ_aλ_b] = 8 ∇λ_a·∇λ_b).
  * The face integrals use the interior 3-point triangle rule (2/3, 1/6, 1/6) of degree 2 (Strang & Fix, An Analysis of the Finite Element Method, 1973,
  * Table 4.1), exact for the square of the linear P2 jump.
@@ -27,6 +33,7 @@
 import { throwIfAborted } from '../errors';
 import { buildFaces, NO_TET } from '../mesh/edges';
 import { refine, toTetMesh, MeshError, type BisectionMesh } from '../mesh/index';
+import { ELECTRODE_REGION } from '../mesh/device';
 import type { TetMesh } from '../mesh/types';
 import { GEOM_SIZE, tetGeometry, p2GradientsBary, tetQuadrature, TET_EDGES } from './reference';
 import type { FeSpace } from './space';
@@ -70,6 +77,7 @@ export function residualIndicator(
     const a = tets[4 * t], b = tets[4 * t + 1], c = tets[4 * t + 2], d = tets[4 * t + 3];
     tetGeometry(coords, a, b, c, d, g);
     geom.set(g, GEOM_SIZE * t);
+    if (mesh.tetRegion[t] === ELECTRODE_REGION) continue; // φ is fixed in metal: no error there
     let h2 = 0;
     const vs = [a, b, c, d];
     for (let i = 0; i < 3; i++) {
@@ -150,6 +158,7 @@ export function residualIndicator(
   for (let f = 0; f < nF; f++) {
     const t1 = faceTets[2 * f], t2 = faceTets[2 * f + 1];
     if (t2 === NO_TET) continue;
+    if (regions[t1] === ELECTRODE_REGION || regions[t2] === ELECTRODE_REGION) continue; // a Dirichlet surface
     const fa = faces[3 * f], fb = faces[3 * f + 1], fc = faces[3 * f + 2];
     const ux = coords[3 * fb] - coords[3 * fa], uy = coords[3 * fb + 1] - coords[3 * fa + 1], uz = coords[3 * fb + 2] - coords[3 * fa + 2];
     const vx = coords[3 * fc] - coords[3 * fa], vy = coords[3 * fc + 1] - coords[3 * fa + 1], vz = coords[3 * fc + 2] - coords[3 * fa + 2];
