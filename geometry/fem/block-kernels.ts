@@ -44,16 +44,22 @@ export interface BlockKernels {
   gsForwardFromZeroWithResidual(B: Float64Array, X: Float64Array, Out: Float64Array): void;
   /** One backward Gauss–Seidel sweep for A X = B, in place on X. */
   gsBackward(B: Float64Array, X: Float64Array): void;
-  /** A zeroed block vector (n·k) that the kernels use in place; at most `slots` of them. */
-  vector(): Float64Array;
+  /**
+   * Block vector number `slot` (n·k, 0 ≤ slot < slots), which the kernels use in place. The same
+   * slot gives the same storage every time: its users agree on who owns which (BLOCK_SLOTS).
+   */
+  vector(slot: number): Float64Array;
 }
 
 export interface BlockKernelOptions {
   /** 'auto' (WebAssembly SIMD where available, the default) or 'js'; same bits either way */
   kernel?: 'auto' | 'js';
-  /** block vectors handed out by vector() (default 8) */
+  /** block vectors handed out by vector() (default BLOCK_SLOTS) */
   slots?: number;
 }
+
+/** Slots of block vectors: 0–5 block PCG's (b, x, r, z, p, q), 6 the P2 preconditioner's residual. */
+export const BLOCK_SLOTS = 7;
 
 /** Positions of the diagonal entries and their inverses (the Gauss–Seidel passes need both). */
 function diagonalParts(A: Csr): { diagPos: Uint32Array; dinv: Float64Array } {
@@ -77,7 +83,7 @@ function diagonalParts(A: Csr): { diagPos: Uint32Array; dinv: Float64Array } {
 function jsKernels(A: Csr, k: number, slots: number, diagPos: Uint32Array, dinv: Float64Array): BlockKernels {
   const { n, rowPtr, cols, vals } = A;
   const s0 = new Float64Array(k), s1 = new Float64Array(k);
-  let handed = 0;
+  const vectors: Float64Array[] = [];
   return {
     n, k, kernel: 'js',
     spmv(X, Y) {
@@ -145,9 +151,9 @@ function jsKernels(A: Csr, k: number, slots: number, diagPos: Uint32Array, dinv:
         for (let j = 0; j < k; j++) X[o + j] += (s0[j] + s1[j]) * d;
       }
     },
-    vector() {
-      if (handed++ >= slots) throw new Error(`block kernels: more than ${slots} vectors asked for`);
-      return new Float64Array(n * k);
+    vector(slot) {
+      if (!(slot >= 0 && slot < slots)) throw new Error(`block kernels: no vector slot ${slot} (${slots} slots)`);
+      return (vectors[slot] ??= new Float64Array(n * k));
     },
   };
 }
@@ -354,7 +360,7 @@ type Fn = (...args: number[]) => void;
  */
 export function prepareBlockKernels(A: Csr, k: number, options: BlockKernelOptions = {}): BlockKernels {
   if (!(Number.isInteger(k) && k >= 1)) throw new Error(`block width ${k} must be a positive integer`);
-  const slots = options.slots ?? 8;
+  const slots = options.slots ?? BLOCK_SLOTS;
   const { diagPos, dinv } = diagonalParts(A);
   const js = (): BlockKernels => jsKernels(A, k, slots, diagPos, dinv);
   const mod = options.kernel === 'js' || k % 2 !== 0 ? null : moduleFor(k);
@@ -397,7 +403,6 @@ export function prepareBlockKernels(A: Csr, k: number, options: BlockKernelOptio
   const outArg = (v: Float64Array, off: number): void => {
     if (!own(v)) v.set(new Float64Array(buf, off, len));
   };
-  let handed = 0;
   return {
     n, k, kernel: 'wasm-simd',
     spmv(X, Y) {
@@ -416,9 +421,9 @@ export function prepareBlockKernels(A: Csr, k: number, options: BlockKernelOptio
       ex.gsBwd(n, rp, cp, vp, ip, bo, xo);
       outArg(X, xo);
     },
-    vector() {
-      if (handed >= slots) throw new Error(`block kernels: more than ${slots} vectors asked for`);
-      return new Float64Array(buf, slot0 + handed++ * vecBytes, len);
+    vector(slot) {
+      if (!(slot >= 0 && slot < slots)) throw new Error(`block kernels: no vector slot ${slot} (${slots} slots)`);
+      return new Float64Array(buf, slot0 + slot * vecBytes, len);
     },
   };
 }

@@ -28,7 +28,23 @@ export interface BlockPcgOptions extends Omit<PcgOptions, 'onProgress'> {
 /** z = M r on k interleaved columns, each column as M.apply would give it. */
 export type BlockApply = (R: Float64Array, Z: Float64Array) => void;
 
-/** A preconditioner's block form: its own where it has one, else column by column. */
+/**
+ * The kernels of the last width asked for on each matrix: a level solves all its blocks on one
+ * matrix, and preparing copies the matrix into a fresh WebAssembly memory (measured: 5 s of CPU
+ * on the 10×10 device bench when done per block). Dropped with the matrix (WeakMap).
+ */
+const kernelCache = new WeakMap<Csr, { k: number; kernel: 'auto' | 'js'; kern: BlockKernels; applies: Map<Preconditioner | undefined, BlockApply> }>();
+
+function cached(A: Csr, k: number, kernel: 'auto' | 'js') {
+  let c = kernelCache.get(A);
+  if (!c || c.k !== k || c.kernel !== kernel) {
+    c = { k, kernel, kern: prepareBlockKernels(A, k, { kernel }), applies: new Map() };
+    kernelCache.set(A, c);
+  }
+  return c;
+}
+
+/** A preconditioner's block form: its own where it has one, else column by column (made once per kernels). */
 export function blockApplyOf(M: Preconditioner | undefined, kern: BlockKernels): BlockApply {
   const { n, k } = kern;
   if (M?.block) return M.block(kern);
@@ -62,9 +78,17 @@ export function blockPcg(
   const stage = options.stage ?? 'solve';
   // the WebAssembly kernels need an even width: a padding column stays zero (b = 0, done at once)
   const k = nc % 2 === 0 ? nc : nc + 1;
-  const kern = prepareBlockKernels(A, k, { kernel: options.spmvKernel ?? 'auto', slots: 7 });
-  const B = kern.vector(), X = kern.vector(), R = kern.vector(), Z = kern.vector(), P = kern.vector(), Q = kern.vector();
-  const applyM = blockApplyOf(options.preconditioner, kern);
+  const c = cached(A, k, options.spmvKernel ?? 'auto');
+  const kern = c.kern;
+  const [B, X, R, Z, P, Q] = [0, 1, 2, 3, 4, 5].map((slot) => kern.vector(slot));
+  B.fill(0);
+  X.fill(0);
+  const M = options.preconditioner;
+  let applyM = c.applies.get(M);
+  if (!applyM) {
+    applyM = blockApplyOf(M, kern);
+    c.applies.set(M, applyM);
+  }
   for (let j = 0; j < nc; j++) {
     const b = bs[j], x0 = x0s?.[j] ?? null;
     for (let i = 0; i < n; i++) B[i * k + j] = b[i];

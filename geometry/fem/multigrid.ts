@@ -37,7 +37,7 @@ import { NO_PARENT } from '../mesh/types';
 import type { FeSpace } from './space';
 import { type Csr, diagonal, spmv } from './csr';
 import type { Preconditioner } from './pcg';
-import type { BlockKernels } from './block-kernels';
+import { BLOCK_SLOTS, type BlockKernels } from './block-kernels';
 import { GEOM_SIZE, tetGeometry } from './reference';
 import { assembleStiffness } from './assemble';
 import { CoreError } from '../errors';
@@ -641,7 +641,7 @@ function p2Block(
   const { k } = kern;
   const nV = cyc.nV;
   const nE = edges.length / 2;
-  const res = kern.vector();
+  const res = kern.vector(BLOCK_SLOTS - 1);
   const R1 = new Float64Array(nV * k), E = new Float64Array(nV * k);
   const r1 = new Float64Array(nV), e = new Float64Array(nV);
   return (R, Z) => {

@@ -115,7 +115,7 @@ describe('block kernels', () => {
     const outs: Float64Array[] = [];
     for (const kernel of kernels) {
       const kern = prepareBlockKernels(A, k, { kernel });
-      const Y = kern.vector();
+      const Y = kern.vector(0);
       kern.spmv(X, Y);
       for (let j = 0; j < k; j++) {
         spmv(A, xs[j], y);
