@@ -27,7 +27,8 @@
 import type { Csr } from './csr';
 import {
   section, name, I32, V128, get, set, tee, i32c, I32_ADD, I32_SHL, I32_SUB, I32_MUL, I32_EQZ, I32_LT_U, I32_GE_U, i32load,
-  f64load, block, loop, ifThen, END, br, brIf, v128load, v128store, v128zero, f64x2splat, f64x2add, f64x2sub, f64x2mul, uleb,
+  f64load, block, loop, ifThen, END, br, brIf, v128load, v128store, v128zero, v128bitselect, f64x2splat, f64x2add, f64x2sub, f64x2mul,
+  uleb,
 } from './wasm-emit';
 
 /** Block operations bound to one matrix and one width k. */
@@ -44,6 +45,15 @@ export interface BlockKernels {
   gsForwardFromZeroWithResidual(B: Float64Array, X: Float64Array, Out: Float64Array): void;
   /** One backward Gauss–Seidel sweep for A X = B, in place on X. */
   gsBackward(B: Float64Array, X: Float64Array): void;
+  /** out[j] = Σ_i U[i,j]·V[i,j], summed over i in order (pcg.ts's dot, per column) */
+  dots(U: Float64Array, V: Float64Array, out: Float64Array): void;
+  /**
+   * PCG's update of the columns with active[j] = 1 (the others keep their bits): X += α P,
+   * R −= α Q, and rr[j] = Σ_i R[i,j]² of the new R.
+   */
+  update(alpha: Float64Array, active: Uint8Array, X: Float64Array, P: Float64Array, R: Float64Array, Q: Float64Array, rr: Float64Array): void;
+  /** PCG's new direction of the active columns: P = Z + β P. */
+  direction(beta: Float64Array, active: Uint8Array, Z: Float64Array, P: Float64Array): void;
   /**
    * Block vector number `slot` (n·k, 0 ≤ slot < slots), which the kernels use in place. The same
    * slot gives the same storage every time: its users agree on who owns which (BLOCK_SLOTS).
@@ -150,6 +160,28 @@ function jsKernels(A: Csr, k: number, slots: number, diagPos: Uint32Array, dinv:
         const d = dinv[i];
         for (let j = 0; j < k; j++) X[o + j] += (s0[j] + s1[j]) * d;
       }
+    },
+    dots(U, V, out) {
+      s0.fill(0);
+      for (let i = 0, o = 0; i < n; i++, o += k) for (let j = 0; j < k; j++) s0[j] += U[o + j] * V[o + j];
+      out.set(s0);
+    },
+    update(alpha, active, X, P, R, Q, rr) {
+      s0.fill(0);
+      for (let i = 0, o = 0; i < n; i++, o += k) {
+        for (let j = 0; j < k; j++) {
+          if (!active[j]) continue;
+          const a = alpha[j];
+          X[o + j] += a * P[o + j];
+          const ri = R[o + j] - a * Q[o + j];
+          R[o + j] = ri;
+          s0[j] += ri * ri;
+        }
+      }
+      rr.set(s0);
+    },
+    direction(beta, active, Z, P) {
+      for (let i = 0, o = 0; i < n; i++, o += k) for (let j = 0; j < k; j++) if (active[j]) P[o + j] = Z[o + j] + beta[j] * P[o + j];
     },
     vector(slot) {
       if (!(slot >= 0 && slot < slots)) throw new Error(`block kernels: no vector slot ${slot} (${slots} slots)`);
@@ -311,13 +343,77 @@ export function blockModuleBytes(k: number): Uint8Array<ArrayBuffer> {
     return fn(7, 6, 1 + 2 * H, code);
   })();
 
-  const fns = [spmv, gsFwd, gsBwd];
+  /** a loop over the n rows of block vectors: ROW runs from 0 to n·S in steps of S */
+  const rows = (N: number, ROW: number, END_: number, body: number[]): number[] => [
+    ...i32c(0), ...set(ROW),
+    ...get(N), ...i32c(S), I32_MUL, ...set(END_),
+    ...block, ...loop,
+    ...get(ROW), ...get(END_), I32_GE_U, ...brIf(1),
+    ...body,
+    ...get(ROW), ...i32c(S), I32_ADD, ...set(ROW),
+    ...br(0),
+    END, END,
+  ];
+  const at = (P: number, ROW: number, m: number): number[] => [...get(P), ...get(ROW), I32_ADD, ...v128load(16 * m)];
+
+  // dots: params n0 up1 vp2 op3; i32 row4 end5; v128 acc6..
+  const dots = (() => {
+    const [N, UP, VP, OP, ROW, E] = [0, 1, 2, 3, 4, 5];
+    const ACC = 6;
+    const code = [
+      ...lanes((m) => [...v128zero, ...set(ACC + m)]),
+      ...rows(N, ROW, E, lanes((m) => [...get(ACC + m), ...at(UP, ROW, m), ...at(VP, ROW, m), ...f64x2mul, ...f64x2add, ...set(ACC + m)])),
+      ...lanes((m) => [...get(OP), ...get(ACC + m), ...v128store(16 * m)]),
+    ];
+    return fn(4, 2, H, code);
+  })();
+
+  // update: params n0 xp1 pp2 rp3 qp4 ap5 mp6 op7; i32 row8 end9; v128 alpha10.., mask10+H.., rr10+2H.., t10+3H
+  const update = (() => {
+    const [N, XP, PP, RP, QP, AP, MP, OP, ROW, E] = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9];
+    const AL = 10, MK = 10 + H, RR = 10 + 2 * H, T = 10 + 3 * H;
+    const body = lanes((m) => [
+      // x = select(x + α p, x)
+      ...get(XP), ...get(ROW), I32_ADD,
+      ...at(XP, ROW, m), ...get(AL + m), ...at(PP, ROW, m), ...f64x2mul, ...f64x2add,
+      ...at(XP, ROW, m), ...get(MK + m), ...v128bitselect, ...v128store(16 * m),
+      // t = r − α q; r = select(t, r); rr += t·t
+      ...at(RP, ROW, m), ...get(AL + m), ...at(QP, ROW, m), ...f64x2mul, ...f64x2sub, ...set(T),
+      ...get(RP), ...get(ROW), I32_ADD,
+      ...get(T), ...at(RP, ROW, m), ...get(MK + m), ...v128bitselect, ...v128store(16 * m),
+      ...get(RR + m), ...get(T), ...get(T), ...f64x2mul, ...f64x2add, ...set(RR + m),
+    ]);
+    const code = [
+      ...lanes((m) => [...get(AP), ...v128load(16 * m), ...set(AL + m), ...get(MP), ...v128load(16 * m), ...set(MK + m), ...v128zero, ...set(RR + m)]),
+      ...rows(N, ROW, E, body),
+      ...lanes((m) => [...get(OP), ...get(RR + m), ...v128store(16 * m)]),
+    ];
+    return fn(8, 2, 3 * H + 1, code);
+  })();
+
+  // direction: params n0 zp1 pp2 bp3 mp4; i32 row5 end6; v128 beta7.., mask7+H..
+  const direction = (() => {
+    const [N, ZP, PP, BP, MP, ROW, E] = [0, 1, 2, 3, 4, 5, 6];
+    const BE = 7, MK = 7 + H;
+    const body = lanes((m) => [
+      ...get(PP), ...get(ROW), I32_ADD,
+      ...at(ZP, ROW, m), ...get(BE + m), ...at(PP, ROW, m), ...f64x2mul, ...f64x2add,
+      ...at(PP, ROW, m), ...get(MK + m), ...v128bitselect, ...v128store(16 * m),
+    ]);
+    const code = [
+      ...lanes((m) => [...get(BP), ...v128load(16 * m), ...set(BE + m), ...get(MP), ...v128load(16 * m), ...set(MK + m)]),
+      ...rows(N, ROW, E, body),
+    ];
+    return fn(5, 2, 2 * H, code);
+  })();
+
+  const fns = [spmv, gsFwd, gsBwd, dots, update, direction];
   const bytes = [
     0x00, 0x61, 0x73, 0x6d, 0x01, 0x00, 0x00, 0x00, // "\0asm", version 1
     ...section(1, [fns.length, ...fns.flatMap((f) => f.type)]),
     ...section(2, [1, ...name('env'), ...name('mem'), 0x02, 0x00, 1]), // import memory, min 1 page
-    ...section(3, [fns.length, 0, 1, 2]),
-    ...section(7, [3, ...name('spmv'), 0x00, 0, ...name('gsFwd'), 0x00, 1, ...name('gsBwd'), 0x00, 2]),
+    ...section(3, [fns.length, ...fns.map((_, i) => i)]),
+    ...section(7, [fns.length, ...['spmv', 'gsFwd', 'gsBwd', 'dots', 'update', 'direction'].flatMap((f, i) => [...name(f), 0x00, i])]),
     ...section(10, [fns.length, ...fns.flatMap((f) => f.body)]),
   ];
   return new Uint8Array(bytes);
@@ -375,7 +471,8 @@ export function prepareBlockKernels(A: Csr, k: number, options: BlockKernelOptio
   const vecBytes = align16(8 * n * k);
   const slot0 = align16(ip + 8 * n);
   const scratch = 3; // for arguments that are not our own vectors
-  const size = slot0 + (slots + scratch) * vecBytes;
+  const par = slot0 + (slots + scratch) * vecBytes; // α or β, the lane mask, the k sums
+  const size = par + align16(24 * k);
   if (size > MAX_BYTES) return js();
   let memory: WebAssembly.Memory;
   let ex: Record<string, Fn>;
@@ -400,6 +497,14 @@ export function prepareBlockKernels(A: Csr, k: number, options: BlockKernelOptio
     if (copy) new Float64Array(buf, off, len).set(v.subarray(0, len));
     return off;
   };
+  const coef = new Float64Array(buf, par, k);
+  const mask = new BigInt64Array(buf, par + 8 * k, k);
+  const sums = new Float64Array(buf, par + 16 * k, k);
+  /** α or β into the memory, and the lane mask: all ones for an active column */
+  const setLanes = (c: Float64Array, active: Uint8Array): void => {
+    coef.set(c.subarray(0, k));
+    for (let j = 0; j < k; j++) mask[j] = active[j] ? -1n : 0n;
+  };
   const outArg = (v: Float64Array, off: number): void => {
     if (!own(v)) v.set(new Float64Array(buf, off, len));
   };
@@ -420,6 +525,27 @@ export function prepareBlockKernels(A: Csr, k: number, options: BlockKernelOptio
       const bo = inArg(B, 0, true), xo = inArg(X, 1, true);
       ex.gsBwd(n, rp, cp, vp, ip, bo, xo);
       outArg(X, xo);
+    },
+    dots(U, V, out) {
+      const uo = inArg(U, 0, true), vo = inArg(V, 1, true);
+      ex.dots(n, uo, vo, par + 16 * k);
+      out.set(sums);
+    },
+    update(alpha, active, X, P, R, Q, rr) {
+      setLanes(alpha, active);
+      const xo = inArg(X, 0, true), po = inArg(P, 1, true), ro = inArg(R, 2, true);
+      const qo = own(Q) ? Q.byteOffset : -1;
+      if (qo < 0) throw new Error('block kernels: update needs Q among the kernels\' own vectors');
+      ex.update(n, xo, po, ro, qo, par, par + 8 * k, par + 16 * k);
+      outArg(X, xo);
+      outArg(R, ro);
+      rr.set(sums);
+    },
+    direction(beta, active, Z, P) {
+      setLanes(beta, active);
+      const zo = inArg(Z, 0, true), po = inArg(P, 1, true);
+      ex.direction(n, zo, po, par, par + 8 * k);
+      outArg(P, po);
     },
     vector(slot) {
       if (!(slot >= 0 && slot < slots)) throw new Error(`block kernels: no vector slot ${slot} (${slots} slots)`);

@@ -9,8 +9,9 @@
  * the same order. The block kernels and the preconditioner's block form give each column the bits
  * of the single code, so every column's x, iterations and residuals are bit for bit those of
  * pcg(A, b_j, x0_j) with the same preconditioner. A converged column is frozen (its x, r and p are
- * no longer updated); its lanes still pass through the kernels until the block is done, which
- * costs a little arithmetic and no change in its numbers.
+ * no longer updated: the vector updates keep its bits under a lane mask); its lanes still pass
+ * through the products and the preconditioner until the block is done, which costs a little
+ * arithmetic and no change in its numbers.
  */
 import { throwIfAborted } from '../errors';
 import type { Csr } from './csr';
@@ -101,10 +102,7 @@ export function blockPcg(
   const active = new Uint8Array(k);
   const histories: number[][] = Array.from({ length: k }, () => []);
   /** acc[j] = Σ_i U[i,j] V[i,j], in the order of pcg.ts's dot */
-  const dots = (U: Float64Array, V: Float64Array): void => {
-    acc.fill(0);
-    for (let i = 0, o = 0; i < n; i++, o += k) for (let j = 0; j < k; j++) acc[j] += U[o + j] * V[o + j];
-  };
+  const dots = (U: Float64Array, V: Float64Array): void => kern.dots(U, V, acc);
   dots(B, B);
   for (let j = 0; j < k; j++) bnorm[j] = Math.sqrt(acc[j]);
   // a zero right-hand side: x = 0 at once (as pcg does), and its lanes stay zero
@@ -135,12 +133,6 @@ export function blockPcg(
   };
   report();
 
-  // lanes of a zero right-hand side (and the padding) hold zeros that α = β = 0 keep zero, bit for
-  // bit: only a column that stopped with data of its own must skip the updates
-  const noneFrozen = (): boolean => {
-    for (let j = 0; j < k; j++) if (!active[j] && bnorm[j] !== 0) return false;
-    return true;
-  };
   applyM(R, Z);
   P.set(Z);
   dots(R, Z);
@@ -156,18 +148,7 @@ export function blockPcg(
       if (!(pq[j] > 0)) throw new Error('conjugate gradients broke down: the matrix or preconditioner is not positive definite');
       alpha[j] = rz[j] / pq[j];
     }
-    acc.fill(0);
-    const all = noneFrozen();
-    for (let i = 0, o = 0; i < n; i++, o += k) {
-      for (let j = 0; j < k; j++) {
-        if (!all && !active[j]) continue;
-        const a = alpha[j];
-        X[o + j] += a * P[o + j];
-        const ri = R[o + j] - a * Q[o + j];
-        R[o + j] = ri;
-        acc[j] += ri * ri;
-      }
-    }
+    kern.update(alpha, active, X, P, R, Q, acc);
     for (let j = 0; j < k; j++) {
       if (!active[j]) continue;
       its[j]++;
@@ -185,11 +166,7 @@ export function blockPcg(
       rz[j] = acc[j];
       alpha[j] = beta; // reused as β below
     }
-    if (noneFrozen()) {
-      for (let i = 0, o = 0; i < n; i++, o += k) for (let j = 0; j < k; j++) P[o + j] = Z[o + j] + alpha[j] * P[o + j];
-    } else {
-      for (let i = 0, o = 0; i < n; i++, o += k) for (let j = 0; j < k; j++) if (active[j]) P[o + j] = Z[o + j] + alpha[j] * P[o + j];
-    }
+    kern.direction(alpha, active, Z, P);
     for (let j = 0; j < k; j++) if (active[j] && its[j] >= maxIter) active[j] = 0;
     any = active.some((a) => a === 1);
   }

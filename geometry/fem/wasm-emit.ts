@@ -71,3 +71,4 @@ export const I32_MUL = 0x6c;
 export const I32_EQZ = 0x45;
 export const v128store = (offset = 0): number[] => simd(0x0b, 3, ...uleb(offset)); // alignment hint 8 bytes
 export const f64x2sub = simd(0xf1);
+export const v128bitselect = simd(0x52);
