@@ -138,7 +138,10 @@ export function solveLevel(
   for (let s = 0; s < ns; s++) {
     const site = sites[s];
     throwIfAborted(opts.signal);
-    report('load', site.id, s / ns);
+    // progress: a block's share of the sites, a tenth for its loads and nine tenths for its solve
+    const blockFirst = s - (s % SOLVE_BLOCK);
+    const blockWidth = Math.min(SOLVE_BLOCK, ns - blockFirst);
+    report('load', site.id, (blockFirst + 0.1 * (s - blockFirst)) / ns);
     if (method === 'split' && device && s >= batchStart + rhsBatch.length) {
       batchStart = s;
       const end = Math.min(ns, s + REACTION_BATCH);
@@ -208,7 +211,7 @@ export function solveLevel(
         maxIter: 5000,
         signal: opts.signal,
         stage: `solve ${ids}`,
-        onProgress: (_stage, f) => report('solve', site.id, (first + 0.1 + (width - 0.1) * f) / ns),
+        onProgress: (_stage, f) => report('solve', site.id, (blockFirst + blockWidth * (0.1 + 0.9 * f)) / ns),
       });
       results.forEach((res, c) => {
         const id = sites[first + c].id;
