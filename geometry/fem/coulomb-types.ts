@@ -48,7 +48,7 @@ export interface CoulombOptions {
    * full. Asking for 'split' where it is unavailable is refused ('split-unavailable').
    */
   method?: 'auto' | 'split' | 'full';
-  /** PCG relative residual (default 1e-10; the split's remainders 1e-8, coulomb-level.ts SPLIT_SOLVER_TOL) */
+  /** PCG relative residual (default 1e-10; the split's remainders 1e-6, coulomb-level.ts SPLIT_SOLVER_TOL) */
   solverTol?: number;
   preconditioner?: 'multigrid' | 'jacobi';
   /** quadrature options of the density loads (default: load.ts's; for convergence sweeps and tests) */

@@ -42,7 +42,8 @@ import type { TetMesh } from '../mesh/types';
 import { buildSpace, type FeSpace } from './space';
 import { assembleStiffness, applyDirichlet, applyDirichletRhs } from './assemble';
 import { multigridPreconditioner } from './multigrid';
-import { pcg, jacobi, type Preconditioner } from './pcg';
+import { jacobi, type Preconditioner } from './pcg';
+import { blockPcg, BLOCK_WIDTH } from './block-pcg';
 import type { Csr } from './csr';
 import { densityLoad } from './load';
 import { locatePoints, valuesAtPoints } from './locate';
@@ -162,37 +163,48 @@ export function leverArmsOnMesh(design: Design, meshIn: TetMesh, order: 1 | 2, o
   const n = space.nDofs;
   const zero = new Float64Array(n);
   const report = (f: number): void => opts.onProgress?.({ phase: 'solve', level, fraction: fraction[0] + (fraction[1] - fraction[0]) * f });
+  // one stiffness, one lifting and one multigrid for all electrodes; the electrodes' Laplace
+  // problems are solved together in blocks (block-pcg.ts: the same numbers as one by one)
   let A: Csr | null = null;
   let M: Preconditioner | null = null;
   let iterations = 0;
   const potentials: Float64Array[] = [];
-  for (let g = 0; g < m; g++) {
+  for (let g0 = 0; g0 < m; g0 += BLOCK_WIDTH) {
     throwIfAborted(opts.signal);
-    const gv = electrodeValues(dofs, g);
-    let rhs: Float64Array;
-    if (!A) {
-      const sys = applyDirichlet(K, zero, dofs.fixed, gv);
-      A = sys.A;
-      rhs = sys.b;
-      M = opts.preconditioner === 'jacobi' ? jacobi(A) : multigridPreconditioner(fixedSpace, A, { epsByRegion: eps });
-    } else rhs = applyDirichletRhs(K, zero, dofs.fixed, gv);
-    const res = pcg(A, rhs, gv, {
+    const g1 = Math.min(m, g0 + BLOCK_WIDTH);
+    const rhs: Float64Array[] = [];
+    const x0: Float64Array[] = [];
+    for (let g = g0; g < g1; g++) {
+      const gv = electrodeValues(dofs, g);
+      if (!A) {
+        const sys = applyDirichlet(K, zero, dofs.fixed, gv);
+        A = sys.A;
+        rhs.push(sys.b);
+        M = opts.preconditioner === 'jacobi' ? jacobi(A) : multigridPreconditioner(fixedSpace, A, { epsByRegion: eps });
+      } else rhs.push(applyDirichletRhs(K, zero, dofs.fixed, gv));
+      x0.push(gv);
+    }
+    const names = electrodes.slice(g0, g1).map((e) => e.name).join(', ');
+    const results = blockPcg(A!, rhs, x0, {
       preconditioner: M!,
       tol: opts.solverTol ?? 1e-10,
       maxIter: 5000,
       signal: opts.signal,
-      stage: `electrode ${electrodes[g].name}`,
-      onProgress: (_stage, f) => report((g + f) / (m + 1)),
+      stage: `electrodes ${names}`,
+      onProgress: (_stage, f) => report((g0 + (g1 - g0) * f) / (m + 1)),
     });
-    if (!res.converged) {
-      throw new CoreError('solver-failed', `the solver did not reach its tolerance for electrode ${electrodes[g].name} (relative residual ${res.relResidual.toExponential(2)} after ${res.iterations} iterations)`, {
-        electrode: electrodes[g].name,
-        relResidual: res.relResidual,
-        iterations: res.iterations,
-      });
-    }
-    iterations = Math.max(iterations, res.iterations);
-    potentials.push(res.x);
+    results.forEach((res, c) => {
+      const name = electrodes[g0 + c].name;
+      if (!res.converged) {
+        throw new CoreError('solver-failed', `the solver did not reach its tolerance for electrode ${name} (relative residual ${res.relResidual.toExponential(2)} after ${res.iterations} iterations)`, {
+          electrode: name,
+          relResidual: res.relResidual,
+          iterations: res.iterations,
+        });
+      }
+      iterations = Math.max(iterations, res.iterations);
+      potentials.push(res.x);
+    });
   }
   const meVPerV = new Float64Array(sites.length * m);
   const mv = meanValueSites(design, sites);

@@ -37,6 +37,7 @@ import { NO_PARENT } from '../mesh/types';
 import type { FeSpace } from './space';
 import { type Csr, diagonal, spmv } from './csr';
 import type { Preconditioner } from './pcg';
+import { BLOCK_SLOTS, type BlockKernels } from './block-kernels';
 import { GEOM_SIZE, tetGeometry } from './reference';
 import { assembleStiffness } from './assemble';
 import { CoreError } from '../errors';
@@ -625,5 +626,45 @@ export function multigridPreconditioner(
       for (let k = 0; k < nE; k++) z[nV + k] += 0.5 * (e[edges[2 * k]] + e[edges[2 * k + 1]]);
       for (let k = 0; k < sweeps; k++) gsBackward(rIn, z);
     },
+    block: sweeps === 1 ? (kern) => p2Block(kern, cyc, edges, (rIn, eOut) => vcycle(cyc, rIn, eOut, r, q, s, rs)) : undefined,
+  };
+}
+
+/**
+ * The P2 preconditioner above on k interleaved columns (block-pcg.ts): the two Gauss–Seidel passes
+ * stream the matrix once for all columns (block-kernels.ts, same bits per column); restriction,
+ * the P1 V-cycle (one column at a time) and prolongation do per column what apply() does.
+ */
+function p2Block(
+  kern: BlockKernels, cyc: P1Cycle, edges: Uint32Array, cycle: (rIn: Float64Array, e: Float64Array) => void,
+): (R: Float64Array, Z: Float64Array) => void {
+  const { k } = kern;
+  const nV = cyc.nV;
+  const nE = edges.length / 2;
+  const res = kern.vector(BLOCK_SLOTS - 1);
+  const R1 = new Float64Array(nV * k), E = new Float64Array(nV * k);
+  const r1 = new Float64Array(nV), e = new Float64Array(nV);
+  return (R, Z) => {
+    kern.gsForwardFromZeroWithResidual(R, Z, res);
+    R1.set(res.subarray(0, nV * k));
+    for (let c = 0; c < nE; c++) {
+      const a = edges[2 * c] * k, b = edges[2 * c + 1] * k, o = (nV + c) * k;
+      for (let j = 0; j < k; j++) {
+        const h = 0.5 * res[o + j];
+        R1[a + j] += h;
+        R1[b + j] += h;
+      }
+    }
+    for (let j = 0; j < k; j++) {
+      for (let v = 0; v < nV; v++) r1[v] = R1[v * k + j];
+      cycle(r1, e);
+      for (let v = 0; v < nV; v++) E[v * k + j] = e[v];
+    }
+    for (let q = 0; q < nV * k; q++) Z[q] += E[q];
+    for (let c = 0; c < nE; c++) {
+      const a = edges[2 * c] * k, b = edges[2 * c + 1] * k, o = (nV + c) * k;
+      for (let j = 0; j < k; j++) Z[o + j] += 0.5 * (E[a + j] + E[b + j]);
+    }
+    kern.gsBackward(R, Z);
   };
 }

@@ -11,11 +11,18 @@
 import { throwIfAborted } from '../errors';
 import { type Csr, diagonal } from './csr';
 import { prepareSpmv } from './spmv-wasm';
+import type { BlockKernels } from './block-kernels';
 
 /** z = B r for an SPD approximation B of A⁻¹. */
 export interface Preconditioner {
   name: string;
   apply(r: Float64Array, z: Float64Array): void;
+  /**
+   * The same operator on the k interleaved columns of block-pcg.ts, each column with the bits of
+   * apply(); `kernels` are bound to the system matrix. Optional: without it the block solver
+   * applies `apply` column by column.
+   */
+  block?(kernels: BlockKernels): (R: Float64Array, Z: Float64Array) => void;
 }
 
 export interface PcgOptions {

@@ -30,73 +30,13 @@
  * The module is assembled below from a handful of opcodes (no binary is shipped).
  */
 import { type Csr, spmv } from './csr';
+import {
+  uleb, section, name, I32, V128, get, set, tee, i32c, I32_ADD, I32_SHL, I32_LT_U, I32_GE_U, F64_ADD, F64_MUL, i32load, f64load,
+  f64store, block, loop, ifThen, END, br, brIf, v128load, v128zero, f64x2splat, f64x2extract, f64x2replace, f64x2add, f64x2mul,
+} from './wasm-emit';
 
 /** A prepared product y = A x, bound to one matrix. `kernel` says which code runs it. */
 export type PreparedSpmv = ((x: Float64Array, y: Float64Array) => void) & { readonly kernel: 'wasm-simd' | 'js' };
-
-// ---- a tiny WebAssembly emitter: just the opcodes the kernel needs --------------------------
-
-/** unsigned LEB128 */
-function uleb(v: number): number[] {
-  const out: number[] = [];
-  do {
-    let b = v & 0x7f;
-    v >>>= 7;
-    if (v !== 0) b |= 0x80;
-    out.push(b);
-  } while (v !== 0);
-  return out;
-}
-
-/** signed LEB128 (for i32.const) */
-function sleb(v: number): number[] {
-  const out: number[] = [];
-  for (;;) {
-    const b = v & 0x7f;
-    v >>= 7;
-    if ((v === 0 && (b & 0x40) === 0) || (v === -1 && (b & 0x40) !== 0)) {
-      out.push(b);
-      return out;
-    }
-    out.push(b | 0x80);
-  }
-}
-
-const section = (id: number, body: number[]): number[] => [id, ...uleb(body.length), ...body];
-const name = (s: string): number[] => [...uleb(s.length), ...Array.from(s, (c) => c.charCodeAt(0))];
-
-const I32 = 0x7f;
-const V128 = 0x7b;
-const EMPTY = 0x40; // block type: no result
-const get = (l: number): number[] => [0x20, ...uleb(l)];
-const set = (l: number): number[] => [0x21, ...uleb(l)];
-const tee = (l: number): number[] => [0x22, ...uleb(l)];
-const i32c = (v: number): number[] => [0x41, ...sleb(v)];
-const I32_ADD = 0x6a;
-const I32_SHL = 0x74;
-const I32_LT_U = 0x49;
-const I32_GE_U = 0x4f;
-const F64_ADD = 0xa0;
-const F64_MUL = 0xa2;
-/** memory access with alignment log2 and constant offset */
-const i32load = (offset = 0): number[] => [0x28, 2, ...uleb(offset)];
-const f64load = (offset = 0): number[] => [0x2b, 3, ...uleb(offset)];
-const f64store = (offset = 0): number[] => [0x39, 3, ...uleb(offset)];
-const block = [0x02, EMPTY];
-const loop = [0x03, EMPTY];
-const ifThen = [0x04, EMPTY];
-const END = 0x0b;
-const br = (d: number): number[] => [0x0c, ...uleb(d)];
-const brIf = (d: number): number[] => [0x0d, ...uleb(d)];
-/** SIMD instructions: prefix 0xfd, then the LEB128 opcode */
-const simd = (op: number, ...imm: number[]): number[] => [0xfd, ...uleb(op), ...imm];
-const v128load = (offset = 0): number[] => simd(0x00, 3, ...uleb(offset)); // alignment hint 8 bytes
-const v128zero = simd(0x0c, ...new Array<number>(16).fill(0));
-const f64x2splat = simd(0x14);
-const f64x2extract = (lane: number): number[] => simd(0x21, lane);
-const f64x2replace = (lane: number): number[] => simd(0x22, lane);
-const f64x2add = simd(0xf0);
-const f64x2mul = simd(0xf2);
 
 /**
  * The kernel, in pseudo-code (locals: pr = &rowPtr[i], pc = &cols[k], pv = &vals[k],
