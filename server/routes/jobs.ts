@@ -100,10 +100,12 @@ export const jobRoutes: RouteModule = (router, { services, access, logger }) => 
   router.get('/projects/:projectId/revisions', access.checkCapabilityInService('project.read'), async (req, res) => {
     const { projectId, userId, capability } = deferredAccess(res);
     const query = revisionListQuerySchema.safeParse(req.query);
-    // a bad query: the role answers first (404 / 403 before 422), as on every other project route
-    if (!query.success) await services.projects.authorize(projectId, userId, capability);
-    const { designId } = parseOr422(revisionListQuerySchema, req.query, 'query');
-    res.json({ revisions: await services.jobs.listRevisions(projectId, userId, capability, designId) });
+    if (!query.success) {
+      // a bad query: the role answers first (404 / 403 before 422), as on every other project route; then the 422
+      await services.projects.authorize(projectId, userId, capability);
+      parseOr422(revisionListQuerySchema, req.query, 'query');
+    }
+    res.json({ revisions: await services.jobs.listRevisions(projectId, userId, capability, query.data?.designId) });
   });
 
   router.get('/projects/:projectId/revisions/:revisionId', access.requireCapability('project.read'), async (req, res) => {
