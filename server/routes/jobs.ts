@@ -20,6 +20,13 @@ import { parseOr422 } from '../services/errors';
 import { currentUser, deferredAccess } from '../http/access';
 import type { RouteModule } from './context';
 
+/**
+ * The two lists above as request paths (exact, lower case, no trailing slash): served without express-session and
+ * passport (server/http/sessionStore.ts `sessionFreeReads`, mounted in app.ts). Other spellings Express would also
+ * route here simply take the usual path.
+ */
+export const SESSION_FREE_READS = /^\/api\/projects\/[^/]+\/(?:jobs|revisions)$/;
+
 /** how often the event stream looks at the job row (ms) */
 export const EVENTS_POLL_MS = 300;
 /** a comment line this often keeps proxies from closing a quiet stream (common practice) */
