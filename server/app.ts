@@ -28,6 +28,8 @@ import { refuseUnstorableText } from './http/wellFormed';
 import { jsonBodies, parseByteSize } from './http/bodies';
 import type { DesignBodyReader } from './http/designBody';
 import { routeModules } from './routes';
+import { SESSION_FREE_READS } from './routes/jobs';
+import type { SessionStoreWithUsers } from './http/sessionStore';
 import './http/types';
 
 export interface AppDeps {
@@ -37,6 +39,8 @@ export interface AppDeps {
   sessionStore: Store;
   /** the account the store read with this request's session, when it did (server/http/sessionStore.ts) */
   sessionUser?: (req: express.Request) => User | false | undefined;
+  /** the busiest signed-in reads without express-session and passport (server/http/sessionStore.ts `sessionFreeReads`) */
+  sessionFree?: Pick<SessionStoreWithUsers, 'sessionFreeReads' | 'unlessSessionFree'>;
   sessionSecret: string;
   /** lifetime of a signed-in session (cookie and stored row), counted from sign-in */
   sessionMaxAgeMs: number;
@@ -143,15 +147,19 @@ export function createApp(deps: AppDeps): Express {
   // the field) rather than fail in the database (500) or be changed silently (jsonb stores U+FFFD)
   app.use(refuseUnstorableText);
 
+  // the jobs and revisions lists polled while jobs run: the signed-in account from one query, then straight on
+  // (express-session and passport skipped; same answers, see sessionFreeReads); every other request as below
+  const skipIfSessionFree = deps.sessionFree?.unlessSessionFree ?? ((h: RequestHandler) => h);
+  if (deps.sessionFree) app.use(deps.sessionFree.sessionFreeReads({ cookieName: SESSION_COOKIE, secrets: [deps.sessionSecret], paths: SESSION_FREE_READS }));
   app.use(
-    session({
+    skipIfSessionFree(session({
       name: SESSION_COOKIE,
       store: deps.sessionStore,
       secret: deps.sessionSecret,
       resave: false,
       saveUninitialized: false,
       cookie: { httpOnly: true, sameSite: 'lax', secure: deps.cookieSecure, maxAge: deps.sessionMaxAgeMs },
-    }),
+    })),
   );
 
   // A passport instance of our own (not the module singleton) so several apps can live in one process (tests).
@@ -170,8 +178,8 @@ export function createApp(deps: AppDeps): Express {
     // a deleted account simply ends the session (false = signed out)
     services.auth.getUser(id).then((u) => done(null, u ?? false), done);
   });
-  app.use(pass.initialize());
-  app.use(pass.session());
+  app.use(skipIfSessionFree(pass.initialize()));
+  app.use(skipIfSessionFree(pass.session()));
   // a personal API token replaces the session's user for this request (server/http/bearer.ts)
   app.use('/api', bearerAuth(services));
   // Nobody signed in: the session, if it is stored at all (saveUninitialized: false; csrf-sync keeps its secret in

@@ -53,7 +53,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   const sessionPool = new pg.Pool({ connectionString: opts.databaseUrl, max: 5, connectionTimeoutMillis: 5_000 });
   sessionPool.on('error', (err) => logger.warn('session store: an idle database connection ended:', err.message));
   // connect-pg-simple, reading the signed-in account in the same query as the session (server/http/sessionStore.ts)
-  const { store: sessionStore, userOf: sessionUser } = createSessionStore(session, sessionPool, {
+  const { store: sessionStore, userOf: sessionUser, sessionFreeReads, unlessSessionFree } = createSessionStore(session, sessionPool, {
     pruneSessionIntervalSeconds: opts.sessionPruneIntervalSeconds ?? 5 * 60,
     errorLog: (...args: unknown[]) => logger.error('session store:', ...args),
   });
@@ -125,6 +125,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     pressure,
     sessionStore,
     sessionUser,
+    sessionFree: { sessionFreeReads, unlessSessionFree },
     sessionSecret,
     sessionMaxAgeMs: opts.sessionMaxAgeMs ?? 7 * 24 * 3_600_000,
     anonymousSessionMaxAgeMs: opts.anonymousSessionMaxAgeMs ?? 60 * 60_000,

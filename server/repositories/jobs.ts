@@ -5,6 +5,7 @@
 import type { Job, JobKind, JobOptions, JobProgress, JobState } from '@contracts/api';
 import type { ProjectRole } from '@contracts/roles';
 import { type Db, iso, isoOrNull } from './db';
+import { isoText, runStatement, type Statement } from './statements';
 
 export interface JobRecord extends Job {
   projectId: number;
@@ -90,11 +91,53 @@ export function publicJob(j: JobRecord): Job {
   };
 }
 
-/** the columns of `jobs` that toJob reads (named, not `*`: a prepared statement must not change its result type) */
-const JOB_COLUMNS = [
-  'id', 'project_id', 'design_id', 'design_version', 'design_sha256', 'kind', 'options', 'state', 'progress', 'revision_id', 'error',
-  'attempts', 'boss_job_id', 'created_by', 'created_at', 'started_at', 'finished_at',
-] as const satisfies readonly (keyof JobRow)[];
+/** A listed job: the answer's columns only, times as ISO text (statements.ts `isoText`), and the caller's role. */
+interface ListedJobRow {
+  member_role: ProjectRole;
+  id: number | null;
+  kind: JobKind;
+  design_id: number;
+  design_version: number;
+  options: JobOptions;
+  state: JobState;
+  progress: JobProgress;
+  revision_id: number | null;
+  error: string | null;
+  created_by_name: string | null;
+  created_at: string;
+  started_at: string | null;
+  finished_at: string | null;
+}
+
+/** the same object, key for key and in the same order, as `publicJob(toJob(row))` (the one-job read) */
+const listedJob = (r: ListedJobRow): Job => ({
+  id: r.id!,
+  kind: r.kind,
+  designId: r.design_id,
+  designVersion: r.design_version,
+  options: r.options,
+  state: r.state,
+  progress: r.progress,
+  revisionId: r.revision_id,
+  error: r.error,
+  createdAt: r.created_at,
+  startedAt: r.started_at,
+  finishedAt: r.finished_at,
+  createdBy: r.created_by_name,
+});
+
+const LIST_FOR_MEMBER: Statement = {
+  name: 'tetrawell-jobs-list-for-member-2',
+  text: `
+    SELECT m.role AS member_role, j.id, j.kind, j.design_id, j.design_version, j.options, j.state, j.progress, j.revision_id, j.error,
+           u.display_name AS created_by_name,
+           ${isoText('j.created_at')} AS created_at, ${isoText('j.started_at')} AS started_at, ${isoText('j.finished_at')} AS finished_at
+    FROM memberships m
+    LEFT JOIN LATERAL (SELECT * FROM jobs WHERE jobs.project_id = m.project_id ORDER BY jobs.id DESC LIMIT $3) AS j ON true
+    LEFT JOIN users u ON u.id = j.created_by
+    WHERE m.project_id = $1 AND m.user_id = $2
+    ORDER BY j.id DESC`,
+};
 
 export const ACTIVE_STATES: JobState[] = ['queued', 'running'];
 
@@ -133,20 +176,16 @@ export function jobsRepo(db: Db) {
     /**
      * The caller's role in the project and the project's newest jobs, in one statement (one database round trip
      * instead of two on the busiest read; the service applies the role table to `role`). No membership: role null
-     * and no jobs. A named prepared statement: PostgreSQL parses and plans it once per connection.
+     * and no jobs. A fixed statement run as it is (statements.ts): only the answer's columns, times already as the
+     * API's ISO text.
      */
-    async listForMember(projectId: number, userId: number, limit: number): Promise<{ role: ProjectRole | null; jobs: JobRecord[] }> {
-      const rows = (await db
-        .select('m.role as member_role', ...JOB_COLUMNS.map((c) => `j.${c}`), 'u.display_name as created_by_name')
-        .from('memberships as m')
-        .joinRaw('LEFT JOIN LATERAL (SELECT * FROM jobs WHERE jobs.project_id = m.project_id ORDER BY jobs.id DESC LIMIT ?) AS j ON true', [limit])
-        .leftJoin('users as u', 'u.id', 'j.created_by')
-        .where({ 'm.project_id': projectId, 'm.user_id': userId })
-        .orderBy('j.id', 'desc')
-        .options({ name: 'tetrawell-jobs-list-for-member' })) as (JobRow & { member_role: ProjectRole; id: number | null })[];
+    async listForMember(projectId: number, userId: number, limit: number): Promise<{ role: ProjectRole | null; jobs: Job[] }> {
+      const rows = await runStatement<ListedJobRow>(db, LIST_FOR_MEMBER, [projectId, userId, limit]);
       if (!rows.length) return { role: null, jobs: [] };
       // a member of a project without jobs: one row, its job columns null
-      return { role: rows[0]!.member_role, jobs: rows.filter((r) => r.id !== null).map(toJob) };
+      const jobs: Job[] = [];
+      for (const r of rows) if (r.id !== null) jobs.push(listedJob(r));
+      return { role: rows[0]!.member_role, jobs };
     },
     async countActive(projectId: number): Promise<number> {
       const row = (await db('jobs').where({ project_id: projectId }).whereIn('state', ACTIVE_STATES).count<{ n: string }[]>('id as n').first()) as { n: string } | undefined;

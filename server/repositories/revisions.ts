@@ -7,6 +7,7 @@
 import type { JobKind, JobOptions, Revision } from '@contracts/api';
 import type { ProjectRole } from '@contracts/roles';
 import { type Db, iso } from './db';
+import { isoText, runStatement, type Statement } from './statements';
 
 export type RevisionFileName = Revision['files'][number]['name'];
 
@@ -68,6 +69,69 @@ export interface StoredFile {
 }
 
 const ORDER: RevisionFileName[] = ['mesh.vtu', 'mesh.vtk', 'mesh.twmesh', 'results.json', 'results.csv', 'potential.f64'];
+
+/** A revision as the list answers it: the one-revision answer without its summary. */
+export type ListedRevision = Omit<Revision, 'summary'>;
+
+/** A listed revision: the answer's columns only, times as ISO text (statements.ts `isoText`), and the caller's role. */
+interface ListedRevisionRow {
+  member_role: ProjectRole;
+  id: number | null;
+  kind: JobKind;
+  job_id: number | null;
+  design_id: number;
+  design_version: number;
+  design_sha256: string;
+  options: JobOptions;
+  software_version: string;
+  software_commit: string | null;
+  timings: Record<string, number>;
+  /** already the answer's objects ({ name, bytes, contentType }), in the order of ORDER */
+  files: Revision['files'];
+  created_at: string;
+  created_by_name: string | null;
+}
+
+/** the same object, key for key and in the same order, as the one-revision read's without `summary` */
+const listedRevision = (r: ListedRevisionRow): ListedRevision => ({
+  id: r.id!,
+  kind: r.kind,
+  jobId: r.job_id,
+  designId: r.design_id,
+  designVersion: r.design_version,
+  designSha256: r.design_sha256,
+  options: r.options,
+  software: { version: r.software_version, commit: r.software_commit },
+  timings: r.timings,
+  files: r.files,
+  createdAt: r.created_at,
+  createdBy: r.created_by_name,
+});
+
+/**
+ * Each revision's files are aggregated in the statement, already in the answer's shape and order (`ORDER`); the
+ * revision's design needs no join (revisions.design_id references designs ON DELETE CASCADE).
+ */
+const LIST_FOR_MEMBER: Statement = {
+  name: 'tetrawell-revisions-list-for-member-2',
+  text: `
+    SELECT m.role AS member_role, r.*
+    FROM memberships m
+    LEFT JOIN LATERAL (
+      SELECT r.id, r.kind, r.job_id, r.design_id, r.design_version, r.design_sha256, r.options, r.software_version, r.software_commit,
+             r.timings, ${isoText('r.created_at')} AS created_at, u.display_name AS created_by_name,
+             (SELECT coalesce(json_agg(json_build_object('name', f.name, 'bytes', f.bytes, 'contentType', f.content_type)
+                                       ORDER BY array_position(ARRAY[${ORDER.map((n) => `'${n}'`).join(', ')}]::text[], f.name)), '[]')
+              FROM revision_files f WHERE f.revision_id = r.id) AS files
+      FROM revisions r
+      LEFT JOIN users u ON u.id = r.created_by
+      WHERE r.project_id = m.project_id AND ($3::int IS NULL OR r.design_id = $3::int)
+      ORDER BY r.id DESC
+      LIMIT $4
+    ) r ON true
+    WHERE m.project_id = $1 AND m.user_id = $2
+    ORDER BY r.id DESC`,
+};
 
 export function revisionsRepo(db: Db) {
   const select = (withSummary: boolean) =>
@@ -158,49 +222,15 @@ export function revisionsRepo(db: Db) {
     /**
      * The caller's role in the project and its newest revisions (of one design, when `designId` is given) with
      * their file lists, in one statement: one database round trip where a role query, the rows and their files
-     * took three. No membership: role null and no revisions. A named prepared statement (parsed and planned
-     * once per connection); `$3` null means every design.
+     * took three. No membership: role null and no revisions. A fixed statement run as it is (statements.ts);
+     * `$3` null means every design.
      */
-    async listForMember(projectId: number, userId: number, opts: { designId?: number; limit: number }): Promise<{ role: ProjectRole | null; revisions: RevisionRecord[] }> {
-      const res = (await db
-        .raw(
-          `SELECT m.role AS member_role, r.*
-           FROM memberships m
-           LEFT JOIN LATERAL (
-             SELECT r.id, r.project_id, r.job_id, r.design_id, d.name AS design_name, r.design_version, r.design_sha256, r.kind,
-                    r.options, r.software_version, r.software_commit, r.timings, r.stored_bytes, r.created_at,
-                    u.display_name AS created_by_name,
-                    (SELECT coalesce(json_agg(json_build_object('name', f.name, 'content_type', f.content_type, 'bytes', f.bytes, 'chunks', f.chunks)), '[]')
-                     FROM revision_files f WHERE f.revision_id = r.id) AS files
-             FROM revisions r
-             JOIN designs d ON d.id = r.design_id
-             LEFT JOIN users u ON u.id = r.created_by
-             WHERE r.project_id = m.project_id AND (?::int IS NULL OR r.design_id = ?::int)
-             ORDER BY r.id DESC
-             LIMIT ?
-           ) r ON true
-           WHERE m.project_id = ? AND m.user_id = ?
-           ORDER BY r.id DESC`,
-          [opts.designId ?? null, opts.designId ?? null, opts.limit, projectId, userId],
-        )
-        .options({ name: 'tetrawell-revisions-list-for-member' })) as {
-        rows: (RevisionRow & { member_role: ProjectRole; id: number | null; files: Omit<FileRow, 'revision_id' | 'stored_bytes'>[] })[];
-      };
-      const rows = res.rows;
+    async listForMember(projectId: number, userId: number, opts: { designId?: number; limit: number }): Promise<{ role: ProjectRole | null; revisions: ListedRevision[] }> {
+      const rows = await runStatement<ListedRevisionRow>(db, LIST_FOR_MEMBER, [projectId, userId, opts.designId ?? null, opts.limit]);
       if (!rows.length) return { role: null, revisions: [] };
-      return {
-        role: rows[0]!.member_role,
-        revisions: rows
-          .filter((r) => r.id !== null)
-          .map((r) =>
-            toRevision(
-              r,
-              r.files
-                .map((f) => ({ name: f.name, contentType: f.content_type, bytes: Number(f.bytes), chunks: f.chunks }))
-                .sort((a, b) => ORDER.indexOf(a.name) - ORDER.indexOf(b.name)),
-            ),
-          ),
-      };
+      const revisions: ListedRevision[] = [];
+      for (const r of rows) if (r.id !== null) revisions.push(listedRevision(r));
+      return { role: rows[0]!.member_role, revisions };
     },
     /** the newest revision of this project computed from the same document, kind and options */
     async findReusable(projectId: number, designSha256: string, kind: JobKind, optionsKey: string): Promise<{ id: number } | null> {

@@ -11,8 +11,12 @@ import { auditRoutes } from './audit';
 import { adminRoutes } from './admin';
 import { jobRoutes } from './jobs';
 
+// Express tries the routes in this order, one path match each, until one fits: the jobs module (whose two lists the
+// studio polls while jobs run) comes right after health, so those reads skip some thirty matches. No route here
+// shares a path with another module's and none is a catch-all, so the order decides nothing else.
 export const routeModules: RouteModule[] = [
   healthRoutes,
+  jobRoutes,
   authRoutes,
   accountRoutes,
   apiTokenRoutes,
@@ -20,7 +24,6 @@ export const routeModules: RouteModule[] = [
   memberRoutes,
   invitationRoutes,
   designRoutes,
-  jobRoutes,
   auditRoutes,
   adminRoutes,
 ];

@@ -20,6 +20,13 @@ import { parseOr422 } from '../services/errors';
 import { currentUser, deferredAccess } from '../http/access';
 import type { RouteModule } from './context';
 
+/**
+ * The two lists above as request paths (exact, lower case, no trailing slash): served without express-session and
+ * passport (server/http/sessionStore.ts `sessionFreeReads`, mounted in app.ts). Other spellings Express would also
+ * route here simply take the usual path.
+ */
+export const SESSION_FREE_READS = /^\/api\/projects\/[^/]+\/(?:jobs|revisions)$/;
+
 /** how often the event stream looks at the job row (ms) */
 export const EVENTS_POLL_MS = 300;
 /** a comment line this often keeps proxies from closing a quiet stream (common practice) */
@@ -100,10 +107,12 @@ export const jobRoutes: RouteModule = (router, { services, access, logger }) => 
   router.get('/projects/:projectId/revisions', access.checkCapabilityInService('project.read'), async (req, res) => {
     const { projectId, userId, capability } = deferredAccess(res);
     const query = revisionListQuerySchema.safeParse(req.query);
-    // a bad query: the role answers first (404 / 403 before 422), as on every other project route
-    if (!query.success) await services.projects.authorize(projectId, userId, capability);
-    const { designId } = parseOr422(revisionListQuerySchema, req.query, 'query');
-    res.json({ revisions: await services.jobs.listRevisions(projectId, userId, capability, designId) });
+    if (!query.success) {
+      // a bad query: the role answers first (404 / 403 before 422), as on every other project route; then the 422
+      await services.projects.authorize(projectId, userId, capability);
+      parseOr422(revisionListQuerySchema, req.query, 'query');
+    }
+    res.json({ revisions: await services.jobs.listRevisions(projectId, userId, capability, query.data?.designId) });
   });
 
   router.get('/projects/:projectId/revisions/:revisionId', access.requireCapability('project.read'), async (req, res) => {

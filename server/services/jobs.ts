@@ -148,7 +148,7 @@ export function jobService(deps: ServiceDeps, jd: JobDeps) {
     async list(projectId: number, userId: number, capability: Capability): Promise<Job[]> {
       const { role, jobs } = await jobsRepo(db).listForMember(projectId, userId, LIST_LIMIT);
       requireRole(role, capability);
-      return jobs.map(publicJob);
+      return jobs;
     },
 
     async get(projectId: number, jobId: number): Promise<Job> {
@@ -176,10 +176,7 @@ export function jobService(deps: ServiceDeps, jd: JobDeps) {
     async listRevisions(projectId: number, userId: number, capability: Capability, designId?: number): Promise<Omit<Revision, 'summary'>[]> {
       const { role, revisions } = await revisionsRepo(db).listForMember(projectId, userId, { designId, limit: LIST_LIMIT });
       requireRole(role, capability);
-      return revisions.map((r) => {
-        const { summary: _s, ...rest } = toRevision(r);
-        return rest;
-      });
+      return revisions;
     },
 
     async getRevision(projectId: number, revisionId: number): Promise<Revision> {

@@ -15,7 +15,7 @@
  * against lists that are then empty: not the issue's figure, a reference).
  */
 import { randomBytes } from 'node:crypto';
-import { readFileSync } from 'node:fs';
+import { readdirSync, readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import os from 'node:os';
 import autocannon from 'autocannon';
@@ -35,6 +35,36 @@ const lots = { windowMs: 60_000, limit: 1_000_000 };
 
 const PLAQUETTE = JSON.parse(readFileSync(fileURLToPath(new URL('../fixtures/designs/plaquette.json', import.meta.url)), 'utf8')) as { name: string };
 
+
+/**
+ * CPU time (ms) of each process of a local PostgreSQL cluster (the postmaster in `dataDir`/postmaster.pid and its
+ * children: backends, background writers), by pid, from /proc/<pid>/stat fields 14 and 15 (proc(5)).
+ */
+function postgresCpu(dataDir: string): Map<number, number> {
+  const postmaster = Number(readFileSync(`${dataDir}/postmaster.pid`, 'utf8').split('\n')[0]);
+  const out = new Map<number, number>();
+  for (const d of readdirSync('/proc')) {
+    if (!/^[0-9]+$/.test(d)) continue;
+    try {
+      const stat = readFileSync(`/proc/${d}/stat`, 'utf8');
+      const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      if (Number(d) === postmaster || Number(f[1]) === postmaster) out.set(Number(d), (Number(f[11]) + Number(f[12])) * 10);
+    } catch {
+      // the process ended meanwhile
+    }
+  }
+  return out;
+}
+
+/**
+ * CPU (ms) the cluster's processes used between two `postgresCpu` readings: a process started meanwhile (the pools
+ * open connections as the load begins) counts whole; one that ended meanwhile is lost (/proc keeps nothing of it)
+ */
+function postgresCpuSpent(before: Map<number, number>, after: Map<number, number>): number {
+  let ms = 0;
+  for (const [pid, t] of after) ms += t - (before.get(pid) ?? 0);
+  return ms;
+}
 
 function percentile(sorted: number[], p: number): number {
   if (!sorted.length) return NaN;
@@ -125,6 +155,8 @@ export async function run(): Promise<void> {
   const tx0 = await transactions(knex);
   const serverCpu0 = cpuMs(app.child.pid!);
   const mainCpu0 = cpuMs(app.child.pid!, 'main');
+  // PostgreSQL's own CPU, when the cluster is the private one on this machine
+  const pgCpu0 = cluster ? postgresCpu(cluster.dataDir) : null;
   await eventLoopDelay(app.child);
   const result = await new Promise<autocannon.Result>((resolve, reject) => {
     const inst = autocannon(opts, (err, res) => (err ? reject(err) : resolve(res)));
@@ -132,6 +164,7 @@ export async function run(): Promise<void> {
   });
   const serverCpu = (cpuMs(app.child.pid!) - serverCpu0) / 1000;
   const mainCpu = (cpuMs(app.child.pid!, 'main') - mainCpu0) / 1000;
+  const pgCpu = pgCpu0 && cluster ? postgresCpuSpent(pgCpu0, postgresCpu(cluster.dataDir)) / 1000 : null;
   const eld = await eventLoopDelay(app.child);
   // the mesh jobs' own statements (progress rows, revisions) and pg-boss's polling count too
   const tx = (await transactions(knex)) - tx0 - 1;
@@ -152,6 +185,12 @@ export async function run(): Promise<void> {
       `p99 ${eld.p99.toFixed(1)} ms, max ${eld.max.toFixed(1)} ms; ${(tx / Math.max(1, result.requests.total)).toFixed(2)} database ` +
       `transactions per request (the jobs' included); load average ${loadAverage()}`,
   );
+  if (pgCpu !== null) {
+    console.log(
+      `  PostgreSQL CPU ${pgCpu.toFixed(1)} s = ${perRequest(pgCpu)} µs per request (its processes alive at the end of the run, the jobs' ` +
+        `statements and pg-boss's polling included; 10 ms clock ticks)`,
+    );
+  }
   for (const id of busy) await call('POST', `/api/projects/${projectId}/jobs/${id}/cancel`);
   await waitAll(busy);
   app.child.kill('SIGTERM');

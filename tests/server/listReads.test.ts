@@ -5,7 +5,9 @@
  * rules of every other project route (signed out 401, not a member 404, at the next request after a change:
  * OWASP Authorization cheat sheet, "Validate the permissions on every request") and the answers' content,
  * compared with the one-revision read, which keeps the separate role check; and they count the server's own
- * statements per request (the session row is read by the session store's pool, not counted here).
+ * statements per request (the session row is read by the session store's pool, not counted here). The lists are
+ * fixed SQL statements whose rows are already in the answer's shape (server/repositories/statements.ts): their
+ * answers are held byte for byte to what the one-job and one-revision reads (Knex, Date objects) give.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Knex } from 'knex';
@@ -13,6 +15,8 @@ import { addMember, newUser, startTestEnv, type TestClient, type TestEnv } from 
 import { jobsRepo } from '../../server/repositories/jobs';
 import { revisionsRepo } from '../../server/repositories/revisions';
 import { packFile } from '../../server/jobs/storage';
+import { iso } from '../../server/repositories/db';
+import { isoText } from '../../server/repositories/statements';
 
 let env: TestEnv;
 beforeAll(async () => {
@@ -156,5 +160,67 @@ describe('jobs and revisions lists: role and rows in one statement', () => {
     await client.signOut();
     expect((await client.get(`/api/projects/${f.projectId}/jobs`)).status).toBe(401);
     expect((await client.get(`/api/projects/${f.projectId}/revisions`)).status).toBe(401);
+  });
+});
+
+describe('jobs and revisions lists: the same bytes as the one-item reads', () => {
+  let f: Fixture;
+  beforeAll(async () => {
+    f = await fixture();
+    // times at the edges of a millisecond: PostgreSQL keeps microseconds, the API writes milliseconds (a JavaScript
+    // Date truncates, ECMA-262 MakeTime); a started and a finished time on the queued job too, and one left null
+    await env.knex('jobs').where({ id: f.jobIds[0] }).update({ created_at: '2026-02-28 23:59:59.999999+00', started_at: '2026-03-01 00:00:00.000001+00', finished_at: '2026-03-01 00:00:00.0005+00' });
+    await env.knex('jobs').where({ id: f.jobIds[3] }).update({ created_at: '2024-02-29 12:00:00.123456+05:30', started_at: '2024-02-29 12:00:01+00', progress: JSON.stringify({ phase: 'refine', fraction: 0.1 + 0.2 }) });
+  });
+
+  it('GET …/jobs is, byte for byte, the list of what GET …/jobs/:jobId answers', async () => {
+    const r = await f.owner.get(`/api/projects/${f.projectId}/jobs`);
+    expect(r.status).toBe(200);
+    const singles = [];
+    for (const id of [...f.jobIds].reverse()) singles.push((await f.owner.get(`/api/projects/${f.projectId}/jobs/${id}`)).body.job);
+    expect(r.text).toBe(JSON.stringify({ jobs: singles }));
+    // the edge times as a JavaScript Date writes them (Date.prototype.toISOString, milliseconds truncated)
+    const first = (r.body.jobs as { id: number; createdAt: string; startedAt: string; finishedAt: string }[]).find((j) => j.id === f.jobIds[0])!;
+    expect([first.createdAt, first.startedAt, first.finishedAt]).toEqual(['2026-02-28T23:59:59.999Z', '2026-03-01T00:00:00.000Z', '2026-03-01T00:00:00.000Z']);
+    const queued = (r.body.jobs as { id: number; createdAt: string; startedAt: string; finishedAt: string | null }[]).find((j) => j.id === f.jobIds[3])!;
+    expect([queued.createdAt, queued.startedAt, queued.finishedAt]).toEqual(['2024-02-29T06:30:00.123Z', '2024-02-29T12:00:01.000Z', null]);
+  });
+
+  it('GET …/revisions (all, and of one design) is, byte for byte, the list of what GET …/revisions/:revisionId answers without its summary', async () => {
+    const one = async (id: number) => {
+      const { summary: _s, ...rest } = (await f.owner.get(`/api/projects/${f.projectId}/revisions/${id}`)).body.revision as Record<string, unknown>;
+      return rest;
+    };
+    const all = await f.owner.get(`/api/projects/${f.projectId}/revisions`);
+    expect(all.status).toBe(200);
+    const singles = [];
+    for (const id of [...f.revisionIds].reverse()) singles.push(await one(id));
+    expect(all.text).toBe(JSON.stringify({ revisions: singles }));
+    const mine = await f.owner.get(`/api/projects/${f.projectId}/revisions?designId=${f.designId}`);
+    expect(mine.text).toBe(JSON.stringify({ revisions: [await one(f.revisionIds[2]!), await one(f.revisionIds[0]!)] }));
+  });
+
+  it('a list statement refuses to run inside a transaction (it would read outside it)', async () => {
+    await expect(env.knex.transaction((trx) => jobsRepo(trx).listForMember(f.projectId, 1, 10))).rejects.toThrow(/not inside a transaction/);
+  });
+
+  it("isoText (PostgreSQL's to_char) writes every instant as a JavaScript Date's toISOString does, whatever the session's time zone", async () => {
+    // instants with 0, 1 and 6 fraction digits, the last microsecond of a millisecond, a leap day, a year below 1000
+    // and one far ahead; written in three zones; compared with pg's own Date parsing + toISOString (server/repositories/db.ts iso)
+    const instants = [
+      '2026-12-02 16:07:18+00', '2026-12-02 16:07:18.5+00', '2026-12-02 16:07:18.123456+00', '2026-12-02 16:07:18.999999+00',
+      '2028-02-29 23:59:59.999999-03:30', '0999-01-01 00:00:00.001+00', '9999-12-31 23:59:59.999999+00', '1970-01-01 00:00:00+00',
+    ];
+    for (const zone of ['UTC', 'America/St_Johns', 'Asia/Kathmandu']) {
+      await env.knex.transaction(async (trx) => {
+        await trx.raw(`SET LOCAL TIME ZONE '${zone}'`);
+        for (const t of instants) {
+          const row = (await trx.raw(`SELECT x AS d, ${isoText('x')} AS s FROM (SELECT ?::timestamptz AS x) q`, [t])).rows[0] as { d: Date; s: string };
+          expect(row.s, `${t} in ${zone}`).toBe(iso(row.d));
+        }
+        const nul = (await trx.raw(`SELECT ${isoText('NULL::timestamptz')} AS s`)).rows[0] as { s: string | null };
+        expect(nul.s).toBeNull();
+      });
+    }
   });
 });
