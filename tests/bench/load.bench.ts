@@ -10,7 +10,8 @@
  * cluster `.data/pg-bench` on a free port, made and started with the same server/ops helpers as the test cluster,
  * with a fresh database, stopped at the end. The server runs in a child process (tests/bench/load-server.ts).
  * All traffic goes to 127.0.0.1; every loop is bounded (a fixed duration or a fixed number of rounds).
- * TETRAWELL_BENCH_LOAD_PARTS=reads (or health) runs one part only.
+ * TETRAWELL_BENCH_LOAD_PARTS=reads (or health) runs one part only. TETRAWELL_BENCH_HEALTH_POLLS=off runs the PUTs
+ * without polling health, for the PUTs' own main-thread CPU (the polls are requests too, ~2 ms each when loaded).
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import { readFileSync } from 'node:fs';
@@ -195,7 +196,6 @@ export async function run(): Promise<void> {
     // the polls cost the main thread too (each one is a request through the whole middleware stack): poll alone for
     // a few seconds first, so the PUTs' own share can be told apart from the polls'
     // (after a warm-up: the first polls compile the middleware stack and cost several times more)
-    await healthPoller(url, 60_000).stop();
     const warmUp = healthPoller(url, 60_000);
     await new Promise((res) => setTimeout(res, 2_000));
     await warmUp.stop();
@@ -215,7 +215,8 @@ export async function run(): Promise<void> {
     const main0 = cpuMs(child.pid!, 'main');
     const split0 = mainThreadCpu(child.pid!);
     await eventLoopDelay(child);
-    const health = healthPoller(url, 600_000);
+    const polling = process.env.TETRAWELL_BENCH_HEALTH_POLLS !== 'off';
+    const health = polling ? healthPoller(url, 600_000) : { stop: async () => [] as number[] };
     await new Promise((res) => setTimeout(res, 500));
     const t0 = performance.now();
     for (let round = 0; round < PUT_ROUNDS; round++) {
@@ -241,7 +242,7 @@ export async function run(): Promise<void> {
     const split1 = mainThreadCpu(child.pid!);
     const eld = await eventLoopDelay(child);
     console.log(`  PUT statuses ${[...new Set(statuses)].join(', ')}; each PUT p50 ${pct(putTimes, 50).toFixed(0)} ms, max ${Math.max(...putTimes).toFixed(0)} ms; all rounds ${putWall.toFixed(0)} ms`);
-    console.log(`  health: ${during.length} polls, p50 ${pct(during, 50).toFixed(1)} ms, p99 ${pct(during, 99).toFixed(1)} ms, max ${Math.max(...during).toFixed(1)} ms`);
+    if (polling) console.log(`  health: ${during.length} polls, p50 ${pct(during, 50).toFixed(1)} ms, p99 ${pct(during, 99).toFixed(1)} ms, max ${Math.max(...during).toFixed(1)} ms`);
     console.log(
       `  server CPU (all threads) ${(cpu / 1000).toFixed(2)} s = ${(cpu / statuses.length).toFixed(0)} ms per PUT, of which the main thread ` +
         `${(mainCpu / statuses.length).toFixed(0)} ms per PUT; main-thread event-loop delay ` +
