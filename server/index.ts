@@ -13,6 +13,7 @@ import type { Express } from 'express';
 import type { Knex } from 'knex';
 import type PgBoss from 'pg-boss';
 import { createKnex } from './db/config';
+import { createHealthProbe } from './db/healthProbe';
 import { createMailer, type Mailer } from './mail/mailer';
 import { DEFAULT_MAIL_QUEUE, mailKey, queuedMailer, startMailDelivery, type MailDelivery } from './mail/queue';
 import { createServices, type Services } from './services';
@@ -114,7 +115,9 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     await delivery?.stop();
     await b?.stop({ graceful: false, wait: true });
   };
-  const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() }, { queue, settings: jobSettings });
+  // GET /api/health asks over a connection of its own, which request traffic cannot hold up (server/db/healthProbe.ts)
+  const healthProbe = createHealthProbe(opts.databaseUrl, { logger });
+  const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() }, { queue, settings: jobSettings }, { databaseUp: healthProbe.up });
 
   // large design bodies are validated and written in a worker thread with a database connection of its own
   const designBodies = createDesignBodyReader({ databaseUrl: opts.databaseUrl });
@@ -150,7 +153,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     });
   } catch (err) {
     sessionStore.close();
-    await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), designBodies.destroy(), stopBoss()]);
+    await Promise.allSettled([knex.destroy(), sessionPool.end(), healthProbe.close(), services.designs.close(), designBodies.destroy(), stopBoss()]);
     smtpMailer.close();
     throw err;
   }
@@ -192,7 +195,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
       await jobWorker?.stop(5_000);
       sessionStore.close();
       // a mail being handed to the SMTP server finishes first (stopBoss waits for it); the rest stays queued
-      await Promise.allSettled([knex.destroy(), sessionPool.end(), services.designs.close(), designBodies.destroy(), stopBoss()]);
+      await Promise.allSettled([knex.destroy(), sessionPool.end(), healthProbe.close(), services.designs.close(), designBodies.destroy(), stopBoss()]);
       smtpMailer.close();
     })());
 

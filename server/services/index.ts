@@ -11,10 +11,14 @@ import { adminService } from './admin';
 import { jobService, type JobDeps } from './jobs';
 import { apiTokenService, notificationService } from './apiTokens';
 
-export function createServices(deps: ServiceDeps, jobDeps: JobDeps) {
+/**
+ * `databaseUp`: the health check's own question to the database (server/db/healthProbe.ts, a connection no other
+ * work can take); without it, a `select 1` through the shared pool.
+ */
+export function createServices(deps: ServiceDeps, jobDeps: JobDeps, opts: { databaseUp?: () => Promise<boolean> } = {}) {
   const designs = designService(deps);
   return {
-    health: { databaseUp: () => ping(deps.db) },
+    health: { databaseUp: opts.databaseUp ?? (() => ping(deps.db)) },
     auth: authService(deps),
     projects: projectService(deps, designs),
     members: memberService(deps),

@@ -10,9 +10,11 @@
  * cluster `.data/pg-bench` on a free port, made and started with the same server/ops helpers as the test cluster,
  * with a fresh database, stopped at the end. The server runs in a child process (tests/bench/load-server.ts).
  * All traffic goes to 127.0.0.1; every loop is bounded (a fixed duration or a fixed number of rounds).
- * TETRAWELL_BENCH_LOAD_PARTS=reads (or health) runs one part only.
+ * TETRAWELL_BENCH_LOAD_PARTS=reads (or health) runs one part only. TETRAWELL_BENCH_HEALTH_POLLS=off runs the PUTs
+ * without polling health, for the PUTs' own main-thread CPU (the polls are requests too, ~2 ms each when loaded).
  */
 import { spawn, type ChildProcess } from 'node:child_process';
+import { readFileSync } from 'node:fs';
 import autocannon from 'autocannon';
 import bcrypt from 'bcryptjs';
 import { startCluster, type Cluster } from '../../server/ops/postgres.mjs';
@@ -123,6 +125,16 @@ function healthPoller(url: string, maxMs: number): { stop(): Promise<number[]> }
   };
 }
 
+/**
+ * The main thread's user and system CPU time (ms) so far: fields 14 and 15 of /proc/<pid>/task/<pid>/stat (proc(5)),
+ * in clock ticks of 1/100 s. System time is the kernel's share: socket reads and writes, page faults.
+ */
+function mainThreadCpu(pid: number): { user: number; system: number } {
+  const stat = readFileSync(`/proc/${pid}/task/${pid}/stat`, 'utf8');
+  const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+  return { user: Number(f[11]) * 10, system: Number(f[12]) * 10 };
+}
+
 function pct(xs: number[], p: number): number {
   const s = [...xs].sort((a, b) => a - b);
   return s.length ? s[Math.min(s.length - 1, Math.floor((p / 100) * s.length))] : NaN;
@@ -181,12 +193,30 @@ export async function run(): Promise<void> {
       const list = (await (await s.send('GET', `/api/projects/${id}/designs`)).json()) as { designs: { id: number }[] };
       designPaths.set(id, `/api/projects/${id}/designs/${list.designs[0].id}`);
     }
+    // the polls cost the main thread too (each one is a request through the whole middleware stack): poll alone for
+    // a few seconds first, so the PUTs' own share can be told apart from the polls'
+    // (after a warm-up: the first polls compile the middleware stack and cost several times more)
+    const warmUp = healthPoller(url, 60_000);
+    await new Promise((res) => setTimeout(res, 2_000));
+    await warmUp.stop();
+    // (counted from before the poller starts: the server does nothing for it until its first poll arrives)
+    const calMain0 = cpuMs(child.pid!, 'main');
+    const calibration = healthPoller(url, 60_000);
+    await new Promise((res) => setTimeout(res, 5_000));
+    const alone = await calibration.stop();
+    const perPoll = (cpuMs(child.pid!, 'main') - calMain0) / Math.max(1, alone.length);
+    console.log(
+      `  health alone first: ${alone.length} polls, p50 ${pct(alone, 50).toFixed(1)} ms, max ${Math.max(...alone).toFixed(1)} ms; ` +
+        `main thread ${perPoll.toFixed(2)} ms CPU per poll`,
+    );
     const putTimes: number[] = [];
     const statuses: number[] = [];
     const cpu0 = cpuMs(child.pid!);
     const main0 = cpuMs(child.pid!, 'main');
+    const split0 = mainThreadCpu(child.pid!);
     await eventLoopDelay(child);
-    const health = healthPoller(url, 600_000);
+    const polling = process.env.TETRAWELL_BENCH_HEALTH_POLLS !== 'off';
+    const health = polling ? healthPoller(url, 600_000) : { stop: async () => [] as number[] };
     await new Promise((res) => setTimeout(res, 500));
     const t0 = performance.now();
     for (let round = 0; round < PUT_ROUNDS; round++) {
@@ -209,13 +239,20 @@ export async function run(): Promise<void> {
     const during = await health.stop();
     const cpu = cpuMs(child.pid!) - cpu0;
     const mainCpu = cpuMs(child.pid!, 'main') - main0;
+    const split1 = mainThreadCpu(child.pid!);
     const eld = await eventLoopDelay(child);
     console.log(`  PUT statuses ${[...new Set(statuses)].join(', ')}; each PUT p50 ${pct(putTimes, 50).toFixed(0)} ms, max ${Math.max(...putTimes).toFixed(0)} ms; all rounds ${putWall.toFixed(0)} ms`);
-    console.log(`  health: ${during.length} polls, p50 ${pct(during, 50).toFixed(1)} ms, p99 ${pct(during, 99).toFixed(1)} ms, max ${Math.max(...during).toFixed(1)} ms`);
+    if (polling) console.log(`  health: ${during.length} polls, p50 ${pct(during, 50).toFixed(1)} ms, p99 ${pct(during, 99).toFixed(1)} ms, max ${Math.max(...during).toFixed(1)} ms`);
     console.log(
       `  server CPU (all threads) ${(cpu / 1000).toFixed(2)} s = ${(cpu / statuses.length).toFixed(0)} ms per PUT, of which the main thread ` +
         `${(mainCpu / statuses.length).toFixed(0)} ms per PUT; main-thread event-loop delay ` +
         `p50 ${eld.p50.toFixed(1)} ms, p99 ${eld.p99.toFixed(1)} ms, max ${eld.max.toFixed(1)} ms (load average ${loadAverage()})`,
+    );
+    const pollShare = perPoll * during.length;
+    console.log(
+      `  main thread: user ${((split1.user - split0.user) / statuses.length).toFixed(0)} ms + system ${((split1.system - split0.system) / statuses.length).toFixed(0)} ms per PUT; ` +
+        // an estimate only (10 ms ticks, and a loaded machine changes the cost per poll): TETRAWELL_BENCH_HEALTH_POLLS=off measures the PUTs alone
+        `the ${during.length} health polls at the cost measured alone account for ~${(pollShare / statuses.length).toFixed(0)} ms of it per PUT`,
     );
     if (eld.gc)
       console.log(

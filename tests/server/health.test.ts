@@ -1,10 +1,13 @@
 /** GET /api/health reports whether the database answers. */
+import net from 'node:net';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import supertest from 'supertest';
+import pg from 'pg';
 import { healthSchema } from '@contracts/api';
 import { start, type RunningServer } from '../../server/index';
 import { silentLogger } from '../../server/config';
-import { startTestEnv, type TestEnv } from './helpers';
+import { createHealthProbe, HEALTH_APPLICATION_NAME } from '../../server/db/healthProbe';
+import { startTestEnv, testDatabaseUrl, type TestEnv } from './helpers';
 
 let env: TestEnv;
 let down: RunningServer;
@@ -36,4 +39,81 @@ describe('health', () => {
     expect(r.status).toBe(404);
     expect(r.body.error.code).toBe('not_found');
   });
+
+  // issue 8, item 7: health asked through the server's Knex pool, so when request work held every connection it
+  // waited for one (up to the pool's 10 s acquire timeout, then 503 with the database up). It has a connection of
+  // its own now (server/db/healthProbe.ts).
+  it('answers 200 at once while other work holds every connection of the server pool', async () => {
+    const knex = env.server.knex;
+    const max = (knex.client as { pool: { max: number } }).pool.max;
+    const held: unknown[] = [];
+    for (let i = 0; i < max; i++) held.push(await knex.client.acquireConnection());
+    try {
+      // well inside the pool's 10 s acquire timeout (server/db/config.ts): a health that waits for the pool fails here
+      const r = await supertest(env.url).get('/api/health').timeout(4_000);
+      expect(r.status).toBe(200);
+      expect(healthSchema.parse(r.body)).toEqual({ ok: true, database: 'up' });
+    } finally {
+      for (const c of held) await knex.client.releaseConnection(c);
+    }
+  });
+});
+
+describe('the health check connection', () => {
+  it('shares one select 1 between the calls that arrive while it is on its way', async () => {
+    const probe = createHealthProbe(testDatabaseUrl());
+    const query = pg.Client.prototype.query;
+    const sent: string[] = [];
+    pg.Client.prototype.query = function (this: pg.Client, ...args: unknown[]) {
+      if (typeof args[0] === 'string') sent.push(args[0]);
+      return (query as (...a: unknown[]) => unknown).apply(this, args);
+    } as typeof query;
+    try {
+      expect(await probe.up()).toBe(true);
+      sent.length = 0;
+      expect(await Promise.all(Array.from({ length: 8 }, () => probe.up()))).toEqual(Array(8).fill(true));
+      expect(sent).toEqual(['select 1']);
+      // and a later call asks again: an answer is never reused once it has arrived
+      expect(await probe.up()).toBe(true);
+      expect(sent).toEqual(['select 1', 'select 1']);
+    } finally {
+      pg.Client.prototype.query = query;
+      await probe.close();
+    }
+  });
+
+  it('connects afresh when its backend is ended (as a database restart does) and answers again', async () => {
+    const probe = createHealthProbe(testDatabaseUrl(), { logger: silentLogger });
+    try {
+      expect(await probe.up()).toBe(true);
+      const pids = await env.knex.raw<{ rows: { pid: number }[] }>(
+        `SELECT pid FROM pg_stat_activity WHERE application_name = ? AND pid <> pg_backend_pid()`,
+        [HEALTH_APPLICATION_NAME],
+      );
+      expect(pids.rows.length).toBeGreaterThan(0);
+      // 57P01 admin_shutdown on those backends, as `pg_ctl -m fast stop` sends (PostgreSQL manual, appendix A)
+      for (const { pid } of pids.rows) await env.knex.raw('SELECT pg_terminate_backend(?)', [pid]);
+      await new Promise((r) => setTimeout(r, 200));
+      expect(await probe.up()).toBe(true);
+    } finally {
+      await probe.close();
+    }
+  });
+
+  it('counts a database that takes the connection but never answers as down within its time limit', async () => {
+    // a TCP server that accepts and stays silent: no startup answer ever comes
+    const sockets: net.Socket[] = [];
+    const silent = net.createServer((s) => sockets.push(s));
+    await new Promise<void>((r) => silent.listen(0, '127.0.0.1', r));
+    const port = (silent.address() as net.AddressInfo).port;
+    const probe = createHealthProbe(`postgres://nobody@127.0.0.1:${port}/none`, { timeoutMs: 300 });
+    try {
+      // bounded by the probe's limit (the test's own 5 s limit fails a check that waits for ever)
+      expect(await probe.up()).toBe(false);
+    } finally {
+      await probe.close();
+      for (const s of sockets) s.destroy();
+      await new Promise((r) => silent.close(r));
+    }
+  }, 5_000);
 });

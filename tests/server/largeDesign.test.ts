@@ -3,10 +3,13 @@
  * the API: such a document is accepted (not 413), stored whole, and refused with the same 400/422 answers as a
  * small one when it is wrong. Timings are not asserted here: tests/bench/load.bench.ts prints them.
  */
+import http from 'node:http';
+import { MessagePort } from 'node:worker_threads';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { errorBodySchema } from '@contracts/api';
 import { designSchema, MAX_SITES } from '@contracts/design';
 import { computeFigures } from '../../server/workers/designFigures';
+import { ANSWER_PIECE_BYTES } from '../../server/routes/designs';
 import { newUser, startTestEnv, type TestClient, type TestEnv } from './helpers';
 
 let env: TestEnv;
@@ -235,6 +238,71 @@ describe('a design at the site limit', () => {
     expect(r.body.design.document.sites).toHaveLength(20_000);
     // (the answer is written in pieces too; the test client's own reading may join below 1 MB)
     expect(largest).toBeLessThan(1024 * 1024);
+  });
+
+  // issue 8, item 7: the answer's document went to the socket in one write (one writev(2) of megabytes, during which
+  // the request thread served nothing else); it goes in pieces now (server/routes/designs.ts, ANSWER_PIECE_BYTES)
+  it('writes the answer of a large save in pieces of at most 256 KiB, and the answer is whole', async () => {
+    const cur = await current();
+    const document = bigDesign(cur.design, 20_000);
+    const original = http.ServerResponse.prototype.write;
+    const pieces: number[] = [];
+    http.ServerResponse.prototype.write = function (this: http.ServerResponse, chunk: unknown, ...rest: unknown[]) {
+      if (typeof chunk === 'string' || chunk instanceof Uint8Array) pieces.push(Buffer.byteLength(chunk as string));
+      return (original as (...a: unknown[]) => boolean).call(this, chunk, ...rest);
+    } as typeof original;
+    let r;
+    try {
+      r = await owner.client.put(cur.path, { document, version: cur.version });
+    } finally {
+      http.ServerResponse.prototype.write = original;
+    }
+    expect(r.status).toBe(200);
+    expect(Number(r.headers['content-length'])).toBe(Buffer.byteLength(r.text, 'utf8'));
+    expect(r.body.design.version).toBe(cur.version + 1);
+    expect(r.body.design.document.sites).toHaveLength(20_000);
+    expect((await owner.client.get(cur.path)).body.design.document).toEqual(r.body.design.document);
+    // ~3.4 MB of document: a dozen pieces or more, none above the piece size
+    expect(pieces.length).toBeGreaterThan(10);
+    expect(Math.max(...pieces)).toBeLessThanOrEqual(ANSWER_PIECE_BYTES);
+  });
+
+  // issue 8, item 7: each body piece was structured-cloned into the worker's port (a second copy of the 17 MB body
+  // and 17 MB of external memory per body on the request thread, until a collection swept it); Node's HTTP parser
+  // gives every piece an ArrayBuffer of its own, so the pieces are now transferred (server/http/designBody.ts)
+  it('the request thread transfers the body pieces to the worker instead of copying them', async () => {
+    const cur = await current();
+    const document = bigDesign(cur.design, 20_000);
+    const original = MessagePort.prototype.postMessage;
+    let transferred = 0;
+    let copied = 0;
+    let detachedAfter = 0;
+    MessagePort.prototype.postMessage = function (this: MessagePort, value: unknown, transfer?: unknown) {
+      const list = Array.isArray(transfer) ? transfer : [];
+      const isPiece = value instanceof Uint8Array;
+      const r = original.call(this, value, transfer as never);
+      if (isPiece) {
+        if (list.includes(value.buffer)) transferred += 1;
+        else copied += 1;
+        // a transferred ArrayBuffer is detached on this side: the bytes left with the message
+        if (value.byteLength === 0) detachedAfter += 1;
+      }
+      return r;
+    } as typeof MessagePort.prototype.postMessage;
+    let r;
+    try {
+      r = await owner.client.put(cur.path, { document, version: cur.version });
+    } finally {
+      MessagePort.prototype.postMessage = original;
+    }
+    expect(r.status).toBe(200);
+    expect(r.body.design.version).toBe(cur.version + 1);
+    expect(r.body.design.document.sites).toHaveLength(20_000);
+    expect(r.body.design.document.sites[19_999].id).toBe('site-19999');
+    // a 20,000-site body is ~3.4 MB: dozens of pieces of at most 64 KiB, every one handed over, none copied
+    expect(transferred).toBeGreaterThan(10);
+    expect(copied).toBe(0);
+    expect(detachedAfter).toBe(transferred);
   });
 });
 
