@@ -101,6 +101,11 @@ function accountAndAddress(req: express.Request): string {
   return `${ipKeyGenerator(req.ip ?? '')}|${email}`;
 }
 
+/** GET or HEAD /api/health exactly as routed (its answer depends on the database alone, never on a session) */
+function isHealthPoll(req: express.Request): boolean {
+  return (req.method === 'GET' || req.method === 'HEAD') && req.path === '/api/health';
+}
+
 /** The (method, path) pairs registered on the API router: lets tests prove they cover every route. */
 function listRoutes(router: Router): ApiRoute[] {
   const out: ApiRoute[] = [];
@@ -149,7 +154,13 @@ export function createApp(deps: AppDeps): Express {
 
   // the jobs and revisions lists polled while jobs run: the signed-in account from one query, then straight on
   // (express-session and passport skipped; same answers, see sessionFreeReads); every other request as below
-  const skipIfSessionFree = deps.sessionFree?.unlessSessionFree ?? ((h: RequestHandler) => h);
+  // and /api/health, polled by load balancers and the studio, needs no session at all: without this a signed-in
+  // poll read its session row and an anonymous one had a session id made for it (issue 8, item 7)
+  const unlessSessionFree = deps.sessionFree?.unlessSessionFree ?? ((h: RequestHandler) => h);
+  const skipIfSessionFree = (h: RequestHandler): RequestHandler => {
+    const usual = unlessSessionFree(h);
+    return (req, res, next) => (isHealthPoll(req) ? next() : usual(req, res, next));
+  };
   if (deps.sessionFree) app.use(deps.sessionFree.sessionFreeReads({ cookieName: SESSION_COOKIE, secrets: [deps.sessionSecret], paths: SESSION_FREE_READS }));
   app.use(
     skipIfSessionFree(session({

@@ -7,7 +7,7 @@ import { healthSchema } from '@contracts/api';
 import { start, type RunningServer } from '../../server/index';
 import { silentLogger } from '../../server/config';
 import { createHealthProbe, HEALTH_APPLICATION_NAME } from '../../server/db/healthProbe';
-import { startTestEnv, testDatabaseUrl, type TestEnv } from './helpers';
+import { newUser, startTestEnv, testDatabaseUrl, type TestEnv } from './helpers';
 
 let env: TestEnv;
 let down: RunningServer;
@@ -55,6 +55,26 @@ describe('health', () => {
       expect(healthSchema.parse(r.body)).toEqual({ ok: true, database: 'up' });
     } finally {
       for (const c of held) await knex.client.releaseConnection(c);
+    }
+  });
+
+  // issue 8, item 7: a health poll went through express-session and passport like any request (a signed-in browser's
+  // poll read its session row first; an anonymous one had a session made for it), a few ms of request-thread time
+  // per poll while big PUTs run. Health needs no session: it is answered before them, so a locked session table
+  // (here: another transaction holding an exclusive lock on it) cannot delay it.
+  it('answers a signed-in poll without reading the session table', async () => {
+    const { client } = await newUser(env, 'health');
+    expect((await client.get('/api/account/tokens')).status).toBe(200);
+    const trx = await env.server.knex.transaction();
+    try {
+      await trx.raw('LOCK TABLE sessions IN ACCESS EXCLUSIVE MODE');
+      // the session-reading path waits for the lock until the transaction ends: it fails this timeout
+      const r = await client.agent.get('/api/health').timeout(3_000);
+      expect(r.status).toBe(200);
+      expect(healthSchema.parse(r.body)).toEqual({ ok: true, database: 'up' });
+      expect(r.headers['set-cookie']).toBeUndefined();
+    } finally {
+      await trx.rollback();
     }
   });
 });
