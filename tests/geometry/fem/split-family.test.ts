@@ -1,12 +1,14 @@
 /**
- * The split's nested meshes near electrode edges (coulomb-plan.ts splitFamily): a given
- * electrodeEdgeNm is the finest level's edge size and the coarser levels scale it with the level,
- * so each level is really coarser at the edges (the size rule: sizefield.ts ElectrodeEdgeSpec).
+ * The split's and the lever arms' nested meshes near electrode edges (coulomb-plan.ts splitFamily,
+ * lever.ts leverFamily): a given electrodeEdgeNm is the finest level's edge size and the coarser
+ * levels scale it with the level, so each level is really coarser at the edges (the size rule:
+ * sizefield.ts ElectrodeEdgeSpec).
  * The design is an invented example: one Gaussian donor under a 2 nm oxide and a gate.
  */
 import { describe, expect, it } from 'vitest';
 import type { Design } from '../../../geometry/design/types';
 import { activeSites, splitFamily } from '../../../geometry/fem/coulomb-plan';
+import { leverFamily } from '../../../geometry/fem/lever';
 import { electrodeEdgeSegments } from '../../../geometry/mesh/device';
 import { checkMesh } from '../../../geometry/mesh/check';
 import type { TetMesh } from '../../../geometry/mesh/types';
@@ -71,5 +73,26 @@ describe('split family with a given electrode-edge size', () => {
     expect(at[1]).toBeGreaterThan(hE);
     expect(meshes[0].coords.length).toBeLessThan(meshes[1].coords.length);
     expect(meshes[1].coords.length).toBeLessThan(meshes[2].coords.length);
+  });
+});
+
+describe('lever-arm family with a given electrode-edge size', () => {
+  it('levels are nested refinements of one base, bisected towards the edges down to h_E·4, h_E·2, h_E', () => {
+    const hE = 0.5;
+    const meshes = leverFamily(design, 2, 3, { electrodeEdgeNm: hE, electrodeEdgeExponent: 1 });
+    expect(meshes.length).toBe(3);
+    const seg = electrodeEdgeSegments(design);
+    const at = meshes.map((m) => longestAtEdges(m, seg));
+    meshes.forEach((m, l) => {
+      expect(checkMesh(m).ok).toBe(true);
+      expect(at[l]).toBeLessThanOrEqual(hE * Math.pow(2, 2 - l) * (1 + 1e-12));
+    });
+    expect(at[0]).toBeGreaterThan(2 * hE);
+    // nested: refinement only adds vertices, and the coarser level's vertices come first, unchanged
+    for (let l = 1; l < 3; l++) {
+      const c = meshes[l - 1].coords, f = meshes[l].coords;
+      expect(f.length).toBeGreaterThan(c.length);
+      expect(Array.from(f.subarray(0, c.length))).toEqual(Array.from(c));
+    }
   });
 });
