@@ -198,12 +198,27 @@ export function splitCoreSize(design: Design, sites: ActiveSite[], order: 1 | 2)
 /**
  * The nested meshes of the split: a priori meshes with core sizes H, 2H, 4H, … (H =
  * splitCoreSize) and the size cap H near the sites' depth wherever a device is present, kept
- * only when really coarser (as gradedFamily), finest last.
+ * only when really coarser (as gradedFamily), finest last. A given `electrodeEdgeNm` is the
+ * finest level's electrode-edge size, × 2, 4, … on the coarser levels.
+ *
+ * Measured on the issue-11 device bench (2×2 array, P2, tol 1e-3; sizefield.ts ElectrodeEdgeSpec):
+ * the default edge sizes 20/10/5 nm start pre-asymptotic (observed rate ~1.5 in s, safety factor
+ * 3, estimated 2.7e-3, 6 s CPU); `electrodeEdgeNm: 1.25, electrodeEdgeExponent: 1` (5/2.5/1.25 nm)
+ * gives observed rates 2.97–3.0 with factor 1.25 for every number, estimated 1.0e-4, for 28.5 s.
  */
 export function splitFamily(design: Design, sites: ActiveSite[], order: 1 | 2, levels: number, meshOpts: MeshDesignOptions): TetMesh[] {
   const H = splitCoreSize(design, sites, order) * (meshOpts.h0Factor ?? 1);
   const device = hasDevice(design);
-  const opts = (f: number): MeshDesignOptions => ({ order, ...meshOpts, h0Nm: H * f, ...(device ? { hmaxNm: Math.max(H * f, meshOpts.hmaxNm ?? 0) } : {}) });
+  // a given electrode-edge size is the finest level's; coarser levels scale it like the core size
+  // (the same size on every level made them no coarser near the edges, so none was kept)
+  const edge = meshOpts.electrodeEdgeNm;
+  const opts = (f: number): MeshDesignOptions => ({
+    order,
+    ...meshOpts,
+    h0Nm: H * f,
+    ...(device ? { hmaxNm: Math.max(H * f, meshOpts.hmaxNm ?? 0) } : {}),
+    ...(edge !== undefined ? { electrodeEdgeNm: edge * f } : {}),
+  });
   const finest = meshDesign(design, { ...opts(1), keepBisectionMesh: true });
   const out: TetMesh[] = [finest.mesh];
   for (let f = 2; out.length < levels && f <= 64; f *= 2) {

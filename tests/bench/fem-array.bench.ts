@@ -14,11 +14,16 @@
  * level and the estimated errors of each part.
  * TETRAWELL_BENCH_ARRAY_PARTS = comma list of homogeneous, full, device (default all three);
  * TETRAWELL_BENCH_DEVICE_TARGET = the device's target (default 1e-3, the homogeneous figure's);
- * TETRAWELL_BENCH_DEVICE_N = the array's side (default 10; 2 for a quick look).
+ * TETRAWELL_BENCH_DEVICE_N = the array's side (default 10; 2 for a quick look);
+ * TETRAWELL_BENCH_DEVICE_EDGE_NM, TETRAWELL_BENCH_DEVICE_EDGE_EXPONENT = the finest U/V level's
+ * electrode-edge size and grading exponent (sizefield.ts; default hmax/4 and 1 − (3/4)(2/3)/p).
+ * Also prints the rates the U/V error bars used (observed or theoretical, and how many got the
+ * asymptotic safety factor) and the observed rate of the lever arm with the worst bar.
  */
 import { loadavg } from 'node:os';
 import { solveCoulomb } from '../../geometry/fem/coulomb';
 import { solveLeverArms } from '../../geometry/fem/lever';
+import { GCI_SAFETY_OBSERVED, observedRate } from '../../geometry/fem/errorbars';
 import type { Design } from '../../geometry/design/types';
 import { siliconOxideVacuum } from '../fixtures/stacks';
 
@@ -86,12 +91,24 @@ export function buriedArray(n: number, target: number): Design {
   };
 }
 
+/** min–max of the rates the error bars used and how many numbers had the asymptotic safety factor (errorbars.ts) */
+function rateSummary(budgets: { rate: number; rateSource: string; safetyFactor: number }[]): string {
+  const rates = budgets.map((b) => b.rate);
+  const asymptotic = budgets.filter((b) => b.safetyFactor === GCI_SAFETY_OBSERVED).length;
+  const observed = budgets.filter((b) => b.rateSource === 'observed').length;
+  return `rates ${Math.min(...rates).toFixed(2)}–${Math.max(...rates).toFixed(2)} (observed for ${observed}/${budgets.length}, safety factor ${GCI_SAFETY_OBSERVED} for ${asymptotic})`;
+}
+
 function device(n: number, target: number): void {
   const d = buriedArray(n, target);
+  // TETRAWELL_BENCH_DEVICE_EDGE_NM / _EDGE_EXPONENT: the finest level's electrode-edge size and β_E (sizefield.ts), for trials
+  const edgeNm = process.env.TETRAWELL_BENCH_DEVICE_EDGE_NM ? Number(process.env.TETRAWELL_BENCH_DEVICE_EDGE_NM) : undefined;
+  const edgeExp = process.env.TETRAWELL_BENCH_DEVICE_EDGE_EXPONENT ? Number(process.env.TETRAWELL_BENCH_DEVICE_EDGE_EXPONENT) : undefined;
+  const mesh = { ...(edgeNm !== undefined ? { electrodeEdgeNm: edgeNm } : {}), ...(edgeExp !== undefined ? { electrodeEdgeExponent: edgeExp } : {}) };
   const la = loadavg()[0];
   const c0 = process.cpuUsage();
   const t0 = performance.now();
-  const r = solveCoulomb(d, { pairs: 'bond-graph' });
+  const r = solveCoulomb(d, { pairs: 'bond-graph', mesh });
   const c1 = process.cpuUsage(c0);
   const t1 = performance.now();
   const lv = solveLeverArms(d);
@@ -104,10 +121,15 @@ function device(n: number, target: number): void {
     `${n}×${n} under oxide, ${r.method}: sites ${r.sites.length}, bond pairs ${r.pairs.length}, U/V unknowns ${r.levels.map((l) => l.dofs).join('/')}; ` +
       `estimated ${r.estimatedRelError.toExponential(2)} (meets ${target}: ${r.meetsTarget}); wall ${((t1 - t0) / 1000).toFixed(1)} s, CPU ${cpu(c1).toFixed(1)} s`,
   );
+  console.log(`  U/V error bars: ${rateSummary([...r.sites.map((x) => x.budget), ...r.pairs.map((x) => x.budget)])}`);
   console.log(
     `  lever arms: ${lv.leverArms.length} (sites × 2 gates), P${lv.order}, tets ${lv.levels.map((l) => l.elements).join('/')}, dofs ${lv.levels.map((l) => l.dofs).join('/')}; ` +
       `worst error bar ${worstLever.toPrecision(2)} meV/V (relative ${worstRelLever.toExponential(2)}); wall ${((t2 - t1) / 1000).toFixed(1)} s, CPU ${(cpu(c2) - cpu(c1)).toFixed(1)} s`,
   );
+  // observed rate (errorbars.ts observedRate, s = dofs^(−1/3)) of the lever arm with the worst bar
+  const kWorst = lv.leverArms.findIndex((a) => a.errorMeVPerV === worstLever);
+  const sLever = lv.levels.map((l) => Math.pow(l.dofs, -1 / 3));
+  console.log(`  worst lever arm per level ${lv.levels.map((l) => l.meVPerV[kWorst].toFixed(4)).join(' / ')} meV/V, observed rate ${observedRate(sLever, lv.levels.map((l) => l.meVPerV[kWorst])).toFixed(2)}`);
   console.log(
     `  device total: wall ${((t2 - t0) / 1000).toFixed(1)} s, CPU ${cpu(c2).toFixed(1)} s; load average ${la.toFixed(1)} at the start, ${loadavg()[0].toFixed(1)} at the end (target ≤ 60 s on one core for 10×10)`,
   );

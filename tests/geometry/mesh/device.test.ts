@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import type { Design } from '../../../geometry/design/types';
-import { meshDesign, kuhnBox, refineUniform, toTetMesh, ELECTRODE_REGION, NO_ELECTRODE, deviceGrid, chooseInitialCells, estimateDesignElements } from '../../../geometry/mesh/index';
+import { meshDesign, kuhnBox, refineUniform, toTetMesh, ELECTRODE_REGION, NO_ELECTRODE, deviceGrid, chooseInitialCells, estimateDesignElements, SizeField, sizeFieldFromDesign } from '../../../geometry/mesh/index';
 import { checkMesh } from '../../../geometry/mesh/check';
 import { encodeMeshBinary, decodeMeshBinary } from '../../../geometry/mesh/export/binary';
 import { electrodeEdgeSegments } from '../../../geometry/mesh/device';
@@ -238,3 +238,60 @@ function longestEdge(c: Float64Array, tets: Uint32Array, t: number): number {
   }
   return L;
 }
+
+describe('electrode-edge size and grading given directly', () => {
+  const d = gatedDesign(2);
+  const seg = electrodeEdgeSegments(d);
+  /** distance from a point to the nearest edge segment (segments are axis-aligned boxes) */
+  const edgeDist = (x: number, y: number, z: number): number => {
+    let best = Infinity;
+    for (let k = 0; k < seg.length; k += 6) {
+      const p = [x, y, z];
+      let q = 0;
+      for (let a = 0; a < 3; a++) {
+        const g = Math.max(0, p[a] - Math.max(seg[k + a], seg[k + 3 + a]), Math.min(seg[k + a], seg[k + 3 + a]) - p[a]);
+        q += g * g;
+      }
+      best = Math.min(best, Math.sqrt(q));
+    }
+    return best;
+  };
+
+  it('electrodeEdgeNm and electrodeEdgeExponent set h_E and β_E; β_E = 1 gives h = min(hmax, max(h_E, d)) (the rule of ElectrodeEdgeSpec)', () => {
+    const { spec, params } = sizeFieldFromDesign(d, { electrodeEdgeNm: 0.5, electrodeEdgeExponent: 1, h0Nm: 100 });
+    expect(params.electrodeEdges!.hNm).toBe(0.5);
+    expect(params.electrodeEdges!.exponent).toBe(1);
+    expect(params.electrodeEdges!.rule).toContain('0.5 nm (given)');
+    const f = new SizeField(spec);
+    for (const [x, y, z] of [[3, 3, 2], [3.2, 3, 2], [4, 0, 2], [5, 5, 5], [0, 0, 8], [9, 9, -9]]) {
+      const dist = edgeDist(x, y, z);
+      expect(f.valueAt(x, y, z)).toBeCloseTo(Math.min(params.hmaxNm, Math.max(0.5, dist)), 12);
+    }
+  });
+
+  it('defaults are unchanged (h_E = hmax/4, β_E = 3/4 for P2) and an exponent above 1 or a size ≤ 0 is refused', () => {
+    const base = sizeFieldFromDesign(d).params.electrodeEdges!;
+    expect(base.hNm).toBeCloseTo(sizeFieldFromDesign(d).params.hmaxNm / 4, 12);
+    expect(base.exponent).toBeCloseTo(0.75, 12);
+    expect(() => sizeFieldFromDesign(d, { electrodeEdgeExponent: 1.5 })).toThrow(MeshError);
+    expect(() => sizeFieldFromDesign(d, { electrodeEdgeNm: 0 })).toThrow(MeshError);
+  });
+
+  it('a smaller given h_E refines only near the edges: tets touching an edge are no longer than it, and the mesh stays valid', () => {
+    const r = meshDesign(d, { electrodeEdgeNm: 0.4, electrodeEdgeExponent: 1 });
+    const m = r.mesh;
+    expect(checkMesh(m).ok).toBe(true);
+    let maxNear = 0;
+    const nT = m.tets.length / 4;
+    for (let t = 0; t < nT; t++) {
+      let touches = false;
+      for (let i = 0; i < 4 && !touches; i++) {
+        const v = 3 * m.tets[4 * t + i];
+        touches = edgeDist(m.coords[v], m.coords[v + 1], m.coords[v + 2]) === 0;
+      }
+      if (touches) maxNear = Math.max(maxNear, longestEdge(m.coords, m.tets, t));
+    }
+    expect(maxNear).toBeGreaterThan(0);
+    expect(maxNear).toBeLessThanOrEqual(0.4 * (1 + 1e-12));
+  });
+});
