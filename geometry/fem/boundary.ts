@@ -98,26 +98,43 @@ export function layeredBoundaryValues(
     for (let i = 1; i < moments.length; i++) if (moments[i] !== 0) higher = true;
     if (higher) return layeredMultipoleValues(stack, center, moments, order, dofCoords, mask);
   }
-  const n = mask.length;
-  const g = new Float64Array(n);
-  const cache = new Map<number, ImageSeries>();
+  const g = new Float64Array(mask.length);
   let tail = 0;
-  for (let i = 0; i < n; i++) {
+  const code = eachWallDof(stack, center[2], dofCoords, mask, (i, _z, series) => {
+    tail = Math.max(tail, series.tailBound);
+    g[i] = seriesAt(series, Math.hypot(dofCoords[3 * i] - center[0], dofCoords[3 * i + 1] - center[1]));
+  });
+  return code === null ? { g, tailBound: tail } : { g: null, code };
+}
+
+/**
+ * Calls `visit` for every dof with `mask` set, with its height (nudged ON_INTERFACE_NM below an
+ * interface it sits on) and the stack's image series for a source at `sourceZ` seen at that
+ * height (one series per height, kept). Returns null, or the host's finding code when the stack
+ * has no series (then some dofs were not visited).
+ */
+function eachWallDof(
+  stack: PlanarStack,
+  sourceZ: number,
+  dofCoords: Float64Array,
+  mask: Uint8Array,
+  visit: (i: number, z: number, series: ImageSeries) => void,
+): string | null {
+  const cache = new Map<number, ImageSeries>();
+  for (let i = 0; i < mask.length; i++) {
     if (!mask[i]) continue;
     let z = dofCoords[3 * i + 2];
     if (regionOf(stack, z) < 0) z -= 2 * ON_INTERFACE_NM;
     let series = cache.get(z);
     if (!series) {
-      const r = imageSeries(stack, center[2], z);
-      if (!r.series) return { g: null, code: r.findings[0]?.code ?? 'no-series' };
+      const r = imageSeries(stack, sourceZ, z);
+      if (!r.series) return r.findings[0]?.code ?? 'no-series';
       series = r.series;
       cache.set(z, series);
-      tail = Math.max(tail, series.tailBound);
     }
-    const s = Math.hypot(dofCoords[3 * i] - center[0], dofCoords[3 * i + 1] - center[1]);
-    g[i] = seriesAt(series, s);
+    visit(i, z, series);
   }
-  return { g, tailBound: tail };
+  return null;
 }
 
 export type LayeredWalls = { g: Float64Array; tailBound: number } | { g: null; code: string };
@@ -172,21 +189,9 @@ export function layeredMultipoleValues(
   }
   const q0 = copy[0];
   const ih = new Float64Array(nh);
-  const n = mask.length;
-  const g = new Float64Array(n);
-  const cache = new Map<number, ImageSeries>();
+  const g = new Float64Array(mask.length);
   let tail = 0;
-  for (let i = 0; i < n; i++) {
-    if (!mask[i]) continue;
-    let z = dofCoords[3 * i + 2];
-    if (regionOf(stack, z) < 0) z -= 2 * ON_INTERFACE_NM;
-    let series = cache.get(z);
-    if (!series) {
-      const r = imageSeries(stack, center[2], z);
-      if (!r.series) return { g: null, code: r.findings[0]?.code ?? 'no-series' };
-      series = r.series;
-      cache.set(z, series);
-    }
+  const code = eachWallDof(stack, center[2], dofCoords, mask, (i, z, series) => {
     const dx = dofCoords[3 * i] - center[0];
     const dy = dofCoords[3 * i + 1] - center[1];
     const s2 = dx * dx + dy * dy;
@@ -218,6 +223,6 @@ export function layeredMultipoleValues(
     }
     g[i] = series.scale * sum;
     tail = Math.max(tail, Math.abs(q0) * series.tailBound + skipped);
-  }
-  return { g, tailBound: tail };
+  });
+  return code === null ? { g, tailBound: tail } : { g: null, code };
 }
