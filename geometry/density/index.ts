@@ -25,6 +25,11 @@ export function radialPotential(orbital: Orbital, r: number): number | null {
   return orbitalModel(orbital).radialPotential(orbital, r);
 }
 
+/** Charge of the unit density within radius r of its centre for a spherical model; NaN for a model without a radial form. */
+export function enclosedCharge(orbital: Orbital, r: number): number {
+  return orbitalModel(orbital).enclosedCharge(orbital, r) ?? Number.NaN;
+}
+
 /** Exact free-space potential (εr = 1, unit charge, nm⁻¹) of the orbital centred at `center`. */
 export function potentialAt(orbital: Orbital, center: Vec3, x: number, y: number, z: number): number {
   return orbitalModel(orbital).potential(orbital, x - center[0], y - center[1], z - center[2]);

@@ -1,7 +1,6 @@
 /**
  * The registry of orbital models: one entry per `Orbital['model']` of the design document, and
- * the only place in the core (outside the Coulomb solver files still to be converted) that asks
- * which model an orbital is. Everything else asks the entry: its density, closed-form potential
+ * the only place in the core that asks which model an orbital is. Everything else asks the entry: its density, closed-form potential
  * (null where none exists), self- and pair energies, moments, tails, and lengths.
  *
  *   hydrogenic-1s   ρ = exp(−2r/a) / (π a³)                         a = radiusNm
@@ -84,6 +83,8 @@ export interface OrbitalModel<M extends OrbitalModelName = OrbitalModelName> {
   radialPotential(o: OrbitalOf<M>, r: number): number | null;
   /** exact free-space potential at offset (dx, dy, dz) */
   potential(o: OrbitalOf<M>, dx: number, dy: number, dz: number): number;
+  /** Q(r): charge of the unit density within radius r of its centre, for a spherical model (∇φ = −Q(r)/r² r̂, Gauss's law); null otherwise */
+  enclosedCharge(o: OrbitalOf<M>, r: number): number | null;
   /** 1/r − φ(r) (r > 0) of a spherical model: what a multipole expansion of any order leaves out; null otherwise */
   penetratingPotential(o: OrbitalOf<M>, r: number): number | null;
   /** ∫∫ρρ′/|x − x′| (εr = 1, nm⁻¹) */
@@ -133,6 +134,32 @@ function gaussianPotential(s: number, r: number): number {
 
 const sphericalMoment = (l: number) => (l === 0 ? 1 : 0);
 
+/** Beyond these (t = 2r/a for 1s, w = r/(σ√2) for a Gaussian) the enclosed charge is 1 to double precision. */
+const ENCLOSED_ONE_T = 50;
+const ENCLOSED_ONE_W = 7;
+/** From this t on the 1s enclosed charge takes one exponential (see hydrogenicEnclosed). */
+const ENCLOSED_ONE_EXP_T = 2;
+
+/** Q(r) = 1 − e^{−t}(1 + t + t²/2), t = 2r/a: the 1s charge within r (integrate 4πr²ρ; standard). */
+function hydrogenicEnclosed(a: number, r: number): number {
+  const t = (2 * r) / a;
+  // beyond t = 50 the tail e^{−t}(1 + t + t²/2) < 1e-18 is below double precision: Q = 1 exactly
+  // in floating point, without the two exponentials (the split's reaction right-hand side's hot loop)
+  if (t > ENCLOSED_ONE_T) return 1;
+  // one exponential where 1 − e^{−t}(1 + t + t²/2) cancels little (Q ≥ 0.08 for t ≥ 2: the
+  // rounding of the subtraction stays below 3e-16 absolute); expm1 keeps the small-t digits
+  if (t >= ENCLOSED_ONE_EXP_T) return 1 - Math.exp(-t) * (1 + t + 0.5 * t * t);
+  return -Math.expm1(-t) - Math.exp(-t) * (t + 0.5 * t * t);
+}
+
+/** Q(r) = erf(w) − (2/√π) w e^{−w²}, w = r/(σ√2): the Gaussian charge within r (standard). */
+function gaussianEnclosed(s: number, r: number): number {
+  const w = r / (s * SQRT2);
+  // beyond w = 7, erfc(w) + (2/√π) w e^{−w²} < 1e-20: Q = 1 in double precision
+  if (w > ENCLOSED_ONE_W) return 1;
+  return erf(w) - (2 / SQRT_PI) * w * Math.exp(-w * w);
+}
+
 const hydrogenic: OrbitalModel<'hydrogenic-1s'> = {
   model: 'hydrogenic-1s',
   profile: 'exp',
@@ -155,6 +182,7 @@ const hydrogenic: OrbitalModel<'hydrogenic-1s'> = {
   },
   radialPotential: (o, r) => hydrogenicPotential(o.radiusNm, r),
   potential: (o, dx, dy, dz) => hydrogenicPotential(o.radiusNm, Math.sqrt(dx * dx + dy * dy + dz * dz)),
+  enclosedCharge: (o, r) => hydrogenicEnclosed(o.radiusNm, r),
   penetratingPotential: (o, d) => (1 / o.radiusNm + 1 / d) * Math.exp((-2 * d) / o.radiusNm),
   /** 5/(8a): the first-order helium integral, 5/8 Hartree at a = a₀ (Griffiths, Introduction to Quantum Mechanics, the helium ground state, §7.2 in the 2nd edition; section number from memory) */
   selfEnergy: (o) => 5 / (8 * o.radiusNm),
@@ -200,6 +228,7 @@ const anisotropic: OrbitalModel<'anisotropic-1s'> = {
   },
   radialPotential: () => null,
   potential: (o, dx, dy, dz) => anisotropicPotential(o.radiusNm, o.radiusZNm, dx, dy, dz),
+  enclosedCharge: () => null,
   penetratingPotential: () => null,
   /** (5/8)·G(a/b)/b: the stretch of the hydrogenic result (anisotropic.ts stretchFactor) */
   selfEnergy: (o) => ((5 / 8) * stretchFactor(o.radiusNm / o.radiusZNm)) / o.radiusZNm,
@@ -232,6 +261,7 @@ const gaussian: OrbitalModel<'gaussian'> = {
   },
   radialPotential: (o, r) => gaussianPotential(o.sigmaNm, r),
   potential: (o, dx, dy, dz) => gaussianPotential(o.sigmaNm, Math.sqrt(dx * dx + dy * dy + dz * dz)),
+  enclosedCharge: (o, r) => gaussianEnclosed(o.sigmaNm, r),
   penetratingPotential: (o, d) => erfc(d / (o.sigmaNm * SQRT2)) / d,
   /** 1/(σ√π): standard result for a Gaussian charge (its potential at the centre is √(2/π)/σ, halved by the convolution) */
   selfEnergy: (o) => 1 / (o.sigmaNm * SQRT_PI),

@@ -42,7 +42,7 @@
  */
 import type { Boundary, Electrode, HostLayer, Orbital, Vec3 } from '../design/types';
 import { hostStack, imageSeries, layeredEnergy, type HostCode, type HostFinding, type ImageOptions, type ImageSeries, type LayeredEnergy, type PlanarStack } from '../host';
-import { orbitalScale, pairEnergy, radialPotential, selfEnergy } from '../density';
+import { orbitalModel, orbitalScale, pairEnergy, radialPotential, selfEnergy } from '../density';
 import { COULOMB_EV_NM } from '../units';
 import { neglectedEnvelope, type Envelope } from './envelope';
 
@@ -254,7 +254,7 @@ export interface SiteProfile {
  */
 export function siteProfile(o: Orbital, boundary: Boundary): SiteProfile {
   const grounded = neglectedEnvelope(o, { kind: 'grounded' });
-  const spherical = o.model !== 'anisotropic-1s';
+  const spherical = orbitalModel(o).spherical;
   const order = boundary.kind === 'multipole' ? boundary.order : 0;
   return {
     upper: spherical ? (d) => radialPotential(o, Math.max(d, 0)) as number : grounded,

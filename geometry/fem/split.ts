@@ -35,7 +35,7 @@
  *   Gaussian:      Q = erf(w) − (2/√π) w e^{−w²},  w = r/(σ√2)  (standard)
  */
 import type { Orbital, Vec3 } from '../design/types';
-import { erf, pairEnergy, potentialAt, radialPotential, selfEnergy } from '../density';
+import { orbitalModel, pairEnergy, potentialAt, radialPotential, selfEnergy, type OrbitalModel } from '../density';
 import type { TetMesh } from '../mesh/types';
 import { GEOM_SIZE, mapBary, p2GradientsBary, tetGeometry, tetQuadrature } from './reference';
 import type { FeSpace } from './space';
@@ -59,35 +59,11 @@ export function freeSelfEnergy(orbital: Orbital): number {
   return selfEnergy(orbital);
 }
 
-/** Beyond these (t = 2r/a for 1s, w = r/(σ√2) for a Gaussian) the enclosed charge is 1 to double precision. */
-const ENCLOSED_ONE_T = 50;
-const ENCLOSED_ONE_W = 7;
-/** From this t on the 1s enclosed charge takes one exponential (see enclosedCharge). */
-const ENCLOSED_ONE_EXP_T = 2;
-
-/** Charge of the unit density within radius r of its centre (spherical models; NaN otherwise). */
-export function enclosedCharge(orbital: Orbital, r: number): number {
-  switch (orbital.model) {
-    case 'hydrogenic-1s': {
-      const t = (2 * r) / orbital.radiusNm;
-      // beyond t = 50 the tail e^{−t}(1 + t + t²/2) < 1e-18 is below double precision: Q = 1 exactly
-      // in floating point, without the two exponentials (the reaction right-hand side's hot loop)
-      if (t > ENCLOSED_ONE_T) return 1;
-      // one exponential where 1 − e^{−t}(1 + t + t²/2) cancels little (Q ≥ 0.08 for t ≥ 2: the
-      // rounding of the subtraction stays below 3e-16 absolute); expm1 keeps the small-t digits
-      if (t >= ENCLOSED_ONE_EXP_T) return 1 - Math.exp(-t) * (1 + t + 0.5 * t * t);
-      return -Math.expm1(-t) - Math.exp(-t) * (t + 0.5 * t * t);
-    }
-    case 'gaussian': {
-      const w = r / (orbital.sigmaNm * Math.SQRT2);
-      // beyond w = 7, erfc(w) + (2/√π) w e^{−w²} < 1e-20: Q = 1 in double precision
-      if (w > ENCLOSED_ONE_W) return 1;
-      return erf(w) - (2 / Math.sqrt(Math.PI)) * w * Math.exp(-w * w);
-    }
-    default:
-      return Number.NaN;
-  }
-}
+/**
+ * Charge of the unit density within radius r of its centre (spherical models; NaN otherwise): the
+ * registry's answer (geometry/density/models.ts), kept here under its old name for the split's callers.
+ */
+export { enclosedCharge } from '../density';
 
 /** φ_s = V(x)/ε_i at a point (nm⁻¹). */
 export function singularPotential(orbital: Orbital, center: Vec3, epsSite: number, x: number, y: number, z: number): number {
@@ -143,6 +119,8 @@ export function reactionRhsBatch(space: FeSpace, mesh: TetMesh, eps: ArrayLike<n
   const { order, nTets, tetDofs } = space;
   const nLoc = space.dofsPerTet;
   const ns = sources.length;
+  // each source's registry entry, looked up once: the hot loop below asks it for Q(r)
+  const models: OrbitalModel[] = sources.map((src) => orbitalModel(src.orbital));
   const out = sources.map(() => new Float64Array(space.nDofs));
   // rules by distance: 0 very far (4 points), 1 far (15), 2 near (80)
   const rules = [tetQuadrature(VERY_FAR_RHS_DEGREE), tetQuadrature(FAR_RHS_DEGREE), tetQuadrature(SPLIT_RHS_DEGREE)];
@@ -206,7 +184,7 @@ export function reactionRhsBatch(space: FeSpace, mesh: TetMesh, eps: ArrayLike<n
           const rr = Math.sqrt(dx * dx + dy * dy + dz * dz);
           if (rr === 0) continue;
           // ∇φ_s = −Q(r)(x − p)/(ε_i r³)
-          const f = -enclosedCharge(src.orbital, rr) / (src.epsSite * rr * rr * rr);
+          const f = -(models[s].enclosedCharge(src.orbital, rr) ?? Number.NaN) / (src.epsSite * rr * rr * rr);
           const w = -de[s] * wq * f;
           const wx = w * dx, wy = w * dy, wz = w * dz;
           const o = s * nLoc;

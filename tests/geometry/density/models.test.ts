@@ -202,6 +202,13 @@ describe.each(SPHERICAL.map((o) => [orbitalKey(o), o] as const))('spherical entr
       expect(Math.abs((m.penetratingPotential(o, r) as number) - direct)).toBeLessThan(1e-10 / r);
     }
   });
+  it('enclosed charge Q(r) is the radial quadrature ∫₀^r 4πs²ρ(s) ds of the density (Gauss’s law: the split’s field −Q(r)/r²)', () => {
+    for (const t of [1e-2, 0.1, 0.5, 1, 2, 5, 20]) {
+      const r = t * ell;
+      const q = radial((s) => 4 * Math.PI * s * s * m.density(o, s, 0, 0), 0, r);
+      expect(Math.abs((m.enclosedCharge(o, r) as number) - q)).toBeLessThan(1e-12);
+    }
+  });
   it('self-energy is ∫ρφ with the Gauss’s-law potential (radial quadrature)', () => {
     const u = radial((r) => 4 * Math.PI * r * r * m.density(o, r, 0, 0) * gaussLawPotential(o, r), 0, far(o) / 4);
     expect(Math.abs(m.selfEnergy(o) / u - 1)).toBeLessThan(1e-8);
@@ -245,6 +252,7 @@ describe('published closed forms', () => {
     const [a] = CASES['anisotropic-1s'];
     expect(orbitalModel(a).radialPotential(a, 1)).toBeNull();
     expect(orbitalModel(a).penetratingPotential(a, 1)).toBeNull();
+    expect(orbitalModel(a).enclosedCharge(a, 1)).toBeNull();
     const iso: Orbital = { model: 'anisotropic-1s', radiusNm: 1.3, radiusZNm: 1.3 };
     const h: Orbital = { model: 'hydrogenic-1s', radiusNm: 1.3 };
     expect(Math.abs(orbitalModel(iso).selfEnergy(iso) / orbitalModel(h).selfEnergy(h) - 1)).toBeLessThan(1e-8);

@@ -6,7 +6,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import type { Design } from '../../../geometry/design/types';
-import { enclosedCharge, reactionRhs, reactionRhsBatch, SPLIT_RHS_DEGREE } from '../../../geometry/fem/split';
+import { reactionRhs, reactionRhsBatch, SPLIT_RHS_DEGREE } from '../../../geometry/fem/split';
+import { enclosedCharge } from '../../../geometry/density';
 import { GEOM_SIZE, mapBary, p2GradientsBary, tetGeometry, tetQuadrature } from '../../../geometry/fem/reference';
 import type { FeSpace } from '../../../geometry/fem/space';
 import type { TetMesh } from '../../../geometry/mesh/types';
