@@ -7,9 +7,11 @@
  */
 import { describe, expect, it } from 'vitest';
 import type { Design } from '../../../geometry/design/types';
-import { EDGE_RATE, EDGE_RULE_CONSTANT, EDGE_RULE_EXPONENT, electrodeEdgeRule, nearestEdgeDistance } from '../../../geometry/mesh/edge-rule';
+import { EDGE_RATE, EDGE_RULE_CONSTANT, EDGE_RULE_EXPONENT, EDGE_WEIGHT_POWER, electrodeEdgeRule, nearestEdgeDistance } from '../../../geometry/mesh/edge-rule';
 import { electrodeEdgeSegments } from '../../../geometry/mesh/device';
 import { activeSites, familyEdge } from '../../../geometry/fem/coulomb-plan';
+import { orbitalLengths } from '../../../geometry/density';
+import { resolveOrbital } from '../../../geometry/design/presets';
 import { siliconOxideVacuum } from '../../fixtures/stacks';
 
 function gated(depthNm: number, target: number, extraSite = false): Design {
@@ -30,12 +32,16 @@ function gated(depthNm: number, target: number, extraSite = false): Design {
 }
 
 describe('electrode-edge rule', () => {
-  it('h_E = D·(tol/C)^(1/EDGE_RATE) with D by Pythagoras to the nearest edge (the rule of edge-rule.ts)', () => {
-    const r = electrodeEdgeRule(gated(10, 1e-3))!;
+  it('h_E = D·(tol/(C (ℓ/D)^μ))^(1/EDGE_RATE) with D by Pythagoras to the nearest edge (the rule of edge-rule.ts)', () => {
+    const d = gated(10, 1e-3);
+    const r = electrodeEdgeRule(d)!;
     // site (0, 0, −10), edge x = 4, z = 5: D = √(4² + 15²) (Pythagoras)
     const D = Math.hypot(4, 15);
     expect(r.distanceNm).toBeCloseTo(D, 12);
-    expect(r.hNm).toBeCloseTo(D * Math.pow(1e-3 / EDGE_RULE_CONSTANT, 1 / EDGE_RATE), 12);
+    // one site: ℓ is its orbital's core length
+    const ell = orbitalLengths(resolveOrbital(d.sites[0])).core;
+    expect(r.lengthNm).toBe(ell);
+    expect(r.hNm).toBeCloseTo(D * Math.pow(1e-3 / (EDGE_RULE_CONSTANT * Math.pow(ell / D, EDGE_WEIGHT_POWER)), 1 / EDGE_RATE), 12);
     expect(r.exponent).toBe(EDGE_RULE_EXPONENT);
     expect(r.siteId).toBe('a');
   });
@@ -67,6 +73,8 @@ describe('electrode-edge rule', () => {
     const two = electrodeEdgeRule(gated(10, 1e-3, true))!;
     expect(two.siteId).toBe('b');
     expect(two.distanceNm).toBeCloseTo(Math.hypot(1, 15), 12);
+    // and a nearer neighbour (V's length) weighs more than the core length alone: ℓ = 3 nm, the pair's distance
+    expect(two.lengthNm).toBe(Math.max(3, orbitalLengths(resolveOrbital(gated(10, 1e-3).sites[0])).core));
   });
 
   it('is deterministic, and null without electrodes or for a gate outside the domain', () => {
