@@ -2,8 +2,8 @@
  * The split's default electrode-edge family (geometry/mesh/edge-rule.ts, coulomb-plan.ts familyEdge)
  * on a device where the electrode edges matter: two Gaussian donors (σ = 1 nm) 6 nm under a 3 nm
  * oxide with two gates on it, P2, target 3e-3 (an invented example). No closed form holds for finite
- * gates, so the known value is a reference computed here by a clearly finer run (edge size a third,
- * core size a half of the default's). Checks: the default run meets its target, its bars cover the
+ * gates, so the known value is a reference computed here by a clearly finer run (half the default's
+ * electrode-edge size on every level). Checks: the default run meets its target, its bars cover the
  * reference, and the reference is finer by its own estimate. The former default (h_E = hmax/4,
  * β_E = 3/4, reproduced here by giving electrodeEdgeNm = H/4, which the family scales like hmax)
  * missed the target on this design (estimated 3.8e-3; measured when the rule landed).
@@ -36,7 +36,7 @@ const design: Design = {
 describe('default electrode-edge family on a gated Gaussian pair', () => {
   const rule = electrodeEdgeRule(design)!;
   const dflt = solveCoulomb(design, { pairs: 'bond-graph' });
-  const ref = solveCoulomb(design, { pairs: 'bond-graph', mesh: { electrodeEdgeNm: rule.hNm / 3, electrodeEdgeExponent: 1, h0Factor: 0.5 } });
+  const ref = solveCoulomb(design, { pairs: 'bond-graph', mesh: { electrodeEdgeNm: rule.hNm / 2, electrodeEdgeExponent: 1 } });
 
   it('the default run uses the split, meets its target, and the edges matter (the rule sets h_E below the former hmax/4)', () => {
     expect(dflt.method).toBe('split');

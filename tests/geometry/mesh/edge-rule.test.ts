@@ -7,7 +7,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import type { Design } from '../../../geometry/design/types';
-import { EDGE_RATE, EDGE_RULE_CONSTANT, EDGE_RULE_EXPONENT, EDGE_WEIGHT_POWER, electrodeEdgeRule, nearestEdgeDistance } from '../../../geometry/mesh/edge-rule';
+import { EDGE_RULE_RATE, EDGE_RULE_CONSTANT, EDGE_RULE_EXPONENT, EDGE_WEIGHT_POWER, electrodeEdgeRule, nearestEdgeDistance } from '../../../geometry/mesh/edge-rule';
 import { electrodeEdgeSegments } from '../../../geometry/mesh/device';
 import { activeSites, familyEdge } from '../../../geometry/fem/coulomb-plan';
 import { orbitalLengths } from '../../../geometry/density';
@@ -32,7 +32,7 @@ function gated(depthNm: number, target: number, extraSite = false): Design {
 }
 
 describe('electrode-edge rule', () => {
-  it('h_E = D·(tol/(C (ℓ/D)^μ))^(1/EDGE_RATE) with D by Pythagoras to the nearest edge (the rule of edge-rule.ts)', () => {
+  it('h_E = D·(tol/(C (ℓ/D)^μ))^(1/EDGE_RULE_RATE) with D by Pythagoras to the nearest edge (the rule of edge-rule.ts)', () => {
     const d = gated(10, 1e-3);
     const r = electrodeEdgeRule(d)!;
     // site (0, 0, −10), edge x = 4, z = 5: D = √(4² + 15²) (Pythagoras)
@@ -41,7 +41,7 @@ describe('electrode-edge rule', () => {
     // one site: ℓ is its orbital's core length
     const ell = orbitalLengths(resolveOrbital(d.sites[0])).core;
     expect(r.lengthNm).toBe(ell);
-    expect(r.hNm).toBeCloseTo(D * Math.pow(1e-3 / (EDGE_RULE_CONSTANT * Math.pow(ell / D, EDGE_WEIGHT_POWER)), 1 / EDGE_RATE), 12);
+    expect(r.hNm).toBeCloseTo(D * Math.pow(1e-3 / (EDGE_RULE_CONSTANT * Math.pow(ell / D, EDGE_WEIGHT_POWER)), 1 / EDGE_RULE_RATE), 12);
     expect(r.exponent).toBe(EDGE_RULE_EXPONENT);
     expect(r.siteId).toBe('a');
   });
