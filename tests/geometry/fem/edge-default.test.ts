@@ -38,7 +38,7 @@ describe('default electrode-edge family on a gated Gaussian pair', () => {
   const dflt = solveCoulomb(design, { pairs: 'bond-graph' });
   const ref = solveCoulomb(design, { pairs: 'bond-graph', mesh: { electrodeEdgeNm: rule.hNm / 2, electrodeEdgeExponent: 1 } });
 
-  it('the default run uses the split, meets its target, and the edges matter (the rule sets h_E below the former hmax/4)', () => {
+  it('the default run uses the split and meets its target (the former default, hmax/4 and β_E = 3/4, missed it here)', () => {
     expect(dflt.method).toBe('split');
     expect(dflt.meetsTarget).toBe(true);
     expect(dflt.estimatedRelError).toBeLessThanOrEqual(design.refinement.targetRelError);
