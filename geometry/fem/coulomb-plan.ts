@@ -214,13 +214,16 @@ export function familyEdge(design: Design, sites: ActiveSite[], meshOpts: MeshDe
 /**
  * The nested meshes of the split: a priori meshes with core sizes H, 2H, 4H, … (H =
  * splitCoreSize) and the size cap H near the sites' depth wherever a device is present, kept
- * only when really coarser (as gradedFamily), finest last. A given `electrodeEdgeNm` is the
- * finest level's electrode-edge size, × 2, 4, … on the coarser levels.
+ * only when really coarser (as gradedFamily), finest last. The finest level's electrode-edge size
+ * and grading are `familyEdge`'s (given, else the default rule of geometry/mesh/edge-rule.ts), the
+ * size × 2, 4, … on the coarser levels.
  *
  * Measured on the issue-11 device bench (2×2 array, P2, tol 1e-3; sizefield.ts ElectrodeEdgeSpec):
  * the default edge sizes 20/10/5 nm start pre-asymptotic (observed rate ~1.5 in s, safety factor
  * 3, estimated 2.7e-3, 6 s CPU); `electrodeEdgeNm: 1.25, electrodeEdgeExponent: 1` (5/2.5/1.25 nm)
  * gives observed rates 2.97–3.0 with factor 1.25 for every number, estimated 1.0e-4, for 28.5 s.
+ * The default rule (h_E = 2.65 nm, β_E = 1, on the 2×2 and the 10×10 bench alike) and what it
+ * gives: edge-rule.ts's calibration table and DEVELOPERS.md.
  */
 export function splitFamily(design: Design, sites: ActiveSite[], order: 1 | 2, levels: number, meshOpts: MeshDesignOptions): TetMesh[] {
   const H = splitCoreSize(design, sites, order) * (meshOpts.h0Factor ?? 1);
