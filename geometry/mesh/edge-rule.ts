@@ -48,16 +48,16 @@
  *
  *   design                                    D nm  ℓ nm  target  h_E → estimate                                rule h_E → estimate
  *   bench 10×10, 20 nm under 5 nm SiO₂, 2 gates 25.0  4.3   1e-3    3.0 → 1.04e-3, 2.75 → 9.1e-4 ✓, 2.5 → 5.2e-4 ✓  2.65 (see DEVELOPERS.md)
- *   bench 4×4, same stack                     25.0  4.3   1e-3    3.0 → 7.9e-4 ✓, 2.75 → 8.0e-4 ✓, 2.25 → 2.1e-4 ✓ 2.65 (meets, by 2.75)
+ *   bench 4×4, same stack                     25.0  4.3   1e-3    3.0 → 7.9e-4 ✓, 2.75 → 8.0e-4 ✓, 2.25 → 2.1e-4 ✓ 2.65 → 8.3e-4 ✓ (12 s)
  *   bench 2×2, same stack (gates 3 nm wide)   25.0  4.3   1e-3    2.75 → 1.24e-3, 2.62 → 1.27e-3, 2.25 → 2.4e-4 ✓ 2.65 → misses (1.27e-3 at 2.62)
  *   bench 2×2                                 25.0  4.3   3e-3                                                  5.05 → 2.7e-3 ✓ (3 s)
  *   bench 2×2                                 25.0  4.3   3e-4    1.5 → 1.2e-4 ✓, 1.0 → 4.3e-5 ✓                 1.30 → 1.1e-4 ✓ (9 s)
- *   Wrenfield quad (README), 10.3 nm deep     15.4  4.35  1e-3    2.5 → 2.0e-3, 2.0 → 1.17e-3, 1.61 → 9.7e-4 ✓,    1.40 (meets, by 1.5)
+ *   Wrenfield quad (README), 10.3 nm deep     15.4  4.35  1e-3    2.5 → 2.0e-3, 2.0 → 1.17e-3, 1.61 → 9.7e-4 ✓,    1.40 → 7.6e-4 ✓ (40 s)
  *                                                                 1.5 → 8.5e-4 ✓ (31 s)
  *   Wrenfield quad                            15.4  4.35  3e-3    3.28 → 3.28e-3 (24 s), 3.0 → 2.8e-3 ✓            2.68 → 2.1e-3 ✓ (23 s)
  *   Wrenfield quad                            15.4  4.35  1e-2    6 → 7.1e-3 ✓, 4 → 5.2e-3 ✓, 3 → 2.8e-3 ✓          5.44 → 6.4e-3 ✓ (README run)
- *   3×3 at 10 nm under 5 nm SiO₂, 2 gates     15.0  4.3   1e-3    3 → 3.8e-3, 2 → 1.56e-3, 1.57 → 5.1e-4 ✓ (44 s)   1.37 (meets, by 1.57)
- *   3×3 at 10 nm, one gate over all           15.1  4.3   1e-3    3 → 2.7e-3, 2 → 5.0e-4 ✓, 1.58 → 4.2e-4 ✓        1.38 (meets, by 1.58)
+ *   3×3 at 10 nm under 5 nm SiO₂, 2 gates     15.0  4.3   1e-3    3 → 3.8e-3, 2 → 1.56e-3, 1.57 → 5.1e-4 ✓ (44 s)   1.37 → 4.1e-4 ✓ (48 s)
+ *   3×3 at 10 nm, one gate over all           15.1  4.3   1e-3    3 → 2.7e-3, 2 → 5.0e-4 ✓, 1.58 → 4.2e-4 ✓        1.38 → 3.4e-4 ✓ (37 s)
  *   Gaussian pair σ = 1 nm, 6 nm under 3 nm   9.0   4.0   3e-3    2.36 → 5.9e-3, 1.75 → 4.1e-3, 1.6 → 2.4e-3 ✓,     1.38
  *     SiO₂, 2 gates (edge-default.test.ts)                        1.25 → 3.6e-4 ✓                                 1.38 → 5.6e-4 ✓ (7 s)
  *   hydrogenic pair, same gates, 8 nm deep    11.0  4.0   3e-3    2.88 → 1.9e-3 ✓, 2.3 → 6.7e-3, 1.4 → 1.9e-3 ✓    1.79 → 4.5e-3, misses (10 s)
