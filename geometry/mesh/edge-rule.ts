@@ -61,6 +61,8 @@
  *   Gaussian pair σ = 1 nm, 6 nm under 3 nm   9.0   4.0   3e-3    2.36 → 5.9e-3, 1.75 → 4.1e-3, 1.6 → 2.4e-3 ✓,     1.38
  *     SiO₂, 2 gates (edge-default.test.ts)                        1.25 → 3.6e-4 ✓                                 1.38 → 5.6e-4 ✓ (7 s)
  *   hydrogenic pair, same gates, 8 nm deep    11.0  4.0   3e-3    2.88 → 1.9e-3 ✓, 2.3 → 6.7e-3, 1.4 → 1.9e-3 ✓    1.79 → 4.5e-3, misses (10 s)
+ *   not used to fit: hydrogenic pair in plain 3.6   4.0   1e-3    0.90 (β_E 3/4, former default) → 4.1e-3 (15 s)     0.22 → 1.02e-3, misses by 2 %
+ *     Si beside a lead (near-lead designs cost more: 1.4M unknowns)                                                (53 s)
  */
 import type { Design, Vec3 } from '../design/types';
 import { resolveOrbital } from '../design/presets';
