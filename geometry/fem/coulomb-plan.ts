@@ -13,6 +13,7 @@ import type { ActiveSite, SolveMethod } from './coulomb-level';
 import { hasClosedForm, pairClosedForm } from './split';
 import { clippedElectrodes, hasDevice, interfacesInside } from '../mesh/device';
 import { autoCoreSize, CORE_SAFETY_FACTOR } from '../mesh/sizefield';
+import { electrodeEdgeRule } from '../mesh/edge-rule';
 
 export function activeSites(design: Design, siteIds?: string[]): ActiveSite[] {
   const byId = new Map(design.sites.map((s, i) => [s.id, i] as const));
@@ -196,28 +197,48 @@ export function splitCoreSize(design: Design, sites: ActiveSite[], order: 1 | 2)
 }
 
 /**
+ * The finest level's electrode-edge size h_E and grading β_E of a nested family: the given
+ * `electrodeEdgeNm`/`electrodeEdgeExponent` win (a given size alone keeps the size field's default
+ * β_E, as before the rule); else, when the design has electrode edges, the default rule of
+ * geometry/mesh/edge-rule.ts for these sites (both undefined without edges, so such designs mesh
+ * exactly as before).
+ */
+export function familyEdge(design: Design, sites: ActiveSite[], meshOpts: MeshDesignOptions): { edgeNm?: number; exponent?: number } {
+  const given = meshOpts.electrodeEdgeNm;
+  const rule = given === undefined ? electrodeEdgeRule(design, { siteIndices: sites.map((s) => s.index) }) : null;
+  const edgeNm = given ?? rule?.hNm;
+  const exponent = meshOpts.electrodeEdgeExponent ?? rule?.exponent;
+  return { ...(edgeNm !== undefined ? { edgeNm } : {}), ...(exponent !== undefined ? { exponent } : {}) };
+}
+
+/**
  * The nested meshes of the split: a priori meshes with core sizes H, 2H, 4H, … (H =
  * splitCoreSize) and the size cap H near the sites' depth wherever a device is present, kept
- * only when really coarser (as gradedFamily), finest last. A given `electrodeEdgeNm` is the
- * finest level's electrode-edge size, × 2, 4, … on the coarser levels.
+ * only when really coarser (as gradedFamily), finest last. The finest level's electrode-edge size
+ * and grading are `familyEdge`'s (given, else the default rule of geometry/mesh/edge-rule.ts), the
+ * size × 2, 4, … on the coarser levels.
  *
  * Measured on the issue-11 device bench (2×2 array, P2, tol 1e-3; sizefield.ts ElectrodeEdgeSpec):
  * the default edge sizes 20/10/5 nm start pre-asymptotic (observed rate ~1.5 in s, safety factor
  * 3, estimated 2.7e-3, 6 s CPU); `electrodeEdgeNm: 1.25, electrodeEdgeExponent: 1` (5/2.5/1.25 nm)
  * gives observed rates 2.97–3.0 with factor 1.25 for every number, estimated 1.0e-4, for 28.5 s.
+ * The default rule (h_E = 2.65 nm, β_E = 1, on the 2×2 and the 10×10 bench alike) and what it
+ * gives: edge-rule.ts's calibration table and DEVELOPERS.md.
  */
 export function splitFamily(design: Design, sites: ActiveSite[], order: 1 | 2, levels: number, meshOpts: MeshDesignOptions): TetMesh[] {
   const H = splitCoreSize(design, sites, order) * (meshOpts.h0Factor ?? 1);
   const device = hasDevice(design);
-  // a given electrode-edge size is the finest level's; coarser levels scale it like the core size
-  // (the same size on every level made them no coarser near the edges, so none was kept)
-  const edge = meshOpts.electrodeEdgeNm;
+  // the finest level's electrode-edge size and grading: given, else the default rule (edge-rule.ts)
+  const { edgeNm: edge, exponent } = familyEdge(design, sites, meshOpts);
   const opts = (f: number): MeshDesignOptions => ({
     order,
     ...meshOpts,
     h0Nm: H * f,
     ...(device ? { hmaxNm: Math.max(H * f, meshOpts.hmaxNm ?? 0) } : {}),
+    // coarser levels scale the edge size like the core size (the same size on every level made
+    // them no coarser near the edges, so none was kept)
     ...(edge !== undefined ? { electrodeEdgeNm: edge * f } : {}),
+    ...(exponent !== undefined ? { electrodeEdgeExponent: exponent } : {}),
   });
   const finest = meshDesign(design, { ...opts(1), keepBisectionMesh: true });
   const out: TetMesh[] = [finest.mesh];

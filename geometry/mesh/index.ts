@@ -36,3 +36,6 @@ export { ELECTRODE_REGION, NO_ELECTRODE, hasDevice, clippedElectrodes, deviceGri
 export type { DeviceGrid, ClippedElectrode } from './device';
 export { electrodeEdgeExponent, ELECTRODE_EDGE_DIVISOR } from './sizefield';
 export type { ElectrodeEdgeSpec } from './sizefield';
+/* the default electrode-edge size of a nested family's finest mesh (edge-rule.ts) */
+export { electrodeEdgeRule, nearestEdgeDistance, EDGE_RULE_RATE, EDGE_RULE_CONSTANT, EDGE_RULE_EXPONENT, EDGE_WEIGHT_POWER } from './edge-rule';
+export type { EdgeRule } from './edge-rule';

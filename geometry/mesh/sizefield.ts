@@ -111,7 +111,10 @@ export interface SizeFieldSpec {
  * Whiteman, Math. Methods Appl. Sci. 19 (1996) 63–85; from memory); ¾ keeps μ clear of the limit
  * (common practice). β_E = 1/2 for P1, 3/4 for P2. h_E defaults to hmax/4 (common practice: two
  * bisection cycles below the far-field size), times `electrodeSizeFactor`; `electrodeEdgeNm` and
- * `electrodeEdgeExponent` set h_E and β_E directly.
+ * `electrodeEdgeExponent` set h_E and β_E directly. The split's nested family (geometry/fem/
+ * coulomb-plan.ts splitFamily) gives them from its own default rule (edge-rule.ts: h_E from the
+ * target and the sites' distance to the nearest edge, β_E = 1); a mesh made here alone (the mesh
+ * command, the full method's graded family, the lever arms) keeps hmax/4 and the β_E below.
  *
  * A metal edge lying on a dielectric interface (a gate on an oxide) has a smaller exponent than
  * 2/3: with the metal's two faces at θ = π/2 and θ = π, vacuum (ε_v) between 0 and π/2 and the

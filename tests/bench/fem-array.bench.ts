@@ -16,13 +16,15 @@
  * TETRAWELL_BENCH_DEVICE_TARGET = the device's target (default 1e-3, the homogeneous figure's);
  * TETRAWELL_BENCH_DEVICE_N = the array's side (default 10; 2 for a quick look);
  * TETRAWELL_BENCH_DEVICE_EDGE_NM, TETRAWELL_BENCH_DEVICE_EDGE_EXPONENT = the finest U/V level's
- * electrode-edge size and grading exponent (sizefield.ts; default hmax/4 and 1 − (3/4)(2/3)/p).
+ * electrode-edge size and grading exponent (default: the rule of geometry/mesh/edge-rule.ts, which
+ * the run prints; a given size alone keeps sizefield.ts's β_E = 1 − (3/4)(2/3)/p).
  * Also prints the rates the U/V error bars used (observed or theoretical, and how many got the
  * asymptotic safety factor) and the observed rate of the lever arm with the worst bar.
  */
 import { loadavg } from 'node:os';
 import { solveCoulomb } from '../../geometry/fem/coulomb';
 import { solveLeverArms } from '../../geometry/fem/lever';
+import { electrodeEdgeRule } from '../../geometry/mesh/edge-rule';
 import { GCI_SAFETY_OBSERVED, observedRate } from '../../geometry/fem/errorbars';
 import type { Design } from '../../geometry/design/types';
 import { siliconOxideVacuum } from '../fixtures/stacks';
@@ -105,6 +107,10 @@ function device(n: number, target: number): void {
   const edgeNm = process.env.TETRAWELL_BENCH_DEVICE_EDGE_NM ? Number(process.env.TETRAWELL_BENCH_DEVICE_EDGE_NM) : undefined;
   const edgeExp = process.env.TETRAWELL_BENCH_DEVICE_EDGE_EXPONENT ? Number(process.env.TETRAWELL_BENCH_DEVICE_EDGE_EXPONENT) : undefined;
   const mesh = { ...(edgeNm !== undefined ? { electrodeEdgeNm: edgeNm } : {}), ...(edgeExp !== undefined ? { electrodeEdgeExponent: edgeExp } : {}) };
+  const rule = electrodeEdgeRule(d);
+  if (rule && edgeNm === undefined) {
+    console.log(`  default electrode-edge rule (edge-rule.ts): h_E ${rule.hNm.toFixed(2)} nm, β_E ${rule.exponent} (site ${rule.siteId}, ${rule.distanceNm.toFixed(1)} nm from the nearest edge, ℓ ${rule.lengthNm.toFixed(2)} nm)`);
+  }
   const la = loadavg()[0];
   const c0 = process.cpuUsage();
   const t0 = performance.now();
