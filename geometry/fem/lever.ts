@@ -66,8 +66,8 @@ export interface LeverArmOptions {
   order?: 1 | 2;
   /** nested meshes for the error bar (default 3, at least 2) */
   levels?: number;
-  /** β_E of the family's grading towards electrode edges, in (0, 1) (default LEVER_EDGE_EXPONENT) */
-  edgeExponent?: number;
+  /** the family's grading (β_E, level ratio); see LeverGrading */
+  grading?: LeverGrading;
   /** extra options of the finest mesh (the coarser levels scale its sizes; electrodeEdgeNm is the finest level's edge size) */
   mesh?: MeshDesignOptions;
   /** PCG relative residual (default 1e-10) */
@@ -237,20 +237,24 @@ export function leverArmsOnMesh(design: Design, meshIn: TetMesh, order: 1 | 2, o
  * Grading exponent β_E of the lever family towards the electrode edges (graded meshes in the sense
  * of Apel, Sändig & Whiteman, Math. Methods Appl. Sci. 19 (1996) 63–85; from memory): near an edge
  * level l wants h_l(d) = c_l · d^{β_E} (sizefield.ts ElectrodeEdgeSpec: h_E·max(1, d/h_E)^{β_E} =
- * h_E^{1−β_E} d^{β_E}), and c_l halves from level to level like hmax does, so the edge size h_E shrinks
- * by 2^{1/(1−β_E)} per level (4 for β_E = 1/2) while the bulk's halves. With μ = 1 − β_E the energy
- * error near an edge of exponent λ falls like h^{min(p, λ/μ)}, a functional's like its square (from
- * memory, same source); μ = 1/2 gives h^{2λ}... h^{2.67} for λ from 1/2 to 2/3 against h^{2λ/1} for
- * uniform refinement. Measured on the README's quad (P2, 3 levels, finest h_E = hmax/8): β_E = 1/2
- * observed rate 1.7–2.1 in s = N^{−1/3}; 2/3 (edge ratio 8) left the coarser levels ungraded (rate 1.1).
+ * h_E^{1−β_E} d^{β_E}), and c_l shrinks from level to level by the bulk's ratio r (LEVER_LEVEL_RATIO),
+ * so the edge size h_E shrinks by r^{1/(1−β_E)} per level (r² for β_E = 1/2) while hmax shrinks by r.
+ * With μ = 1 − β_E the energy error near an edge of exponent λ falls like h^{min(p, λ/μ)}, a
+ * functional's like its square (from memory, same source): μ = 1/2 gives h^{2λ/μ} = h^{2}…h^{2.67}
+ * for λ from 1/2 to 2/3, against h^{2λ} for uniform refinement (observed 1.3–1.4 before, issue 11).
+ * Measured on the README's quad (P2, 3 levels at ratio 2, finest h_E = hmax/8): β_E = 1/2 observed
+ * 1.7–2.1 in s = N^{−1/3}; β_E = 2/3 (edge ratio 8) left the coarser levels ungraded (rate 1.1).
  */
 export const LEVER_EDGE_EXPONENT = 0.5;
 
 /**
- * The finest level's electrode-edge size relative to the design's hmax (measured on the README's quad:
- * hmax/8 gave 3.7 % with the GCI factor 3, hmax/16 1.3 % for 2.4× the CPU and 2.8× the memory).
+ * The finest level's electrode-edge size relative to the design's hmax (measured, issue 11 device
+ * bench 10×10 and the README's quad, P2, three levels at ratio √2, under a load average of 3–6):
+ * hmax/8 gave worst bars of 2.0 % (bench, 14 s CPU) and 1.2 % (quad, 26 s); hmax/9 gave 1.1 % (bench,
+ * 24 s, 1.3 GB) and 1.1 % (quad, 25 s). The bench's gates are 2 nm apart, so the finest edge size is
+ * still not small against the gap: the coarser levels sit at the edge of the asymptotic range.
  */
-export const LEVER_FINEST_EDGE_FRACTION = 1 / 8;
+export const LEVER_FINEST_EDGE_FRACTION = 1 / 9;
 
 /**
  * The smallest edge exponent λ of the potential near a metal edge in a layered host: 2/3 for a
@@ -272,6 +276,22 @@ export function leverTheoreticalRate(order: 1 | 2, pointValue: boolean, hasEdges
   return Math.min(smooth, (2 * EDGE_EXPONENT_LOWER_BOUND) / (1 - edgeExponent));
 }
 
+/** The lever family's grading: β_E towards electrode edges and the bulk size ratio between levels. */
+export interface LeverGrading {
+  /** β_E in (0, 1) (default LEVER_EDGE_EXPONENT) */
+  edgeExponent?: number;
+  /** bulk size ratio between consecutive levels, > 1 (default LEVER_LEVEL_RATIO) */
+  levelRatio?: number;
+}
+
+/**
+ * Bulk size ratio r between consecutive lever levels (measured on the device bench 10×10, P2, three
+ * levels, finest h_E = hmax/8): with r = 2 the coarsest level's edge size was 16× the finest's and
+ * pre-asymptotic (observed rates 0.7–1.5, worst bar 4.1 %, 8.8 s CPU); r = √2 (edge size ×2 per level)
+ * keeps the coarse levels near the finest (rate 1.46, worst bar 2.0 %, 14 s CPU).
+ */
+export const LEVER_LEVEL_RATIO = Math.SQRT2;
+
 /** Per-level sizes of the lever family (nm), coarsest level first; see leverFamily. */
 export interface LeverLevelSizes {
   hmaxNm: number;
@@ -281,24 +301,27 @@ export interface LeverLevelSizes {
 }
 
 /**
- * The sizes of each level: level l of L has hmax·2^k and h0·2^k (k = L − 1 − l) and the edge size
- * h_E·(2^{1/(1−β_E)})^k, capped at that level's hmax; h_E is the given electrodeEdgeNm or
+ * The sizes of each level: level l of L has hmax·r^k and h0·r^k (k = L − 1 − l, r the level ratio) and
+ * the edge size h_E·(r^{1/(1−β_E)})^k, capped at that level's hmax; h_E is the given electrodeEdgeNm or
  * LEVER_FINEST_EDGE_FRACTION·hmax. Sites get no core of their own (h0 = hmax) when every one reads
  * φ_g at its centre (mean-value.ts: φ_g is smooth there on the device's scale), and hmax/4 otherwise,
  * unless h0Nm is given (load.ts integrates a density accurately on elements larger than the orbital).
  */
-export function leverLevelSizes(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions = {}, edgeExponent = LEVER_EDGE_EXPONENT): LeverLevelSizes[] {
+export function leverLevelSizes(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions = {}, grading: LeverGrading = {}): LeverLevelSizes[] {
+  const edgeExponent = grading.edgeExponent ?? LEVER_EDGE_EXPONENT;
+  const ratio = grading.levelRatio ?? LEVER_LEVEL_RATIO;
+  if (!(ratio > 1)) throw new CoreError('bad-size-field', `the lever family's level ratio must exceed 1, got ${ratio}`, { levelRatio: ratio });
   if (!(edgeExponent > 0 && edgeExponent < 1)) throw new CoreError('bad-size-field', `the lever family's edge grading exponent must lie strictly between 0 and 1, got ${edgeExponent}`, { edgeExponent });
   const hmax = sizeFieldFromDesign(design, { order, ...meshOpts }).spec.hmaxNm;
   const allCentres = meanValueSites(design, leverSites(design)).ok.every((x) => x === 1);
   const h0 = meshOpts.h0Nm ?? (allCentres ? hmax : hmax / ELECTRODE_EDGE_DIVISOR);
   const hE = meshOpts.electrodeEdgeNm ?? LEVER_FINEST_EDGE_FRACTION * hmax;
-  const edgeRatio = Math.pow(2, 1 / (1 - edgeExponent));
+  const edgeRatio = Math.pow(ratio, 1 / (1 - edgeExponent));
   const out: LeverLevelSizes[] = [];
   for (let l = 0; l < levels; l++) {
     const k = levels - 1 - l;
-    const hm = hmax * Math.pow(2, k);
-    out.push({ hmaxNm: hm, h0Nm: Math.min(hm, h0 * Math.pow(2, k)), electrodeEdgeNm: Math.min(hm, hE * Math.pow(edgeRatio, k)), electrodeEdgeExponent: edgeExponent });
+    const hm = hmax * Math.pow(ratio, k);
+    out.push({ hmaxNm: hm, h0Nm: Math.min(hm, h0 * Math.pow(ratio, k)), electrodeEdgeNm: Math.min(hm, hE * Math.pow(edgeRatio, k)), electrodeEdgeExponent: edgeExponent });
   }
   return out;
 }
@@ -308,15 +331,18 @@ export function leverLevelSizes(design: Design, order: 1 | 2, levels: number, me
  * electrodes' re-entrant edges, d^λ, so uniform refinement converged like h^{4/3} and the bars were
  * wide): the base is the design's mesh with level 0's sizes (leverLevelSizes), and each finer level
  * is the same bisection mesh refined further, only where its elements exceed that level's size field
- * (refineToSize): the bulk halves, the edge size shrinks faster (graded, LEVER_EDGE_EXPONENT). One
- * bisection mesh keeps the levels nested (every coarse vertex is a fine vertex, at the same index)
- * and the output deterministic. Richardson (errorbars.ts) gets s = N^{−1/3}, N the unknowns: the
- * grading keeps N ∝ h^{−3} in the bulk and in the edge zone alike, so s halves with h.
+ * (refineToSize): the bulk's size shrinks by r, the edge size faster (graded, LEVER_EDGE_EXPONENT).
+ * One bisection mesh keeps the levels nested (every coarse vertex is a fine vertex, at the same index)
+ * and the output deterministic. Richardson (errorbars.ts) gets s = N^{−1/3}, N the unknowns, not the
+ * nominal h: the grading keeps N ∝ h^{−3} in the bulk and the edge zone alike, but bisection only
+ * makes sizes in steps (edge lengths halve every three bisections), so the realised ratio differs
+ * from r (1.5–1.7 measured for r = √2) and only N says what it was.
  * The design's own edge grading (meshOpts.electrodeEdgeExponent) is not used here: the family's
- * convergence rate depends on its own (the `edgeExponent` argument).
+ * convergence rate depends on its own (`grading`). A given meshOpts.electrodeEdgeNm is the finest
+ * level's edge size.
  */
-export function leverFamily(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions = {}, edgeExponent = LEVER_EDGE_EXPONENT): TetMesh[] {
-  const sizes = leverLevelSizes(design, order, levels, meshOpts, edgeExponent);
+export function leverFamily(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions = {}, grading: LeverGrading = {}): TetMesh[] {
+  const sizes = leverLevelSizes(design, order, levels, meshOpts, grading);
   const base = meshDesign(design, { order, ...meshOpts, ...sizes[0], keepBisectionMesh: true });
   const bm = base.bisectionMesh!;
   const maxTets = Math.min(meshOpts.maxElements ?? design.refinement.maxElements, meshOpts.hardCap ?? Infinity);
@@ -352,8 +378,8 @@ export function solveLeverArms(design: Design, opts: LeverArmOptions = {}): Leve
   const sites = leverSites(design);
   const m = electrodes.length;
   opts.onProgress?.({ phase: 'mesh', fraction: 0 });
-  const edgeExponent = opts.edgeExponent ?? LEVER_EDGE_EXPONENT;
-  const meshes = leverFamily(design, order, Math.max(2, Math.floor(opts.levels ?? 3)), opts.mesh ?? {}, edgeExponent);
+  const edgeExponent = opts.grading?.edgeExponent ?? LEVER_EDGE_EXPONENT;
+  const meshes = leverFamily(design, order, Math.max(2, Math.floor(opts.levels ?? 3)), opts.mesh ?? {}, opts.grading);
   const hasEdges = electrodeEdgeSegments(design).length > 0;
   const w = meshes.map((mesh) => mesh.tets.length);
   const wSum = w.reduce((a, b) => a + b, 0);

@@ -109,9 +109,7 @@ describe('lever arms of a finite gate', () => {
 
   it('converge on the graded nested family, and the bar of the first two levels covers the difference to the third, finer level (grid convergence index, Roache 1994)', () => {
     const d = gate('grounded');
-    // hmax 2 nm: the two coarsest of four levels coincide with the initial grid between the device's
-    // planes and are merged (leverFamily), leaving three distinct nested meshes
-    const meshes = leverFamily(d, 1, 4, { hmaxNm: 2 });
+    const meshes = leverFamily(d, 1, 3, { hmaxNm: 2 });
     expect(meshes.length).toBe(3);
     const v = meshes.map((m) => leverArmsOnMesh(d, m, 1));
     const s = v.map((x) => Math.pow(x.dofs, -1 / 3));

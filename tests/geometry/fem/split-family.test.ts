@@ -79,13 +79,13 @@ describe('split family with a given electrode-edge size', () => {
 describe('lever-arm family with a given electrode-edge size', () => {
   it('levels are nested refinements of one base, graded towards the edges: edge sizes h_E·16, h_E·4, h_E for β_E = 1/2 (capped at each level\'s hmax; Apel-type grading, lever.ts leverLevelSizes)', () => {
     const hE = 0.5;
-    const sizes = leverLevelSizes(design, 2, 3, { electrodeEdgeNm: hE }, 0.5);
+    const sizes = leverLevelSizes(design, 2, 3, { electrodeEdgeNm: hE }, { edgeExponent: 0.5, levelRatio: 2 });
     // the edge size shrinks by 2^{1/(1−β_E)} = 4 per level while hmax halves (the graded part c·d^β_E halves)
     sizes.forEach((z, l) => {
       expect(z.electrodeEdgeNm).toBeCloseTo(Math.min(z.hmaxNm, hE * Math.pow(4, 2 - l)), 12);
       if (l > 0) expect(z.hmaxNm).toBeCloseTo(sizes[l - 1].hmaxNm / 2, 12);
     });
-    const meshes = leverFamily(design, 2, 3, { electrodeEdgeNm: hE }, 0.5);
+    const meshes = leverFamily(design, 2, 3, { electrodeEdgeNm: hE }, { edgeExponent: 0.5, levelRatio: 2 });
     expect(meshes.length).toBe(3);
     const seg = electrodeEdgeSegments(design);
     const at = meshes.map((m) => longestAtEdges(m, seg));
