@@ -21,11 +21,12 @@
  *
  * One mesh: one stiffness matrix, one lifting, one multigrid preconditioner for all electrodes
  * (only the Dirichlet values change between them). Error bars: the lever arms on nested meshes
- * (leverFamily: a coarse graded base and its uniform refinements), extrapolated with the error-bar
- * rule of the Coulomb solver, errorbars.ts `richardson` (grid convergence index,
- * s = N^(−1/3), theoretical rate 2p for the load: ∫ρφ is a smooth linear functional of φ, whose error is the
- * square of the energy-norm error, Aubin–Nitsche duality; e.g. Ciarlet 1978, §3.2; p + 1 for a
- * centre value, mean-value.ts).
+ * (leverFamily: one bisection mesh refined level by level to size targets graded towards the
+ * electrode edges), extrapolated with the error-bar rule of the Coulomb solver, errorbars.ts
+ * `richardson` (grid convergence index, s = N^(−1/3), theoretical rate 2p for the load: ∫ρφ is a
+ * smooth linear functional of φ, whose error is the square of the energy-norm error, Aubin–Nitsche
+ * duality; e.g. Ciarlet 1978, §3.2; p + 1 for a centre value, mean-value.ts; both capped by the
+ * edges' pollution on the graded family, leverTheoreticalRate).
  *
  * Assumptions (stated with every result): ideal metal at a fixed voltage, planar layers infinite
  * in x and y within the domain, no free charge other than the site's (no screening by other
@@ -249,12 +250,15 @@ export const LEVER_EDGE_EXPONENT = 0.5;
 
 /**
  * The finest level's electrode-edge size relative to the design's hmax (measured, issue 11 device
- * bench 10×10 and the README's quad, P2, three levels at ratio √2, under a load average of 3–6):
- * hmax/8 gave worst bars of 2.0 % (bench, 14 s CPU) and 1.2 % (quad, 26 s); hmax/9 gave 1.1 % (bench,
- * 24 s, 1.3 GB) and 1.1 % (quad, 25 s). The bench's gates are 2 nm apart, so the finest edge size is
- * still not small against the gap: the coarser levels sit at the edge of the asymptotic range.
+ * bench 10×10 and the README's quad, P2, three levels at ratio √2, load average 3–8, CPU time):
+ * hmax/8: worst bars 2.0 % (bench, 385k unknowns, 14 s) and 1.2 % (quad, 26 s); hmax/9: 1.9 % (bench,
+ * 441k, 9.3 s) and 1.1 % (quad, 25 s); hmax/10: 0.81 % (bench, 1.15M, 33 s, 1.5 GB) and 0.90 % (quad,
+ * 565k, 33 s). Bisection makes sizes in steps, so the unknowns jump with the fraction (hE 1.30 nm gave
+ * the bench 964k, 1.3056 nm 441k). The bench's gates are 2 nm apart, so even the finest edge size is not
+ * small against the gap: the observed rates (1.3–1.5 there, 1.9–2.1 on the quad) sit at the lower end
+ * of the asymptotic range, and the bars mostly keep the safety factor 3.
  */
-export const LEVER_FINEST_EDGE_FRACTION = 1 / 9;
+export const LEVER_FINEST_EDGE_FRACTION = 1 / 10;
 
 /**
  * The smallest edge exponent λ of the potential near a metal edge in a layered host: 2/3 for a
