@@ -249,16 +249,16 @@ export function leverArmsOnMesh(design: Design, meshIn: TetMesh, order: 1 | 2, o
 export const LEVER_EDGE_EXPONENT = 0.5;
 
 /**
- * The finest level's electrode-edge size relative to the design's hmax (measured, issue 11 device
- * bench 10×10 and the README's quad, P2, three levels at ratio √2, load average 3–8, CPU time):
- * hmax/8: worst bars 2.0 % (bench, 385k unknowns, 14 s) and 1.2 % (quad, 26 s); hmax/9: 1.9 % (bench,
- * 441k, 9.3 s) and 1.1 % (quad, 25 s); hmax/10: 0.81 % (bench, 1.15M, 33 s, 1.5 GB) and 0.90 % (quad,
- * 565k, 33 s). Bisection makes sizes in steps, so the unknowns jump with the fraction (hE 1.30 nm gave
- * the bench 964k, 1.3056 nm 441k). The bench's gates are 2 nm apart, so even the finest edge size is not
- * small against the gap: the observed rates (1.3–1.5 there, 1.9–2.1 on the quad) sit at the lower end
- * of the asymptotic range, and the bars mostly keep the safety factor 3.
+ * The finest level's electrode-edge size relative to the design's hmax (measured on the issue 11 device
+ * bench 10×10, hmax 16.75 nm, and the README's quad, hmax 15 nm; P2, three levels at ratio √2, CPU time
+ * under a load average of 3–8): hmax/9 gave worst bars of 1.9 % (bench, 441k unknowns, 9.3 s) and 1.1 %
+ * (quad, 25 s); hmax/10 1.5 % (bench, 625k, 15 s) and 0.90 % (quad, 565k, about 25 s); hmax/12 1.08 %
+ * (bench, 744k, 20 s, 1.1 GB); 1.2 nm (hmax/14) 0.77 % (bench, 1.13M, 38 s). Bisection makes sizes in
+ * steps, so the unknowns jump with the fraction. The bench's gates are 2 nm apart, so even the finest
+ * edge size is not small against the gap: the observed rates (1.3–1.5 there, 1.8–2.1 on the quad) sit
+ * at the lower end of the asymptotic range, and many bars keep the safety factor 3.
  */
-export const LEVER_FINEST_EDGE_FRACTION = 1 / 10;
+export const LEVER_FINEST_EDGE_FRACTION = 1 / 12;
 
 /**
  * The smallest edge exponent λ of the potential near a metal edge in a layered host: 2/3 for a
