@@ -21,11 +21,12 @@
  *
  * One mesh: one stiffness matrix, one lifting, one multigrid preconditioner for all electrodes
  * (only the Dirichlet values change between them). Error bars: the lever arms on nested meshes
- * (leverFamily: a coarse graded base and its uniform refinements), extrapolated with the error-bar
- * rule of the Coulomb solver, errorbars.ts `richardson` (grid convergence index,
- * s = N^(−1/3), theoretical rate 2p for the load: ∫ρφ is a smooth linear functional of φ, whose error is the
- * square of the energy-norm error, Aubin–Nitsche duality; e.g. Ciarlet 1978, §3.2; p + 1 for a
- * centre value, mean-value.ts).
+ * (leverFamily: one bisection mesh refined level by level to size targets graded towards the
+ * electrode edges), extrapolated with the error-bar rule of the Coulomb solver, errorbars.ts
+ * `richardson` (grid convergence index, s = N^(−1/3), theoretical rate 2p for the load: ∫ρφ is a
+ * smooth linear functional of φ, whose error is the square of the energy-norm error, Aubin–Nitsche
+ * duality; e.g. Ciarlet 1978, §3.2; p + 1 for a centre value, mean-value.ts; both capped by the
+ * edges' pollution on the graded family, leverTheoreticalRate).
  *
  * Assumptions (stated with every result): ideal metal at a fixed voltage, planar layers infinite
  * in x and y within the domain, no free charge other than the site's (no screening by other
@@ -35,9 +36,9 @@ import type { Design, Orbital, Vec3 } from '../design/types';
 import { resolveOrbital } from '../design/presets';
 import type { CoreProgress } from '../progress';
 import { CoreError, throwIfAborted } from '../errors';
-import { meshDesign, refineToSize, refineUniform, toTetMesh, type MeshDesignOptions } from '../mesh/index';
+import { meshDesign, refineToSize, toTetMesh, type MeshDesignOptions } from '../mesh/index';
 import { sizeFieldFromDesign, SizeField, ELECTRODE_EDGE_DIVISOR } from '../mesh/sizefield';
-import { clippedElectrodes } from '../mesh/device';
+import { clippedElectrodes, electrodeEdgeSegments } from '../mesh/device';
 import type { TetMesh } from '../mesh/types';
 import { buildSpace, type FeSpace } from './space';
 import { assembleStiffness, applyDirichlet, applyDirichletRhs } from './assemble';
@@ -66,7 +67,9 @@ export interface LeverArmOptions {
   order?: 1 | 2;
   /** nested meshes for the error bar (default 3, at least 2) */
   levels?: number;
-  /** extra options of the finest mesh (the coarser levels scale its sizes) */
+  /** the family's grading (β_E, level ratio); see LeverGrading */
+  grading?: LeverGrading;
+  /** extra options of the finest mesh (the coarser levels scale its sizes; electrodeEdgeNm is the finest level's edge size) */
   mesh?: MeshDesignOptions;
   /** PCG relative residual (default 1e-10) */
   solverTol?: number;
@@ -232,67 +235,130 @@ export function leverArmsOnMesh(design: Design, meshIn: TetMesh, order: 1 | 2, o
 }
 
 /**
- * Electrode-edge size of the lever-arm meshes relative to the design's (measured, issue 11 "Speed"):
- * the lever arms converge only at about h^1.4 (the field's edge singularity at the gates pollutes
- * the whole solution; with a re-entrant edge's exponent 2/3 one expects h^{4/3}, from memory), so
- * the edge size, not the bulk or the site cores, sets the error. On the bench's 2×2 array 20 nm
- * under 5 nm of oxide and two gates (P2, 3 levels; finest edge size hmax/2 = 2× the design's), dropping
- * the site cores gave a worst bar of 1.5 meV/V (15 %) for 9 s of CPU, against 4.6 meV/V (46 %)
- * for 37 s with the cores and an edge size of hmax (then the factor was applied twice, see
- * leverFamily); with the design's own edge size (hmax/4), 0.94 meV/V for 79 s.
+ * Grading exponent β_E of the lever family towards the electrode edges (graded meshes in the sense
+ * of Apel, Sändig & Whiteman, Math. Methods Appl. Sci. 19 (1996) 63–85; from memory): near an edge
+ * level l wants h_l(d) = c_l · d^{β_E} (sizefield.ts ElectrodeEdgeSpec: h_E·max(1, d/h_E)^{β_E} =
+ * h_E^{1−β_E} d^{β_E}), and c_l shrinks from level to level by the bulk's ratio r (LEVER_LEVEL_RATIO),
+ * so the edge size h_E shrinks by r^{1/(1−β_E)} per level (r² for β_E = 1/2) while hmax shrinks by r.
+ * With μ = 1 − β_E the energy error near an edge of exponent λ falls like h^{min(p, λ/μ)}, a
+ * functional's like its square (from memory, same source): μ = 1/2 gives h^{2λ/μ} = h^{2}…h^{2.67}
+ * for λ from 1/2 to 2/3, against h^{2λ} for uniform refinement (observed 1.3–1.4 before, issue 11).
+ * Measured on the README's quad (P2, 3 levels at ratio 2, finest h_E = hmax/8): β_E = 1/2 observed
+ * 1.7–2.1 in s = N^{−1/3}; β_E = 2/3 (edge ratio 8) left the coarser levels ungraded (rate 1.1).
  */
-export const LEVER_EDGE_FACTOR = 2;
+export const LEVER_EDGE_EXPONENT = 0.5;
 
 /**
- * The nested meshes of the lever arms, coarsest first: a base mesh graded like the design's but
- * with every size of the field (site core h0, hmax, electrode-edge size) multiplied by
- * 2^(levels−1), then that base bisected uniformly 3, 6, … times (each round of three halves every
- * edge), so the finest level has the design's hmax and LEVER_EDGE_FACTOR × its electrode-edge
- * size, whatever the number of levels. Sites get no core of their own (h0 = hmax) when every one reads φ_g at its centre
- * (mean-value.ts: φ_g is smooth there on the device's scale), and the electrode-edge size
- * otherwise, unless h0Nm is given (load.ts integrates a density accurately on elements larger
- * than the orbital). Uniform refinement of one base gives the clean
- * ratio 2 in h that Richardson extrapolation assumes; independently graded meshes for coarser
- * sizes did not (their hmax-limited bulk hardly changed while the electrode region did, and the
- * differences grew instead of shrinking on a gate 6 nm above a donor).
+ * The finest level's electrode-edge size relative to the design's hmax (measured on the issue 11 device
+ * bench 10×10, hmax 16.75 nm, and the README's quad, hmax 15 nm; P2, three levels at ratio √2, CPU time
+ * under a load average of 3–8): hmax/9 gave worst bars of 1.9 % (bench, 441k unknowns, 9.3 s) and 1.1 %
+ * (quad, 25 s); hmax/10 1.5 % (bench, 625k, 15 s) and 0.90 % (quad, 565k, about 25 s); hmax/12 1.08 %
+ * (bench, 744k, 20 s, 1.1 GB); 1.2 nm (hmax/14) 0.77 % (bench, 1.13M, 38 s). Bisection makes sizes in
+ * steps, so the unknowns jump with the fraction. The bench's gates are 2 nm apart, so even the finest
+ * edge size is not small against the gap: the observed rates (1.3–1.5 there, 1.8–2.1 on the quad) sit
+ * at the lower end of the asymptotic range, and many bars keep the safety factor 3.
  */
-export function leverFamily(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions = {}): TetMesh[] {
+export const LEVER_FINEST_EDGE_FRACTION = 1 / 12;
+
+/**
+ * The smallest edge exponent λ of the potential near a metal edge in a layered host: 2/3 for a
+ * re-entrant right-angled edge in one dielectric (Jackson §2.11), down to 1/2 for a metal edge on a
+ * dielectric interface as the permittivity contrast grows (sizefield.ts ElectrodeEdgeSpec; 0.566 for
+ * a gate on SiO₂ under vacuum). The lever family's theoretical rate uses this bound.
+ */
+export const EDGE_EXPONENT_LOWER_BOUND = 0.5;
+
+/**
+ * Theoretical rate of a lever arm on the graded family, in s = N^{−1/3} (N unknowns; the Apel grading
+ * keeps N ∝ h^{−3}, so s ∝ h): the smooth rate (2p for the load, p + 1 for a centre value), capped by
+ * the edges' pollution 2λ/μ with λ ≥ EDGE_EXPONENT_LOWER_BOUND and μ = 1 − β_E (LEVER_EDGE_EXPONENT).
+ * A design without electrode edges inside the domain (plates spanning it) keeps the smooth rate.
+ */
+export function leverTheoreticalRate(order: 1 | 2, pointValue: boolean, hasEdges: boolean, edgeExponent = LEVER_EDGE_EXPONENT): number {
+  const smooth = pointValue ? pointValueRate(order) : 2 * order;
+  if (!hasEdges) return smooth;
+  return Math.min(smooth, (2 * EDGE_EXPONENT_LOWER_BOUND) / (1 - edgeExponent));
+}
+
+/** The lever family's grading: β_E towards electrode edges and the bulk size ratio between levels. */
+export interface LeverGrading {
+  /** β_E in (0, 1) (default LEVER_EDGE_EXPONENT) */
+  edgeExponent?: number;
+  /** bulk size ratio between consecutive levels, > 1 (default LEVER_LEVEL_RATIO) */
+  levelRatio?: number;
+}
+
+/**
+ * Bulk size ratio r between consecutive lever levels (measured on the device bench 10×10, P2, three
+ * levels, finest h_E = hmax/8): with r = 2 the coarsest level's edge size was 16× the finest's and
+ * pre-asymptotic (observed rates 0.7–1.5, worst bar 4.1 %, 8.8 s CPU); r = √2 (edge size ×2 per level)
+ * keeps the coarse levels near the finest (rate 1.46, worst bar 2.0 %, 14 s CPU).
+ */
+export const LEVER_LEVEL_RATIO = Math.SQRT2;
+
+/** Per-level sizes of the lever family (nm), coarsest level first; see leverFamily. */
+export interface LeverLevelSizes {
+  hmaxNm: number;
+  h0Nm: number;
+  electrodeEdgeNm: number;
+  electrodeEdgeExponent: number;
+}
+
+/**
+ * The sizes of each level: level l of L has hmax·r^k and h0·r^k (k = L − 1 − l, r the level ratio) and
+ * the edge size h_E·(r^{1/(1−β_E)})^k, capped at that level's hmax; h_E is the given electrodeEdgeNm or
+ * LEVER_FINEST_EDGE_FRACTION·hmax. Sites get no core of their own (h0 = hmax) when every one reads
+ * φ_g at its centre (mean-value.ts: φ_g is smooth there on the device's scale), and hmax/4 otherwise,
+ * unless h0Nm is given (load.ts integrates a density accurately on elements larger than the orbital).
+ */
+export function leverLevelSizes(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions = {}, grading: LeverGrading = {}): LeverLevelSizes[] {
+  const edgeExponent = grading.edgeExponent ?? LEVER_EDGE_EXPONENT;
+  const ratio = grading.levelRatio ?? LEVER_LEVEL_RATIO;
+  if (!(ratio > 1)) throw new CoreError('bad-size-field', `the lever family's level ratio must exceed 1, got ${ratio}`, { levelRatio: ratio });
+  if (!(edgeExponent > 0 && edgeExponent < 1)) throw new CoreError('bad-size-field', `the lever family's edge grading exponent must lie strictly between 0 and 1, got ${edgeExponent}`, { edgeExponent });
   const hmax = sizeFieldFromDesign(design, { order, ...meshOpts }).spec.hmaxNm;
-  // the finest level has the design's hmax (measured on the README's quad: finer bulk cost 5× the CPU
-  // for a bar hardly smaller) and LEVER_EDGE_FACTOR × its electrode-edge size (the edges set the error)
-  const F = Math.pow(2, levels - 1);
-  // φ_g varies on the device's scale, not the orbital's: no site cores where every site reads its
-  // centre, else the electrode-edge size (load.ts integrates a density on elements larger than the orbital)
   const allCentres = meanValueSites(design, leverSites(design)).ok.every((x) => x === 1);
   const h0 = meshOpts.h0Nm ?? (allCentres ? hmax : hmax / ELECTRODE_EDGE_DIVISOR);
-  const base = meshDesign(design, {
-    order,
-    ...meshOpts,
-    h0Nm: h0 * F,
-    hmaxNm: hmax * F,
-    // not × F: the edge size is a fraction of hmax, which is × F already (it used to be scaled twice,
-    // so that with three levels the edges got no size of their own below hmax)
-    electrodeSizeFactor: meshOpts.electrodeSizeFactor ?? LEVER_EDGE_FACTOR,
-    // a given edge size is the finest level's (below): the base gets F times it
-    ...(meshOpts.electrodeEdgeNm !== undefined ? { electrodeEdgeNm: meshOpts.electrodeEdgeNm * F } : {}),
-    keepBisectionMesh: true,
-  });
+  const hE = meshOpts.electrodeEdgeNm ?? LEVER_FINEST_EDGE_FRACTION * hmax;
+  const edgeRatio = Math.pow(ratio, 1 / (1 - edgeExponent));
+  const out: LeverLevelSizes[] = [];
+  for (let l = 0; l < levels; l++) {
+    const k = levels - 1 - l;
+    const hm = hmax * Math.pow(ratio, k);
+    out.push({ hmaxNm: hm, h0Nm: Math.min(hm, h0 * Math.pow(ratio, k)), electrodeEdgeNm: Math.min(hm, hE * Math.pow(edgeRatio, k)), electrodeEdgeExponent: edgeExponent });
+  }
+  return out;
+}
+
+/**
+ * The nested meshes of the lever arms, coarsest first (issue 11 "Speed"; φ_g is singular at the
+ * electrodes' re-entrant edges, d^λ, so uniform refinement converged like h^{4/3} and the bars were
+ * wide): the base is the design's mesh with level 0's sizes (leverLevelSizes), and each finer level
+ * is the same bisection mesh refined further, only where its elements exceed that level's size field
+ * (refineToSize): the bulk's size shrinks by r, the edge size faster (graded, LEVER_EDGE_EXPONENT).
+ * One bisection mesh keeps the levels nested (every coarse vertex is a fine vertex, at the same index)
+ * and the output deterministic. Richardson (errorbars.ts) gets s = N^{−1/3}, N the unknowns, not the
+ * nominal h: the grading keeps N ∝ h^{−3} in the bulk and the edge zone alike, but bisection only
+ * makes sizes in steps (edge lengths halve every three bisections), so the realised ratio differs
+ * from r (1.5–1.7 measured for r = √2) and only N says what it was.
+ * The design's own edge grading (meshOpts.electrodeEdgeExponent) is not used here: the family's
+ * convergence rate depends on its own (`grading`). A given meshOpts.electrodeEdgeNm is the finest
+ * level's edge size.
+ */
+export function leverFamily(design: Design, order: 1 | 2, levels: number, meshOpts: MeshDesignOptions = {}, grading: LeverGrading = {}): TetMesh[] {
+  const sizes = leverLevelSizes(design, order, levels, meshOpts, grading);
+  const base = meshDesign(design, { order, ...meshOpts, ...sizes[0], keepBisectionMesh: true });
   const bm = base.bisectionMesh!;
   const maxTets = Math.min(meshOpts.maxElements ?? design.refinement.maxElements, meshOpts.hardCap ?? Infinity);
-  // a given electrode-edge size is the finest level's: level l is also bisected towards the edges
-  // (measured: on the bench's 2×2 array, 1.4 nm with β_E = 1 on top of the uniform refinement ran
-  // past 7.8 min of CPU and 4.6 GB without finishing; the uniformly refined bulk multiplies the edge
-  // zone, so an edge-graded lever family needs a bulk that is not refined uniformly as well)
-  // down to electrodeEdgeNm · 2^(levels−1−l) (the coarser levels scale it, as the split family does);
-  // refining one mesh keeps the levels nested
-  const edge = meshOpts.electrodeEdgeNm;
-  const out: TetMesh[] = [];
-  for (let l = 0; l < levels; l++) {
-    if (l > 0) refineUniform(bm, 3, { maxTets });
-    if (edge !== undefined) {
-      const { spec } = sizeFieldFromDesign(design, { order, ...meshOpts, h0Nm: hmax * F, hmaxNm: hmax * F, electrodeEdgeNm: edge * Math.pow(2, levels - 1 - l) });
-      refineToSize(bm, new SizeField(spec).tooLarge, { maxTets });
-    }
+  const out: TetMesh[] = [toTetMesh(bm)];
+  for (let l = 1; l < levels; l++) {
+    const { spec } = sizeFieldFromDesign(design, { order, ...meshOpts, ...sizes[l] });
+    const before = bm.nTets;
+    refineToSize(bm, new SizeField(spec).tooLarge, { maxTets });
+    // a level whose sizes the coarser mesh already meets (a small domain: the initial grid between the
+    // device's planes is finer than the coarse levels' sizes) is the same mesh: it replaces the coarser
+    // copy, so every returned level is distinct (Richardson needs s_c > s_f)
+    if (bm.nTets === before) out.pop();
     out.push(toTetMesh(bm));
   }
   return out;
@@ -316,7 +382,9 @@ export function solveLeverArms(design: Design, opts: LeverArmOptions = {}): Leve
   const sites = leverSites(design);
   const m = electrodes.length;
   opts.onProgress?.({ phase: 'mesh', fraction: 0 });
-  const meshes = leverFamily(design, order, Math.max(2, Math.floor(opts.levels ?? 3)), opts.mesh ?? {});
+  const edgeExponent = opts.grading?.edgeExponent ?? LEVER_EDGE_EXPONENT;
+  const meshes = leverFamily(design, order, Math.max(2, Math.floor(opts.levels ?? 3)), opts.mesh ?? {}, opts.grading);
+  const hasEdges = electrodeEdgeSegments(design).length > 0;
   const w = meshes.map((mesh) => mesh.tets.length);
   const wSum = w.reduce((a, b) => a + b, 0);
   let done = 0;
@@ -338,7 +406,7 @@ export function solveLeverArms(design: Design, opts: LeverArmOptions = {}): Leve
   for (let k = 0; k < last.length; k++) {
     const series = values.map((v) => v[k]);
     const site = Math.floor(k / m);
-    const r = richardson(s, series, point[site] ? pointValueRate(order) : 2 * order);
+    const r = richardson(s, series, leverTheoreticalRate(order, point[site] === 1, hasEdges, edgeExponent));
     // a lever arm the same on every mesh (a linear potential, reproduced exactly) has no bar to give;
     // a centre value adds the mean-value bound 1000 · tail meV/V (0 ≤ φ_g ≤ 1, mean-value.ts)
     err[k] = (Number.isFinite(r.error) ? r.error : Infinity) + (point[site] ? 1000 * tail[site] : 0);
@@ -354,6 +422,7 @@ export function solveLeverArms(design: Design, opts: LeverArmOptions = {}): Leve
     }
     result.siteEnergies.push({ id: site.id, eV: e, errorEv: de });
   });
+  if (meshes.length < Math.max(2, Math.floor(opts.levels ?? 3))) result.notes.push(`The coarsest lever-arm levels coincided with the initial grid between the device's planes: ${meshes.length} distinct nested meshes were used.`);
   if (meshes.length < 3) result.notes.push('Only two nested meshes were used for the lever arms: their error bars use the theoretical rate with a safety factor of 3.');
   opts.onProgress?.({ phase: 'done', fraction: 1 });
   return result;

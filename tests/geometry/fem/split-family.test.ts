@@ -8,7 +8,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Design } from '../../../geometry/design/types';
 import { activeSites, splitFamily } from '../../../geometry/fem/coulomb-plan';
-import { leverFamily } from '../../../geometry/fem/lever';
+import { leverFamily, leverLevelSizes } from '../../../geometry/fem/lever';
 import { electrodeEdgeSegments } from '../../../geometry/mesh/device';
 import { checkMesh } from '../../../geometry/mesh/check';
 import type { TetMesh } from '../../../geometry/mesh/types';
@@ -77,17 +77,25 @@ describe('split family with a given electrode-edge size', () => {
 });
 
 describe('lever-arm family with a given electrode-edge size', () => {
-  it('levels are nested refinements of one base, bisected towards the edges down to h_E·4, h_E·2, h_E', () => {
+  it('levels are nested refinements of one base, graded towards the edges: edge sizes h_E·16, h_E·4, h_E for β_E = 1/2 (capped at each level\'s hmax; Apel-type grading, lever.ts leverLevelSizes)', () => {
     const hE = 0.5;
-    const meshes = leverFamily(design, 2, 3, { electrodeEdgeNm: hE, electrodeEdgeExponent: 1 });
+    const sizes = leverLevelSizes(design, 2, 3, { electrodeEdgeNm: hE }, { edgeExponent: 0.5, levelRatio: 2 });
+    // the edge size shrinks by 2^{1/(1−β_E)} = 4 per level while hmax halves (the graded part c·d^β_E halves)
+    sizes.forEach((z, l) => {
+      expect(z.electrodeEdgeNm).toBeCloseTo(Math.min(z.hmaxNm, hE * Math.pow(4, 2 - l)), 12);
+      if (l > 0) expect(z.hmaxNm).toBeCloseTo(sizes[l - 1].hmaxNm / 2, 12);
+    });
+    const meshes = leverFamily(design, 2, 3, { electrodeEdgeNm: hE }, { edgeExponent: 0.5, levelRatio: 2 });
     expect(meshes.length).toBe(3);
     const seg = electrodeEdgeSegments(design);
     const at = meshes.map((m) => longestAtEdges(m, seg));
     meshes.forEach((m, l) => {
       expect(checkMesh(m).ok).toBe(true);
-      expect(at[l]).toBeLessThanOrEqual(hE * Math.pow(2, 2 - l) * (1 + 1e-12));
+      expect(at[l]).toBeLessThanOrEqual(sizes[l].electrodeEdgeNm * (1 + 1e-12));
     });
-    expect(at[0]).toBeGreaterThan(2 * hE);
+    // each level is really coarser at the edges than the next one's size
+    expect(at[0]).toBeGreaterThan(sizes[1].electrodeEdgeNm);
+    expect(at[1]).toBeGreaterThan(sizes[2].electrodeEdgeNm);
     // nested: refinement only adds vertices, and the coarser level's vertices come first, unchanged
     for (let l = 1; l < 3; l++) {
       const c = meshes[l - 1].coords, f = meshes[l].coords;
