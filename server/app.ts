@@ -26,6 +26,7 @@ import { bearerAuth, csrfUnlessBearer } from './http/bearer';
 import { apiNotFound, errorHandler, sendError } from './http/errors';
 import { refuseUnstorableText } from './http/wellFormed';
 import { jsonBodies, parseByteSize } from './http/bodies';
+import { markHealthArrival } from './http/healthTiming';
 import type { DesignBodyReader } from './http/designBody';
 import { routeModules } from './routes';
 import { SESSION_FREE_READS } from './routes/jobs';
@@ -121,6 +122,11 @@ export function createApp(deps: AppDeps): Express {
   const { services, logger } = deps;
   const app = express();
   app.disable('x-powered-by');
+  // a health poll's arrival, for the `app` figure of its Server-Timing header (routes/health.ts)
+  app.use((req, _res, next) => {
+    if (isHealthPoll(req)) markHealthArrival(req);
+    next();
+  });
   if (deps.pressure) app.use(pressureMiddleware(deps.pressure));
   // API answers are no-store (nothing may revalidate them), so Express's ETag, a SHA-1 over every JSON body on the
   // request thread, only cost time (tens of ms for a large design); express.static keeps its own validators

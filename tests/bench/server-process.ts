@@ -63,6 +63,9 @@ export interface ServerDelays {
   max: number;
   /** the main thread's garbage-collection pauses over the same span (ms) */
   gc?: { minorMax: number; majorMax: number; totalMs: number; count: number };
+  /** the main thread's stalls over 15 ms (a 5 ms timer that fired late) and GC pauses over 5 ms: start (epoch ms) and length */
+  stalls?: { at: number; ms: number }[];
+  pauses?: { at: number; ms: number; kind: string }[];
 }
 
 export function eventLoopDelay(child: ChildProcess): Promise<ServerDelays> {
