@@ -5,6 +5,7 @@
  * does not share the event loop it measures.
  */
 import { monitorEventLoopDelay, performance, PerformanceObserver, constants as perf } from 'node:perf_hooks';
+import { writeFileSync } from 'node:fs';
 import { start } from '../../server/index';
 import { silentLogger } from '../../server/config';
 
@@ -70,6 +71,22 @@ process.stdin.on('data', (line: string) => {
   pauses = [];
   gc = { minorMax: 0, majorMax: 0, totalMs: 0, count: 0 };
 });
+// TETRAWELL_BENCH_HEAP_SAMPLE=<file>: sample the main thread's allocations (every 32 KiB, those already collected
+// included) from here to the end and write them there as a .heapprofile (Chrome DevTools' format)
+const heapSample = process.env.TETRAWELL_BENCH_HEAP_SAMPLE;
+const inspector = heapSample ? new (await import('node:inspector')).Session() : null;
+if (inspector) {
+  inspector.connect();
+  inspector.post('HeapProfiler.startSampling', { samplingInterval: 32_768, includeObjectsCollectedByMajorGC: true, includeObjectsCollectedByMinorGC: true } as object);
+}
 process.on('SIGTERM', () => {
-  void server.stop().then(() => process.exit(0));
+  const stopped = inspector
+    ? new Promise<void>((resolve) =>
+        inspector.post('HeapProfiler.stopSampling', (err, r) => {
+          if (!err) writeFileSync(heapSample!, JSON.stringify(r.profile));
+          resolve();
+        }),
+      )
+    : Promise.resolve();
+  void stopped.then(() => server.stop()).then(() => process.exit(0));
 });

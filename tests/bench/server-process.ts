@@ -6,7 +6,7 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import path from 'node:path';
-import { readFileSync } from 'node:fs';
+import { createWriteStream, readFileSync } from 'node:fs';
 import os from 'node:os';
 import type { Knex } from 'knex';
 
@@ -19,6 +19,9 @@ export function benchServerProcess(databaseUrl: string, opts: { nodeArgs?: strin
     env: { ...process.env, ...opts.env, TETRAWELL_BENCH_DATABASE_URL: databaseUrl, NODE_ENV: 'production' },
     stdio: ['pipe', 'pipe', 'inherit'],
   });
+  // TETRAWELL_BENCH_SERVER_OUT=<file>: keep the server's stdout (e.g. what --trace-gc prints) in that file
+  const keep = process.env.TETRAWELL_BENCH_SERVER_OUT;
+  if (keep) child.stdout!.pipe(createWriteStream(keep));
   return new Promise((resolve, reject) => {
     let out = '';
     child.stdout!.on('data', (d: Buffer) => {
