@@ -72,12 +72,13 @@ process.stdin.on('data', (line: string) => {
   gc = { minorMax: 0, majorMax: 0, totalMs: 0, count: 0 };
 });
 // TETRAWELL_BENCH_HEAP_SAMPLE=<file>: sample the main thread's allocations (every 32 KiB, those already collected
-// included) from here to the end and write them there as a .heapprofile (Chrome DevTools' format)
+// included) from here to the end and write them there as a .heapprofile (Chrome DevTools' format);
+// TETRAWELL_BENCH_HEAP_SAMPLE_YOUNG=off leaves out what died young: what is left survived a scavenge
 const heapSample = process.env.TETRAWELL_BENCH_HEAP_SAMPLE;
 const inspector = heapSample ? new (await import('node:inspector')).Session() : null;
 if (inspector) {
   inspector.connect();
-  inspector.post('HeapProfiler.startSampling', { samplingInterval: 32_768, includeObjectsCollectedByMajorGC: true, includeObjectsCollectedByMinorGC: true } as object);
+  inspector.post('HeapProfiler.startSampling', { samplingInterval: 32_768, includeObjectsCollectedByMajorGC: true, includeObjectsCollectedByMinorGC: process.env.TETRAWELL_BENCH_HEAP_SAMPLE_YOUNG !== 'off' } as object);
 }
 process.on('SIGTERM', () => {
   const stopped = inspector

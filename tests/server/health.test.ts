@@ -167,6 +167,16 @@ describe('the health check connection', () => {
     expect(app).toBeGreaterThanOrEqual(db);
   });
 
+  it('answers a poll with a query string the usual way, with the same answer and headers', async () => {
+    const r = await supertest(env.url).get('/api/health?from=balancer');
+    expect(r.status).toBe(200);
+    expect(healthSchema.parse(r.body)).toEqual({ ok: true, database: 'up' });
+    expect(r.headers['cache-control']).toBe('no-store');
+    expect(r.headers['x-content-type-options']).toBe('nosniff');
+    expect(String(r.headers['server-timing'])).toMatch(/db;dur=[0-9.]+, app;dur=[0-9.]+/);
+    expect(r.headers['set-cookie']).toBeUndefined();
+  });
+
   it('still refuses a NUL in a poll\'s query string (server/http/wellFormed.ts runs first)', async () => {
     const r = await supertest(env.url).get('/api/health?x=%00');
     expect(r.status).toBe(400);
