@@ -14,7 +14,7 @@
  * without polling health, for the PUTs' own main-thread CPU (the polls are requests too, ~2 ms each when loaded).
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { readdirSync, readFileSync } from 'node:fs';
 import { getPriority, setPriority } from 'node:os';
 import autocannon from 'autocannon';
 import bcrypt from 'bcryptjs';
@@ -206,6 +206,39 @@ function mainThreadCpu(pid: number): { user: number; system: number } {
   return { user: Number(f[11]) * 10, system: Number(f[12]) * 10 };
 }
 
+/**
+ * CPU time (user + system, ms) of each of the server's other threads so far, by thread id, with its nice value
+ * (fields 14, 15 and 19 of /proc/<pid>/task/<tid>/stat, proc(5)). The body thread runs at nice 10; the rest at the
+ * server's own priority are V8's platform threads (garbage collection for every isolate, the body thread's large
+ * heaps included), libuv's pool and Node's own helpers.
+ */
+function otherThreadsCpu(pid: number): Map<number, { cpu: number; nice: number }> {
+  const out = new Map<number, { cpu: number; nice: number }>();
+  for (const tid of readdirSync(`/proc/${pid}/task`).map(Number)) {
+    if (tid === pid) continue;
+    try {
+      const stat = readFileSync(`/proc/${pid}/task/${tid}/stat`, 'utf8');
+      const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      out.set(tid, { cpu: (Number(f[11]) + Number(f[12])) * 10, nice: Number(f[16]) });
+    } catch {
+      // the thread ended meanwhile
+    }
+  }
+  return out;
+}
+
+/** CPU (ms) the other threads used between two readings, split into those at nice 0 and those lowered (nice > 0) */
+function threadSplit(before: Map<number, { cpu: number; nice: number }>, after: Map<number, { cpu: number; nice: number }>): { normal: number; lowered: number } {
+  let normal = 0;
+  let lowered = 0;
+  for (const [tid, a] of after) {
+    const d = a.cpu - (before.get(tid)?.cpu ?? 0);
+    if (a.nice > 0) lowered += d;
+    else normal += d;
+  }
+  return { normal, lowered };
+}
+
 function pct(xs: number[], p: number): number {
   const s = [...xs].sort((a, b) => a - b);
   return s.length ? s[Math.min(s.length - 1, Math.floor((p / 100) * s.length))] : NaN;
@@ -298,6 +331,7 @@ export async function run(): Promise<void> {
     const cpu0 = cpuMs(child.pid!);
     const main0 = cpuMs(child.pid!, 'main');
     const split0 = mainThreadCpu(child.pid!);
+    const threads0 = otherThreadsCpu(child.pid!);
     await eventLoopDelay(child);
     const polling = process.env.TETRAWELL_BENCH_HEALTH_POLLS !== 'off';
     const health = polling ? healthPoller(url, 600_000) : null;
@@ -335,6 +369,7 @@ export async function run(): Promise<void> {
     const cpu = cpuMs(child.pid!) - cpu0;
     const mainCpu = cpuMs(child.pid!, 'main') - main0;
     const split1 = mainThreadCpu(child.pid!);
+    const threads = threadSplit(threads0, otherThreadsCpu(child.pid!));
     const eld = await eventLoopDelay(child);
     console.log(`  PUT statuses ${[...new Set(statuses)].join(', ')}; each PUT p50 ${pct(putTimes, 50).toFixed(0)} ms, max ${Math.max(...putTimes).toFixed(0)} ms; all rounds ${putWall.toFixed(0)} ms`);
     if (polling) console.log(`  health: ${during.length} polls, p50 ${pct(during, 50).toFixed(1)} ms, p99 ${pct(during, 99).toFixed(1)} ms, max ${Math.max(...during).toFixed(1)} ms`);
@@ -355,6 +390,10 @@ export async function run(): Promise<void> {
       `  main thread: user ${((split1.user - split0.user) / statuses.length).toFixed(0)} ms + system ${((split1.system - split0.system) / statuses.length).toFixed(0)} ms per PUT; ` +
         // an estimate only (10 ms ticks, and a loaded machine changes the cost per poll): TETRAWELL_BENCH_HEALTH_POLLS=off measures the PUTs alone
         `the ${during.length} health polls at the cost measured alone account for ~${(pollShare / statuses.length).toFixed(0)} ms of it per PUT`,
+    );
+    console.log(
+      `  other server threads: ${(threads.lowered / statuses.length).toFixed(0)} ms per PUT at a lowered priority (the body thread), ` +
+        `${(threads.normal / statuses.length).toFixed(0)} ms per PUT at the request thread's own (V8's garbage-collection helpers, libuv's pool)`,
     );
     if (polled) placeSlowPolls(polled.polls, polled, eld, 50);
     if (eld.gc)
