@@ -80,6 +80,8 @@ if (inspector) {
   inspector.connect();
   inspector.post('HeapProfiler.startSampling', { samplingInterval: 32_768, includeObjectsCollectedByMajorGC: true, includeObjectsCollectedByMinorGC: process.env.TETRAWELL_BENCH_HEAP_SAMPLE_YOUNG !== 'off' } as object);
 }
+// the bench went away without a SIGTERM (this process runs in a session of its own, server-process.ts)
+process.stdin.on('end', () => process.kill(process.pid, 'SIGTERM'));
 process.on('SIGTERM', () => {
   const stopped = inspector
     ? new Promise<void>((resolve) =>

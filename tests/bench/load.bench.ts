@@ -116,8 +116,8 @@ interface PollerResult {
 }
 
 /**
- * Polls /api/health every 20 ms from its own process (so this process's work on the PUT clients' 17 MB bodies does
- * not delay the polls) until stop() or `maxMs`, whichever comes first. Besides each poll's total time it keeps the
+ * Polls /api/health every 20 ms from its own process, in a session of its own (so this process's work on the PUT
+ * clients' 17 MB bodies does not delay the polls) until stop() or `maxMs`, whichever comes first. Besides each poll's total time it keeps the
  * server's Server-Timing figures and its own event-loop delay, so a slow poll can be placed: inside the server's code,
  * at the database, or outside both (the server's event loop not yet running the request, the poller late, the cores busy).
  */
@@ -129,7 +129,7 @@ function healthPoller(url: string, maxMs: number): { pid: number; stop(): Promis
     let tick = performance.now();
     setInterval(() => { const now = performance.now(); const late = now - tick - 5; if (late > 15 && stalls.length < 500) stalls.push({ at: performance.timeOrigin + tick, ms: late }); tick = now; }, 5).unref();
     const figure = (h, name) => { const m = new RegExp('(?:^|, *)' + name + ';dur=([0-9.]+)').exec(h ?? ''); return m ? Number(m[1]) : NaN; };
-    process.stdin.on('data', () => { stop = true; }); process.stdin.resume();
+    process.stdin.on('data', () => { stop = true; }); process.stdin.on('end', () => { stop = true; }); process.stdin.resume();
     (async () => {
       while (!stop && Date.now() < end) {
         const t = performance.now();
@@ -143,7 +143,9 @@ function healthPoller(url: string, maxMs: number): { pid: number; stop(): Promis
       process.stdout.write(JSON.stringify({ polls, delay: { p50: ms(delay.percentile(50)), p99: ms(delay.percentile(99)), max: ms(delay.max) }, stalls }));
       process.exit(0);
     })();`;
-  const child = spawn(process.execPath, ['-e', script], { stdio: ['pipe', 'pipe', 'inherit'] });
+  // a session of its own (setsid): it stands in for a load balancer on another machine, so with Linux's autogrouping
+  // it is not one more thread in the bench's scheduling group (sched(7), "The autogroup feature")
+  const child = spawn(process.execPath, ['-e', script], { stdio: ['pipe', 'pipe', 'inherit'], detached: true });
   let out = '';
   child.stdout.on('data', (d: Buffer) => (out += d.toString()));
   const empty: PollerResult = { polls: [], delay: { p50: NaN, p99: NaN, max: NaN }, stalls: [] };
@@ -343,7 +345,7 @@ export async function run(): Promise<void> {
         // not allowed here: the clients keep the server's priority (printed below)
       }
     }
-    console.log(`  PUT clients at nice ${getPriority(0)}, health poller at nice ${health ? getPriority(health.pid) : '-'}`);
+    console.log(`  PUT clients at nice ${getPriority(0)}, health poller at nice ${health ? getPriority(health.pid) : '-'}; server and poller each in a session (autogroup) of their own`);
     const t0 = performance.now();
     for (let round = 0; round < PUT_ROUNDS; round++) {
       await Promise.all(

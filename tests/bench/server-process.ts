@@ -18,6 +18,11 @@ export function benchServerProcess(databaseUrl: string, opts: { nodeArgs?: strin
     cwd: root,
     env: { ...process.env, ...opts.env, TETRAWELL_BENCH_DATABASE_URL: databaseUrl, NODE_ENV: 'production' },
     stdio: ['pipe', 'pipe', 'inherit'],
+    // a session of its own (setsid), as a server started from its own shell or service manager has: with Linux's
+    // autogrouping the scheduler shares the cores between sessions first (sched(7), "The autogroup feature"), so in
+    // the bench's session the server's request thread competed as one of the bench clients' threads. It still ends
+    // with the bench: on SIGTERM, or when its stdin closes (load-server.ts)
+    detached: true,
   });
   // TETRAWELL_BENCH_SERVER_OUT=<file>: keep the server's stdout (e.g. what --trace-gc prints) in that file
   const keep = process.env.TETRAWELL_BENCH_SERVER_OUT;
