@@ -14,13 +14,14 @@
  * without polling health, for the PUTs' own main-thread CPU (the polls are requests too, ~2 ms each when loaded).
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { readdirSync, readFileSync } from 'node:fs';
+import { getPriority, setPriority } from 'node:os';
 import autocannon from 'autocannon';
 import bcrypt from 'bcryptjs';
 import { startCluster, type Cluster } from '../../server/ops/postgres.mjs';
 import { prepareDatabase } from '../../server/ops/setup.mjs';
 import { freePort } from '../../server/ops/sys.mjs';
-import { benchServerProcess, cpuMs, eventLoopDelay, loadAverage, transactions } from './server-process';
+import { benchServerProcess, cpuMs, eventLoopDelay, loadAverage, transactions, type ServerDelays } from './server-process';
 import { createKnex } from '../../server/db/config';
 import { MAX_SITES } from '../../server/contracts/design';
 
@@ -94,35 +95,107 @@ function bigDesignBody(name: string, version: number): string {
   return JSON.stringify({ document: design, version });
 }
 
+/** one health poll as the poller saw it: start (epoch ms), total ms, and the server's Server-Timing figures (ms) */
+interface Poll {
+  at: number;
+  total: number;
+  /** the probe's `select 1` (Server-Timing `db`) */
+  db: number;
+  /** arrival at the app to the answer (Server-Timing `app`) */
+  app: number;
+}
+interface Stall {
+  at: number;
+  ms: number;
+}
+interface PollerResult {
+  polls: Poll[];
+  /** the poller's own event-loop delay (ms) and its stalls over 15 ms: a late poller makes a poll look slow */
+  delay: { p50: number; p99: number; max: number };
+  stalls: Stall[];
+}
+
 /**
- * Polls /api/health every 20 ms from its own process (so this process's JSON work does not delay the polls)
- * until stop() or `maxMs`, whichever comes first; resolves to the latencies in ms.
+ * Polls /api/health every 20 ms from its own process, in a session of its own (so this process's work on the PUT
+ * clients' 17 MB bodies does not delay the polls) until stop() or `maxMs`, whichever comes first. Besides each poll's total time it keeps the
+ * server's Server-Timing figures and its own event-loop delay, so a slow poll can be placed: inside the server's code,
+ * at the database, or outside both (the server's event loop not yet running the request, the poller late, the cores busy).
  */
-function healthPoller(url: string, maxMs: number): { stop(): Promise<number[]> } {
+function healthPoller(url: string, maxMs: number): { pid: number; stop(): Promise<PollerResult> } {
   const script = `
-    const lat = []; const end = Date.now() + ${maxMs}; let stop = false;
-    process.stdin.on('data', () => { stop = true; }); process.stdin.resume();
+    const { monitorEventLoopDelay } = require('node:perf_hooks');
+    const polls = []; const stalls = []; const end = Date.now() + ${maxMs}; let stop = false;
+    const delay = monitorEventLoopDelay({ resolution: 5 }); delay.enable();
+    let tick = performance.now();
+    setInterval(() => { const now = performance.now(); const late = now - tick - 5; if (late > 15 && stalls.length < 500) stalls.push({ at: performance.timeOrigin + tick, ms: late }); tick = now; }, 5).unref();
+    const figure = (h, name) => { const m = new RegExp('(?:^|, *)' + name + ';dur=([0-9.]+)').exec(h ?? ''); return m ? Number(m[1]) : NaN; };
+    process.stdin.on('data', () => { stop = true; }); process.stdin.on('end', () => { stop = true; }); process.stdin.resume();
     (async () => {
       while (!stop && Date.now() < end) {
         const t = performance.now();
         const r = await fetch(${JSON.stringify(url)} + '/api/health');
         await r.arrayBuffer();
-        lat.push(performance.now() - t);
+        const h = r.headers.get('server-timing');
+        polls.push({ at: performance.timeOrigin + t, total: performance.now() - t, db: figure(h, 'db'), app: figure(h, 'app') });
         await new Promise((res) => setTimeout(res, 20));
       }
-      process.stdout.write(JSON.stringify(lat));
+      const ms = (ns) => ns / 1e6;
+      process.stdout.write(JSON.stringify({ polls, delay: { p50: ms(delay.percentile(50)), p99: ms(delay.percentile(99)), max: ms(delay.max) }, stalls }));
       process.exit(0);
     })();`;
-  const child = spawn(process.execPath, ['-e', script], { stdio: ['pipe', 'pipe', 'inherit'] });
+  // a session of its own (setsid): it stands in for a load balancer on another machine, so with Linux's autogrouping
+  // it is not one more thread in the bench's scheduling group (sched(7), "The autogroup feature")
+  const child = spawn(process.execPath, ['-e', script], { stdio: ['pipe', 'pipe', 'inherit'], detached: true });
   let out = '';
   child.stdout.on('data', (d: Buffer) => (out += d.toString()));
-  const done = new Promise<number[]>((resolve) => child.once('exit', () => resolve(JSON.parse(out || '[]') as number[])));
+  const empty: PollerResult = { polls: [], delay: { p50: NaN, p99: NaN, max: NaN }, stalls: [] };
+  const done = new Promise<PollerResult>((resolve) => child.once('exit', () => resolve(out ? (JSON.parse(out) as PollerResult) : empty)));
   return {
+    pid: child.pid!,
     stop() {
       child.stdin.end('stop\n');
       return done;
     },
   };
+}
+
+const overlaps = (p: Poll, s: Stall) => s.at < p.at + p.total && s.at + s.ms > p.at;
+
+/**
+ * Where the slow polls (over `slowMs`) lost their time: the server's code (`app`, of which `db` at the database), a
+ * stall of the server's event loop or of the poller's during the poll, a GC pause of the server's main thread, or none
+ * of these (the request waited outside both event loops: the kernel, the cores busy with other threads or processes).
+ */
+function placeSlowPolls(polls: Poll[], poller: PollerResult, server: ServerDelays, slowMs: number): void {
+  const slow = polls.filter((p) => p.total > slowMs).sort((a, b) => b.total - a.total);
+  const serverStalls = server.stalls ?? [];
+  const gcPauses = server.pauses ?? [];
+  let inApp = 0;
+  let serverStalled = 0;
+  let pollerStalled = 0;
+  let neither = 0;
+  for (const p of slow) {
+    const s = serverStalls.some((x) => overlaps(p, x));
+    const q = poller.stalls.some((x) => overlaps(p, x));
+    if (p.app > slowMs / 2) inApp++;
+    if (s) serverStalled++;
+    if (q) pollerStalled++;
+    if (!s && !q && !(p.app > slowMs / 2)) neither++;
+  }
+  console.log(
+    `  polls over ${slowMs} ms: ${slow.length}; with half of it or more inside the server's code ${inApp}, during a server event-loop stall ${serverStalled}, ` +
+      `during a poller stall ${pollerStalled}, none of these ${neither} (poller event-loop delay max ${poller.delay.max.toFixed(1)} ms; ` +
+      `server stalls over 15 ms ${serverStalls.length}, GC pauses over 5 ms ${gcPauses.length})`,
+  );
+  for (const p of slow.slice(0, 5)) {
+    const s = serverStalls.filter((x) => overlaps(p, x)).map((x) => x.ms.toFixed(0));
+    const q = poller.stalls.filter((x) => overlaps(p, x)).map((x) => x.ms.toFixed(0));
+    const g = gcPauses.filter((x) => overlaps(p, x)).map((x) => `${x.kind} ${x.ms.toFixed(0)}`);
+    console.log(
+      `    ${p.total.toFixed(1)} ms: app ${p.app.toFixed(1)} (db ${p.db.toFixed(1)}), outside the app ${(p.total - p.app).toFixed(1)}; ` +
+        `server stalls [${s.join(', ')}] ms, GC [${g.join(', ')}] ms, poller stalls [${q.join(', ')}] ms`,
+    );
+  }
 }
 
 /**
@@ -133,6 +206,39 @@ function mainThreadCpu(pid: number): { user: number; system: number } {
   const stat = readFileSync(`/proc/${pid}/task/${pid}/stat`, 'utf8');
   const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
   return { user: Number(f[11]) * 10, system: Number(f[12]) * 10 };
+}
+
+/**
+ * CPU time (user + system, ms) of each of the server's other threads so far, by thread id, with its nice value
+ * (fields 14, 15 and 19 of /proc/<pid>/task/<tid>/stat, proc(5)). The body thread runs at nice 10; the rest at the
+ * server's own priority are V8's platform threads (garbage collection for every isolate, the body thread's large
+ * heaps included), libuv's pool and Node's own helpers.
+ */
+function otherThreadsCpu(pid: number): Map<number, { cpu: number; nice: number }> {
+  const out = new Map<number, { cpu: number; nice: number }>();
+  for (const tid of readdirSync(`/proc/${pid}/task`).map(Number)) {
+    if (tid === pid) continue;
+    try {
+      const stat = readFileSync(`/proc/${pid}/task/${tid}/stat`, 'utf8');
+      const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      out.set(tid, { cpu: (Number(f[11]) + Number(f[12])) * 10, nice: Number(f[16]) });
+    } catch {
+      // the thread ended meanwhile
+    }
+  }
+  return out;
+}
+
+/** CPU (ms) the other threads used between two readings, split into those at nice 0 and those lowered (nice > 0) */
+function threadSplit(before: Map<number, { cpu: number; nice: number }>, after: Map<number, { cpu: number; nice: number }>): { normal: number; lowered: number } {
+  let normal = 0;
+  let lowered = 0;
+  for (const [tid, a] of after) {
+    const d = a.cpu - (before.get(tid)?.cpu ?? 0);
+    if (a.nice > 0) lowered += d;
+    else normal += d;
+  }
+  return { normal, lowered };
 }
 
 function pct(xs: number[], p: number): number {
@@ -199,31 +305,54 @@ export async function run(): Promise<void> {
     const warmUp = healthPoller(url, 60_000);
     await new Promise((res) => setTimeout(res, 2_000));
     await warmUp.stop();
+    // the main thread's CPU with nothing to answer (timers: the bench server's own event-loop samplers), per second,
+    // so the cost per poll below is the polls' own
+    const idle0 = cpuMs(child.pid!, 'main');
+    const idleT0 = performance.now();
+    await new Promise((res) => setTimeout(res, 3_000));
+    const idlePerMs = (cpuMs(child.pid!, 'main') - idle0) / (performance.now() - idleT0);
     // (counted from before the poller starts: the server does nothing for it until its first poll arrives)
     const calMain0 = cpuMs(child.pid!, 'main');
+    const calT0 = performance.now();
     const calibration = healthPoller(url, 60_000);
     await new Promise((res) => setTimeout(res, 5_000));
-    const alone = await calibration.stop();
-    const perPoll = (cpuMs(child.pid!, 'main') - calMain0) / Math.max(1, alone.length);
+    const alone = (await calibration.stop()).polls.map((p) => p.total);
+    const idleShare = idlePerMs * (performance.now() - calT0);
+    const perPoll = Math.max(0, cpuMs(child.pid!, 'main') - calMain0 - idleShare) / Math.max(1, alone.length);
     console.log(
       `  health alone first: ${alone.length} polls, p50 ${pct(alone, 50).toFixed(1)} ms, max ${Math.max(...alone).toFixed(1)} ms; ` +
-        `main thread ${perPoll.toFixed(2)} ms CPU per poll`,
+        `main thread ${perPoll.toFixed(2)} ms CPU per poll (beside ${(idlePerMs * 1000).toFixed(0)} ms/s when idle, taken off)`,
     );
+    // The PUT clients stand in for browsers on other machines; here they share the server's 2 cores, and at the
+    // server's priority their work on 4 × 17 MB bodies and answers took cores from the server they measure. This
+    // thread (the PUT clients; the poller is its own process, started above at normal priority) drops to nice
+    // TETRAWELL_BENCH_CLIENT_NICE (default 10; 0 keeps the server's priority). On Linux the nice value is per thread.
+    const clientNice = Number(process.env.TETRAWELL_BENCH_CLIENT_NICE ?? 10);
     const putTimes: number[] = [];
     const statuses: number[] = [];
     const cpu0 = cpuMs(child.pid!);
     const main0 = cpuMs(child.pid!, 'main');
     const split0 = mainThreadCpu(child.pid!);
+    const threads0 = otherThreadsCpu(child.pid!);
     await eventLoopDelay(child);
     const polling = process.env.TETRAWELL_BENCH_HEALTH_POLLS !== 'off';
-    const health = polling ? healthPoller(url, 600_000) : { stop: async () => [] as number[] };
+    const health = polling ? healthPoller(url, 600_000) : null;
     await new Promise((res) => setTimeout(res, 500));
+    if (clientNice > 0) {
+      try {
+        setPriority(0, clientNice);
+      } catch {
+        // not allowed here: the clients keep the server's priority (printed below)
+      }
+    }
+    console.log(`  PUT clients at nice ${getPriority(0)}, health poller at nice ${health ? getPriority(health.pid) : '-'}; server and poller each in a session (autogroup) of their own`);
     const t0 = performance.now();
     for (let round = 0; round < PUT_ROUNDS; round++) {
       await Promise.all(
         [...versions.keys()].map(async (id) => {
           const v = versions.get(id)!;
-          const body = v === 1 ? bodyText : bodyText.replace(/"version":1}$/, `"version":${v}}`);
+          // (the version is the body's last field: a slice, not a regular expression run over 17 MB)
+          const body = v === 1 ? bodyText : `${bodyText.slice(0, -'1}'.length)}${v}}`;
           const t = performance.now();
           const res = await s.send('PUT', designPaths.get(id)!, body);
           // the bytes only: decoding 17 MB into a string here would take CPU from the server on a 2-core machine
@@ -237,13 +366,22 @@ export async function run(): Promise<void> {
       );
     }
     const putWall = performance.now() - t0;
-    const during = await health.stop();
+    const polled = (await health?.stop()) ?? null;
+    const during = polled?.polls.map((p) => p.total) ?? [];
     const cpu = cpuMs(child.pid!) - cpu0;
     const mainCpu = cpuMs(child.pid!, 'main') - main0;
     const split1 = mainThreadCpu(child.pid!);
+    const threads = threadSplit(threads0, otherThreadsCpu(child.pid!));
     const eld = await eventLoopDelay(child);
     console.log(`  PUT statuses ${[...new Set(statuses)].join(', ')}; each PUT p50 ${pct(putTimes, 50).toFixed(0)} ms, max ${Math.max(...putTimes).toFixed(0)} ms; all rounds ${putWall.toFixed(0)} ms`);
     if (polling) console.log(`  health: ${during.length} polls, p50 ${pct(during, 50).toFixed(1)} ms, p99 ${pct(during, 99).toFixed(1)} ms, max ${Math.max(...during).toFixed(1)} ms`);
+    if (polled) {
+      const app = polled.polls.map((p) => p.app);
+      const db = polled.polls.map((p) => p.db);
+      console.log(
+        `    inside the server (Server-Timing): app p50 ${pct(app, 50).toFixed(1)} ms, max ${Math.max(...app).toFixed(1)} ms; its database probe p50 ${pct(db, 50).toFixed(1)} ms, max ${Math.max(...db).toFixed(1)} ms`,
+      );
+    }
     console.log(
       `  server CPU (all threads) ${(cpu / 1000).toFixed(2)} s = ${(cpu / statuses.length).toFixed(0)} ms per PUT, of which the main thread ` +
         `${(mainCpu / statuses.length).toFixed(0)} ms per PUT; main-thread event-loop delay ` +
@@ -255,6 +393,11 @@ export async function run(): Promise<void> {
         // an estimate only (10 ms ticks, and a loaded machine changes the cost per poll): TETRAWELL_BENCH_HEALTH_POLLS=off measures the PUTs alone
         `the ${during.length} health polls at the cost measured alone account for ~${(pollShare / statuses.length).toFixed(0)} ms of it per PUT`,
     );
+    console.log(
+      `  other server threads: ${(threads.lowered / statuses.length).toFixed(0)} ms per PUT at a lowered priority (the body thread), ` +
+        `${(threads.normal / statuses.length).toFixed(0)} ms per PUT at the request thread's own (V8's garbage-collection helpers, libuv's pool)`,
+    );
+    if (polled) placeSlowPolls(polled.polls, polled, eld, 50);
     if (eld.gc)
       console.log(
         `  main-thread garbage collection: ${eld.gc.count} pauses, ${eld.gc.totalMs.toFixed(0)} ms in all; longest minor ${eld.gc.minorMax.toFixed(1)} ms, longest major ${eld.gc.majorMax.toFixed(1)} ms`,

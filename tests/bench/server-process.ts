@@ -6,7 +6,7 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import path from 'node:path';
-import { readFileSync } from 'node:fs';
+import { createWriteStream, readFileSync } from 'node:fs';
 import os from 'node:os';
 import type { Knex } from 'knex';
 
@@ -18,7 +18,15 @@ export function benchServerProcess(databaseUrl: string, opts: { nodeArgs?: strin
     cwd: root,
     env: { ...process.env, ...opts.env, TETRAWELL_BENCH_DATABASE_URL: databaseUrl, NODE_ENV: 'production' },
     stdio: ['pipe', 'pipe', 'inherit'],
+    // a session of its own (setsid), as a server started from its own shell or service manager has: with Linux's
+    // autogrouping the scheduler shares the cores between sessions first (sched(7), "The autogroup feature"), so in
+    // the bench's session the server's request thread competed as one of the bench clients' threads. It still ends
+    // with the bench: on SIGTERM, or when its stdin closes (load-server.ts)
+    detached: true,
   });
+  // TETRAWELL_BENCH_SERVER_OUT=<file>: keep the server's stdout (e.g. what --trace-gc prints) in that file
+  const keep = process.env.TETRAWELL_BENCH_SERVER_OUT;
+  if (keep) child.stdout!.pipe(createWriteStream(keep));
   return new Promise((resolve, reject) => {
     let out = '';
     child.stdout!.on('data', (d: Buffer) => {
@@ -63,6 +71,9 @@ export interface ServerDelays {
   max: number;
   /** the main thread's garbage-collection pauses over the same span (ms) */
   gc?: { minorMax: number; majorMax: number; totalMs: number; count: number };
+  /** the main thread's stalls over 15 ms (a 5 ms timer that fired late) and GC pauses over 5 ms: start (epoch ms) and length */
+  stalls?: { at: number; ms: number }[];
+  pauses?: { at: number; ms: number; kind: string }[];
 }
 
 export function eventLoopDelay(child: ChildProcess): Promise<ServerDelays> {

@@ -136,4 +136,49 @@ describe('the health check connection', () => {
       await new Promise((r) => silent.close(r));
     }
   }, 5_000);
+
+  // issue 8, item 7: polls are answered before sessions, tokens, CSRF and the API router (server/app.ts). A poll that
+  // carried an unknown API token used to be looked up in the database and refused with 401.
+  it('answers a poll that carries an unknown API token without looking at the token', async () => {
+    const r = await supertest(env.url).get('/api/health').set('Authorization', 'Bearer no-such-token');
+    expect(r.status).toBe(200);
+    expect(healthSchema.parse(r.body)).toEqual({ ok: true, database: 'up' });
+  });
+
+  // the early answer keeps what every API answer carries: no-store (OWASP Session Management cheat sheet, "Web
+  // content caching") and helmet's headers; HEAD answers without a body (RFC 9110, section 9.3.2)
+  it('keeps no-store and the security headers, and answers HEAD without a body', async () => {
+    const r = await supertest(env.url).get('/api/health');
+    expect(r.headers['cache-control']).toBe('no-store');
+    expect(r.headers['x-content-type-options']).toBe('nosniff');
+    expect(r.headers['content-security-policy']).toContain("default-src 'self'");
+    const h = await supertest(env.url).head('/api/health');
+    expect(h.status).toBe(200);
+    expect(h.text ?? '').toBe('');
+  });
+
+  // W3C Server Timing: `db` (the probe's select 1) and `app` (arrival at the app to the answer), in ms; app includes db
+  it('says in Server-Timing how long the probe and the whole answer took', async () => {
+    const r = await supertest(env.url).get('/api/health');
+    const h = String(r.headers['server-timing'] ?? '');
+    const db = Number(/(?:^|, *)db;dur=([0-9.]+)/.exec(h)?.[1]);
+    const app = Number(/(?:^|, *)app;dur=([0-9.]+)/.exec(h)?.[1]);
+    expect(Number.isFinite(db) && db >= 0).toBe(true);
+    expect(app).toBeGreaterThanOrEqual(db);
+  });
+
+  it('answers a poll with a query string the usual way, with the same answer and headers', async () => {
+    const r = await supertest(env.url).get('/api/health?from=balancer');
+    expect(r.status).toBe(200);
+    expect(healthSchema.parse(r.body)).toEqual({ ok: true, database: 'up' });
+    expect(r.headers['cache-control']).toBe('no-store');
+    expect(r.headers['x-content-type-options']).toBe('nosniff');
+    expect(String(r.headers['server-timing'])).toMatch(/db;dur=[0-9.]+, app;dur=[0-9.]+/);
+    expect(r.headers['set-cookie']).toBeUndefined();
+  });
+
+  it('still refuses a NUL in a poll\'s query string (server/http/wellFormed.ts runs first)', async () => {
+    const r = await supertest(env.url).get('/api/health?x=%00');
+    expect(r.status).toBe(400);
+  });
 });

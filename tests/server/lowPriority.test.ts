@@ -72,6 +72,13 @@ describe('lowerThreadPriority', () => {
       expect(getPriority(pid)).toBe(WORKER_NICE);
       // only that pool's backends: another connection keeps the server's own priority
       expect(getPriority(other)).toBeLessThan(WORKER_NICE);
+      // with autogrouping on, each backend (a session leader: PostgreSQL calls setsid() in every child) is a
+      // scheduling group alone, where the thread's nice value weighs nothing against other groups: the group's own
+      // nice value is lowered too (sched(7), "The autogroup feature"); the other pool's backend keeps nice 0
+      if (readFileSync('/proc/sys/kernel/sched_autogroup_enabled', 'utf8').trim() === '1') {
+        expect(readFileSync(`/proc/${pid}/autogroup`, 'utf8')).toMatch(new RegExp(`nice ${WORKER_NICE}\\s*$`));
+        expect(readFileSync(`/proc/${other}/autogroup`, 'utf8')).toMatch(/nice 0\s*$/);
+      }
     } finally {
       await Promise.all([knex.destroy(), plain.destroy()]);
     }
