@@ -18,7 +18,7 @@ export interface DbOptions {
   /**
    * Lower the OS priority of this pool's PostgreSQL backend processes to this nice value, where the database runs
    * on this machine and lets us (setpriority(2): the same user, or root); silently nothing otherwise. For pools
-   * whose queries are big batch writes beside interactive ones (the design-body threads' 17 MB jsonb inserts).
+   * whose queries are big batch writes beside interactive ones (the design-body process's 17 MB jsonb inserts).
    */
   backendNice?: number;
 }

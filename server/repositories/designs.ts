@@ -41,7 +41,7 @@ export interface DesignVersionRecord {
 
 /**
  * What a save writes: the current row and the new version row get the same figures. The document is JSON text,
- * or (from the off-thread reader, server/http/designBody.worker.ts) `documentJsonb`: the bytes of PostgreSQL's
+ * or (from the design-body process, server/http/designBody.child.ts) `documentJsonb`: the bytes of PostgreSQL's
  * jsonb binary input, a version byte 1 then the UTF-8 text (PostgreSQL docs, jsonb_recv in
  * src/backend/utils/adt/jsonb.c). pg sends a Buffer parameter in binary format as it is, so a 17 MB document is
  * never encoded to UTF-8 on the request thread (it was, twice: current row and version row).

@@ -69,14 +69,17 @@ function receiveFile(req: Request, res: Response): Promise<Express.Multer.File> 
 export const ANSWER_PIECE_BYTES = 256 * 1024;
 
 /**
- * Write `bytes` to the answer in pieces of at most ANSWER_PIECE_BYTES, each after the socket has taken the one
- * before ('drain'). One `write` of 17 MB became one writev(2) that the kernel serves as far as the socket buffer
- * allows, copying megabytes and running loopback TCP for the reader inside the call: tens of milliseconds in which
- * the request thread answered nothing else, /api/health included (issue 8, item 7). The total work is the same; the
- * event loop now runs between the pieces. Resolves false when the client went away first.
+ * Write `bytes` (one buffer or the pieces the design-body process sent) to the answer in pieces of at most
+ * ANSWER_PIECE_BYTES, each after the socket has taken the one before ('drain'). One `write` of 17 MB became one
+ * writev(2) that the kernel serves as far as the socket buffer allows, copying megabytes and running loopback TCP for
+ * the reader inside the call: tens of milliseconds in which the request thread answered nothing else, /api/health
+ * included (issue 8, item 7). The total work is the same; the event loop now runs between the pieces. Resolves false
+ * when the client went away first.
  */
-function writeInPieces(res: Response, bytes: Buffer): Promise<boolean> {
+function writeInPieces(res: Response, bytes: Buffer | readonly Buffer[]): Promise<boolean> {
+  const list = Buffer.isBuffer(bytes) ? [bytes] : bytes;
   return new Promise((resolve) => {
+    let i = 0;
     let at = 0;
     const done = (ok: boolean) => {
       res.off('drain', next);
@@ -85,12 +88,17 @@ function writeInPieces(res: Response, bytes: Buffer): Promise<boolean> {
     };
     const gone = () => done(false);
     function next() {
-      while (at < bytes.byteLength) {
+      while (i < list.length) {
         if (res.destroyed) return done(false);
-        const piece = bytes.subarray(at, Math.min(bytes.byteLength, at + ANSWER_PIECE_BYTES));
+        const b = list[i];
+        const piece = b.subarray(at, Math.min(b.byteLength, at + ANSWER_PIECE_BYTES));
         at += piece.byteLength;
+        if (at >= b.byteLength) {
+          i += 1;
+          at = 0;
+        }
         // false: the socket holds more than its high-water mark; go on once it has taken it
-        if (!res.write(piece)) return;
+        if (piece.byteLength > 0 && !res.write(piece)) return;
       }
       done(true);
     }
@@ -104,7 +112,7 @@ function writeInPieces(res: Response, bytes: Buffer): Promise<boolean> {
  * `{ design: { …meta, document } }` with the document spliced in as the JSON text it was stored from: a large
  * document is never parsed or stringified on the request thread.
  */
-async function sendDesignText(res: Response, status: number, meta: DesignMeta, documentJson: string | Buffer): Promise<void> {
+async function sendDesignText(res: Response, status: number, meta: DesignMeta, documentJson: string | Buffer | readonly Buffer[]): Promise<void> {
   const head = `{"design":${JSON.stringify(meta).slice(0, -1)},"document":`;
   if (typeof documentJson === 'string') {
     res.status(status).type('application/json').send(`${head}${documentJson}}}`);
@@ -113,7 +121,8 @@ async function sendDesignText(res: Response, status: number, meta: DesignMeta, d
   // UTF-8 bytes from the off-thread reader: written as they are, without joining them into one string or buffer
   const headBytes = Buffer.from(head, 'utf8');
   res.status(status).type('application/json');
-  res.setHeader('Content-Length', headBytes.byteLength + documentJson.byteLength + 2);
+  const length = Buffer.isBuffer(documentJson) ? documentJson.byteLength : documentJson.reduce((n, b) => n + b.byteLength, 0);
+  res.setHeader('Content-Length', headBytes.byteLength + length + 2);
   res.write(headBytes);
   if (await writeInPieces(res, documentJson)) res.end('}}');
 }

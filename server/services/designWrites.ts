@@ -1,9 +1,9 @@
 /**
  * The writes of a design save, as functions of a database handle: the new design (create) and the next version
  * (save, with optimistic concurrency), each in one transaction with its audit entries, and the metadata of what
- * was written. The designs service calls them with the server's pool; the worker thread that reads a large
- * design body (server/http/designBody.worker.ts) calls the same functions with a connection of its own, so a
- * 17 MB document never crosses the request thread's database socket (issue 8, item 7). One story, two callers.
+ * was written. The designs service calls them with the server's pool; the process that reads a large design body
+ * (server/http/designBody.child.ts) calls the same functions with a connection of its own, so a 17 MB document
+ * never crosses the request thread's database socket (issue 8, item 7). One story, two callers.
  */
 import type { DesignDetail } from '@contracts/api';
 import { designsRepo, type DesignWrite } from '../repositories/designs';

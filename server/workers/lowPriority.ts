@@ -9,7 +9,7 @@
  * figures and imports (server/http, server/workers) and jobs (server/jobs/task.worker.ts). The work itself is
  * unchanged; it only waits when a request wants the same core.
  */
-import { readlinkSync } from 'node:fs';
+import { readdirSync, readlinkSync } from 'node:fs';
 import { setPriority } from 'node:os';
 
 /** nice 10: common practice for batch work beside interactive work (nice(1) adds 10 by default) */
@@ -33,4 +33,33 @@ export function lowerThreadPriority(nice = WORKER_NICE): boolean {
   } catch {
     return false;
   }
+}
+
+/**
+ * Lower every thread of this process to `nice`, for a process that only does batch work (the design-body process,
+ * server/http/designBody.child.ts). Lowering the calling thread alone leaves V8's platform threads, started with the
+ * process, at the parent's priority; they run the garbage collector's parallel and concurrent work for this
+ * process's large heaps, which is seconds of CPU per 17 MB design. Threads started later (libuv's pool, worker
+ * threads) inherit the nice value of the thread that starts them (setpriority(2), NOTES; pthreads(7)). Lists
+ * /proc/self/task (proc(5)); answers how many threads it lowered (0 where there is no /proc or lowering is refused).
+ */
+export function lowerProcessPriority(nice = WORKER_NICE): number {
+  let lowered = 0;
+  let tids: string[];
+  try {
+    tids = readdirSync('/proc/self/task');
+  } catch {
+    return 0;
+  }
+  for (const t of tids) {
+    const tid = Number(t);
+    if (!Number.isInteger(tid) || tid <= 0) continue;
+    try {
+      setPriority(tid, nice);
+      lowered += 1;
+    } catch {
+      // the thread ended meanwhile, or this process may not lower it: leave it
+    }
+  }
+  return lowered;
 }

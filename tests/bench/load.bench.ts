@@ -210,9 +210,9 @@ function mainThreadCpu(pid: number): { user: number; system: number } {
 
 /**
  * CPU time (user + system, ms) of each of the server's other threads so far, by thread id, with its nice value
- * (fields 14, 15 and 19 of /proc/<pid>/task/<tid>/stat, proc(5)). The body thread runs at nice 10; the rest at the
- * server's own priority are V8's platform threads (garbage collection for every isolate, the body thread's large
- * heaps included), libuv's pool and Node's own helpers.
+ * (fields 14, 15 and 19 of /proc/<pid>/task/<tid>/stat, proc(5)). Those at the server's own priority are V8's
+ * platform threads (garbage collection for the server's own heap; large bodies go to the design-body process, which
+ * has threads of its own), libuv's pool and Node's own helpers; lowered ones are worker threads (figures, jobs).
  */
 function otherThreadsCpu(pid: number): Map<number, { cpu: number; nice: number }> {
   const out = new Map<number, { cpu: number; nice: number }>();
@@ -227,6 +227,30 @@ function otherThreadsCpu(pid: number): Map<number, { cpu: number; nice: number }
     }
   }
   return out;
+}
+
+/**
+ * The design-body process of the server `pid` (server/http/designBody.child.ts; started at the first large body):
+ * its CPU time (user + system of all its threads, ms; fields 14 and 15 of /proc/<pid>/stat, proc(5)) and each
+ * live thread's nice value. Zero and none before it starts.
+ */
+function bodyProcessCpu(pid: number): { pid: number | null; cpu: number; nices: number[] } {
+  for (const name of readdirSync('/proc')) {
+    if (!/^\d+$/.test(name)) continue;
+    try {
+      const stat = readFileSync(`/proc/${name}/stat`, 'utf8');
+      const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      if (Number(f[1]) !== pid || f[0] === 'Z') continue;
+      if (!readFileSync(`/proc/${name}/cmdline`, 'utf8').includes('designBody.child')) continue;
+      const nices = [...otherThreadsCpu(Number(name)).values()].map((t) => t.nice);
+      const own = readFileSync(`/proc/${name}/task/${name}/stat`, 'utf8');
+      nices.unshift(Number(own.slice(own.lastIndexOf(')') + 2).split(' ')[16]));
+      return { pid: Number(name), cpu: (Number(f[11]) + Number(f[12])) * 10, nices };
+    } catch {
+      // a process that ended while being read
+    }
+  }
+  return { pid: null, cpu: 0, nices: [] };
 }
 
 /** CPU (ms) the other threads used between two readings, split into those at nice 0 and those lowered (nice > 0) */
@@ -334,6 +358,7 @@ export async function run(): Promise<void> {
     const main0 = cpuMs(child.pid!, 'main');
     const split0 = mainThreadCpu(child.pid!);
     const threads0 = otherThreadsCpu(child.pid!);
+    const body0 = bodyProcessCpu(child.pid!);
     await eventLoopDelay(child);
     const polling = process.env.TETRAWELL_BENCH_HEALTH_POLLS !== 'off';
     const health = polling ? healthPoller(url, 600_000) : null;
@@ -372,6 +397,9 @@ export async function run(): Promise<void> {
     const mainCpu = cpuMs(child.pid!, 'main') - main0;
     const split1 = mainThreadCpu(child.pid!);
     const threads = threadSplit(threads0, otherThreadsCpu(child.pid!));
+    const body1 = bodyProcessCpu(child.pid!);
+    // a process that left and came back meanwhile would be counted from zero: said below
+    const bodyCpu = body1.pid !== null && body1.pid === body0.pid ? body1.cpu - body0.cpu : body1.cpu;
     const eld = await eventLoopDelay(child);
     console.log(`  PUT statuses ${[...new Set(statuses)].join(', ')}; each PUT p50 ${pct(putTimes, 50).toFixed(0)} ms, max ${Math.max(...putTimes).toFixed(0)} ms; all rounds ${putWall.toFixed(0)} ms`);
     if (polling) console.log(`  health: ${during.length} polls, p50 ${pct(during, 50).toFixed(1)} ms, p99 ${pct(during, 99).toFixed(1)} ms, max ${Math.max(...during).toFixed(1)} ms`);
@@ -383,7 +411,7 @@ export async function run(): Promise<void> {
       );
     }
     console.log(
-      `  server CPU (all threads) ${(cpu / 1000).toFixed(2)} s = ${(cpu / statuses.length).toFixed(0)} ms per PUT, of which the main thread ` +
+      `  server CPU (all threads, its design-body process included) ${((cpu + bodyCpu) / 1000).toFixed(2)} s = ${((cpu + bodyCpu) / statuses.length).toFixed(0)} ms per PUT, of which the main thread ` +
         `${(mainCpu / statuses.length).toFixed(0)} ms per PUT; main-thread event-loop delay ` +
         `p50 ${eld.p50.toFixed(1)} ms, p99 ${eld.p99.toFixed(1)} ms, max ${eld.max.toFixed(1)} ms (load average ${loadAverage()})`,
     );
@@ -394,8 +422,13 @@ export async function run(): Promise<void> {
         `the ${during.length} health polls at the cost measured alone account for ~${(pollShare / statuses.length).toFixed(0)} ms of it per PUT`,
     );
     console.log(
-      `  other server threads: ${(threads.lowered / statuses.length).toFixed(0)} ms per PUT at a lowered priority (the body thread), ` +
+      `  other server threads: ${(threads.lowered / statuses.length).toFixed(0)} ms per PUT at a lowered priority, ` +
         `${(threads.normal / statuses.length).toFixed(0)} ms per PUT at the request thread's own (V8's garbage-collection helpers, libuv's pool)`,
+    );
+    const niceSet = [...new Set(body1.nices)].sort((a, b) => a - b);
+    console.log(
+      `  design-body process: ${(bodyCpu / statuses.length).toFixed(0)} ms per PUT, ${body1.nices.length} threads at nice ${niceSet.join(', ') || '(not running)'}` +
+        (body0.pid !== null && body1.pid !== body0.pid ? ' (it restarted during the run: counted from its restart)' : ''),
     );
     if (polled) placeSlowPolls(polled.polls, polled, eld, 50);
     if (eld.gc)

@@ -62,7 +62,7 @@ describe('lowerThreadPriority', () => {
     expect(getPriority(process.pid)).toBe(before);
   });
 
-  it.runIf(process.platform === 'linux')('a pool with backendNice runs its PostgreSQL backends at that nice value (the design-body threads\' big writes)', async () => {
+  it.runIf(process.platform === 'linux')('a pool with backendNice runs its PostgreSQL backends at that nice value (the design-body process\'s big writes)', async () => {
     // the test cluster runs on this machine, as this user or (as root) as postgres: setpriority(2) may lower it
     const knex = createKnex(process.env.DATABASE_URL!, { poolMax: 1, backendNice: WORKER_NICE });
     const plain = createKnex(process.env.DATABASE_URL!, { poolMax: 1 });

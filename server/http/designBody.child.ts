@@ -1,0 +1,143 @@
+/**
+ * The design-body process: a child of the server that reads, checks and writes large design bodies (issue 8,
+ * item 7). The server streams each body in over the IPC channel; this process assembles it, parses and checks it
+ * (designBodyParse.ts), writes it over a database connection of its own, and streams the stored JSON text back for
+ * the answer.
+ *
+ *   server (request thread)                         this process (every thread at nice 10)
+ *   ── CONFIG {databaseUrl} ───────────────────────▶ where to write
+ *   ── BEGIN id {kind, length, store?} ────────────▶ a buffer of `length` bytes
+ *   ── PIECE id bytes … (as they arrive) ──────────▶ copied in
+ *   ── END id ─────────────────────────────────────▶ queued: parse, check, figures, write (one body at a time)
+ *   ◀──────────────── OUT id bytes … (256 KiB) ───── the stored JSON text (or the jsonb bytes, unwritten)
+ *   ◀──────────────── RESULT id {result} ─────────── what was written, or the error as data
+ *   ── ABORT id ───────────────────────────────────▶ the buffer dropped
+ *
+ * One socket (fd 3, a socket pair the server made at spawn) carries both directions in frames (frames.ts): the
+ * bytes of a body go through untouched, with no serialisation on either side.
+ *
+ * Why a process and not a worker thread: a thread shares V8's platform threads with the request thread, and those
+ * run the garbage collector's parallel work for every isolate. A 17 MB design leaves heaps of hundreds of megabytes,
+ * and their collection cost 1–2.6 s of CPU per PUT at the request thread's own priority, on 2 cores, while
+ * /api/health waited behind it. Here every thread, the collector's helpers included, runs at nice 10
+ * (lowerProcessPriority), so the request thread and PostgreSQL get a core first.
+ */
+import { Socket } from 'node:net';
+import type { Knex } from 'knex';
+import { createKnex } from '../db/config';
+import { lowerProcessPriority, WORKER_NICE } from '../workers/lowPriority';
+import { OUT_PIECE_BYTES, parseDesignBody, storeDesign, type DesignBodyKind, type DesignBodyResult, type DesignBodyStore } from './designBodyParse';
+import { frameHeader, frameReader } from './frames';
+import { ANSWER_FRAME, BODY_FRAME, type AnswerResult, type BeginFrame } from './designBodyProtocol';
+
+interface Incoming {
+  kind: DesignBodyKind;
+  store?: DesignBodyStore;
+  buf: Uint8Array;
+  n: number;
+}
+
+const incoming = new Map<number, Incoming>();
+let databaseUrl: string | undefined;
+let db: Knex | null = null;
+/** bodies are handled one at a time: four parsed 100,000-site designs at once would hold ~1 GB */
+let queue: Promise<void> = Promise.resolve();
+
+const channel = new Socket({ fd: 3, readable: true, writable: true });
+
+function sendFrame(type: number, id: number, payload: Uint8Array): void {
+  channel.write(frameHeader(type, id, payload.byteLength));
+  if (payload.byteLength > 0) channel.write(payload);
+}
+
+function sendResult(id: number, result: AnswerResult): void {
+  sendFrame(ANSWER_FRAME.result, id, Buffer.from(JSON.stringify(result), 'utf8'));
+}
+
+/** bytes that go back ahead of their RESULT, in pieces the answer writes as they are */
+function sendOut(id: number, bytes: Uint8Array): void {
+  for (let at = 0; at < bytes.byteLength; at += OUT_PIECE_BYTES) sendFrame(ANSWER_FRAME.out, id, bytes.subarray(at, Math.min(bytes.byteLength, at + OUT_PIECE_BYTES)));
+}
+
+/** one connection: one body at a time. Its PostgreSQL backend works at this process's priority too (config.ts). */
+function database(): Knex {
+  if (!databaseUrl) throw new Error('the design-body process has no database URL (createDesignBodyReader({ databaseUrl }))');
+  return (db ??= createKnex(databaseUrl, { poolMax: 1, backendNice: WORKER_NICE }));
+}
+
+function append(body: Incoming, bytes: Uint8Array): void {
+  if (body.n + bytes.byteLength > body.buf.byteLength) {
+    // no Content-Length: grown by doubling
+    const bigger = new Uint8Array(Math.max(2 * body.buf.byteLength, body.n + bytes.byteLength));
+    bigger.set(body.buf.subarray(0, body.n));
+    body.buf = bigger;
+  }
+  body.buf.set(bytes, body.n);
+  body.n += bytes.byteLength;
+}
+
+const failure = (e: unknown): AnswerResult => ({ ok: false, failure: { message: String((e as Error)?.message ?? e), name: String((e as Error)?.name ?? 'Error') } });
+
+async function handle(id: number, body: Incoming): Promise<void> {
+  const r = parseDesignBody(body.buf.subarray(0, body.n), body.kind);
+  body.buf = new Uint8Array(0);
+  if (!r.ok || !('write' in r)) return sendResult(id, r as AnswerResult);
+  if (!body.store) {
+    const { documentJsonb, ...write } = r.write;
+    sendOut(id, documentJsonb);
+    return sendResult(id, { ok: true, write, version: r.version, outBytes: documentJsonb.byteLength });
+  }
+  let out: DesignBodyResult;
+  try {
+    out = await storeDesign(database(), r, body.store);
+  } catch (e) {
+    out = failure(e) as DesignBodyResult;
+  }
+  if (!out.ok || !('stored' in out)) return sendResult(id, out as AnswerResult);
+  sendOut(id, out.documentJson);
+  sendResult(id, { ok: true, stored: out.stored, outBytes: out.documentJson.byteLength });
+}
+
+/** the current frame: its type, id, and the JSON payload's pieces (CONFIG, BEGIN) */
+let frame: { type: number; id: number; json: Buffer[] } = { type: 0, id: 0, json: [] };
+
+const read = frameReader({
+  start(type, id) {
+    frame = { type, id, json: [] };
+  },
+  data(bytes) {
+    if (frame.type === BODY_FRAME.piece) {
+      const body = incoming.get(frame.id);
+      if (body) append(body, bytes);
+    } else {
+      frame.json.push(Buffer.from(bytes));
+    }
+  },
+  end() {
+    const { type, id } = frame;
+    if (type === BODY_FRAME.config) {
+      databaseUrl = (JSON.parse(Buffer.concat(frame.json).toString('utf8')) as { databaseUrl?: string }).databaseUrl;
+    } else if (type === BODY_FRAME.begin) {
+      const b = JSON.parse(Buffer.concat(frame.json).toString('utf8')) as BeginFrame;
+      incoming.set(id, { kind: b.kind, store: b.store, buf: new Uint8Array(b.length ?? 1024 * 1024), n: 0 });
+    } else if (type === BODY_FRAME.abort) {
+      incoming.delete(id);
+    } else if (type === BODY_FRAME.end) {
+      const body = incoming.get(id);
+      if (!body) return;
+      incoming.delete(id);
+      queue = queue.then(() => handle(id, body)).catch((e: unknown) => sendResult(id, failure(e)));
+    }
+  },
+});
+
+// every thread that exists now (the server lowered the main thread at spawn; this catches any thread started before
+// that), and through inheritance every later one
+lowerProcessPriority(WORKER_NICE);
+channel.on('data', read);
+// the server went away (or ended the channel when idle): nothing more can arrive and no answer can be delivered
+const leave = () => {
+  void (db?.destroy() ?? Promise.resolve()).finally(() => process.exit(0));
+};
+channel.on('end', leave);
+channel.on('error', leave);
