@@ -149,6 +149,8 @@ function streamBody(req: Request, to: BodyFeed, limit: number): Promise<void> {
 export interface DesignBodyReaderOptions {
   /** where the body process writes a body whose caller says where to store it */
   databaseUrl?: string;
+  /** how long the process stays without a body before it leaves (default IDLE_MS) */
+  idleMs?: number;
 }
 
 /** one running body process and the bodies it holds (a process that leaves fails only its own) */
@@ -253,7 +255,7 @@ export function createDesignBodyReader(options: DesignBodyReaderOptions = {}): D
       p.open = false;
       if (proc === p) proc = null;
       p.sock.end();
-    }, IDLE_MS);
+    }, options.idleMs ?? IDLE_MS);
     idle.unref();
   }
 

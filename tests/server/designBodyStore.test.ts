@@ -10,6 +10,7 @@ import { createDesignBodyReader } from '../../server/http/designBody';
 import { isDatabaseUnavailable } from '../../server/http/errors';
 import { freePort } from '../../server/ops/sys.mjs';
 import { emptyDesign } from '../../server/services/designs';
+import { bodyProcesses } from './helpers';
 
 const readers: ReturnType<typeof createDesignBodyReader>[] = [];
 afterAll(async () => {
@@ -40,5 +41,32 @@ describe('a large design body written by the body process while the database is 
     const req = { body: Buffer.from('{"document": [', 'utf8') } as unknown as Request;
     const err = (await reader.read(req, 'update', { projectId: 1, designId: 1, userId: 1 }).catch((e: unknown) => e)) as { code?: string };
     expect(err.code).toBe('bad_request');
+  }, 30_000);
+});
+
+describe('the design-body process without a database', () => {
+  it('hands a body back ready to write (the jsonb bytes whole), leaves when idle, and a new one serves the next body', async () => {
+    // the other tests' readers keep their processes until afterAll: this one's is the new pid
+    const others = new Set(bodyProcesses());
+    const mine = () => bodyProcesses().filter((p) => !others.has(p));
+    const reader = createDesignBodyReader({ idleMs: 300 });
+    readers.push(reader);
+    const document = emptyDesign('Idle process (invented example)');
+    const first = await reader.read(rawRequest({ document, version: 3 }), 'update');
+    if (!('prepared' in first) || !first.prepared) throw new Error('expected a body ready to write');
+    expect(first.version).toBe(3);
+    // jsonb binary input: version byte 1, then the UTF-8 JSON text (PostgreSQL, jsonb_recv)
+    expect(first.prepared.documentJsonb![0]).toBe(1);
+    expect(JSON.parse(first.prepared.documentJsonb!.subarray(1).toString('utf8'))).toEqual(document);
+    expect(mine()).toHaveLength(1);
+    const [pid] = mine();
+    // it leaves after idleMs without a body (its socket ends)
+    const t0 = Date.now();
+    while (bodyProcesses().includes(pid) && Date.now() - t0 < 10_000) await new Promise((r) => setTimeout(r, 50));
+    expect(bodyProcesses()).not.toContain(pid);
+    const second = await reader.read(rawRequest({ document, version: 4 }), 'update');
+    expect('prepared' in second && second.prepared ? second.version : null).toBe(4);
+    expect(mine()).toHaveLength(1);
+    expect(mine()[0]).not.toBe(pid);
   }, 30_000);
 });

@@ -7,6 +7,7 @@
  * against one database.
  */
 import { randomBytes } from 'node:crypto';
+import { readdirSync, readFileSync } from 'node:fs';
 import supertest from 'supertest';
 import { expect } from 'vitest';
 import type { Knex } from 'knex';
@@ -291,4 +292,22 @@ export async function expectSessionRotated(url: string, before: string | null, a
   const legit = await supertest(url).get('/api/auth/me').set('Cookie', `tetrawell.sid=${after}`);
   expect(legit.status).toBe(200);
   return legit;
+}
+
+/** the design-body processes started by this test process's server (server/http/designBody.child.ts) */
+export function bodyProcesses(): number[] {
+  const out: number[] = [];
+  for (const name of readdirSync('/proc')) {
+    if (!/^\d+$/.test(name)) continue;
+    try {
+      const stat = readFileSync(`/proc/${name}/stat`, 'utf8');
+      // proc(5): "pid (comm) state ppid …"; the comm may hold spaces, so read after its last ')'
+      const [state, ppid] = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      if (Number(ppid) !== process.pid || state === 'Z') continue;
+      if (readFileSync(`/proc/${name}/cmdline`, 'utf8').includes('designBody.child')) out.push(Number(name));
+    } catch {
+      // a process that ended while being read
+    }
+  }
+  return out;
 }

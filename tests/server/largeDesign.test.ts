@@ -12,7 +12,7 @@ import { designSchema, MAX_SITES } from '@contracts/design';
 import { computeFigures } from '../../server/workers/designFigures';
 import { ANSWER_PIECE_BYTES } from '../../server/routes/designs';
 import { WORKER_NICE } from '../../server/workers/lowPriority';
-import { newUser, startTestEnv, type TestClient, type TestEnv } from './helpers';
+import { bodyProcesses, newUser, startTestEnv, type TestClient, type TestEnv } from './helpers';
 
 let env: TestEnv;
 let owner: { client: TestClient };
@@ -329,24 +329,6 @@ describe('a design at the site limit', () => {
     expect(after[0]).not.toBe(before[0]);
   });
 });
-
-/** the design-body processes started by this test process's server (server/http/designBody.child.ts) */
-function bodyProcesses(): number[] {
-  const out: number[] = [];
-  for (const name of readdirSync('/proc')) {
-    if (!/^\d+$/.test(name)) continue;
-    try {
-      const stat = readFileSync(`/proc/${name}/stat`, 'utf8');
-      // proc(5): "pid (comm) state ppid …"; the comm may hold spaces, so read after its last ')'
-      const [state, ppid] = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
-      if (Number(ppid) !== process.pid || state === 'Z') continue;
-      if (readFileSync(`/proc/${name}/cmdline`, 'utf8').includes('designBody.child')) out.push(Number(name));
-    } catch {
-      // a process that ended while being read
-    }
-  }
-  return out;
-}
 
 function isZombie(pid: number): boolean {
   try {
