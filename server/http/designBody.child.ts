@@ -1,6 +1,6 @@
 /**
  * The design-body process: a child of the server that reads, checks and writes large design bodies (issue 8,
- * item 7). The server streams each body in over the IPC channel; this process assembles it, parses and checks it
+ * item 7). The server streams each body in over a socket pair; this process assembles it, parses and checks it
  * (designBodyParse.ts), writes it over a database connection of its own, and streams the stored JSON text back for
  * the answer.
  *
@@ -18,7 +18,7 @@
  *
  * Why a process and not a worker thread: a thread shares V8's platform threads with the request thread, and those
  * run the garbage collector's parallel work for every isolate. A 17 MB design leaves heaps of hundreds of megabytes,
- * and their collection cost 1–2.6 s of CPU per PUT at the request thread's own priority, on 2 cores, while
+ * and their collection cost 0.8–2.6 s of CPU per PUT at the request thread's own priority, on 2 cores, while
  * /api/health waited behind it. Here every thread, the collector's helpers included, runs at nice 10
  * (lowerProcessPriority), so the request thread and PostgreSQL get a core first.
  */
@@ -46,8 +46,11 @@ let queue: Promise<void> = Promise.resolve();
 const channel = new Socket({ fd: 3, readable: true, writable: true });
 
 function sendFrame(type: number, id: number, payload: Uint8Array): void {
+  // header and payload in one writev(2)
+  channel.cork();
   channel.write(frameHeader(type, id, payload.byteLength));
   if (payload.byteLength > 0) channel.write(payload);
+  channel.uncork();
 }
 
 function sendResult(id: number, result: AnswerResult): void {

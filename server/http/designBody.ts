@@ -173,8 +173,12 @@ export function createDesignBodyReader(options: DesignBodyReaderOptions = {}): D
   const send = (p: BodyProcess, type: number, id: number, payload?: Uint8Array): boolean => {
     if (!p.open) return true;
     const n = payload?.byteLength ?? 0;
-    const ok = p.sock.write(frameHeader(type, id, n));
-    return n > 0 ? p.sock.write(payload) : ok;
+    // header and payload in one writev(2)
+    p.sock.cork();
+    let ok = p.sock.write(frameHeader(type, id, n));
+    if (n > 0) ok = p.sock.write(payload);
+    p.sock.uncork();
+    return ok;
   };
   const sendJson = (p: BodyProcess, type: number, id: number, value: unknown) => send(p, type, id, Buffer.from(JSON.stringify(value), 'utf8'));
 
