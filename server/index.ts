@@ -19,6 +19,7 @@ import { DEFAULT_MAIL_QUEUE, mailKey, queuedMailer, startMailDelivery, type Mail
 import { createServices, type Services } from './services';
 import { createApp } from './app';
 import { createDesignBodyReader } from './http/designBody';
+import { passwordHasher } from './workers/passwordHash';
 import { createSessionStore } from './http/sessionStore';
 import { consoleLogger, DEFAULT_BODY_LIMIT, DEFAULT_RATE_LIMITS, type ServerOptions } from './config';
 import { queueName, sendOptions, startBoss } from './jobs/queue';
@@ -117,9 +118,11 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
   };
   // GET /api/health asks over a connection of its own, which request traffic cannot hold up (server/db/healthProbe.ts)
   const healthProbe = createHealthProbe(opts.databaseUrl, { logger });
-  const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() }, { queue, settings: jobSettings }, { databaseUp: healthProbe.up });
+  // bcrypt in a worker thread: a sign-in at cost 12 held the request thread ~270 ms
+  const passwords = passwordHasher({ rounds: config.bcryptRounds });
+  const services = createServices({ db: knex, mailer, config, logger, now: () => new Date() }, { queue, settings: jobSettings }, { databaseUp: healthProbe.up, passwords });
 
-  // large design bodies are validated and written in a worker thread with a database connection of its own
+  // large design bodies are validated and written by a helper process at nice 10 with a database connection of its own
   const designBodies = createDesignBodyReader({ databaseUrl: opts.databaseUrl });
   // the job threads of this process give way while requests are being served (server/workers/requestPressure.ts)
   const pressure = createRequestPressure();
@@ -153,7 +156,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
     });
   } catch (err) {
     sessionStore.close();
-    await Promise.allSettled([knex.destroy(), sessionPool.end(), healthProbe.close(), services.designs.close(), designBodies.destroy(), stopBoss()]);
+    await Promise.allSettled([knex.destroy(), sessionPool.end(), healthProbe.close(), services.designs.close(), designBodies.destroy(), passwords.close(), stopBoss()]);
     smtpMailer.close();
     throw err;
   }
@@ -195,7 +198,7 @@ export async function start(opts: ServerOptions): Promise<RunningServer> {
       await jobWorker?.stop(5_000);
       sessionStore.close();
       // a mail being handed to the SMTP server finishes first (stopBoss waits for it); the rest stays queued
-      await Promise.allSettled([knex.destroy(), sessionPool.end(), healthProbe.close(), services.designs.close(), designBodies.destroy(), stopBoss()]);
+      await Promise.allSettled([knex.destroy(), sessionPool.end(), healthProbe.close(), services.designs.close(), designBodies.destroy(), passwords.close(), stopBoss()]);
       smtpMailer.close();
     })());
 

@@ -15,7 +15,6 @@
  * distinct "confirm your address first" answer): simplest, and it leaks nothing; the text
  * itself reminds people who have just signed up to open the link.
  */
-import bcrypt from 'bcryptjs';
 import { randomBytes } from 'node:crypto';
 import type { User } from '@contracts/api';
 import { usersRepo, type UserRecord } from '../repositories/users';
@@ -28,6 +27,7 @@ import { hashToken, newToken } from './tokens';
 import { emailVerificationMail, passwordResetMail, signUpAttemptMail } from '../mail/templates';
 import type { OutgoingMail } from '../mail/mailer';
 import type { ServiceDeps } from './context';
+import type { PasswordHasher } from '../workers/passwordHash';
 
 export const SIGN_IN_FAILED =
   'The e-mail address or password is not right. If you have just created the account, open the confirmation link we e-mailed you first.';
@@ -38,16 +38,27 @@ export function toPublicUser(u: UserRecord): User {
   return { id: u.id, email: u.email, displayName: u.displayName, siteRole: u.siteRole, version: u.version };
 }
 
-export function authService(deps: ServiceDeps) {
+/** `passwords`: bcrypt at the configured cost, in a worker thread (server/workers/passwordHash.ts) */
+export function authService(deps: ServiceDeps, passwords: PasswordHasher) {
   const { db, config } = deps;
   // Computed once: a real bcrypt hash of a random string, compared against when the e-mail
   // is unknown so both failure paths cost one bcrypt comparison.
   let dummyHash: Promise<string> | null = null;
-  const getDummyHash = () => (dummyHash ??= bcrypt.hash(randomBytes(16).toString('hex'), config.bcryptRounds));
+  const getDummyHash = () => {
+    if (!dummyHash) {
+      const made = passwords.hash(randomBytes(16).toString('hex'));
+      // a failure (the worker could not start) is tried again at the next sign-in
+      made.catch(() => {
+        if (dummyHash === made) dummyHash = null;
+      });
+      dummyHash = made;
+    }
+    return dummyHash;
+  };
 
   return {
     hashPassword(password: string): Promise<string> {
-      return bcrypt.hash(password, config.bcryptRounds);
+      return passwords.hash(password);
     },
 
     /**
@@ -63,7 +74,7 @@ export function authService(deps: ServiceDeps) {
      */
     async signUp(input: { email: string; password: string; displayName: string }): Promise<OutgoingMail> {
       // hashed in every case, so a known address costs the same time as a new one
-      const passwordHash = await bcrypt.hash(input.password, config.bcryptRounds);
+      const passwordHash = await passwords.hash(input.password);
       const now = deps.now();
       return db.transaction(async (trx) => {
         const users = usersRepo(trx);
@@ -125,10 +136,10 @@ export function authService(deps: ServiceDeps) {
     async verifyCredentials(email: string, password: string): Promise<User | null> {
       const user = await usersRepo(db).findByEmail(email);
       if (!user) {
-        await bcrypt.compare(password, await getDummyHash());
+        await passwords.compare(password, await getDummyHash());
         return null;
       }
-      const matches = await bcrypt.compare(password, user.passwordHash);
+      const matches = await passwords.compare(password, user.passwordHash);
       // an unconfirmed account gets the same refusal as a wrong password (see the header comment)
       return matches && user.emailVerifiedAt ? toPublicUser(user) : null;
     },
@@ -157,7 +168,7 @@ export function authService(deps: ServiceDeps) {
     },
 
     async confirmPasswordReset(token: string, password: string): Promise<void> {
-      const passwordHash = await bcrypt.hash(password, config.bcryptRounds);
+      const passwordHash = await passwords.hash(password);
       await db.transaction(async (trx) => {
         const now = deps.now();
         const reset = await passwordResetsRepo(trx).findUsable(hashToken(token), now);
@@ -179,10 +190,10 @@ export function authService(deps: ServiceDeps) {
     async changePassword(userId: number, currentPassword: string, newPassword: string, keepSid: string): Promise<void> {
       const user = await usersRepo(db).findById(userId);
       if (!user) throw unauthenticated();
-      if (!(await bcrypt.compare(currentPassword, user.passwordHash))) {
+      if (!(await passwords.compare(currentPassword, user.passwordHash))) {
         throw new AppError('unprocessable', 'The current password is not right.', [{ path: ['currentPassword'], message: 'This is not your current password.' }]);
       }
-      const passwordHash = await bcrypt.hash(newPassword, config.bcryptRounds);
+      const passwordHash = await passwords.hash(newPassword);
       await db.transaction(async (trx) => {
         await usersRepo(trx).updatePasswordHash(userId, passwordHash);
         // other browsers signed in with the old password are signed out; this one stays

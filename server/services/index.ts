@@ -10,16 +10,18 @@ import { auditService } from './audit';
 import { adminService } from './admin';
 import { jobService, type JobDeps } from './jobs';
 import { apiTokenService, notificationService } from './apiTokens';
+import type { PasswordHasher } from '../workers/passwordHash';
 
 /**
  * `databaseUp`: the health check's own question to the database (server/db/healthProbe.ts, a connection no other
- * work can take); without it, a `select 1` through the shared pool.
+ * work can take); without it, a `select 1` through the shared pool. `passwords`: bcrypt off the request thread
+ * (server/workers/passwordHash.ts); the caller closes it.
  */
-export function createServices(deps: ServiceDeps, jobDeps: JobDeps, opts: { databaseUp?: () => Promise<boolean> } = {}) {
+export function createServices(deps: ServiceDeps, jobDeps: JobDeps, opts: { databaseUp?: () => Promise<boolean>; passwords: PasswordHasher }) {
   const designs = designService(deps);
   return {
     health: { databaseUp: opts.databaseUp ?? (() => ping(deps.db)) },
-    auth: authService(deps),
+    auth: authService(deps, opts.passwords),
     projects: projectService(deps, designs),
     members: memberService(deps),
     invitations: invitationService(deps),
