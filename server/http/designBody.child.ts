@@ -33,9 +33,17 @@ import { ANSWER_FRAME, BODY_FRAME, type AnswerResult, type BeginFrame } from './
 interface Incoming {
   kind: DesignBodyKind;
   store?: DesignBodyStore;
+  /** from Content-Length (the server checked it against the limit), or null for a chunked body */
+  length: number | null;
   buf: Uint8Array;
   n: number;
 }
+
+/**
+ * A body's buffer starts at 1 MiB at most and doubles as bytes arrive (up to its Content-Length): a declared length
+ * is a promise, not bytes, and several slow senders declaring 40 MB each must not hold 40 MB each before sending it.
+ */
+const FIRST_BUFFER_BYTES = 1024 * 1024;
 
 const incoming = new Map<number, Incoming>();
 let databaseUrl: string | undefined;
@@ -70,8 +78,11 @@ function database(): Knex {
 
 function append(body: Incoming, bytes: Uint8Array): void {
   if (body.n + bytes.byteLength > body.buf.byteLength) {
-    // no Content-Length: grown by doubling
-    const bigger = new Uint8Array(Math.max(2 * body.buf.byteLength, body.n + bytes.byteLength));
+    const need = body.n + bytes.byteLength;
+    let size = Math.max(2 * body.buf.byteLength, need);
+    // no further than the declared length when there is one (the server ends a body that passes it)
+    if (body.length !== null && body.length >= need) size = Math.min(size, body.length);
+    const bigger = new Uint8Array(size);
     bigger.set(body.buf.subarray(0, body.n));
     body.buf = bigger;
   }
@@ -88,7 +99,8 @@ async function handle(id: number, body: Incoming): Promise<void> {
   if (!body.store) {
     const { documentJsonb, ...write } = r.write;
     sendOut(id, documentJsonb);
-    return sendResult(id, { ok: true, write, version: r.version, outBytes: documentJsonb.byteLength });
+    sendResult(id, { ok: true, write, version: r.version, outBytes: documentJsonb.byteLength });
+    return flushed();
   }
   let out: DesignBodyResult;
   try {
@@ -99,6 +111,24 @@ async function handle(id: number, body: Incoming): Promise<void> {
   if (!out.ok || !('stored' in out)) return sendResult(id, out as AnswerResult);
   sendOut(id, out.documentJson);
   sendResult(id, { ok: true, stored: out.stored, outBytes: out.documentJson.byteLength });
+  // The next body's parse is seconds of synchronous work: let this answer leave first. Otherwise a saved design's
+  // answer waits behind it, and if this process died in that parse the server would answer 503 for a body that was
+  // written.
+  await flushed();
+}
+
+/** resolves once the socket has handed everything written so far to the kernel */
+function flushed(): Promise<void> {
+  if (!channel.writableNeedDrain) return Promise.resolve();
+  return new Promise((go) => {
+    const done = () => {
+      channel.off('drain', done);
+      channel.off('close', done);
+      go();
+    };
+    channel.on('drain', done);
+    channel.on('close', done);
+  });
 }
 
 /** the current frame: its type, id, and the JSON payload's pieces (CONFIG, BEGIN) */
@@ -122,7 +152,7 @@ const read = frameReader({
       databaseUrl = (JSON.parse(Buffer.concat(frame.json).toString('utf8')) as { databaseUrl?: string }).databaseUrl;
     } else if (type === BODY_FRAME.begin) {
       const b = JSON.parse(Buffer.concat(frame.json).toString('utf8')) as BeginFrame;
-      incoming.set(id, { kind: b.kind, store: b.store, buf: new Uint8Array(b.length ?? 1024 * 1024), n: 0 });
+      incoming.set(id, { kind: b.kind, store: b.store, length: b.length, buf: new Uint8Array(Math.min(b.length ?? FIRST_BUFFER_BYTES, FIRST_BUFFER_BYTES)), n: 0 });
     } else if (type === BODY_FRAME.abort) {
       incoming.delete(id);
     } else if (type === BODY_FRAME.end) {

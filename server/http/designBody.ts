@@ -132,17 +132,25 @@ function streamBody(req: Request, to: BodyFeed, limit: number): Promise<void> {
       resolve();
     };
     const onAborted = () => fail(badBody('request aborted'));
+    // a connection closed before the whole body came (Node 20 emits 'aborted' too, but not for every way of closing)
+    const onClose = () => {
+      if (!req.complete) fail(badBody('request aborted'));
+    };
     const onError = (e: Error) => fail(Object.assign(e, { status: 400 }));
     function cleanup() {
       req.off('data', onData);
       req.off('end', onEnd);
       req.off('aborted', onAborted);
+      req.off('close', onClose);
       req.off('error', onError);
     }
     req.on('data', onData);
     req.on('end', onEnd);
     req.on('aborted', onAborted);
+    req.on('close', onClose);
     req.on('error', onError);
+    // the client may have gone while the route still checked roles: no event will come any more
+    if (req.destroyed && !req.complete) fail(badBody('request aborted'));
   });
 }
 
@@ -167,6 +175,8 @@ interface BodyProcess {
 export function createDesignBodyReader(options: DesignBodyReaderOptions = {}): DesignBodyReader {
   let proc: BodyProcess | null = null;
   let nextId = 1;
+  /** after destroy() (server stop) no process is started again */
+  let destroyed = false;
   let idle: NodeJS.Timeout | null = null;
 
   /** a closed socket drops the frame: the 'exit' handler then fails what the process held */
@@ -186,8 +196,15 @@ export function createDesignBodyReader(options: DesignBodyReaderOptions = {}): D
   const start = (): BodyProcess => {
     // one that is leaving (idle, socket ended) takes no new body
     if (proc?.open) return proc;
+    if (destroyed) throw processGone();
     const { filename, execArgv } = childFile();
     const c = spawn(process.execPath, [...execArgv, filename], { stdio: ['ignore', 'inherit', 'inherit', 'pipe'] });
+    // a failed spawn (EMFILE, EAGAIN) reports 'error' on the next tick and has no stdio: listen first, refuse with 503
+    const sock = c.stdio?.[3] as Duplex | undefined | null;
+    if (!sock) {
+      c.on('error', () => {});
+      throw processGone();
+    }
     // at once, while node is still starting: the threads it starts next (V8's platform threads) inherit nice 10,
     // and loading the code runs lowered too; the child lowers whatever thread it still finds (designBody.child.ts)
     if (c.pid !== undefined) {
@@ -197,7 +214,6 @@ export function createDesignBodyReader(options: DesignBodyReaderOptions = {}): D
         // refused here (or already gone): the child lowers itself
       }
     }
-    const sock = c.stdio[3] as Duplex;
     const p: BodyProcess = { c, sock, pending: new Map(), waiting: new Set(), open: true };
     proc = p;
     let frame = { type: 0, id: 0, json: [] as Buffer[] };
@@ -237,7 +253,8 @@ export function createDesignBodyReader(options: DesignBodyReaderOptions = {}): D
       for (const f of p.waiting) f();
       p.waiting.clear();
     };
-    c.on('exit', ended);
+    // 'close': the process has exited and its socket is closed, so every frame it sent has been read first
+    c.on('close', ended);
     c.on('error', ended);
     // EPIPE and the like: the process is going; 'exit' follows
     sock.on('error', () => {
@@ -268,7 +285,9 @@ export function createDesignBodyReader(options: DesignBodyReaderOptions = {}): D
     if (idle) clearTimeout(idle);
     idle = null;
     const p = start();
-    const id = nextId++;
+    const id = nextId;
+    // ids are u32 in the frames (frames.ts)
+    nextId = nextId >= 0xffffffff ? 1 : nextId + 1;
     const answer = new Promise<Answer>((resolve, reject) => {
       p.pending.set(id, { resolve, reject, out: [] });
     });
@@ -309,7 +328,9 @@ export function createDesignBodyReader(options: DesignBodyReaderOptions = {}): D
         const buf = req.body;
         req.body = undefined;
         r = await run(kind, buf.byteLength, where, async (to) => {
-          for (let at = 0; at < buf.byteLength; at += SEND_PIECE_BYTES) to.piece(buf.subarray(at, Math.min(buf.byteLength, at + SEND_PIECE_BYTES)));
+          for (let at = 0; at < buf.byteLength; at += SEND_PIECE_BYTES) {
+            if (!to.piece(buf.subarray(at, Math.min(buf.byteLength, at + SEND_PIECE_BYTES)))) await new Promise<void>((go) => to.drained(go));
+          }
           to.end();
         });
       }
@@ -326,6 +347,7 @@ export function createDesignBodyReader(options: DesignBodyReaderOptions = {}): D
       return { prepared: { ...result.write, documentJsonb: Buffer.concat(out, result.outBytes) }, version: result.version };
     },
     async destroy() {
+      destroyed = true;
       if (idle) clearTimeout(idle);
       idle = null;
       const p = proc;

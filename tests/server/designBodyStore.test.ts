@@ -4,6 +4,7 @@
  * process still carries the driver's code, so the error middleware answers 503 `unavailable` (issue 8, item 1), not
  * 500. No database is needed: the URL names a port nothing listens on.
  */
+import { EventEmitter } from 'node:events';
 import { afterAll, describe, expect, it } from 'vitest';
 import type { Request } from 'express';
 import { createDesignBodyReader } from '../../server/http/designBody';
@@ -69,4 +70,43 @@ describe('the design-body process without a database', () => {
     expect(mine()).toHaveLength(1);
     expect(mine()[0]).not.toBe(pid);
   }, 30_000);
+});
+
+describe('the design-body reader at the edges of a request', () => {
+  // found in review: a client that went away while the route still checked roles left `read` waiting for events that
+  // never come, the process holding its body buffer, and the process never idle
+  it('refuses at once a body whose connection closed before it was read, and the process still leaves when idle', async () => {
+    const others = new Set(bodyProcesses());
+    const reader = createDesignBodyReader({ idleMs: 300 });
+    readers.push(reader);
+    const gone = Object.assign(new EventEmitter(), {
+      headers: { 'content-length': '1000000' },
+      destroyed: true,
+      complete: false,
+      designBodyStream: { limit: 40 * 1024 * 1024 },
+      resume() {},
+      pause() {},
+    }) as unknown as Request;
+    const err = (await Promise.race([
+      reader.read(gone, 'update', { projectId: 1, designId: 1, userId: 1 }).then(
+        () => 'answered',
+        (e: unknown) => e,
+      ),
+      new Promise((r) => setTimeout(() => r('still waiting after 5 s'), 5_000)),
+    ])) as { status?: number } | string;
+    expect(typeof err === 'object' && err.status).toBe(400);
+    const t0 = Date.now();
+    while (bodyProcesses().some((p) => !others.has(p)) && Date.now() - t0 < 10_000) await new Promise((r) => setTimeout(r, 50));
+    expect(bodyProcesses().filter((p) => !others.has(p))).toEqual([]);
+  }, 30_000);
+
+  // found in review: a request still in its role check when the server stopped started a new process after destroy()
+  it('starts no process after destroy(): a late body is answered 503', async () => {
+    const others = new Set(bodyProcesses());
+    const reader = createDesignBodyReader({ idleMs: 300 });
+    await reader.destroy();
+    const err = (await reader.read(rawRequest({ document: emptyDesign('Late (invented example)'), version: 1 }), 'update').catch((e: unknown) => e)) as { code?: string };
+    expect(err.code).toBe('unavailable');
+    expect(bodyProcesses().filter((p) => !others.has(p))).toEqual([]);
+  });
 });
