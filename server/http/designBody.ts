@@ -16,8 +16,6 @@
  * Either way the caller gets the same errors (400 / 422 with field paths, 404, 409 with the current version, 503).
  * The process is started on first use at nice 10 for all its threads, and leaves after a minute without work.
  */
-import { fileURLToPath } from 'node:url';
-import { existsSync } from 'node:fs';
 import { spawn, type ChildProcess } from 'node:child_process';
 import type { Duplex } from 'node:stream';
 import { setPriority } from 'node:os';
@@ -29,6 +27,7 @@ import type { DesignBodyKind, DesignBodyStore } from './designBodyParse';
 import { ANSWER_FRAME, BODY_FRAME, type AnswerResult, type BeginFrame } from './designBodyProtocol';
 import { frameHeader, frameReader } from './frames';
 import { WORKER_NICE } from '../workers/lowPriority';
+import { entryFile } from '../workers/entryFile';
 
 export type { DesignBodyStore } from './designBodyParse';
 
@@ -48,13 +47,6 @@ export interface DesignBodyReader {
   destroy(): Promise<void>;
 }
 
-/** The child is TypeScript under tsx and vitest (started with `--import tsx`), JavaScript in a build that emits it. */
-function childFile(): { filename: string; execArgv: string[] } {
-  const ts = fileURLToPath(new URL('./designBody.child.ts', import.meta.url));
-  const js = fileURLToPath(new URL('./designBody.child.js', import.meta.url));
-  if (import.meta.url.endsWith('.ts') || !existsSync(js)) return { filename: ts, execArgv: ['--import', 'tsx'] };
-  return { filename: js, execArgv: [] };
-}
 
 /** A failure of the child's write that is not an AppError, as an Error the error middleware can judge (503 or 500). */
 function storeError(f: { message: string; name: string; code?: string }): Error {
@@ -197,7 +189,7 @@ export function createDesignBodyReader(options: DesignBodyReaderOptions = {}): D
     // one that is leaving (idle, socket ended) takes no new body
     if (proc?.open) return proc;
     if (destroyed) throw processGone();
-    const { filename, execArgv } = childFile();
+    const { filename, execArgv } = entryFile(import.meta.url, 'designBody.child');
     const c = spawn(process.execPath, [...execArgv, filename], { stdio: ['ignore', 'inherit', 'inherit', 'pipe'] });
     // a failed spawn (EMFILE, EAGAIN) reports 'error' on the next tick and has no stdio: listen first, refuse with 503
     const sock = c.stdio?.[3] as Duplex | undefined | null;

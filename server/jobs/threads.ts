@@ -4,20 +4,12 @@
  * progress message, and rejects with an AbortError when `signal` aborts: piscina then ends the
  * thread that was computing, so a cancelled job stops using the CPU at once.
  */
-import { existsSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
 import { MessageChannel } from 'node:worker_threads';
 import Piscina from 'piscina';
 import type { JobKind, JobOptions, JobProgress } from '@contracts/api';
 import type { TaskOutput, TaskWorkerData } from './task.worker';
+import { entryFile } from '../workers/entryFile';
 
-function workerFile(): { filename: string; execArgv: string[] } {
-  const ts = fileURLToPath(new URL('./task.worker.ts', import.meta.url));
-  const js = fileURLToPath(new URL('./task.worker.js', import.meta.url));
-  // under tsx or vitest this file is TypeScript: the thread loads its .ts through tsx
-  if (import.meta.url.endsWith('.ts') || !existsSync(js)) return { filename: ts, execArgv: ['--import', 'tsx'] };
-  return { filename: js, execArgv: [] };
-}
 
 export interface JobThreads {
   run(task: { kind: JobKind; documentJson: string; options: JobOptions; chunkBytes?: number }, opts: { onProgress?: (p: JobProgress) => void; signal?: AbortSignal }): Promise<TaskOutput>;
@@ -30,7 +22,7 @@ export interface JobThreads {
  */
 export function jobThreads(threads: number, pressure?: SharedArrayBuffer): JobThreads {
   const workerData: TaskWorkerData = { pressure: pressure ?? null };
-  const pool = new Piscina({ ...workerFile(), workerData, minThreads: 0, maxThreads: Math.max(1, threads), idleTimeout: 60_000 });
+  const pool = new Piscina({ ...entryFile(import.meta.url, 'task.worker'), workerData, minThreads: 0, maxThreads: Math.max(1, threads), idleTimeout: 60_000 });
   return {
     async run(task, opts) {
       const { port1, port2 } = new MessageChannel();

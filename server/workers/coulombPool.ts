@@ -16,11 +16,10 @@
  * JavaScript next to it loads coulomb.worker.js without it.
  */
 import { MessageChannel } from 'node:worker_threads';
-import { fileURLToPath } from 'node:url';
-import { existsSync } from 'node:fs';
 import Piscina from 'piscina';
 import type { CoulombJob } from './coulomb.worker';
 import type { CoreProgress as Progress } from '../../geometry/pipeline/index';
+import { entryFile } from './entryFile';
 
 export type { CoulombJob } from './coulomb.worker';
 
@@ -50,10 +49,7 @@ export interface CoulombPool<J = CoulombJob> {
 
 function workerFile(custom?: string): { filename: string; execArgv: string[] } {
   if (custom) return { filename: custom, execArgv: custom.endsWith('.ts') ? ['--import', 'tsx'] : [] };
-  const ts = fileURLToPath(new URL('./coulomb.worker.ts', import.meta.url));
-  const js = fileURLToPath(new URL('./coulomb.worker.js', import.meta.url));
-  if (import.meta.url.endsWith('.ts') || !existsSync(js)) return { filename: ts, execArgv: ['--import', 'tsx'] };
-  return { filename: js, execArgv: [] };
+  return entryFile(import.meta.url, 'coulomb.worker');
 }
 
 export function createCoulombPool<J = CoulombJob>(options: CoulombPoolOptions = {}): CoulombPool<J> {

@@ -11,14 +11,13 @@
  * in the same worker.
  */
 import { createHash } from 'node:crypto';
-import { existsSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
 import Piscina from 'piscina';
 import { farFieldCheck } from '../../geometry/farfield';
 import type { Design } from '../../geometry/design/types';
 import type { DesignDocument } from '@contracts/design';
 import { canonicalJson } from '../formats/canonical';
 import { importSites, ImportRefused, type ImportContext, type ImportResult } from '../formats';
+import { entryFile } from './entryFile';
 
 export interface DesignFigures {
   sha256: string;
@@ -57,20 +56,13 @@ export interface FigureComputer {
   close(): Promise<void>;
 }
 
-function workerFile(): { filename: string; execArgv: string[] } {
-  const ts = fileURLToPath(new URL('./designFigures.worker.ts', import.meta.url));
-  const js = fileURLToPath(new URL('./designFigures.worker.js', import.meta.url));
-  // under tsx or vitest this file is TypeScript: the worker thread loads its .ts through tsx
-  if (import.meta.url.endsWith('.ts') || !existsSync(js)) return { filename: ts, execArgv: ['--import', 'tsx'] };
-  return { filename: js, execArgv: [] };
-}
 
 export function figureComputer(opts: { threshold?: number; thresholdBytes?: number } = {}): FigureComputer {
   const threshold = opts.threshold ?? WORKER_THRESHOLD_SITES;
   const thresholdBytes = opts.thresholdBytes ?? WORKER_THRESHOLD_BYTES;
   let pool: Piscina | null = null;
   // one thread: saves of huge designs and big uploads are rare; it lives 30 s after the last one
-  const getPool = () => (pool ??= new Piscina({ ...workerFile(), minThreads: 0, maxThreads: 1, idleTimeout: 30_000 }));
+  const getPool = () => (pool ??= new Piscina({ ...entryFile(import.meta.url, 'designFigures.worker'), minThreads: 0, maxThreads: 1, idleTimeout: 30_000 }));
   return {
     async compute(doc, documentJson) {
       if (doc.sites.length < threshold) return computeFigures(doc);

@@ -8,11 +8,10 @@
  * One thread by default, one fewer than the cores when there are more: a burst of sign-ins queues instead of taking
  * every core from the thread that answers requests.
  */
-import { existsSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
-import { fileURLToPath } from 'node:url';
 import Piscina from 'piscina';
 import type { PasswordTask } from './passwordHash.worker';
+import { entryFile } from './entryFile';
 
 export interface PasswordHasher {
   hash(password: string): Promise<string>;
@@ -21,19 +20,12 @@ export interface PasswordHasher {
   close(): Promise<void>;
 }
 
-function workerFile(): { filename: string; execArgv: string[] } {
-  const ts = fileURLToPath(new URL('./passwordHash.worker.ts', import.meta.url));
-  const js = fileURLToPath(new URL('./passwordHash.worker.js', import.meta.url));
-  // under tsx or vitest this file is TypeScript: the worker thread loads its .ts through tsx
-  if (import.meta.url.endsWith('.ts') || !existsSync(js)) return { filename: ts, execArgv: ['--import', 'tsx'] };
-  return { filename: js, execArgv: [] };
-}
 
 export function passwordHasher(opts: { rounds: number; maxThreads?: number }): PasswordHasher {
   let pool: Piscina | null = null;
   const maxThreads = opts.maxThreads ?? Math.max(1, availableParallelism() - 1);
   // started on first use, and gone 60 s after the last sign-in
-  const getPool = () => (pool ??= new Piscina({ ...workerFile(), minThreads: 0, maxThreads, idleTimeout: 60_000 }));
+  const getPool = () => (pool ??= new Piscina({ ...entryFile(import.meta.url, 'passwordHash.worker'), minThreads: 0, maxThreads, idleTimeout: 60_000 }));
   return {
     async hash(password) {
       return (await getPool().run({ op: 'hash', password, rounds: opts.rounds } satisfies PasswordTask)) as string;
