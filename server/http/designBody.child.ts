@@ -65,7 +65,7 @@ function sendResult(id: number, result: AnswerResult): void {
   sendFrame(ANSWER_FRAME.result, id, Buffer.from(JSON.stringify(result), 'utf8'));
 }
 
-/** bytes that go back ahead of their RESULT, in pieces the answer writes as they are */
+/** bytes that go back ahead of their RESULT, in frames of OUT_PIECE_BYTES (the server keeps the views it reads) */
 function sendOut(id: number, bytes: Uint8Array): void {
   for (let at = 0; at < bytes.byteLength; at += OUT_PIECE_BYTES) sendFrame(ANSWER_FRAME.out, id, bytes.subarray(at, Math.min(bytes.byteLength, at + OUT_PIECE_BYTES)));
 }

@@ -248,7 +248,7 @@ export function createDesignBodyReader(options: DesignBodyReaderOptions = {}): D
     // 'close': the process has exited and its socket is closed, so every frame it sent has been read first
     c.on('close', ended);
     c.on('error', ended);
-    // EPIPE and the like: the process is going; 'exit' follows
+    // EPIPE and the like: the process is going; 'close' follows
     sock.on('error', () => {
       p.open = false;
     });
